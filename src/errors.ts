@@ -1,0 +1,57 @@
+/**
+ * The one registry of error codes. Each code has its HTTP status and a title; the error
+ * handler turns a FoldwiseError into RFC 9457 problem details (application/problem+json).
+ * Codes are stable: clients may match on them. Append new codes; never rename one.
+ */
+export const errorCodes = {
+  ERR_REQUEST_INVALID: { status: 400, title: 'The request is not valid' },
+  ERR_PARAM_UNKNOWN: { status: 400, title: 'Unknown parameter' },
+  ERR_PARAM_INVALID: { status: 400, title: 'Invalid parameter value' },
+  ERR_PARAM_REPEATED: { status: 400, title: 'Parameter given more than once' },
+  ERR_PARAM_MISSING: { status: 400, title: 'Required parameter missing' },
+  ERR_SOURCE_NOT_FOUND: { status: 404, title: 'Source not found' },
+  ERR_SOURCE_PATH_INVALID: { status: 400, title: 'Source path not allowed' },
+  ERR_SOURCE_TOO_LARGE: { status: 413, title: 'Source exceeds the byte limit' },
+  ERR_SOURCE_UNSUPPORTED: { status: 415, title: 'Source format not supported' },
+  ERR_SOURCE_CORRUPT: { status: 422, title: 'Source image is corrupt or truncated' },
+  ERR_SOURCE_PIXELS_EXCEEDED: { status: 422, title: 'Source exceeds the pixel limit' },
+  ERR_OUTPUT_TOO_LARGE: { status: 422, title: 'Requested output exceeds the limit' },
+  ERR_ORIGIN_DISABLED: { status: 404, title: 'This origin is switched off' },
+  ERR_UPSTREAM_FAILED: { status: 502, title: 'Upstream origin failed' },
+  ERR_UPSTREAM_TIMEOUT: { status: 504, title: 'Upstream origin timed out' },
+  ERR_UPSTREAM_FORBIDDEN: { status: 403, title: 'Upstream host not allowed' },
+  ERR_SIGNATURE_REQUIRED: { status: 403, title: 'A valid signature is required' },
+  ERR_SIGNATURE_INVALID: { status: 403, title: 'Signature does not match' },
+  ERR_OVERLOADED: { status: 503, title: 'Service is busy; retry later' },
+  ERR_RENDER_TIMEOUT: { status: 503, title: 'Rendering took too long' },
+  ERR_RENDER_FAILED: { status: 500, title: 'Rendering failed' },
+  ERR_NOT_FOUND: { status: 404, title: 'No such route' },
+  ERR_METHOD_NOT_ALLOWED: { status: 405, title: 'Method not allowed' },
+  ERR_INTERNAL: { status: 500, title: 'Internal error' },
+} as const satisfies Record<string, { status: number; title: string }>;
+
+export type ErrorCode = keyof typeof errorCodes;
+
+/** An error the service means to show: its code picks status and title; `detail` is for people. */
+export class FoldwiseError extends Error {
+  readonly code: ErrorCode;
+  readonly status: number;
+  /** Extra response headers (e.g. Retry-After on 503). */
+  readonly headers?: Record<string, string>;
+
+  constructor(
+    code: ErrorCode,
+    detail?: string,
+    options?: { cause?: unknown; headers?: Record<string, string> },
+  ) {
+    super(detail ?? errorCodes[code].title, { cause: options?.cause });
+    this.name = 'FoldwiseError';
+    this.code = code;
+    this.status = errorCodes[code].status;
+    this.headers = options?.headers;
+  }
+}
+
+export function isFoldwiseError(e: unknown): e is FoldwiseError {
+  return e instanceof FoldwiseError;
+}
