@@ -1,0 +1,40 @@
+import { describe, expect, it } from 'vitest';
+import { MemoryTier } from '../../src/cache/memory.js';
+import { TieredCache } from '../../src/cache/tiered.js';
+import type { CacheTier } from '../../src/cache/types.js';
+import { entry } from './entry.js';
+
+const broken: CacheTier = {
+  name: 'broken',
+  get: () => Promise.reject(new Error('down')),
+  set: () => Promise.reject(new Error('down')),
+};
+
+describe('TieredCache', () => {
+  it('answers from the first tier that has the key and promotes a lower hit', async () => {
+    const l1 = new MemoryTier(1 << 20);
+    const l2 = new MemoryTier(1 << 20);
+    const cache = new TieredCache([l1, l2]);
+    await l2.set('k', entry(10));
+    expect((await cache.get('k'))?.tier).toBe('memory');
+    expect(await l1.get('k')).toBeDefined(); // promoted
+    expect(await cache.get('nope')).toBeUndefined();
+  });
+
+  it('writes every tier', async () => {
+    const l1 = new MemoryTier(1 << 20);
+    const l2 = new MemoryTier(1 << 20);
+    await new TieredCache([l1, l2]).set('k', entry(10));
+    expect(await l1.get('k')).toBeDefined();
+    expect(await l2.get('k')).toBeDefined();
+  });
+
+  it('reports a failing tier and carries on as a miss', async () => {
+    const errors: string[] = [];
+    const l2 = new MemoryTier(1 << 20);
+    const cache = new TieredCache([broken, l2], (tier, op) => errors.push(`${tier}:${op}`));
+    await cache.set('k', entry(3));
+    expect((await cache.get('k'))?.tier).toBe('memory');
+    expect(errors).toEqual(['broken:set', 'broken:get', 'broken:set']);
+  });
+});
