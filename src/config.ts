@@ -1,0 +1,144 @@
+import { readFileSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { z } from 'zod';
+
+const positiveInt = z.number().int().positive();
+
+/** The whole configuration, validated at start; unknown keys are refused so typos surface. */
+export const configSchema = z.strictObject({
+  server: z.strictObject({
+    host: z.string().min(1),
+    port: z.number().int().min(0).max(65535),
+    logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']),
+    trustProxy: z.boolean(),
+  }),
+  origin: z.strictObject({
+    sourceDir: z.string().min(1),
+    /** Serve GET /v1/sources (a listing of the folder origin). */
+    listing: z.boolean(),
+    /** Generate the demo pictures into sourceDir before listening (npm start). */
+    generateDemo: z.boolean(),
+  }),
+  limits: z.strictObject({
+    maxDimension: positiveInt.max(65535),
+    maxPixels: positiveInt,
+    maxSourceBytes: positiveInt,
+    maxOutputPixels: positiveInt,
+  }),
+  pool: z.strictObject({
+    /** Worker threads; 0 = one per available core. */
+    threads: z.number().int().min(0).max(256),
+    /** Renders allowed to wait for a worker; past it the service answers 503. */
+    maxQueue: z.number().int().min(0),
+    retryAfterSeconds: positiveInt,
+  }),
+  cache: z.strictObject({
+    memoryBytes: z.number().int().min(0),
+    dir: z.string().min(1),
+    diskBytes: z.number().int().min(0),
+    redisUrl: z.string().url().nullable(),
+  }),
+  http: z.strictObject({
+    maxAgeSeconds: z.number().int().min(0),
+    signedMaxAgeSeconds: z.number().int().min(0),
+  }),
+  signing: z.strictObject({
+    /** HMAC keys; the first signs, all verify (rotation). Empty = signing off. */
+    keys: z.array(z.string().min(16, 'a signing key needs at least 16 characters')),
+  }),
+});
+
+export type Config = z.infer<typeof configSchema>;
+export type Limits = Config['limits'];
+
+type Json = Record<string, unknown>;
+
+/** Where each environment variable lands in the configuration. */
+const envMap: Record<string, { path: string[]; parse: (v: string) => unknown }> = {
+  HOST: { path: ['server', 'host'], parse: (v) => v },
+  PORT: { path: ['server', 'port'], parse: (v) => (/^\d+$/.test(v) ? Number(v) : v) },
+  FOLDWISE_SOURCE_DIR: { path: ['origin', 'sourceDir'], parse: (v) => v },
+  FOLDWISE_CACHE_DIR: { path: ['cache', 'dir'], parse: (v) => v },
+  FOLDWISE_REDIS_URL: { path: ['cache', 'redisUrl'], parse: (v) => v },
+  FOLDWISE_SIGNING_KEY: {
+    path: ['signing', 'keys'],
+    parse: (v) => v.split(',').map((k) => k.trim()).filter((k) => k.length > 0),
+  },
+};
+
+/** Thrown when the configuration is invalid; the message names every bad setting. */
+export class ConfigError extends Error {
+  override name = 'ConfigError';
+}
+
+function isObject(v: unknown): v is Json {
+  return typeof v === 'object' && v !== null && !Array.isArray(v);
+}
+
+/** Objects merge key by key; arrays and scalars replace. */
+export function deepMerge(base: Json, over: Json): Json {
+  const out: Json = { ...base };
+  for (const [k, v] of Object.entries(over)) {
+    out[k] = isObject(v) && isObject(out[k]) ? deepMerge(out[k] as Json, v) : v;
+  }
+  return out;
+}
+
+function setPath(target: Json, path: string[], value: unknown): void {
+  let node = target;
+  for (const key of path.slice(0, -1)) {
+    if (!isObject(node[key])) node[key] = {};
+    node = node[key] as Json;
+  }
+  node[path[path.length - 1]] = value;
+}
+
+function readJson(file: string, label: string): Json {
+  let parsed: unknown;
+  try {
+    parsed = JSON.parse(readFileSync(file, 'utf8'));
+  } catch (e) {
+    throw new ConfigError(`${label} (${file}) cannot be read as JSON: ${(e as Error).message}`);
+  }
+  if (!isObject(parsed)) throw new ConfigError(`${label} (${file}) must hold a JSON object`);
+  return parsed;
+}
+
+/** Validates a merged configuration object; errors name each setting and, if set, its env var. */
+export function validateConfig(raw: unknown, fromEnv: Record<string, string> = {}): Config {
+  const result = configSchema.safeParse(raw);
+  if (result.success) return result.data;
+  const lines = result.error.issues.map((issue) => {
+    const at = issue.path.join('.') || '(root)';
+    const env = fromEnv[at] ? ` (from ${fromEnv[at]})` : '';
+    const keys = issue.code === 'unrecognized_keys' ? `: ${issue.keys.join(', ')}` : '';
+    return `  ${at}${env}: ${issue.message}${keys}`;
+  });
+  throw new ConfigError(`invalid configuration:\n${lines.join('\n')}`);
+}
+
+export const defaultConfigFile = fileURLToPath(new URL('../config/default.json', import.meta.url));
+
+/**
+ * Loads config/default.json, then the file named by FOLDWISE_CONFIG, then the environment
+ * variables, and validates the result. Throws ConfigError naming every bad value.
+ */
+export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
+  let merged = readJson(defaultConfigFile, 'config/default.json');
+  if (env.FOLDWISE_CONFIG) {
+    merged = deepMerge(merged, readJson(env.FOLDWISE_CONFIG, 'FOLDWISE_CONFIG'));
+  }
+  const fromEnv: Record<string, string> = {};
+  for (const [name, { path, parse }] of Object.entries(envMap)) {
+    const value = env[name];
+    if (value === undefined || value === '') continue;
+    setPath(merged, path, parse(value));
+    fromEnv[path.join('.')] = name;
+  }
+  return validateConfig(merged, fromEnv);
+}
+
+/** Default configuration with overrides merged in (tests, embedding); validated. */
+export function resolveConfig(overrides: Json = {}): Config {
+  return validateConfig(deepMerge(readJson(defaultConfigFile, 'config/default.json'), overrides));
+}
