@@ -15,7 +15,7 @@ import {
  */
 function referenceHmac(key: string, text: string): Buffer {
   const sha256 = (b: Buffer): Buffer => createHash('sha256').update(b).digest();
-  let k = Buffer.from(key, 'utf8');
+  let k: Buffer = Buffer.from(key, 'utf8');
   if (k.length > 64) k = sha256(k);
   const padded = Buffer.concat([k, Buffer.alloc(64 - k.length)]);
   const ipad = padded.map((b) => b ^ 0x36);
