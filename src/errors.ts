@@ -28,6 +28,9 @@ export const errorCodes = {
   ERR_NOT_FOUND: { status: 404, title: 'No such route' },
   ERR_METHOD_NOT_ALLOWED: { status: 405, title: 'Method not allowed' },
   ERR_INTERNAL: { status: 500, title: 'Internal error' },
+  ERR_REQUEST_TOO_LARGE: { status: 413, title: 'Request body too large' },
+  ERR_REQUEST_MEDIA_TYPE: { status: 415, title: 'Request body media type not supported' },
+  ERR_NOT_READY: { status: 503, title: 'Service not ready' },
 } as const satisfies Record<string, { status: number; title: string }>;
 
 export type ErrorCode = keyof typeof errorCodes;
