@@ -1,0 +1,74 @@
+import type { FastifyInstance } from 'fastify';
+
+export interface ShutdownOptions {
+  /** Time allowed for in-flight requests (and renders) to finish before giving up. */
+  deadlineMs: number;
+  signals?: NodeJS.Signals[];
+  /** Ends the process; injectable for tests. */
+  exit?: (code: number) => void;
+}
+
+export interface ShutdownHandle {
+  /** Starts the shutdown (idempotent); resolves with the exit code it chose. */
+  shutdown(reason: string): Promise<number>;
+  /** Removes the signal handlers. */
+  dispose(): void;
+}
+
+/**
+ * Graceful shutdown for the process shell. On the first signal: stop accepting connections
+ * (Fastify's close: the listener closes, idle keep-alive sockets are dropped, requests that
+ * arrive on busy sockets get 503), let in-flight requests finish, then run the plugins' onClose
+ * hooks (worker pool, Redis). If that takes longer than the deadline, exit 1 anyway. A second
+ * signal exits at once.
+ */
+export function installShutdown(app: FastifyInstance, options: ShutdownOptions): ShutdownHandle {
+  const signals = options.signals ?? ['SIGTERM', 'SIGINT'];
+  const exit = options.exit ?? ((code: number) => process.exit(code));
+  let started: Promise<number> | undefined;
+
+  const shutdown = (reason: string): Promise<number> => {
+    if (started) return started;
+    app.log.info({ reason, deadlineMs: options.deadlineMs }, 'shutting down: no new connections, finishing in-flight work');
+    started = new Promise<number>((resolve) => {
+      const timer = setTimeout(() => {
+        app.log.error({ deadlineMs: options.deadlineMs }, 'shutdown deadline passed with work still in flight');
+        resolve(1);
+      }, options.deadlineMs);
+      timer.unref();
+      app.close().then(
+        () => {
+          clearTimeout(timer);
+          app.log.info('shutdown complete');
+          resolve(0);
+        },
+        (err: unknown) => {
+          clearTimeout(timer);
+          app.log.error({ err }, 'error while closing');
+          resolve(1);
+        },
+      );
+    }).then((code) => {
+      exit(code);
+      return code;
+    });
+    return started;
+  };
+
+  const onSignal = (signal: NodeJS.Signals): void => {
+    if (started) {
+      app.log.warn({ signal }, 'second signal: exiting now');
+      exit(1);
+      return;
+    }
+    void shutdown(signal);
+  };
+  for (const s of signals) process.on(s, onSignal);
+
+  return {
+    shutdown,
+    dispose: () => {
+      for (const s of signals) process.off(s, onSignal);
+    },
+  };
+}
