@@ -1,0 +1,140 @@
+import sharp, { type Metadata, type SharpOptions } from 'sharp';
+import type { Channels, PixelRaster } from '../core/types.js';
+import { FoldwiseError } from '../errors.js';
+import { sourceFormats } from './formats.js';
+
+/** A decoded source: sRGB-encoded samples, upright, first frame only. */
+export interface DecodedImage {
+  raster: PixelRaster;
+  /** True when the raster carries an alpha channel that is not fully opaque. */
+  hasAlpha: boolean;
+  /** Source format as sharp names it, except AVIF which is reported as 'avif'. */
+  format: string;
+}
+
+export interface DecodeLimits {
+  /** Most pixels (width x height of one frame) a source may have. */
+  maxPixels: number;
+  /** Longest side a source may have, in pixels. */
+  maxDimension: number;
+}
+
+/**
+ * Decode image bytes into a raster for the core.
+ *
+ * - EXIF orientation is applied, so the raster is upright.
+ * - An embedded ICC profile is converted to sRGB, for 16-bit input too: sharp keeps 16-bit
+ *   input in a wide (P3) working space unless the output is converted to sRGB explicitly.
+ * - CMYK becomes sRGB; grey stays one channel (two with alpha); palettes are expanded.
+ * - 16-bit sources stay 16-bit (Uint16Array); everything else is 8-bit.
+ * - Animated sources give their first frame.
+ * - An alpha channel that is fully opaque is dropped, so the rest of the pipeline need not
+ *   premultiply and JPEG stays eligible.
+ * - Limits are checked from the header before any pixel is decoded, and again by sharp.
+ * - Truncated or corrupt data is refused, never half-decoded.
+ *
+ * @throws FoldwiseError ERR_SOURCE_UNSUPPORTED, ERR_SOURCE_CORRUPT, ERR_SOURCE_PIXELS_EXCEEDED
+ */
+export async function decodeImage(bytes: Buffer, limits: DecodeLimits): Promise<DecodedImage> {
+  if (bytes.length === 0) throw new FoldwiseError('ERR_SOURCE_UNSUPPORTED', 'The source is empty.');
+  const options: SharpOptions = {
+    // 'error' refuses truncated and damaged pixel data; sharp's stricter default 'warning'
+    // would also refuse the many camera files that carry harmless warnings (common practice).
+    failOn: 'error',
+    limitInputPixels: Math.max(1, Math.floor(limits.maxPixels)),
+    autoOrient: true,
+    pages: 1,
+    page: 0,
+  };
+  const meta = await sharp(bytes, options).metadata().catch((e: unknown) => {
+    throw classify(e);
+  });
+  const format = checkFormat(meta);
+  checkLimits(meta, limits);
+
+  const grey = meta.space === 'b-w' || meta.space === 'grey16';
+  const deep = meta.depth !== 'uchar' && meta.depth !== 'char';
+  let pipeline = sharp(bytes, options).toColourspace(
+    grey ? (deep ? 'grey16' : 'b-w') : deep ? 'rgb16' : 'srgb',
+  );
+  // For 16-bit RGB with a profile sharp converts to P3 and stops there; this converts on to
+  // sRGB. Without an embedded profile the samples are taken as sRGB already (common
+  // practice), and an output transform would wrongly treat them as P3.
+  if (deep && !grey && meta.icc) pipeline = pipeline.withIccProfile('srgb');
+  const { data, info } = await pipeline
+    .raw({ depth: deep ? 'ushort' : 'uchar' })
+    .toBuffer({ resolveWithObject: true })
+    .catch((e: unknown) => {
+      throw classify(e);
+    });
+
+  const channels = info.channels as Channels;
+  const samples = deep ? toUint16(data) : new Uint8Array(data.buffer, data.byteOffset, data.length);
+  const raster = dropOpaqueAlpha({ data: samples, width: info.width, height: info.height, channels });
+  return { raster, hasAlpha: raster.channels === 2 || raster.channels === 4, format };
+}
+
+function checkFormat(meta: Metadata): string {
+  const name = String(meta.format);
+  if (!Object.hasOwn(sourceFormats, name)) {
+    throw new FoldwiseError('ERR_SOURCE_UNSUPPORTED', `Sources in ${name} format are not accepted.`);
+  }
+  if (name !== 'heif') return name;
+  // The HEIF container also holds HEVC, which this build cannot decode; only AV1 (AVIF).
+  if (meta.compression !== 'av1') {
+    throw new FoldwiseError('ERR_SOURCE_UNSUPPORTED', 'Only AVIF is accepted of the HEIF family.');
+  }
+  return 'avif';
+}
+
+function checkLimits(meta: Metadata, limits: DecodeLimits): void {
+  const width = meta.autoOrient?.width ?? meta.width;
+  const height = meta.autoOrient?.height ?? meta.height;
+  if (!(width > 0 && height > 0)) {
+    throw new FoldwiseError('ERR_SOURCE_CORRUPT', 'The source header gives no size.');
+  }
+  if (width * height > limits.maxPixels) {
+    throw new FoldwiseError(
+      'ERR_SOURCE_PIXELS_EXCEEDED',
+      `The source has ${width}x${height} pixels; the limit is ${limits.maxPixels} pixels.`,
+    );
+  }
+  if (Math.max(width, height) > limits.maxDimension) {
+    throw new FoldwiseError(
+      'ERR_SOURCE_PIXELS_EXCEEDED',
+      `The source is ${width}x${height}; no side may exceed ${limits.maxDimension} pixels.`,
+    );
+  }
+}
+
+/** Maps sharp's failures onto our codes; sharp's error travels as the cause. */
+function classify(e: unknown): FoldwiseError {
+  const message = e instanceof Error ? e.message : String(e);
+  if (/unsupported image format/i.test(message)) {
+    return new FoldwiseError('ERR_SOURCE_UNSUPPORTED', 'The source is not an image format we read.', { cause: e });
+  }
+  if (/pixel limit/i.test(message)) {
+    return new FoldwiseError('ERR_SOURCE_PIXELS_EXCEEDED', 'The source exceeds the pixel limit.', { cause: e });
+  }
+  return new FoldwiseError('ERR_SOURCE_CORRUPT', 'The source image is corrupt or truncated.', { cause: e });
+}
+
+/** Native-endian 16-bit view of sharp's output, copied only when the bytes are misaligned. */
+function toUint16(data: Buffer): Uint16Array {
+  if (data.byteOffset % 2 === 0) return new Uint16Array(data.buffer, data.byteOffset, data.length / 2);
+  const copy = new Uint8Array(data);
+  return new Uint16Array(copy.buffer, 0, copy.length / 2);
+}
+
+function dropOpaqueAlpha(raster: PixelRaster): PixelRaster {
+  const { data, width, height, channels } = raster;
+  if (channels !== 2 && channels !== 4) return raster;
+  const opaque = data instanceof Uint16Array ? 65535 : 255;
+  for (let i = channels - 1; i < data.length; i += channels) if (data[i] !== opaque) return raster;
+  const colour = channels - 1;
+  const out = data instanceof Uint16Array ? new Uint16Array(width * height * colour) : new Uint8Array(width * height * colour);
+  for (let p = 0, o = 0, i = 0; p < width * height; p++, i++) {
+    for (let c = 0; c < colour; c++) out[o++] = data[i++];
+  }
+  return { data: out, width, height, channels: colour as Channels };
+}
