@@ -1,0 +1,99 @@
+/**
+ * The inspector's state: what the form holds, what the page URL says, and the API queries
+ * made from it. The page URL carries only what differs from the defaults, so a shared link
+ * stays short and reads like the request it shows.
+ */
+
+export interface InspectState {
+  source: string;
+  width: string;
+  height: string;
+  fit: string;
+  kernel: string;
+  prefilter: string;
+  light: string;
+}
+
+/** Field names in form order; each is also a page URL parameter and a form control's name. */
+export const fields = ['source', 'width', 'height', 'fit', 'kernel', 'prefilter', 'light'] as const;
+
+/** Values the service assumes when a parameter is absent; they are left out of URLs. */
+const defaults: InspectState = {
+  source: '',
+  width: '',
+  height: '',
+  fit: '',
+  kernel: 'auto',
+  prefilter: 'auto',
+  light: 'linear',
+};
+
+/** The first width shown when the URL names none. */
+export const startWidth = '320';
+
+export function fromParams(params: URLSearchParams): InspectState {
+  const state = { ...defaults };
+  for (const name of fields) {
+    const value = params.get(name);
+    if (value !== null && value.trim() !== '') state[name] = value.trim();
+  }
+  return state;
+}
+
+function changed(state: InspectState): [string, string][] {
+  return fields.filter((name) => state[name] !== defaults[name]).map((name) => [name, state[name]]);
+}
+
+/** The page's own query string for this state (`?source=…&width=…`). */
+export function pageSearch(state: InspectState): string {
+  return `?${new URLSearchParams(changed(state)).toString()}`;
+}
+
+export function readForm(form: HTMLFormElement): InspectState {
+  const data = new FormData(form);
+  const state = { ...defaults };
+  for (const name of fields) {
+    const value = data.get(name);
+    if (typeof value === 'string' && value.trim() !== '') state[name] = value.trim();
+  }
+  return state;
+}
+
+export function writeForm(form: HTMLFormElement, state: InspectState): void {
+  for (const name of fields) {
+    const control = form.elements.namedItem(name);
+    if (control instanceof HTMLInputElement || control instanceof HTMLSelectElement) {
+      control.value = state[name];
+    }
+  }
+}
+
+/** A source path as URL path segments, each escaped, slashes kept. */
+function sourcePath(source: string): string {
+  return source.split('/').filter((part) => part !== '').map(encodeURIComponent).join('/');
+}
+
+function apiQuery(state: InspectState, extra: Record<string, string>): string {
+  const params = new URLSearchParams(changed({ ...state, source: '' }));
+  for (const [name, value] of Object.entries(extra)) params.set(name, value);
+  return params.toString();
+}
+
+/**
+ * URLs relative to the page (which lives at the service root), so the page also works when
+ * the service is mounted under a path prefix. Renditions are asked for as PNG: a lossless
+ * format neither hides moiré nor adds compression artefacts of its own.
+ */
+export function apiUrls(state: InspectState) {
+  const path = sourcePath(state.source);
+  const naive = { ...state, kernel: 'nearest', prefilter: 'none' };
+  return {
+    naive: `v1/renditions/${path}?${apiQuery(naive, { format: 'png' })}`,
+    planned: `v1/renditions/${path}?${apiQuery(state, { format: 'png' })}`,
+    report: `v1/alias-risk/${path}?${apiQuery(state, {})}`,
+    map: `v1/alias-risk/${path}?${apiQuery(state, { view: 'map' })}`,
+    spectrum: `v1/alias-risk/${path}?${apiQuery(state, { view: 'spectrum' })}`,
+  };
+}
+
+export type ApiUrls = ReturnType<typeof apiUrls>;
