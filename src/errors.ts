@@ -31,6 +31,10 @@ export const errorCodes = {
   ERR_REQUEST_TOO_LARGE: { status: 413, title: 'Request body too large' },
   ERR_REQUEST_MEDIA_TYPE: { status: 415, title: 'Request body media type not supported' },
   ERR_NOT_READY: { status: 503, title: 'Service not ready' },
+  ERR_LIMIT_SOURCE_DIMENSION: { status: 422, title: 'A side of the source exceeds the dimension limit' },
+  ERR_LIMIT_SOURCE_FRAMES: { status: 422, title: 'Source has more animation frames than allowed' },
+  ERR_LIMIT_OUTPUT_DIMENSION: { status: 422, title: 'A side of the requested output exceeds the dimension limit' },
+  ERR_LIMIT_DECODE_TIMEOUT: { status: 503, title: 'Decoding the source took too long' },
 } as const satisfies Record<string, { status: number; title: string }>;
 
 export type ErrorCode = keyof typeof errorCodes;
