@@ -1,0 +1,137 @@
+/**
+ * Welch estimate of the power spectrum of a source's linear-light luminance (Welch, P. D.
+ * (1967), "The use of fast Fourier transform for the estimation of power spectra", IEEE Trans.
+ * Audio Electroacoustics 15(2)): periodic-Hann-windowed square tiles spread over the whole
+ * image, each periodogram normalised by the window's energy U = sum w^2, then averaged.
+ * Each tile's windowed mean is removed first, so no DC leaks into the low bins.
+ */
+import type { PixelRaster } from '../types.js';
+import { fft2d, fftPlan } from './fft.js';
+import { tileLuminance } from './luminance.js';
+import { layoutTiles, type TileLayout } from './tiles.js';
+import { hannWindow } from './window.js';
+
+/** Full-resolution cells per region-spectrum bin along each axis. */
+const BIN = 4;
+
+/**
+ * Welch power spectrum of one source, as plain numbers and typed arrays (cacheable,
+ * serialisable). Spectra are in centred order: cell (i, j) of a side-n spectrum is the
+ * frequency fx = (i - n/2) / n, fy = (j - n/2) / n cycles per source pixel, stored at j * n + i.
+ * Units: white noise of variance v reads v in every full-resolution cell.
+ */
+export interface SourceSpectrum {
+  width: number;
+  height: number;
+  /** Tile side (a power of two); 0 when the image is too small to analyse. */
+  tileSize: number;
+  /** Number of tiles averaged. */
+  tiles: number;
+  /** Averaged periodogram, tileSize x tileSize cells. */
+  power: Float32Array;
+  /** Per-region spectra for the risk grid, each `bins` x `bins` cells; a cell sums binSize^2 full cells. */
+  grid: { columns: number; rows: number; bins: number; binSize: number; power: Float32Array };
+}
+
+interface Scratch {
+  re: Float64Array;
+  im: Float64Array;
+  lum: Float64Array;
+}
+const scratches = new Map<number, Scratch>();
+
+function scratchFor(t: number): Scratch {
+  let s = scratches.get(t);
+  if (!s) {
+    s = { re: new Float64Array(t * t), im: new Float64Array(t * t), lum: new Float64Array(t * t) };
+    scratches.set(t, s);
+  }
+  return s;
+}
+
+/** Windowed, mean-removed luminance of tile `k` into `dst`. */
+function loadTile(dst: Float64Array, lum: Float64Array, src: PixelRaster, layout: TileLayout, k: number): void {
+  const t = layout.tileSize;
+  const w = hannWindow(t);
+  tileLuminance(lum, src, layout.corners[2 * k], layout.corners[2 * k + 1], t);
+  let sum = 0;
+  for (let y = 0; y < t; y++) {
+    let row = 0;
+    for (let x = 0; x < t; x++) row += w[x] * lum[y * t + x];
+    sum += w[y] * row;
+  }
+  const mean = sum / ((t / 2) * (t / 2)); // sum of the 2-D periodic Hann window is (T/2)^2
+  for (let y = 0; y < t; y++) {
+    for (let x = 0; x < t; x++) dst[y * t + x] = (lum[y * t + x] - mean) * w[x] * w[y];
+  }
+}
+
+/**
+ * Welch spectrum of a decoded source (8- or 16-bit sRGB, 1..4 channels). Pure; reads a bounded
+ * number of tiles (see tiles.ts), so its cost hardly grows past a few megapixels.
+ */
+export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
+  const { width, height, channels, data } = src;
+  if (!(Number.isInteger(width) && Number.isInteger(height) && width >= 1 && height >= 1)) {
+    throw new RangeError(`bad raster size ${width}x${height}`);
+  }
+  if (!(channels >= 1 && channels <= 4) || data.length < width * height * channels) {
+    throw new RangeError('raster data is shorter than width * height * channels');
+  }
+  const layout = layoutTiles(width, height);
+  const t = layout.tileSize;
+  const regions = layout.columns * layout.rows;
+  const bins = t / BIN;
+  const count = layout.region.length;
+  const power = new Float64Array(t * t);
+  const regionPower = new Float64Array(regions * bins * bins);
+  const perRegion = new Int32Array(regions);
+  const { re, im, lum } = scratchFor(t);
+  const plan = fftPlan(Math.max(1, t));
+  // U = sum of the squared 2-D window = (3T/8)^2 (periodic Hann, Welch 1967); the 1/4 undoes
+  // the packing of two real tiles into one complex transform.
+  const norm = 1 / (4 * ((3 * t) / 8) ** 2);
+  const mask = t - 1;
+  const half = t >> 1;
+  for (let k = 0; k < count; k += 2) {
+    const ra = layout.region[k];
+    const rb = k + 1 < count ? layout.region[k + 1] : -1;
+    loadTile(re, lum, src, layout, k);
+    if (rb >= 0) loadTile(im, lum, src, layout, k + 1);
+    else im.fill(0);
+    fft2d(plan, re, im);
+    perRegion[ra]++;
+    if (rb >= 0) perRegion[rb]++;
+    // Two real tiles a + i b: A(k) = (Z(k) + conj Z(-k)) / 2, B(k) = (Z(k) - conj Z(-k)) / 2i.
+    for (let v = 0; v < t; v++) {
+      const vn = ((t - v) & mask) * t;
+      const vc = (v + half) & mask;
+      for (let u = 0; u < t; u++) {
+        const i = v * t + u;
+        const j = vn + ((t - u) & mask);
+        const pa = ((re[i] + re[j]) ** 2 + (im[i] - im[j]) ** 2) * norm;
+        const pb = ((re[i] - re[j]) ** 2 + (im[i] + im[j]) ** 2) * norm;
+        const uc = (u + half) & mask;
+        power[vc * t + uc] += pa + pb;
+        const cell = ((vc / BIN) | 0) * bins + ((uc / BIN) | 0);
+        regionPower[ra * bins * bins + cell] += pa;
+        if (rb >= 0) regionPower[rb * bins * bins + cell] += pb;
+      }
+    }
+  }
+  const out = new Float32Array(t * t);
+  for (let i = 0; i < out.length; i++) out[i] = power[i] / count;
+  const grid = new Float32Array(regionPower.length);
+  for (let r = 0; r < regions; r++) {
+    const n = perRegion[r] || 1;
+    for (let c = 0; c < bins * bins; c++) grid[r * bins * bins + c] = regionPower[r * bins * bins + c] / n;
+  }
+  return {
+    width,
+    height,
+    tileSize: t,
+    tiles: count,
+    power: out,
+    grid: { columns: layout.columns, rows: layout.rows, bins, binSize: BIN, power: grid },
+  };
+}
