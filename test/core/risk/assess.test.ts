@@ -1,0 +1,128 @@
+import { describe, expect, it } from 'vitest';
+import { analyzeSpectrum } from '../../../src/core/spectrum/index.js';
+import {
+  adaptiveSigma,
+  ADAPTIVE_MAX,
+  assessRisk,
+  gaussianResponse,
+} from '../../../src/core/risk/index.js';
+import type { Plan } from '../../../src/core/types.js';
+import { gradient, grating, greyRaster, noise } from './patterns.js';
+
+function planOf(width: number, height: number, s: number, sigma = 0): Plan {
+  const axis = { scale: s, kernel: 'nearest', sigma, pyramidLevels: 0 };
+  return {
+    sourceWidth: width,
+    sourceHeight: height,
+    crop: { x: 0, y: 0, width, height },
+    targetWidth: Math.round(width / s),
+    targetHeight: Math.round(height / s),
+    x: axis,
+    y: { ...axis },
+    light: 'linear',
+    reason: 'test',
+  };
+}
+const gauss = (sigma: number) => (_a: 'x' | 'y', f: number) => gaussianResponse(sigma, f);
+const none = () => 1;
+
+describe('peaks', () => {
+  // A sinusoid folds to |s f - round(s f)| (sampling theorem, CHECKS.md worked values).
+  it.each([
+    [0.3, 2, 0.4],
+    [0.45, 2, 0.1],
+    [0.45, 4, 0.2],
+  ])('names a %f cycles/px grating at s = %i as periodic, landing at %f', (f, s, lands) => {
+    const spec = analyzeSpectrum(greyRaster(512, 512, grating(f)));
+    const r = assessRisk(spec, planOf(512, 512, s), none);
+    const top = r.peaks[0];
+    expect(top.kind).toBe('periodic');
+    expect(Math.abs(Math.abs(top.fx) - f)).toBeLessThan(0.25 / spec.tileSize);
+    expect(Math.abs(top.fy)).toBeLessThan(0.5 / spec.tileSize);
+    expect(Math.abs(top.aliasTo.fx - lands)).toBeLessThan((0.25 * s) / spec.tileSize);
+    expect(top.power).toBeGreaterThan(0.9);
+    expect(top.passed).toBe(1);
+    expect(r.reason).toMatch(/moiré/);
+  });
+
+  it('calls white noise broadband, never periodic', () => {
+    const spec = analyzeSpectrum(greyRaster(512, 512, noise(512, 512, 0.3, 5)));
+    const r = assessRisk(spec, planOf(512, 512, 2), none);
+    expect(r.peaks.every((p) => p.kind === 'broadband')).toBe(true);
+  });
+
+  it('reports the filter attenuation of each peak', () => {
+    const spec = analyzeSpectrum(greyRaster(512, 512, grating(0.3)));
+    const r = assessRisk(spec, planOf(512, 512, 2, 1), gauss(1));
+    expect(r.peaks[0].passed).toBeCloseTo(gaussianResponse(1, Math.abs(r.peaks[0].fx)) ** 2, 3);
+  });
+
+  it('finds no peaks in a smooth gradient', () => {
+    const spec = analyzeSpectrum(greyRaster(512, 512, gradient(512)));
+    expect(assessRisk(spec, planOf(512, 512, 4), none).peaks).toEqual([]);
+  });
+});
+
+describe('recommended sigma', () => {
+  // Gaussian response H(f) = exp(-2 pi^2 sigma^2 f^2) (CHECKS.md): the recommended sigma,
+  // applied as the only filter, must bring the same source to low.
+  it.each([2, 3, 4])('brings a noisy grating at s = %i to low', (s) => {
+    const rnd = noise(512, 512, 0.1, 8);
+    const g = grating(0.4, 0.3, 0.3);
+    const spec = analyzeSpectrum(greyRaster(512, 512, (x, y) => g(x, y) + rnd(x, y) - 0.5));
+    const first = assessRisk(spec, planOf(512, 512, s), none);
+    expect(first.level).toBe('high');
+    const sigma = first.recommendedSigma.x;
+    expect(first.recommendedSigma.y).toBeCloseTo(sigma, 12);
+    const second = assessRisk(spec, planOf(512, 512, s, sigma), gauss(sigma));
+    expect(second.level).toBe('low');
+    // ...and it is the least such sigma (within the search step): 10 % less is not low.
+    const less = assessRisk(spec, planOf(512, 512, s, 0.9 * sigma), gauss(0.9 * sigma));
+    expect(less.level).not.toBe('low');
+  });
+
+  it('keeps the planned sigma when the plan is already low', () => {
+    const spec = analyzeSpectrum(greyRaster(256, 256, gradient(256)));
+    const r = assessRisk(spec, planOf(256, 256, 2, 0.7), gauss(0.7));
+    expect(r.level).toBe('low');
+    expect(r.recommendedSigma.x).toBeCloseTo(0.7, 12);
+  });
+});
+
+describe('adaptiveSigma', () => {
+  it('adds nothing on a low-risk source', () => {
+    const spec = analyzeSpectrum(greyRaster(256, 256, gradient(256)));
+    expect(adaptiveSigma(spec, planOf(256, 256, 3), none)).toBeUndefined();
+  });
+
+  it('adds a bounded blur on a high-risk source, and it lowers the folded fraction', () => {
+    const spec = analyzeSpectrum(greyRaster(512, 512, grating(0.3, 0.2)));
+    const plan = planOf(512, 512, 2);
+    const extra = adaptiveSigma(spec, plan, gauss(0.5));
+    expect(extra).toBeDefined();
+    expect(extra!.x).toBeGreaterThan(0);
+    expect(extra!.x).toBeLessThanOrEqual(ADAPTIVE_MAX * 2 + 1e-12);
+    const before = assessRisk(spec, plan, gauss(0.5)).folded.planned;
+    const sigma = Math.hypot(0.5, extra!.x);
+    const after = assessRisk(spec, planOf(512, 512, 2, sigma), gauss(sigma)).folded.planned;
+    // Bounded: the 1.2 x Nyquist grating cannot be removed without softening the passband,
+    // so the blur stops at ADAPTIVE_MAX * s and the fold drops by the Gaussian's H^2 there.
+    expect(extra!.x).toBeCloseTo(ADAPTIVE_MAX * 2, 12);
+    expect(after).toBeLessThan(before / 4);
+  });
+});
+
+describe('region grid', () => {
+  it('marks the region that holds the grating and not the flat ones', () => {
+    const w = 1024;
+    const h = 1024;
+    const g = grating(0.4, 0.5);
+    const spec = analyzeSpectrum(greyRaster(w, h, (x, y) => (x < 256 && y < 256 ? g(x, y) : 0.5)));
+    const r = assessRisk(spec, planOf(w, h, 3), none);
+    const { columns, rows, cells } = r.grid;
+    expect(columns * rows).toBe(cells.length);
+    expect(cells[0]).toBeGreaterThan(0.75);
+    expect(cells[columns * rows - 1]).toBe(0);
+    expect(Math.max(...cells.slice(columns * 4))).toBe(0);
+  });
+});
