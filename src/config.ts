@@ -18,12 +18,36 @@ export const configSchema = z.strictObject({
     listing: z.boolean(),
     /** Generate the demo pictures into sourceDir before listening (npm start). */
     generateDemo: z.boolean(),
+    /**
+     * HTTP(S) upstreams, reached as /v1/renditions/~upstream/<host>[:port]/<path>. Only the
+     * allowlisted origins are fetched; every resolved address must be public unless allowed.
+     */
+    upstream: z.strictObject({
+      /** "https://cdn.example.org", "http://127.0.0.1:8123"; a bare host means https. Empty = off. */
+      allowHosts: z.array(z.string().min(1)),
+      /** Let private, loopback, link-local and unique-local addresses through (intranets, tests). */
+      allowPrivate: z.boolean(),
+      /** CIDR blocks allowed although not public, e.g. "10.20.0.0/16". */
+      allowAddresses: z.array(z.string().min(1)),
+      connectTimeoutMs: positiveInt,
+      headersTimeoutMs: positiveInt,
+      bodyTimeoutMs: positiveInt,
+      maxRedirects: z.number().int().min(0).max(10),
+    }),
   }),
   limits: z.strictObject({
     maxDimension: positiveInt.max(65535),
     maxPixels: positiveInt,
     maxSourceBytes: positiveInt,
     maxOutputPixels: positiveInt,
+    /** Most animation frames a source may declare (only the first is rendered). */
+    maxFrames: positiveInt,
+    /** Largest upload accepted by POST /v1/ingest, in bytes. */
+    maxUploadBytes: positiveInt,
+    /** Deadline for decoding one source. */
+    decodeTimeoutMs: positiveInt,
+    /** Deadline for resampling and encoding one rendition. */
+    renderTimeoutMs: positiveInt,
   }),
   pool: z.strictObject({
     /** Worker threads; 0 = one per available core. */
@@ -45,6 +69,8 @@ export const configSchema = z.strictObject({
   signing: z.strictObject({
     /** HMAC keys; the first signs, all verify (rotation). Empty = signing off. */
     keys: z.array(z.string().min(16, 'a signing key needs at least 16 characters')),
+    /** Refuse unsigned rendition URLs; unset = required whenever a key is configured. */
+    required: z.boolean().optional(),
   }),
 });
 
@@ -60,6 +86,10 @@ const envMap: Record<string, { path: string[]; parse: (v: string) => unknown }> 
   FOLDWISE_SOURCE_DIR: { path: ['origin', 'sourceDir'], parse: (v) => v },
   FOLDWISE_CACHE_DIR: { path: ['cache', 'dir'], parse: (v) => v },
   FOLDWISE_REDIS_URL: { path: ['cache', 'redisUrl'], parse: (v) => v },
+  FOLDWISE_UPSTREAM_HOSTS: {
+    path: ['origin', 'upstream', 'allowHosts'],
+    parse: (v) => v.split(',').map((h) => h.trim()).filter((h) => h.length > 0),
+  },
   FOLDWISE_SIGNING_KEY: {
     path: ['signing', 'keys'],
     parse: (v) => v.split(',').map((k) => k.trim()).filter((k) => k.length > 0),
