@@ -62,6 +62,35 @@ export const configSchema = z.strictObject({
     diskBytes: z.number().int().min(0),
     redisUrl: z.string().url().nullable(),
   }),
+  /** The shared Redis tier (used when cache.redisUrl is set) and its cross-replica lock. */
+  redis: z.strictObject({
+    ttlSeconds: positiveInt,
+    /** Entries larger than this (encoded) stay out of Redis; L1 still keeps them. */
+    maxEntryBytes: positiveInt,
+    /** Lock lifetime; the holder renews it while rendering, so it only lapses if the holder dies. */
+    lockTtlMs: positiveInt,
+    /** How long a replica waits for another's render before rendering itself. */
+    waitDeadlineMs: positiveInt,
+    commandTimeoutMs: positiveInt,
+    connectTimeoutMs: positiveInt,
+    /** Consecutive failures that open the circuit breaker, and how long it stays open. */
+    failureThreshold: positiveInt,
+    breakerOpenMs: positiveInt,
+    /** Prefix of every key and channel. */
+    namespace: z.string(),
+  }),
+  /** Load shedding (503 + Retry-After); 0 switches a limit off. */
+  pressure: z.strictObject({
+    maxEventLoopDelayMs: z.number().int().min(0),
+    maxHeapUsedBytes: z.number().int().min(0),
+    maxRssBytes: z.number().int().min(0),
+    sampleIntervalMs: positiveInt,
+    retryAfterSeconds: positiveInt,
+  }),
+  shutdown: z.strictObject({
+    /** Time in-flight requests get after SIGTERM before the process exits anyway. */
+    deadlineMs: positiveInt,
+  }),
   http: z.strictObject({
     maxAgeSeconds: z.number().int().min(0),
     signedMaxAgeSeconds: z.number().int().min(0),
