@@ -17,6 +17,10 @@ export interface DecodeLimits {
   maxPixels: number;
   /** Longest side a source may have, in pixels. */
   maxDimension: number;
+  /** Most animation frames (pages) a source may declare; only the first is decoded. */
+  maxFrames?: number;
+  /** Deadline for the whole decode, in ms (ERR_LIMIT_DECODE_TIMEOUT past it). */
+  timeoutMs?: number;
 }
 
 /**
@@ -36,6 +40,21 @@ export interface DecodeLimits {
  * @throws FoldwiseError ERR_SOURCE_UNSUPPORTED, ERR_SOURCE_CORRUPT, ERR_SOURCE_PIXELS_EXCEEDED
  */
 export async function decodeImage(bytes: Buffer, limits: DecodeLimits): Promise<DecodedImage> {
+  if (limits.timeoutMs === undefined) return decodeWithin(bytes, limits);
+  let timer: NodeJS.Timeout | undefined;
+  const deadline = new Promise<never>((_, reject) => {
+    timer = setTimeout(() => {
+      reject(new FoldwiseError('ERR_LIMIT_DECODE_TIMEOUT', `Decoding took longer than ${limits.timeoutMs} ms.`));
+    }, limits.timeoutMs);
+  });
+  try {
+    return await Promise.race([decodeWithin(bytes, limits), deadline]);
+  } finally {
+    clearTimeout(timer);
+  }
+}
+
+async function decodeWithin(bytes: Buffer, limits: DecodeLimits): Promise<DecodedImage> {
   if (bytes.length === 0) throw new FoldwiseError('ERR_SOURCE_UNSUPPORTED', 'The source is empty.');
   const options: SharpOptions = {
     // 'error' refuses truncated and damaged pixel data; sharp's stricter default 'warning'
@@ -101,8 +120,15 @@ function checkLimits(meta: Metadata, limits: DecodeLimits): void {
   }
   if (Math.max(width, height) > limits.maxDimension) {
     throw new FoldwiseError(
-      'ERR_SOURCE_PIXELS_EXCEEDED',
+      'ERR_LIMIT_SOURCE_DIMENSION',
       `The source is ${width}x${height}; no side may exceed ${limits.maxDimension} pixels.`,
+    );
+  }
+  const frames = meta.pages ?? 1;
+  if (limits.maxFrames !== undefined && frames > limits.maxFrames) {
+    throw new FoldwiseError(
+      'ERR_LIMIT_SOURCE_FRAMES',
+      `The source has ${frames} frames; the limit is ${limits.maxFrames}.`,
     );
   }
 }
