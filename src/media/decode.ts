@@ -80,6 +80,9 @@ async function decodeWithin(bytes: Buffer, limits: DecodeLimits): Promise<Decode
   // sRGB. Without an embedded profile the samples are taken as sRGB already (common
   // practice), and an output transform would wrongly treat them as P3.
   if (deep && !grey && meta.icc) pipeline = pipeline.withIccProfile('srgb');
+  // libvips stops the work itself too (whole seconds only), so a timed-out decode does not
+  // keep a thread busy after the caller has been answered.
+  if (limits.timeoutMs !== undefined) pipeline = pipeline.timeout({ seconds: Math.max(1, Math.ceil(limits.timeoutMs / 1000)) });
   const { data, info } = await pipeline
     .raw({ depth: deep ? 'ushort' : 'uchar' })
     .toBuffer({ resolveWithObject: true })
