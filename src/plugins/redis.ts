@@ -6,19 +6,14 @@ import { RedisLink, type LinkHealth } from '../cache/redis-link.js';
 import { RedisFlight } from '../cache/redis-lock.js';
 import { RedisTier, type RedisTierCounts } from '../cache/redis.js';
 import { ReplicaFlight } from '../cache/replica-flight.js';
+import type { Config } from '../config.js';
 
-/** Settings of the shared Redis tier (config `redis`, URL from `cache.redisUrl`). */
-export interface RedisSettings {
-  url: string;
-  ttlSeconds: number;
-  maxEntryBytes: number;
-  lockTtlMs: number;
-  waitDeadlineMs: number;
-  commandTimeoutMs: number;
-  connectTimeoutMs: number;
-  failureThreshold: number;
-  openMs: number;
-  namespace: string;
+/** Settings of the shared Redis tier: config `redis` plus the URL from `cache.redisUrl`. */
+export type RedisSettings = Config['redis'] & { url: string };
+
+/** The plugin's settings from the app configuration; null when no Redis URL is set. */
+export function redisSettings(config: Config): RedisSettings | null {
+  return config.cache.redisUrl ? { ...config.redis, url: config.cache.redisUrl } : null;
 }
 
 /** The shared tier as the app sees it; `null` when no Redis is configured. */
@@ -49,7 +44,7 @@ async function redisPlugin(app: FastifyInstance, opts: { settings: RedisSettings
     app.decorate('sharedRedis', null);
     return;
   }
-  const link = new RedisLink({ ...settings, log: app.log });
+  const link = new RedisLink({ ...settings, openMs: settings.breakerOpenMs, log: app.log });
   const tier = new RedisTier(link, settings);
   const lock = new RedisFlight(link, settings);
   const flight = new ReplicaFlight(lock, tier);

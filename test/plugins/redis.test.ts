@@ -8,7 +8,7 @@ import { redisBinary, startRedis, type RedisProcess } from '../helpers/redis-ser
 
 const settings = (url: string): RedisSettings => ({
   url, ttlSeconds: 60, maxEntryBytes: 1 << 20, lockTtlMs: 2_000, waitDeadlineMs: 10_000,
-  commandTimeoutMs: 300, connectTimeoutMs: 500, failureThreshold: 2, openMs: 60_000, namespace: 'plugin-test:',
+  commandTimeoutMs: 300, connectTimeoutMs: 500, failureThreshold: 2, breakerOpenMs: 60_000, namespace: 'plugin-test:',
 });
 
 async function replica(url: string) {
