@@ -1,0 +1,21 @@
+import type { Plan } from '../types.js';
+
+function pair(a: string, b: string): string {
+  return a === b ? a : `${a},${b}`;
+}
+
+/**
+ * Value of the `Rendition-Plan` response header, e.g.
+ * `scale=4.000,4.000; kernel=bandlimit; sigma=1.12,1.12; pyramid=1,1; light=linear`.
+ * Kernel names collapse to one when both axes agree.
+ */
+export function formatPlanHeader(plan: Plan): string {
+  const { x, y } = plan;
+  return [
+    `scale=${x.scale.toFixed(3)},${y.scale.toFixed(3)}`,
+    `kernel=${pair(x.kernel, y.kernel)}`,
+    `sigma=${x.sigma.toFixed(2)},${y.sigma.toFixed(2)}`,
+    `pyramid=${x.pyramidLevels},${y.pyramidLevels}`,
+    `light=${plan.light}`,
+  ].join('; ');
+}

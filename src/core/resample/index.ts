@@ -1,0 +1,6 @@
+export { resampleAxis } from './separable.js';
+export { buildWeights, type WeightTable } from './weights.js';
+export { stretchedFilter, convolveGaussian, type AxisFilter } from './filter.js';
+export { finalTable, planTable, levelLength } from './axis-table.js';
+export { resampleStrips, type RowSource, type RowSink } from './strips.js';
+export { planResponse, tableResponse } from './response.js';

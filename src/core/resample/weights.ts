@@ -1,0 +1,72 @@
+import type { AxisFilter } from './filter.js';
+
+/**
+ * A resampling weight table for one axis: output pixel o is
+ *   sum_{k < taps} weights[o * taps + k] * in[start[o] + k].
+ * Every row sums to 1 (normalised per output pixel) and reads only indices in [0, srcLen).
+ */
+export interface WeightTable {
+  readonly srcLen: number;
+  readonly dstLen: number;
+  readonly taps: number;
+  readonly start: Int32Array;
+  readonly weights: Float64Array;
+  /** Centre of each output pixel in input coordinates (for responses and tests). */
+  readonly centre: Float64Array;
+}
+
+/**
+ * Builds the table for centres c(o) = origin + o * step (input pixel coordinates, pixel
+ * centres at integers) and the filter f evaluated at (j - c(o)).
+ *
+ * Edge mode: clamp. A tap that falls outside [0, srcLen) reads the nearest edge pixel (its
+ * weight is added to that pixel), then the row is normalised to sum 1. Clamping keeps a flat
+ * field flat up to the border and never divides by a small partial sum. If a row's weights
+ * sum to (almost) nothing, the nearest pixel gets weight 1.
+ */
+export function buildWeights(
+  srcLen: number,
+  dstLen: number,
+  origin: number,
+  step: number,
+  f: AxisFilter,
+): WeightTable {
+  const reach = f.support;
+  const centre = new Float64Array(dstLen);
+  const lo = new Int32Array(dstLen);
+  const hi = new Int32Array(dstLen);
+  let span = 1;
+  for (let o = 0; o < dstLen; o++) {
+    const c = origin + o * step;
+    centre[o] = c;
+    lo[o] = Math.min(srcLen - 1, Math.max(0, Math.ceil(c - reach)));
+    hi[o] = Math.min(srcLen - 1, Math.max(0, Math.floor(c + reach)));
+    span = Math.max(span, hi[o] - lo[o] + 1);
+  }
+  const taps = Math.min(span, srcLen);
+  const start = new Int32Array(dstLen);
+  const weights = new Float64Array(dstLen * taps);
+  for (let o = 0; o < dstLen; o++) {
+    const c = centre[o];
+    const s = Math.min(lo[o], srcLen - taps);
+    start[o] = s;
+    const row = o * taps;
+    const first = Math.ceil(c - reach);
+    const last = Math.floor(c + reach);
+    for (let j = first; j <= last; j++) {
+      const idx = j < 0 ? 0 : j >= srcLen ? srcLen - 1 : j;
+      weights[row + idx - s] += f.at(j - c);
+    }
+    let sum = 0;
+    for (let k = 0; k < taps; k++) sum += weights[row + k];
+    if (Math.abs(sum) < 1e-9) {
+      weights.fill(0, row, row + taps);
+      const near = Math.min(srcLen - 1, Math.max(0, Math.round(c)));
+      weights[row + near - s] = 1;
+      continue;
+    }
+    const inv = 1 / sum;
+    for (let k = 0; k < taps; k++) weights[row + k] *= inv;
+  }
+  return { srcLen, dstLen, taps, start, weights, centre };
+}
