@@ -22,7 +22,7 @@ const MIN_TILE = 8;
 /** Regions along the longer side of the image. */
 const MAX_REGIONS = 8;
 /** Upper bound on tiles per image; the analysis cost is linear in it. */
-export const MAX_TILES = 192;
+export const MAX_TILES = 64;
 
 function pow2Floor(v: number): number {
   return v < 1 ? 0 : 2 ** Math.floor(Math.log2(v));

@@ -11,8 +11,9 @@ import { tileLuminance } from './luminance.js';
 import { layoutTiles, type TileLayout } from './tiles.js';
 import { hannWindow } from './window.js';
 
-/** Full-resolution cells per region-spectrum bin along each axis. */
-const BIN = 4;
+/** Full-resolution cells per region-spectrum bin along each axis (2^BIN_SHIFT). */
+const BIN_SHIFT = 2;
+const BIN = 1 << BIN_SHIFT;
 
 /**
  * Welch power spectrum of one source, as plain numbers and typed arrays (cacheable,
@@ -103,19 +104,27 @@ export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
     perRegion[ra]++;
     if (rb >= 0) perRegion[rb]++;
     // Two real tiles a + i b: A(k) = (Z(k) + conj Z(-k)) / 2, B(k) = (Z(k) - conj Z(-k)) / 2i.
+    const baseA = ra * bins * bins;
+    const baseB = rb * bins * bins;
     for (let v = 0; v < t; v++) {
-      const vn = ((t - v) & mask) * t;
+      const rowNeg = ((t - v) & mask) * t;
       const vc = (v + half) & mask;
+      const outRow = vc * t;
+      const cellRow = (vc >> BIN_SHIFT) * bins;
       for (let u = 0; u < t; u++) {
         const i = v * t + u;
-        const j = vn + ((t - u) & mask);
-        const pa = ((re[i] + re[j]) ** 2 + (im[i] - im[j]) ** 2) * norm;
-        const pb = ((re[i] - re[j]) ** 2 + (im[i] + im[j]) ** 2) * norm;
+        const j = rowNeg + ((t - u) & mask);
+        const sr = re[i] + re[j];
+        const di = im[i] - im[j];
+        const dr = re[i] - re[j];
+        const si = im[i] + im[j];
+        const pa = (sr * sr + di * di) * norm;
+        const pb = (dr * dr + si * si) * norm;
         const uc = (u + half) & mask;
-        power[vc * t + uc] += pa + pb;
-        const cell = ((vc / BIN) | 0) * bins + ((uc / BIN) | 0);
-        regionPower[ra * bins * bins + cell] += pa;
-        if (rb >= 0) regionPower[rb * bins * bins + cell] += pb;
+        power[outRow + uc] += pa + pb;
+        const cell = cellRow + (uc >> BIN_SHIFT);
+        regionPower[baseA + cell] += pa;
+        if (rb >= 0) regionPower[baseB + cell] += pb;
       }
     }
   }
