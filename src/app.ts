@@ -1,0 +1,77 @@
+import { randomUUID } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import Fastify, { type FastifyInstance, type FastifyServerOptions, LogController } from 'fastify';
+import type { Flight } from './cache/single-flight.js';
+import type { CacheTier } from './cache/types.js';
+import type { Config } from './config.js';
+import { createFolderOrigin } from './origins/folder.js';
+import type { Origin } from './origins/types.js';
+import cachePlugin from './plugins/cache.js';
+import contextPlugin from './plugins/context.js';
+import errorsPlugin from './plugins/errors.js';
+import metricsPlugin from './plugins/metrics.js';
+import openApiPlugin from './plugins/openapi.js';
+import renderPlugin from './plugins/render.js';
+import workerPoolPlugin from './plugins/worker-pool.js';
+import docsRoutes from './routes/docs.js';
+import healthRoutes from './routes/health.js';
+import metricsRoutes from './routes/metrics.js';
+import renditionRoutes from './routes/renditions.js';
+import sourcesRoutes from './routes/sources.js';
+
+export interface BuildOptions {
+  config: Config;
+  /** Where sources come from; default the folder origin at config.origin.sourceDir. */
+  origin?: Origin;
+  /** The shared cache tier; default the disk tier at config.cache.dir. */
+  sharedTier?: CacheTier;
+  /** Single-flight across replicas; default in-process. */
+  flight?: Flight;
+  /** pino options, or false for none; default JSON logs at config.server.logLevel. */
+  logger?: FastifyServerOptions['logger'];
+}
+
+const packageVersion = (
+  JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string }
+).version;
+
+/** A caller-supplied request id is kept only when it is short and plain (it lands in logs). */
+function requestId(header: string | string[] | undefined): string {
+  return typeof header === 'string' && /^[A-Za-z0-9._:-]{1,64}$/.test(header) ? header : randomUUID();
+}
+
+/**
+ * Builds the service without listening: plugins (one per concern), then routes. Tests call this
+ * and use app.inject(); src/server.ts adds the process shell around it.
+ */
+export async function build(options: BuildOptions): Promise<FastifyInstance> {
+  const { config } = options;
+  const app = Fastify({
+    logger: options.logger ?? { level: config.server.logLevel },
+    trustProxy: config.server.trustProxy,
+    genReqId: (req) => requestId(req.headers['x-request-id']),
+    // Every request is logged on arrival and completion, under its id (pino).
+    logController: new LogController({ requestIdLogLabel: 'requestId' }),
+    // Sources are paths: let "a//b" and trailing slashes reach the path checks, not 404 early.
+    routerOptions: { ignoreDuplicateSlashes: false, maxParamLength: 1024 },
+  });
+  app.addHook('onSend', async (request, reply) => {
+    reply.header('x-request-id', request.id);
+  });
+
+  const origin = options.origin ?? createFolderOrigin(config.origin.sourceDir, { maxBytes: config.limits.maxSourceBytes });
+  await app.register(errorsPlugin);
+  await app.register(openApiPlugin);
+  await app.register(metricsPlugin);
+  await app.register(contextPlugin, { config, origin });
+  await app.register(cachePlugin, { cache: config.cache, sharedTier: options.sharedTier, flight: options.flight });
+  await app.register(workerPoolPlugin, config.pool);
+  await app.register(renderPlugin);
+
+  await app.register(renditionRoutes);
+  await app.register(sourcesRoutes);
+  await app.register(healthRoutes);
+  await app.register(metricsRoutes);
+  await app.register(docsRoutes, { version: packageVersion });
+  return app;
+}

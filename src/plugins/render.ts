@@ -1,0 +1,30 @@
+import type { FastifyInstance } from 'fastify';
+import fp from 'fastify-plugin';
+import type { RenderContext } from '../render/service.js';
+
+declare module 'fastify' {
+  interface FastifyInstance {
+    /** What renderRendition needs, wired to this app's origin, cache, pool and metrics. */
+    renderContext: RenderContext;
+  }
+}
+
+/** Assembles the render context once, at registration, from the other plugins. */
+async function renderPlugin(app: FastifyInstance): Promise<void> {
+  const { metrics } = app;
+  app.decorate('renderContext', {
+    origin: app.origin,
+    cache: app.renditionCache.cache,
+    flight: app.renditionCache.flight,
+    pool: app.renderPool,
+    limits: app.config.limits,
+    observe: (stage, seconds) => metrics.stageSeconds.observe({ stage }, seconds),
+    onLookup: (result) => metrics.cacheLookups.inc({ result }),
+  } satisfies RenderContext);
+}
+
+export default fp(renderPlugin, {
+  name: 'foldwise-render',
+  fastify: '5.x',
+  dependencies: ['foldwise-context', 'foldwise-metrics', 'foldwise-cache', 'foldwise-worker-pool'],
+});

@@ -1,0 +1,114 @@
+import type { Flight } from '../cache/single-flight.js';
+import type { TieredCache } from '../cache/tiered.js';
+import type { CacheEntry } from '../cache/types.js';
+import type { Limits } from '../config.js';
+import { formatPlanHeader } from '../core/index.js';
+import type { PixelRaster } from '../core/types.js';
+import type { RenditionLayout } from '../core/geometry.js';
+import { encodeImage } from '../media/encode.js';
+import { outputFormats, type OutputFormat } from '../media/formats.js';
+import { negotiateFormat } from '../media/negotiate.js';
+import type { Origin } from '../origins/types.js';
+import { canonicalQuery } from '../schemas/canonical.js';
+import type { RenditionQuery } from '../schemas/rendition.js';
+import { renditionKey, strongEtag } from './key.js';
+import { checkRequestedSize, planRendition } from './plan.js';
+import type { RenderPool } from './pool.js';
+import { loadSource } from './source.js';
+import { type Stage, StageClock, type StageTiming } from './timings.js';
+
+/** Everything a render needs; no Fastify request, so ingest and the CLI can call it too. */
+export interface RenderContext {
+  origin: Origin;
+  cache: TieredCache;
+  flight: Flight;
+  pool: RenderPool;
+  limits: Limits;
+  /** Stage durations, for metrics. */
+  observe?: (stage: Stage, seconds: number) => void;
+  /** Cache outcome of each call: 'hit-<tier>' or 'miss'. */
+  onLookup?: (result: string) => void;
+  /** Content-adaptive prefilter (alias-risk analysis), asked only when prefilter=auto. */
+  adaptiveSigma?: (raster: PixelRaster, layout: RenditionLayout) => { x: number; y: number } | undefined;
+}
+
+export interface Rendition {
+  entry: CacheEntry;
+  /** 'hit-memory', 'hit-disk', ... or 'miss' (also for requests that joined a render). */
+  cache: string;
+  timings: StageTiming[];
+  key: string;
+}
+
+/** What the format part of the key is: the format, or for auto the choices Accept allows. */
+function formatKey(q: RenditionQuery, accept: string | undefined): string {
+  if (q.format !== 'auto') return q.format;
+  return `auto:${negotiateFormat(accept, false)}/${negotiateFormat(accept, true)}`;
+}
+
+async function produce(
+  ctx: RenditionContextInternal,
+  path: string,
+  q: RenditionQuery,
+  accept: string | undefined,
+): Promise<CacheEntry> {
+  const release = ctx.pool.admit();
+  try {
+    const { decoded } = await loadSource(ctx.origin, path, ctx.limits, ctx.clock);
+    const src = decoded.raster;
+    const adaptive = (layout: RenditionLayout) =>
+      q.prefilter === 'auto' ? ctx.adaptiveSigma?.(src, layout) : undefined;
+    const first = planRendition(src, q, ctx.limits);
+    const sigma = adaptive(first.layout);
+    const { layout, plan } = sigma ? planRendition(src, q, ctx.limits, sigma) : first;
+    const resampled = await ctx.clock.time('resample', () => ctx.pool.resample(src, plan));
+    const format: OutputFormat = q.format === 'auto' ? negotiateFormat(accept, decoded.hasAlpha) : q.format;
+    const body = await ctx.clock.time('encode', () =>
+      encodeImage(resampled, { format, quality: q.quality, background: q.background, canvas: layout.canvas }),
+    );
+    return {
+      body,
+      contentType: outputFormats[format].contentType,
+      etag: strongEtag(body),
+      headers: { 'rendition-plan': formatPlanHeader(plan) },
+      createdAt: Date.now(),
+    };
+  } finally {
+    release();
+  }
+}
+
+interface RenditionContextInternal extends RenderContext {
+  clock: StageClock;
+}
+
+/**
+ * One rendition of `path` for `query`: from the cache when any tier has it, else rendered once
+ * however many callers ask at the same time (single-flight), then stored in every tier.
+ * `accept` is the request's Accept header (used when format=auto).
+ *
+ * @throws FoldwiseError for every refusal (not found, limits, overload, decode failures).
+ */
+export async function renderRendition(
+  ctx: RenderContext,
+  path: string,
+  query: RenditionQuery,
+  accept?: string,
+): Promise<Rendition> {
+  checkRequestedSize(query, ctx.limits);
+  const clock = new StageClock(ctx.observe);
+  const identity = await clock.time('origin', () => ctx.origin.identify(path));
+  const key = renditionKey(identity, canonicalQuery(query), formatKey(query, accept));
+  const hit = await clock.time('cache', () => ctx.cache.get(key));
+  if (hit) {
+    ctx.onLookup?.(`hit-${hit.tier}`);
+    return { entry: hit.entry, cache: `hit-${hit.tier}`, timings: clock.timings, key };
+  }
+  ctx.onLookup?.('miss');
+  const { value: entry } = await ctx.flight.run(key, async () => {
+    const made = await produce({ ...ctx, clock }, path, query, accept);
+    await clock.time('cache', () => ctx.cache.set(key, made));
+    return made;
+  });
+  return { entry, cache: 'miss', timings: clock.timings, key };
+}

@@ -1,0 +1,54 @@
+import { access } from 'node:fs/promises';
+import type { FastifyInstance } from 'fastify';
+import { z } from 'zod';
+import { FoldwiseError } from '../errors.js';
+import { jsonBody, problemResponses } from '../schemas/openapi.js';
+
+const healthSchema = z.object({ status: z.literal('ok') });
+const readySchema = z.object({
+  status: z.enum(['ready', 'not-ready']),
+  checks: z.record(z.string(), z.object({ ok: z.boolean(), detail: z.string() })),
+});
+
+/**
+ * /healthz: the process is alive and serving (for restarts). /readyz: it can take rendition
+ * traffic now (for load balancers): the source folder is reachable and the render pool has a
+ * free slot. Not ready is a 503 problem, so balancers and people read the same answer.
+ */
+export default async function healthRoutes(app: FastifyInstance): Promise<void> {
+  app.get(
+    '/healthz',
+    { config: { openapi: { summary: 'Liveness', tags: ['operations'], responses: { '200': jsonBody('Alive', healthSchema) } } } },
+    async (_req, reply) => reply.header('cache-control', 'no-store').send({ status: 'ok' }),
+  );
+
+  app.get(
+    '/readyz',
+    {
+      config: {
+        openapi: {
+          summary: 'Readiness',
+          tags: ['operations'],
+          responses: { '200': jsonBody('Ready for traffic', readySchema), ...problemResponses(503) },
+        },
+      },
+    },
+    async (_req, reply) => {
+      const pool = app.renderPool;
+      const dir = app.config.origin.sourceDir;
+      const originOk = await access(dir).then(() => true, () => false);
+      const checks = {
+        origin: { ok: originOk, detail: originOk ? 'source folder reachable' : 'source folder missing' },
+        pool: {
+          ok: pool.inFlight < pool.bound,
+          detail: `${pool.inFlight} of ${pool.bound} render slots in use`,
+        },
+      };
+      const failed = Object.entries(checks).filter(([, c]) => !c.ok);
+      if (failed.length > 0) {
+        throw new FoldwiseError('ERR_NOT_READY', failed.map(([name, c]) => `${name}: ${c.detail}`).join('; '));
+      }
+      return reply.header('cache-control', 'no-store').send({ status: 'ready', checks });
+    },
+  );
+}

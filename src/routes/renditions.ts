@@ -1,0 +1,76 @@
+import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
+import { kernelNames } from '../core/index.js';
+import { FoldwiseError } from '../errors.js';
+import { renderRendition } from '../render/service.js';
+import { serverTiming } from '../render/timings.js';
+import { problemResponses, queryParameters } from '../schemas/openapi.js';
+import { compileRenditionQuery, type RenditionQuery } from '../schemas/rendition.js';
+import { verifySignature } from '../security/signing.js';
+import { matchesIfNoneMatch } from './conditional.js';
+import { sourcePathOf } from './path.js';
+
+export const renditionsPrefix = '/v1/renditions/';
+
+/**
+ * GET (and HEAD) /v1/renditions/{source}: validates the query, checks the signature when
+ * signing is on, renders or answers from cache, and speaks HTTP caching (strong ETag, 304,
+ * Cache-Control, Vary) with Server-Timing and Rendition-Plan.
+ */
+export default async function renditionRoutes(app: FastifyInstance): Promise<void> {
+  const { config, renderContext } = app;
+  const query = compileRenditionQuery({ maxDimension: config.limits.maxDimension, kernelNames });
+  const keys = config.signing.keys;
+  const plainCache = `public, max-age=${config.http.maxAgeSeconds}`;
+  const signedCache = `public, max-age=${config.http.signedMaxAgeSeconds}, immutable`;
+
+  /** True when the URL is validly signed; throws when signing is on and it is not. */
+  function checkSignature(request: FastifyRequest): boolean {
+    if (keys.length === 0) return false;
+    const check = verifySignature(request.url.split('?')[0], request.query as Record<string, string>, keys);
+    if (check === 'missing') throw new FoldwiseError('ERR_SIGNATURE_REQUIRED', 'this service only serves signed URLs');
+    if (check === 'invalid') throw new FoldwiseError('ERR_SIGNATURE_INVALID', 'the signature does not match the path and query');
+    return true;
+  }
+
+  async function handler(request: FastifyRequest, reply: FastifyReply) {
+    const path = sourcePathOf(request.url, renditionsPrefix);
+    const q: RenditionQuery = query.parse(request.query as Record<string, unknown>);
+    const signed = checkSignature(request);
+    const r = await renderRendition(renderContext, path, q, request.headers.accept);
+    reply
+      .header('etag', r.entry.etag)
+      .header('cache-control', signed ? signedCache : plainCache)
+      .header('server-timing', serverTiming(r.cache, r.timings));
+    if (q.format === 'auto') reply.header('vary', 'Accept');
+    for (const [k, v] of Object.entries(r.entry.headers)) reply.header(k, v);
+    if (matchesIfNoneMatch(request.headers['if-none-match'], r.entry.etag)) return reply.code(304).send();
+    return reply.type(r.entry.contentType).header('content-length', r.entry.body.length).send(r.entry.body);
+  }
+
+  app.get(
+    `${renditionsPrefix}*`,
+    {
+      config: {
+        openapi: {
+          summary: 'A rendition of a source',
+          description:
+            'Renders (or answers from cache) the source at {source} under the origin root. Unknown, repeated or out-of-range parameters are refused with 400 so junk queries cannot bust the cache.',
+          tags: ['renditions'],
+          parameters: [
+            { name: 'source', in: 'path', required: true, description: 'Path under the origin root.', schema: { type: 'string' } },
+            ...queryParameters(query.schema),
+          ],
+          responses: {
+            '200': {
+              description: 'The rendition. Headers: ETag, Cache-Control, Vary (format=auto), Server-Timing, Rendition-Plan.',
+              content: { 'image/avif': {}, 'image/webp': {}, 'image/jpeg': {}, 'image/png': {} },
+            },
+            '304': { description: 'Not modified (If-None-Match matched the ETag).' },
+            ...problemResponses(400, 403, 404, 413, 415, 422, 500, 503),
+          },
+        },
+      },
+    },
+    handler,
+  );
+}

@@ -1,0 +1,36 @@
+import type { RenditionQuery } from './rendition.js';
+
+/** Shortest decimal that round-trips, with at most 6 fractional digits. */
+function num(n: number): string {
+  return String(Number(n.toFixed(6)));
+}
+
+function percent(f: number): string {
+  return `${num(f * 100)}%`;
+}
+
+/**
+ * The canonical form of a rendition query: every parameter whose normalised value differs from
+ * its default, as `name=value` joined by `&` in name order, values percent-encoded, the
+ * signature left out. Two queries that ask for the same rendition have the same canonical form
+ * (`width=0480&density=1` and `width=480` both give `width=480`), so the cache key cannot be
+ * busted with spellings, and signatures cover meaning rather than spelling.
+ */
+export function canonicalQuery(q: RenditionQuery): string {
+  const pairs: [string, string][] = [];
+  const add = (name: string, value: string | undefined, dflt?: string) => {
+    if (value !== undefined && value !== dflt) pairs.push([name, value]);
+  };
+  add('background', q.background, '#ffffff');
+  add('density', num(q.density), '1');
+  add('fit', q.fit, 'cover');
+  add('format', q.format, 'auto');
+  add('height', q.height === undefined ? undefined : String(q.height));
+  add('kernel', q.kernel, 'auto');
+  add('light', q.light, 'linear');
+  add('position', `${percent(q.position.x)} ${percent(q.position.y)}`, '50% 50%');
+  add('prefilter', typeof q.prefilter === 'number' ? num(q.prefilter) : q.prefilter, 'auto');
+  add('quality', q.quality === undefined ? undefined : String(q.quality));
+  add('width', q.width === undefined ? undefined : String(q.width));
+  return pairs.map(([k, v]) => `${k}=${encodeURIComponent(v)}`).join('&');
+}

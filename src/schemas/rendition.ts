@@ -1,0 +1,102 @@
+import { z } from 'zod';
+import { parsePosition } from '../core/geometry.js';
+import { FoldwiseError } from '../errors.js';
+import { decimal, digits, parseQuery, type RawQuery } from './query.js';
+
+export const fitModes = ['contain', 'cover', 'fill', 'scale-down'] as const;
+export const outputFormats = ['auto', 'jpeg', 'png', 'webp', 'avif'] as const;
+export const lightModes = ['linear', 'encoded'] as const;
+export type Fit = (typeof fitModes)[number];
+export type OutputFormatChoice = (typeof outputFormats)[number];
+
+const hex = /^#?([0-9a-f]{3}|[0-9a-f]{6})$/i;
+
+/** "#abc", "abc", "#aabbcc" or "aabbcc" -> "#aabbcc" (lower case). */
+function normaliseHex(text: string): string {
+  const h = text.replace(/^#/, '').toLowerCase();
+  return `#${h.length === 3 ? [...h].map((c) => c + c).join('') : h}`;
+}
+
+/** Compile-time options of the rendition query: limits and the core's kernel table. */
+export interface RenditionQueryOptions {
+  maxDimension: number;
+  kernelNames: readonly string[];
+}
+
+/**
+ * The zod shape of every rendition parameter (DESIGN.md's table). Exported as a shape so other
+ * endpoints that take "the same parameters" (alias risk, ingest) can extend it.
+ */
+export function renditionQueryShape(o: RenditionQueryOptions) {
+  const kernels = ['auto', ...o.kernelNames] as [string, ...string[]];
+  return {
+    width: digits('width', 1, o.maxDimension).optional().meta({ description: 'Target width in CSS pixels.' }),
+    height: digits('height', 1, o.maxDimension).optional().meta({ description: 'Target height in CSS pixels.' }),
+    density: decimal('density', 0.5, 4)
+      .default(1)
+      .meta({ description: 'Pixel density (as in srcset); multiplies width and height.' }),
+    fit: z
+      .enum(fitModes, { error: `fit must be one of ${fitModes.join(', ')}` })
+      .default('cover')
+      .meta({ description: 'CSS object-fit. With one side given the other follows the aspect ratio.' }),
+    position: z
+      .string()
+      .max(64)
+      .transform((text, ctx) => {
+        const p = parsePosition(text);
+        if (!p) ctx.addIssue({ code: 'custom', message: 'position must be a CSS object-position, e.g. "left top" or "30% 70%"' });
+        return p ?? { x: 0.5, y: 0.5 };
+      })
+      .pipe(z.object({ x: z.number().min(0).max(1), y: z.number().min(0).max(1) }))
+      .default({ x: 0.5, y: 0.5 })
+      .meta({ description: 'CSS object-position for cover and contain: keywords or percentages. Default "50% 50%".' }),
+    format: z
+      .enum(outputFormats, { error: `format must be one of ${outputFormats.join(', ')}` })
+      .default('auto')
+      .meta({ description: 'Output format; auto negotiates on Accept and sends Vary: Accept.' }),
+    quality: digits('quality', 1, 100).optional().meta({ description: 'Encoder quality; default per format.' }),
+    background: z
+      .string()
+      .regex(hex, 'background must be a hex colour: #rgb or #rrggbb (write # as %23, or leave it out)')
+      .transform(normaliseHex)
+      .default('#ffffff')
+      .meta({ description: 'Colour of contain bars and of alpha flattened into JPEG.' }),
+    kernel: z
+      .enum(kernels, { error: `kernel must be one of ${kernels.join(', ')}` })
+      .default('auto')
+      .meta({ description: 'Reconstruction kernel; auto picks one for the scale factor.' }),
+    prefilter: z
+      .union([z.enum(['auto', 'none']), decimal('prefilter', 0, 64)], {
+        error: 'prefilter must be auto, none or a sigma from 0 to 64 (source pixels)',
+      })
+      .transform((v) => (v === 0 ? ('none' as const) : v))
+      .default('auto')
+      .meta({ description: 'Gaussian prefilter: auto, none, or a sigma in source pixels.' }),
+    light: z
+      .enum(lightModes, { error: 'light must be linear or encoded' })
+      .default('linear')
+      .meta({ description: 'Resample in linear light, or in the encoded values (legacy match).' }),
+    signature: z
+      .string()
+      .regex(/^[A-Za-z0-9_-]{1,256}$/, 'signature must be URL-safe base64')
+      .optional()
+      .meta({ description: 'HMAC of the path and canonical query, when signing is on.' }),
+  };
+}
+
+export type RenditionQuery = z.output<z.ZodObject<ReturnType<typeof renditionQueryShape>>>;
+
+/** Compiles the rendition query once (at registration); `parse` validates one raw query. */
+export function compileRenditionQuery(o: RenditionQueryOptions) {
+  const schema = z.strictObject(renditionQueryShape(o));
+  return {
+    schema,
+    parse(raw: RawQuery): RenditionQuery {
+      const q = parseQuery(schema, raw);
+      if (q.width === undefined && q.height === undefined) {
+        throw new FoldwiseError('ERR_PARAM_MISSING', 'give width, height, or both');
+      }
+      return q;
+    },
+  };
+}

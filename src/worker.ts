@@ -1,0 +1,38 @@
+/**
+ * Worker-thread entry (piscina): resamples one band of output rows. Imports only the pure
+ * core. The source and the output live in SharedArrayBuffers, so two workers can render
+ * different bands of one rendition without copying the source twice.
+ */
+import { renderRaster } from './core/index.js';
+import type { Channels, PixelRaster, Plan } from './core/types.js';
+
+/** A raster whose samples live in a SharedArrayBuffer. */
+export interface SharedRaster {
+  buffer: SharedArrayBuffer;
+  width: number;
+  height: number;
+  channels: Channels;
+  depth: 8 | 16;
+}
+
+export interface ResampleTask {
+  src: SharedRaster;
+  plan: Plan;
+  /** Output rows [from, to) this task renders. */
+  rows: [number, number];
+  /** The whole output (plan.targetWidth x plan.targetHeight), same channels and depth. */
+  out: SharedArrayBuffer;
+}
+
+function view(buffer: SharedArrayBuffer, depth: 8 | 16): Uint8Array | Uint16Array {
+  return depth === 16 ? new Uint16Array(buffer) : new Uint8Array(buffer);
+}
+
+/** Renders rows [from, to) of the plan's output into `out`; returns the number of rows done. */
+export default function resample(task: ResampleTask): number {
+  const { src, plan, rows, out } = task;
+  const source: PixelRaster = { data: view(src.buffer, src.depth), width: src.width, height: src.height, channels: src.channels };
+  const band = renderRaster(source, plan, { rows });
+  view(out, src.depth).set(band.data, rows[0] * plan.targetWidth * src.channels);
+  return band.height;
+}
