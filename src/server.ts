@@ -1,0 +1,31 @@
+/**
+ * The process shell: configuration from files and environment, demo pictures on first run,
+ * listening, and graceful shutdown. Everything else is in app.ts (testable without a socket).
+ */
+import { resolve } from 'node:path';
+import { build } from './app.js';
+import { ConfigError, loadConfig } from './config.js';
+import { installShutdown } from './shutdown.js';
+
+async function main(): Promise<void> {
+  const config = loadConfig();
+  config.origin.sourceDir = resolve(config.origin.sourceDir);
+  config.cache.dir = resolve(config.cache.dir);
+  if (config.origin.generateDemo) {
+    const { ensureDemoImages } = await import('./demo/index.js');
+    await ensureDemoImages(config.origin.sourceDir);
+  }
+  const app = await build({ config });
+  installShutdown(app, { deadlineMs: 10_000 });
+  await app.listen({ host: config.server.host, port: config.server.port });
+  app.log.info({ sourceDir: config.origin.sourceDir, cacheDir: config.cache.dir }, 'foldwise ready');
+}
+
+main().catch((error: unknown) => {
+  if (error instanceof ConfigError) {
+    process.stderr.write(`foldwise: ${error.message}\n`);
+  } else {
+    process.stderr.write(`foldwise: could not start: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}\n`);
+  }
+  process.exit(1);
+});
