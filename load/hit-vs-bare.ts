@@ -1,0 +1,56 @@
+/**
+ * Cache-hit throughput of one rendition against a bare Fastify route that returns the same
+ * bytes, both measured in this run, each server in its own process on 127.0.0.1.
+ * Target (DESIGN.md): hits >= 0.8x the bare route's requests per second.
+ *   npx tsx load/hit-vs-bare.ts [--seconds 5] [--connections 32]
+ */
+import { writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { parseArgs } from 'node:util';
+import { cannon, type CannonRun } from './lib/cannon.js';
+import { startChild } from './lib/child.js';
+import { loadConfigFile } from './lib/config-file.js';
+import { makeSources } from './lib/sources.js';
+import { printTable } from './lib/table.js';
+
+const { values } = parseArgs({ options: { seconds: { type: 'string', default: '5' }, connections: { type: 'string', default: '32' } } });
+const seconds = Math.min(30, Number(values.seconds));
+const connections = Math.min(256, Number(values.connections));
+
+const { dir, names } = await makeSources(1);
+const renditionPath = `/v1/renditions/${names[0]}?width=800&format=jpeg`;
+const app = await startChild('app', { FOLDWISE_CONFIG: loadConfigFile(dir) });
+let bare: Awaited<ReturnType<typeof startChild>> | undefined;
+try {
+  const first = await fetch(app.url + renditionPath);
+  if (first.status !== 200) throw new Error(`rendition answered ${first.status}: ${await first.text()}`);
+  const body = Buffer.from(await first.arrayBuffer());
+  const bodyFile = join(tmpdir(), 'foldwise-load-bare-body');
+  writeFileSync(bodyFile, body);
+  bare = await startChild('bare', { LOAD_BODY_FILE: bodyFile, LOAD_BODY_TYPE: first.headers.get('content-type') ?? '' });
+  const check = await fetch(app.url + renditionPath);
+  console.log(`rendition: ${body.length} bytes, second request Server-Timing: ${check.headers.get('server-timing')}`);
+
+  const targets = { bare: `${bare.url}/bare`, hit: app.url + renditionPath };
+  // Warm both (JIT, connection pools), then alternate so drift hits both sides alike.
+  for (const url of Object.values(targets)) await cannon({ url, connections, duration: 1 });
+  const runs: Record<'bare' | 'hit', CannonRun[]> = { bare: [], hit: [] };
+  for (const side of ['bare', 'hit', 'hit', 'bare'] as const) {
+    runs[side].push(await cannon({ url: targets[side], connections, duration: seconds }));
+  }
+  const mean = (rs: CannonRun[], f: (r: CannonRun) => number) => rs.reduce((s, r) => s + f(r), 0) / rs.length;
+  const row = (name: string, rs: CannonRun[]) => [
+    name, mean(rs, (r) => r.rps), mean(rs, (r) => r.p50), mean(rs, (r) => r.p99),
+    rs.reduce((s, r) => s + r.completed - r.ok2xx, 0), mean(rs, (r) => r.rps) / mean(runs.bare, (r) => r.rps),
+  ];
+  printTable(
+    `cache hit vs bare route: ${connections} connections, 2 x ${seconds} s each, ${body.length}-byte body`,
+    ['server', 'req/s', 'p50 ms', 'p99 ms', 'non-2xx', 'ratio'],
+    [row('bare Fastify route (reference)', runs.bare), row('rendition, cache hit', runs.hit)],
+  );
+  const ratio = mean(runs.hit, (r) => r.rps) / mean(runs.bare, (r) => r.rps);
+  console.log(`\nhit / bare = ${ratio.toFixed(2)} (target >= 0.80): ${ratio >= 0.8 ? 'met' : 'NOT met'}`);
+} finally {
+  await Promise.all([app.stop(), bare?.stop()]);
+}
