@@ -101,6 +101,25 @@ export const configSchema = z.strictObject({
     /** Refuse unsigned rendition URLs; unset = required whenever a key is configured. */
     required: z.boolean().optional(),
   }),
+  /** POST /v1/ingest: where uploads go and how the rendition ladder is made. */
+  ingest: z.strictObject({
+    /** Uploads are stored into the folder origin; false refuses them (ERR_INGEST_READ_ONLY). */
+    writable: z.boolean(),
+    /** Folder under the origin root for uploads, e.g. "uploads"; keys are <prefix>/<sha256 prefix>.<ext>. */
+    keyPrefix: z
+      .string()
+      .regex(/^([A-Za-z0-9_-][A-Za-z0-9._-]*(\/[A-Za-z0-9_-][A-Za-z0-9._-]*)*)?$/, 'keyPrefix must be a relative folder path'),
+    /** Hex characters of the SHA-256 kept in the key (16 = 64 bits). */
+    digestChars: z.number().int().min(16).max(64),
+    /** Formats of every ladder, modern first, then a fallback; each gets its srcset. */
+    formats: z.array(z.enum(['webp', 'avif', 'jpeg', 'png'])).min(1),
+    /** Renditions of one ingest rendered at the same time. */
+    concurrency: z.number().int().min(1).max(64),
+    /** Asynchronous jobs remembered at once (Prefer: respond-async). */
+    maxJobs: positiveInt,
+    /** Finished manifests kept so a repeated ingest does no work. */
+    manifestCacheEntries: positiveInt,
+  }),
 });
 
 export type Config = z.infer<typeof configSchema>;

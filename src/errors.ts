@@ -35,6 +35,12 @@ export const errorCodes = {
   ERR_LIMIT_SOURCE_FRAMES: { status: 422, title: 'Source has more animation frames than allowed' },
   ERR_LIMIT_OUTPUT_DIMENSION: { status: 422, title: 'A side of the requested output exceeds the dimension limit' },
   ERR_LIMIT_DECODE_TIMEOUT: { status: 503, title: 'Decoding the source took too long' },
+  ERR_INGEST_TOO_LARGE: { status: 413, title: 'Upload exceeds the byte limit' },
+  ERR_INGEST_EMPTY: { status: 400, title: 'Upload has no bytes' },
+  ERR_INGEST_MEDIA_TYPE: { status: 415, title: 'Send image bytes (image/*) or JSON naming a source' },
+  ERR_INGEST_READ_ONLY: { status: 403, title: 'Uploads are switched off (read-only origin)' },
+  ERR_INGEST_JOBS_FULL: { status: 503, title: 'Too many ingest jobs in progress; retry later' },
+  ERR_INGEST_JOB_NOT_FOUND: { status: 404, title: 'No such ingest job' },
 } as const satisfies Record<string, { status: number; title: string }>;
 
 export type ErrorCode = keyof typeof errorCodes;
