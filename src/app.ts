@@ -11,10 +11,13 @@ import contextPlugin from './plugins/context.js';
 import errorsPlugin from './plugins/errors.js';
 import metricsPlugin from './plugins/metrics.js';
 import openApiPlugin from './plugins/openapi.js';
+import pressurePlugin from './plugins/pressure.js';
+import redisPlugin, { redisSettings } from './plugins/redis.js';
 import renderPlugin from './plugins/render.js';
 import workerPoolPlugin from './plugins/worker-pool.js';
 import docsRoutes from './routes/docs.js';
 import healthRoutes from './routes/health.js';
+import inspectRoutes from './routes/inspect.js';
 import metricsRoutes from './routes/metrics.js';
 import renditionRoutes from './routes/renditions.js';
 import sourcesRoutes from './routes/sources.js';
@@ -64,7 +67,13 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   await app.register(openApiPlugin);
   await app.register(metricsPlugin);
   await app.register(contextPlugin, { config, origin });
-  await app.register(cachePlugin, { cache: config.cache, sharedTier: options.sharedTier, flight: options.flight });
+  await app.register(pressurePlugin, config.pressure);
+  await app.register(redisPlugin, { settings: redisSettings(config) });
+  await app.register(cachePlugin, {
+    cache: config.cache,
+    sharedTier: options.sharedTier ?? app.sharedRedis?.tier,
+    flight: options.flight ?? app.sharedRedis?.flight,
+  });
   await app.register(workerPoolPlugin, config.pool);
   await app.register(renderPlugin);
 
@@ -73,5 +82,6 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   await app.register(healthRoutes);
   await app.register(metricsRoutes);
   await app.register(docsRoutes, { version: packageVersion });
+  await app.register(inspectRoutes);
   return app;
 }

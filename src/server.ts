@@ -16,7 +16,7 @@ async function main(): Promise<void> {
     await ensureDemoImages(config.origin.sourceDir);
   }
   const app = await build({ config });
-  installShutdown(app, { deadlineMs: 10_000 });
+  installShutdown(app, { deadlineMs: config.shutdown.deadlineMs });
   await app.listen({ host: config.server.host, port: config.server.port });
   app.log.info({ sourceDir: config.origin.sourceDir, cacheDir: config.cache.dir }, 'foldwise ready');
 }

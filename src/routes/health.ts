@@ -6,7 +6,8 @@ import { jsonBody, problemResponses } from '../schemas/openapi.js';
 
 const healthSchema = z.object({ status: z.literal('ok') });
 const readySchema = z.object({
-  status: z.enum(['ready', 'not-ready']),
+  /** degraded: ready, but the shared Redis tier is unreachable (serving from memory and rendering). */
+  status: z.enum(['ready', 'degraded', 'not-ready']),
   checks: z.record(z.string(), z.object({ ok: z.boolean(), detail: z.string() })),
 });
 
@@ -48,7 +49,14 @@ export default async function healthRoutes(app: FastifyInstance): Promise<void> 
       if (failed.length > 0) {
         throw new FoldwiseError('ERR_NOT_READY', failed.map(([name, c]) => `${name}: ${c.detail}`).join('; '));
       }
-      return reply.header('cache-control', 'no-store').send({ status: 'ready', checks });
+      // A Redis outage degrades (no shared cache, no cross-replica single-flight) but never
+      // makes a replica unready: taking every replica out together would turn it into an outage.
+      const shared = app.sharedRedis?.health();
+      const degraded = shared !== undefined && (shared.status !== 'up' || shared.breaker !== 'closed');
+      const all = shared
+        ? { ...checks, redis: { ok: !degraded, detail: `connection ${shared.status}, circuit ${shared.breaker}` } }
+        : checks;
+      return reply.header('cache-control', 'no-store').send({ status: degraded ? 'degraded' : 'ready', checks: all });
     },
   );
 }
