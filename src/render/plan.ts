@@ -24,8 +24,20 @@ function refuseOutput(pixels: number, limits: Limits): void {
   }
 }
 
-/** Refuses, before any I/O, a query whose box alone exceeds the output limit. */
+/** Refuses an output side longer than limits.maxDimension (density included). */
+function refuseSide(width: number, height: number, limits: Limits): void {
+  const side = Math.max(width, height);
+  if (side > limits.maxDimension) {
+    throw new FoldwiseError(
+      'ERR_LIMIT_OUTPUT_DIMENSION',
+      `the rendition would be ${Math.round(width)}x${Math.round(height)}; no side may exceed ${limits.maxDimension} pixels`,
+    );
+  }
+}
+
+/** Refuses, before any I/O, a query whose box alone exceeds the output limits. */
 export function checkRequestedSize(q: RenditionQuery, limits: Limits): void {
+  refuseSide((q.width ?? 0) * q.density, (q.height ?? 0) * q.density, limits);
   refuseOutput(requestedPixels(q), limits);
 }
 
@@ -47,6 +59,7 @@ export function planRendition(
     position: q.position,
   });
   const box = layout.canvas ?? { width: layout.targetWidth, height: layout.targetHeight };
+  refuseSide(box.width, box.height, limits);
   refuseOutput(box.width * box.height, limits);
   const plan = makePlan({
     sourceWidth: source.width,

@@ -28,7 +28,12 @@ export async function loadSource(
     );
   }
   const decoded = await clock.time('decode', () =>
-    decodeImage(source.bytes, { maxPixels: limits.maxPixels, maxDimension: limits.maxDimension }),
+    decodeImage(source.bytes, {
+      maxPixels: limits.maxPixels,
+      maxDimension: limits.maxDimension,
+      maxFrames: limits.maxFrames,
+      timeoutMs: limits.decodeTimeoutMs,
+    }),
   );
   return { identity: source.identity, decoded };
 }
