@@ -63,6 +63,12 @@ export class RedisFlight extends EventEmitter {
         .then((r) => r === 'OK', () => undefined);
       if (taken === undefined) return this.solo(key, work);
       if (taken) {
+        // Another replica may have stored it between our cache miss and taking the lock.
+        const stored = await work.lookup().catch(() => undefined);
+        if (stored) {
+          await this.release(lockKey, token);
+          return { entry: stored, role: 'follower' };
+        }
         this.emit('leader', key);
         return { entry: await this.lead(key, lockKey, token, work), role: 'leader' };
       }
@@ -93,9 +99,13 @@ export class RedisFlight extends EventEmitter {
     } finally {
       clearInterval(renew);
       const channel = this.channel(key);
-      await this.link.call((c) => c.eval(RELEASE, 1, lockKey, token)).catch(() => {});
+      await this.release(lockKey, token);
       await this.link.call((c) => c.publish(channel, message)).catch(() => {});
     }
+  }
+
+  private async release(lockKey: string, token: string): Promise<void> {
+    await this.link.call((c) => c.eval(RELEASE, 1, lockKey, token)).catch(() => {});
   }
 
   private wait(key: string, lockKey: string, work: FlightWork, deadline: number): Promise<WaitOutcome> {

@@ -88,6 +88,16 @@ describe.skipIf(!redisBinary)('RedisFlight across two replicas', () => {
     expect(b.renders()).toBe(1);
   });
 
+  it('takes a result stored between the miss and the lock instead of rendering again', async () => {
+    const b = make();
+    await b.link.ready();
+    await b.tier.set('r7', made('already there'));
+    const result = await b.flight.run('r7', b.work('r7', async () => made('again')));
+    expect(result).toEqual({ role: 'follower', entry: made('already there') });
+    expect(b.renders()).toBe(0);
+    expect(await raw.exists('lock-test:lock:r7')).toBe(0);
+  });
+
   it('renders alone once the wait deadline passes', async () => {
     const b = make({ pollMs: 25, waitDeadlineMs: 100 });
     await b.link.ready();
