@@ -82,7 +82,7 @@ export class RenderPool {
   }
 
   /** Resamples `src` by `plan` in the pool; big outputs are split into two bands of rows. */
-  async resample(src: PixelRaster, plan: Plan): Promise<PixelRaster> {
+  async resample(src: PixelRaster, plan: Plan, signal?: AbortSignal): Promise<PixelRaster> {
     const shared = share(src);
     const bytesPer = shared.depth / 8;
     const out = new SharedArrayBuffer(plan.targetWidth * plan.targetHeight * src.channels * bytesPer);
@@ -90,8 +90,9 @@ export class RenderPool {
     const split = this.threads > 1 && plan.targetWidth * h >= SPLIT_MIN_PIXELS;
     const bands: [number, number][] = split ? [[0, h >> 1], [h >> 1, h]] : [[0, h]];
     try {
-      await Promise.all(bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out })));
+      await Promise.all(bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out }, { signal })));
     } catch (e) {
+      if (signal?.aborted) throw new FoldwiseError('ERR_RENDER_TIMEOUT', 'resampling took longer than allowed', { cause: e });
       throw new FoldwiseError('ERR_RENDER_FAILED', 'resampling failed', { cause: e });
     }
     const data = shared.depth === 16 ? new Uint16Array(out) : new Uint8Array(out);

@@ -5,6 +5,7 @@ import type { Limits } from '../config.js';
 import { formatPlanHeader } from '../core/index.js';
 import type { PixelRaster } from '../core/types.js';
 import type { RenditionLayout } from '../core/geometry.js';
+import { FoldwiseError } from '../errors.js';
 import { encodeImage } from '../media/encode.js';
 import { outputFormats, type OutputFormat } from '../media/formats.js';
 import { negotiateFormat } from '../media/negotiate.js';
@@ -46,6 +47,17 @@ function formatKey(q: RenditionQuery, accept: string | undefined): string {
   return `auto:${negotiateFormat(accept, false)}/${negotiateFormat(accept, true)}`;
 }
 
+/** Settles like `work`, or rejects with ERR_RENDER_TIMEOUT once `deadline` aborts. */
+function withDeadline<T>(work: Promise<T>, deadline: AbortSignal): Promise<T> {
+  const late = () => new FoldwiseError('ERR_RENDER_TIMEOUT', 'encoding took longer than allowed');
+  if (deadline.aborted) return Promise.reject(late());
+  return new Promise<T>((resolve, reject) => {
+    const onAbort = () => reject(late());
+    deadline.addEventListener('abort', onAbort, { once: true });
+    work.then(resolve, reject).finally(() => deadline.removeEventListener('abort', onAbort));
+  });
+}
+
 async function produce(
   ctx: RenditionContextInternal,
   path: string,
@@ -61,10 +73,14 @@ async function produce(
     const first = planRendition(src, q, ctx.limits);
     const sigma = adaptive(first.layout);
     const { layout, plan } = sigma ? planRendition(src, q, ctx.limits, sigma) : first;
-    const resampled = await ctx.clock.time('resample', () => ctx.pool.resample(src, plan));
+    const deadline = AbortSignal.timeout(ctx.limits.renderTimeoutMs);
+    const resampled = await ctx.clock.time('resample', () => ctx.pool.resample(src, plan, deadline));
     const format: OutputFormat = q.format === 'auto' ? negotiateFormat(accept, decoded.hasAlpha) : q.format;
     const body = await ctx.clock.time('encode', () =>
-      encodeImage(resampled, { format, quality: q.quality, background: q.background, canvas: layout.canvas }),
+      withDeadline(
+        encodeImage(resampled, { format, quality: q.quality, background: q.background, canvas: layout.canvas }),
+        deadline,
+      ),
     );
     return {
       body,

@@ -23,13 +23,17 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
   const plainCache = `public, max-age=${config.http.maxAgeSeconds}`;
   const signedCache = `public, max-age=${config.http.signedMaxAgeSeconds}, immutable`;
 
-  /** True when the URL is validly signed; throws when signing is on and it is not. */
+  // Unsigned URLs are refused whenever a key is configured, unless signing.required is false.
+  const requireSignature = keys.length > 0 && (config.signing.required ?? true);
+
+  /** True when the URL is validly signed; throws when a signature is needed or wrong. */
   function checkSignature(request: FastifyRequest): boolean {
     if (keys.length === 0) return false;
     const check = verifySignature(request.url.split('?')[0], request.query as Record<string, string>, keys);
+    if (check === 'valid') return true;
+    if (check === 'missing' && !requireSignature) return false;
     if (check === 'missing') throw new FoldwiseError('ERR_SIGNATURE_REQUIRED', 'this service only serves signed URLs');
-    if (check === 'invalid') throw new FoldwiseError('ERR_SIGNATURE_INVALID', 'the signature does not match the path and query');
-    return true;
+    throw new FoldwiseError('ERR_SIGNATURE_INVALID', 'the signature does not match the path and query');
   }
 
   async function handler(request: FastifyRequest, reply: FastifyReply) {
