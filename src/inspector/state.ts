@@ -44,9 +44,12 @@ function changed(state: InspectState): [string, string][] {
   return fields.filter((name) => state[name] !== defaults[name]).map((name) => [name, state[name]]);
 }
 
-/** The page's own query string for this state (`?source=…&width=…`). */
+/**
+ * The page's own query string for this state (`?source=fabrics/pinstripe.png&width=320`).
+ * Slashes may stand unescaped in a query (RFC 3986, section 3.4), which keeps paths readable.
+ */
 export function pageSearch(state: InspectState): string {
-  return `?${new URLSearchParams(changed(state)).toString()}`;
+  return `?${new URLSearchParams(changed(state)).toString().replace(/%2F/gi, '/')}`;
 }
 
 export function readForm(form: HTMLFormElement): InspectState {

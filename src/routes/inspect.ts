@@ -101,7 +101,12 @@ export default async function inspectRoutes(app: FastifyInstance): Promise<void>
     'icon.svg': memo(() => readAsset(dir, 'icon.svg', 'image/svg+xml')),
   };
 
-  app.get('/inspect', async (request, reply) => {
+  const openapi = {
+    summary: 'The inspector page: naive and planned renditions side by side, with the alias-risk report',
+    tags: ['inspector'],
+    responses: { '200': { description: 'An HTML page', content: { 'text/html': {} } } },
+  };
+  app.get('/inspect', { config: { openapi } }, async (request, reply) => {
     reply.header('Content-Security-Policy', contentSecurityPolicy);
     reply.header('Referrer-Policy', 'no-referrer');
     return send(request, reply, await page());

@@ -1,0 +1,61 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { build, type TestApp } from '../helpers/build.js';
+
+describe('GET /inspect and its assets', () => {
+  let t: TestApp;
+  beforeAll(async () => {
+    t = await build();
+  });
+  afterAll(() => t.close());
+
+  it('serves the page with a policy that keeps it on this service', async () => {
+    const res = await t.app.inject({ url: '/inspect' });
+    expect(res.statusCode).toBe(200);
+    expect(res.headers['content-type']).toBe('text/html; charset=utf-8');
+    const csp = String(res.headers['content-security-policy']);
+    // Content Security Policy Level 3 (W3C): 'self' plus blob: images, nothing else.
+    expect(csp).toContain("default-src 'none'");
+    expect(csp).toContain("connect-src 'self'");
+    expect(csp).not.toMatch(/https?:|\*/);
+    // Every reference in the page is relative to the service: no other host is named.
+    expect(res.body).not.toMatch(/(src|href)="(https?:)?\/\//);
+    expect(res.body).toContain('inspect/assets/client.js');
+    expect(res.body).toContain('inspect/assets/style.css');
+  });
+
+  it('compiles the client script for the browser, once, with a strong validator', async () => {
+    const first = await t.app.inject({ url: '/inspect/assets/client.js' });
+    expect(first.statusCode).toBe(200);
+    expect(first.headers['content-type']).toBe('text/javascript; charset=utf-8');
+    // Bundled: no TypeScript-only syntax and no module imports left for the browser to fetch.
+    expect(first.body).not.toMatch(/^import /m);
+    expect(first.body).not.toMatch(/: HTMLElement\b/);
+    expect(first.body).toContain('history');
+    const etag = String(first.headers.etag);
+    expect(etag).toMatch(/^"[A-Za-z0-9_-]+"$/);
+    const again = await t.app.inject({ url: '/inspect/assets/client.js' });
+    expect(again.headers.etag).toBe(etag);
+    const revalidated = await t.app.inject({ url: '/inspect/assets/client.js', headers: { 'if-none-match': etag } });
+    expect(revalidated.statusCode).toBe(304);
+    expect(revalidated.body).toBe('');
+  });
+
+  it('serves the stylesheet and the icon', async () => {
+    const css = await t.app.inject({ url: '/inspect/assets/style.css' });
+    expect(css.statusCode).toBe(200);
+    expect(css.headers['content-type']).toBe('text/css; charset=utf-8');
+    expect(css.body).toContain(':focus-visible');
+    const icon = await t.app.inject({ url: '/inspect/assets/icon.svg' });
+    expect(icon.headers['content-type']).toBe('image/svg+xml');
+  });
+
+  it.each(['client.ts', 'page.html', 'state.ts', '..%2Fpage.html', 'tsconfig.json'])(
+    'answers 404 problem details for an asset it does not serve: %s',
+    async (name) => {
+      const res = await t.app.inject({ url: `/inspect/assets/${name}` });
+      expect(res.statusCode).toBe(404);
+      expect(res.headers['content-type']).toContain('application/problem+json');
+      expect(res.json().code).toBe('ERR_NOT_FOUND');
+    },
+  );
+});
