@@ -28,12 +28,21 @@ function pow2Floor(v: number): number {
   return v < 1 ? 0 : 2 ** Math.floor(Math.log2(v));
 }
 
-/** Positions of `count` tiles of side `t` spread evenly over [start, end), clamped to [0, limit - t]. */
-function spread(start: number, end: number, count: number, t: number, limit: number, out: number[]): void {
+/**
+ * Tile corners along one axis: `count` tiles of side t spread evenly from 0 to side - t, each
+ * with the region (of `regions` equal ones) holding its centre. Spacing never exceeds a
+ * region's width, so every region gets at least one tile.
+ */
+function alongAxis(side: number, t: number, regions: number, count: number): { at: number[]; region: number[] } {
+  const at: number[] = [];
+  const region: number[] = [];
   for (let i = 0; i < count; i++) {
-    const centre = count === 1 ? (start + end) / 2 : start + t / 2 + ((end - start - t) * i) / (count - 1);
-    out.push(Math.min(limit - t, Math.max(0, Math.round(centre - t / 2))));
+    const corner = count === 1 ? (side - t) / 2 : ((side - t) * i) / (count - 1);
+    const c = Math.round(corner);
+    at.push(c);
+    region.push(Math.min(regions - 1, Math.floor(((c + t / 2) * regions) / side)));
   }
+  return { at, region };
 }
 
 /** Lay out regions and tiles for a width x height image (integers >= 1). */
@@ -48,27 +57,19 @@ export function layoutTiles(width: number, height: number): TileLayout {
     Math.max(1, Math.min(Math.floor(side / t), Math.round((MAX_REGIONS * side) / long)));
   const columns = along(width);
   const rows = along(height);
-  // Tiles per region along each axis: as many 50 %-overlapping tiles as fit, within the budget.
+  // Tiles per region along each axis: enough 50 %-overlapping tiles to cover the image
+  // (Welch 1967), within the budget; past the budget they sample it evenly instead.
   const perAxis = Math.max(1, Math.floor(Math.sqrt(MAX_TILES / (columns * rows))));
-  const fit = (side: number) => Math.min(perAxis, Math.max(1, Math.floor((side - t) / (t / 2)) + 1));
+  const count = (side: number, regions: number) =>
+    Math.min(perAxis * regions, Math.max(1, Math.ceil((side - t) / (t / 2)) + 1));
+  const xs = alongAxis(width, t, columns, Math.max(columns, count(width, columns)));
+  const ys = alongAxis(height, t, rows, Math.max(rows, count(height, rows)));
   const corners: number[] = [];
   const region: number[] = [];
-  for (let r = 0; r < rows; r++) {
-    const y0 = (r * height) / rows;
-    const y1 = ((r + 1) * height) / rows;
-    const ys: number[] = [];
-    spread(y0, y1, fit(y1 - y0), t, height, ys);
-    for (let c = 0; c < columns; c++) {
-      const x0 = (c * width) / columns;
-      const x1 = ((c + 1) * width) / columns;
-      const xs: number[] = [];
-      spread(x0, x1, fit(x1 - x0), t, width, xs);
-      for (const y of ys) {
-        for (const x of xs) {
-          corners.push(x, y);
-          region.push(r * columns + c);
-        }
-      }
+  for (let j = 0; j < ys.at.length; j++) {
+    for (let i = 0; i < xs.at.length; i++) {
+      corners.push(xs.at[i], ys.at[j]);
+      region.push(ys.region[j] * columns + xs.region[i]);
     }
   }
   return { tileSize: t, columns, rows, corners: Int32Array.from(corners), region: Int32Array.from(region) };
