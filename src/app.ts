@@ -5,15 +5,17 @@ import type { Flight } from './cache/single-flight.js';
 import type { CacheTier } from './cache/types.js';
 import type { Config } from './config.js';
 import { createFolderOrigin } from './origins/folder.js';
+import { upstreamFromConfig, withUpstream } from './origins/upstream-route.js';
 import type { Origin } from './origins/types.js';
 import cachePlugin from './plugins/cache.js';
 import contextPlugin from './plugins/context.js';
-import errorsPlugin from './plugins/errors.js';
+import errorsPlugin, { sendProblem, toFoldwiseError } from './plugins/errors.js';
 import metricsPlugin from './plugins/metrics.js';
 import openApiPlugin from './plugins/openapi.js';
 import pressurePlugin from './plugins/pressure.js';
 import redisPlugin, { redisSettings } from './plugins/redis.js';
 import renderPlugin from './plugins/render.js';
+import signingPlugin from './plugins/signing.js';
 import workerPoolPlugin from './plugins/worker-pool.js';
 import docsRoutes from './routes/docs.js';
 import healthRoutes from './routes/health.js';
@@ -57,12 +59,16 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     logController: new LogController({ requestIdLogLabel: 'requestId' }),
     // Sources are paths: let "a//b" and trailing slashes reach the path checks, not 404 early.
     routerOptions: { ignoreDuplicateSlashes: false, maxParamLength: 1024 },
+    // URLs the router cannot decode (bad percent-encoding) get problem details too.
+    frameworkErrors: (error, request, reply) => sendProblem(request, reply, toFoldwiseError(error)),
   });
   app.addHook('onSend', async (request, reply) => {
     reply.header('x-request-id', request.id);
   });
 
-  const origin = options.origin ?? createFolderOrigin(config.origin.sourceDir, { maxBytes: config.limits.maxSourceBytes });
+  const origin =
+    options.origin ??
+    withUpstream(createFolderOrigin(config.origin.sourceDir, { maxBytes: config.limits.maxSourceBytes }), upstreamFromConfig(config));
   await app.register(errorsPlugin);
   await app.register(openApiPlugin);
   await app.register(metricsPlugin);
@@ -76,6 +82,13 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   });
   await app.register(workerPoolPlugin, config.pool);
   await app.register(renderPlugin);
+  await app.register(signingPlugin, {
+    keys: config.signing.keys,
+    // Required by default whenever a key is set; required without a key stops the start.
+    required: config.signing.required ?? config.signing.keys.length > 0,
+    prefixes: ['/v1/renditions/', '/v1/alias-risk/'],
+    signedMaxAgeSeconds: config.http.signedMaxAgeSeconds,
+  });
 
   await app.register(renditionRoutes);
   await app.register(sourcesRoutes);

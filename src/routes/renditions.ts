@@ -5,7 +5,6 @@ import { renderRendition } from '../render/service.js';
 import { serverTiming } from '../render/timings.js';
 import { problemResponses, queryParameters } from '../schemas/openapi.js';
 import { compileRenditionQuery, type RenditionQuery } from '../schemas/rendition.js';
-import { verifySignature } from '../security/signing.js';
 import { matchesIfNoneMatch } from './conditional.js';
 import { sourcePathOf } from './path.js';
 
@@ -19,27 +18,14 @@ export const renditionsPrefix = '/v1/renditions/';
 export default async function renditionRoutes(app: FastifyInstance): Promise<void> {
   const { config, renderContext } = app;
   const query = compileRenditionQuery({ maxDimension: config.limits.maxDimension, kernelNames });
-  const keys = config.signing.keys;
   const plainCache = `public, max-age=${config.http.maxAgeSeconds}`;
   const signedCache = `public, max-age=${config.http.signedMaxAgeSeconds}, immutable`;
-
-  // Unsigned URLs are refused whenever a key is configured, unless signing.required is false.
-  const requireSignature = keys.length > 0 && (config.signing.required ?? true);
-
-  /** True when the URL is validly signed; throws when a signature is needed or wrong. */
-  function checkSignature(request: FastifyRequest): boolean {
-    if (keys.length === 0) return false;
-    const check = verifySignature(request.url.split('?')[0], request.query as Record<string, string>, keys);
-    if (check === 'valid') return true;
-    if (check === 'missing' && !requireSignature) return false;
-    if (check === 'missing') throw new FoldwiseError('ERR_SIGNATURE_REQUIRED', 'this service only serves signed URLs');
-    throw new FoldwiseError('ERR_SIGNATURE_INVALID', 'the signature does not match the path and query');
-  }
 
   async function handler(request: FastifyRequest, reply: FastifyReply) {
     const path = sourcePathOf(request.url, renditionsPrefix);
     const q: RenditionQuery = query.parse(request.query as Record<string, unknown>);
-    const signed = checkSignature(request);
+    // Checked before parsing by the signing plugin (src/plugins/signing.ts).
+    const signed = request.signed;
     const r = await renderRendition(renderContext, path, q, request.headers.accept);
     reply
       .header('etag', r.entry.etag)
