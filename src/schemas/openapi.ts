@@ -12,16 +12,14 @@ export interface Operation {
 }
 
 /** RFC 9457 problem details as the service sends them. */
-export const problemSchema = z
-  .object({
-    type: z.string().meta({ description: 'Reference into GET /docs/errors.' }),
-    title: z.string(),
-    status: z.number().int(),
-    detail: z.string(),
-    code: z.enum(Object.keys(errorCodes) as [string, ...string[]]),
-    requestId: z.string(),
-  })
-  .meta({ id: 'Problem' });
+export const problemSchema = z.object({
+  type: z.string().meta({ description: 'Reference into GET /docs/errors.' }),
+  title: z.string(),
+  status: z.number().int().min(400).max(599),
+  detail: z.string(),
+  code: z.enum(Object.keys(errorCodes) as [string, ...string[]]),
+  requestId: z.string(),
+});
 
 const jsonSchema = (schema: z.ZodType) => {
   const { $schema: _drop, ...rest } = z.toJSONSchema(schema, { io: 'output', unrepresentable: 'any' }) as Record<string, unknown>;

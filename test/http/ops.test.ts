@@ -1,0 +1,114 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { build, type TestApp } from '../helpers/build.js';
+import { writePng } from '../helpers/images.js';
+
+describe('operational endpoints', () => {
+  let t: TestApp;
+  beforeAll(async () => {
+    t = await build();
+    await writePng(t.sourceDir, 'swatch.png', 16, 16, 3, () => [90, 60, 30]);
+    const { mkdir } = await import('node:fs/promises');
+    await mkdir(`${t.sourceDir}/fabrics`);
+    await writePng(`${t.sourceDir}/fabrics`, 'twill weave.png', 16, 16, 3, () => [30, 60, 90]);
+  });
+  afterAll(() => t.close());
+
+  it('/healthz is ok', async () => {
+    const res = await t.app.inject({ url: '/healthz' });
+    expect(res.statusCode).toBe(200);
+    expect(res.json()).toEqual({ status: 'ok' });
+    expect(res.headers['x-request-id']).toBeTruthy();
+  });
+
+  it('/readyz reports its checks', async () => {
+    const res = await t.app.inject({ url: '/readyz' });
+    expect(res.statusCode).toBe(200);
+    expect(res.json().status).toBe('ready');
+    expect(res.json().checks.pool.ok).toBe(true);
+  });
+
+  it('/readyz is a 503 problem when the source folder is gone', async () => {
+    const gone = await build({ sourceDir: '/nonexistent/fw-sources' });
+    try {
+      const res = await gone.app.inject({ url: '/readyz' });
+      expect(res.statusCode).toBe(503);
+      expect(res.json().code).toBe('ERR_NOT_READY');
+      expect(res.json().detail).toMatch(/origin/);
+    } finally {
+      await gone.close();
+    }
+  });
+
+  it('keeps a plain caller-supplied request id and replaces a hostile one', async () => {
+    const kept = await t.app.inject({ url: '/healthz', headers: { 'x-request-id': 'cdn-123.abc' } });
+    expect(kept.headers['x-request-id']).toBe('cdn-123.abc');
+    const replaced = await t.app.inject({ url: '/healthz', headers: { 'x-request-id': 'a\nb<script>' } });
+    expect(replaced.headers['x-request-id']).not.toMatch(/script/);
+  });
+
+  it('/metrics exposes requests by route and status, stages, cache and pool', async () => {
+    await t.app.inject({ url: '/v1/renditions/swatch.png?width=8&format=png' });
+    await t.app.inject({ url: '/v1/renditions/swatch.png?width=8&format=png' });
+    await t.app.inject({ url: '/v1/renditions/swatch.png?width=0' });
+    const res = await t.app.inject({ url: '/metrics' });
+    expect(res.statusCode).toBe(200);
+    expect(res.headers['content-type']).toMatch(/^text\/plain/);
+    const text = res.body;
+    // Prometheus text exposition format 0.0.4 (prometheus.io docs, from memory): name{labels} value
+    expect(text).toMatch(/foldwise_http_requests_total\{route="\/v1\/renditions\/\*",method="GET",status="200"\} 2/);
+    expect(text).toMatch(/foldwise_http_requests_total\{route="\/v1\/renditions\/\*",method="GET",status="400"\} 1/);
+    expect(text).toMatch(/foldwise_http_request_duration_seconds_bucket\{le="[^"]+",route="\/v1\/renditions\/\*"/);
+    for (const stage of ['origin', 'decode', 'resample', 'encode', 'cache']) {
+      expect(text).toMatch(new RegExp(`foldwise_render_stage_seconds_count\\{stage="${stage}"\\} [1-9]`));
+    }
+    expect(text).toMatch(/foldwise_cache_lookups_total\{result="miss"\} 1/);
+    expect(text).toMatch(/foldwise_cache_lookups_total\{result="hit-memory"\} 1/);
+    expect(text).toMatch(/foldwise_cache_bytes\{tier="memory"\} [1-9]/);
+    expect(text).toMatch(/foldwise_pool_queue_depth 0/);
+    expect(text).toMatch(/foldwise_process_resident_memory_bytes/);
+  });
+
+  it('/docs is an OpenAPI 3.1 document generated from the zod schemas', async () => {
+    const doc = (await t.app.inject({ url: '/docs' })).json();
+    expect(doc.openapi).toBe('3.1.0');
+    const op = doc.paths['/v1/renditions/{source}'].get;
+    const params = Object.fromEntries(op.parameters.map((p: { name: string }) => [p.name, p]));
+    for (const name of ['source', 'width', 'height', 'density', 'fit', 'position', 'format', 'quality', 'background', 'kernel', 'prefilter', 'light', 'signature']) {
+      expect(params[name], name).toBeDefined();
+    }
+    // Limits come from config, enums from the core's kernel table.
+    expect(params.width.schema).toMatchObject({ type: 'integer', minimum: 1, maximum: t.config.limits.maxDimension });
+    expect(params.fit.schema.enum).toEqual(['contain', 'cover', 'fill', 'scale-down']);
+    expect(params.kernel.schema.enum).toContain('lanczos3');
+    expect(op.responses['400'].content['application/problem+json']).toBeDefined();
+    for (const path of ['/v1/sources', '/healthz', '/readyz', '/metrics', '/docs/errors']) expect(doc.paths[path], path).toBeDefined();
+    expect(doc.components.schemas.Problem.properties.code.enum).toContain('ERR_PARAM_UNKNOWN');
+  });
+
+  it('/docs/errors lists every code with status and title', async () => {
+    const { errors } = (await t.app.inject({ url: '/docs/errors' })).json();
+    expect(errors).toContainEqual({ code: 'ERR_SOURCE_NOT_FOUND', status: 404, title: 'Source not found' });
+  });
+
+  it('/v1/sources lists the folder origin with rendition links', async () => {
+    const res = await t.app.inject({ url: '/v1/sources' });
+    expect(res.statusCode).toBe(200);
+    const { sources } = res.json();
+    const paths = sources.map((s: { path: string }) => s.path).sort();
+    expect(paths).toEqual(['fabrics/twill weave.png', 'swatch.png']);
+    const woven = sources.find((s: { path: string }) => s.path.startsWith('fabrics/'));
+    expect(woven.rendition).toBe('/v1/renditions/fabrics/twill%20weave.png?width=480');
+    expect((await t.app.inject({ url: woven.rendition.replace('480', '8') })).statusCode).toBe(200);
+  });
+
+  it('/v1/sources can be switched off', async () => {
+    const off = await build({ sourceDir: t.sourceDir, config: { origin: { listing: false } } });
+    try {
+      const res = await off.app.inject({ url: '/v1/sources' });
+      expect(res.statusCode).toBe(404);
+      expect(res.json().code).toBe('ERR_ORIGIN_DISABLED');
+    } finally {
+      await off.close();
+    }
+  });
+});
