@@ -188,7 +188,9 @@ export function validateConfig(raw: unknown, fromEnv: Record<string, string> = {
   if (result.success) return result.data;
   const lines = result.error.issues.map((issue) => {
     const at = issue.path.join('.') || '(root)';
-    const env = fromEnv[at] ? ` (from ${fromEnv[at]})` : '';
+    // An issue deep inside an env-set value (e.g. signing.keys.0) still names the variable.
+    const source = Object.keys(fromEnv).find((p) => at === p || at.startsWith(`${p}.`));
+    const env = source ? ` (from ${fromEnv[source]})` : '';
     const keys = issue.code === 'unrecognized_keys' ? `: ${issue.keys.join(', ')}` : '';
     return `  ${at}${env}: ${issue.message}${keys}`;
   });
