@@ -4,10 +4,10 @@
  * parallel, show them, then draw the enlarged crops and the numbers. A newer run aborts an
  * older one, so quick changes never show a mix of two requests.
  */
-import { getImage, getJson, showImage, ServiceProblem, type FetchedImage } from './api.js';
-import { geometryOf, renderNumbers, renderPlan, type Report } from './report-view.js';
-import { apiUrls, fromParams, pageSearch, readForm, startWidth, writeForm, type InspectState } from './state.js';
-import { drawZoom, placeMark, riskiestWindow, zoomFactor } from './zoom.js';
+import { getImage, getJson, hideImage, showImage, ServiceProblem, type FetchedImage } from './api.js';
+import { clearCrops, showCrops } from './crops.js';
+import { clearNumbers, renderNumbers, renderPlan, type Report } from './report-view.js';
+import { apiUrls, fromParams, pageSearch, readForm, startWidth, writeForm, type ApiUrls, type InspectState } from './state.js';
 
 const byId = <T extends HTMLElement>(id: string): T => document.getElementById(id) as T;
 
@@ -17,41 +17,38 @@ const results = byId<HTMLDivElement>('results');
 let runs = 0;
 let inFlight: AbortController | undefined;
 
+/** The four pictures of a run: where each is shown, where it comes from, how it is named. */
+const pictures: { img: string; url: keyof ApiUrls; what: string; alt: (s: InspectState) => string }[] = [
+  { img: 'naive-img', url: 'naive', what: 'The careless copy', alt: (s) => `Careless copy of ${s.source}, ${s.width} pixels wide` },
+  { img: 'planned-img', url: 'planned', what: 'The foldwise copy', alt: (s) => `foldwise copy of ${s.source}, ${s.width} pixels wide` },
+  { img: 'map-img', url: 'map', what: 'The risk map', alt: (s) => `Risk map over ${s.source} for a copy ${s.width} pixels wide` },
+  { img: 'spectrum-img', url: 'spectrum', what: 'The spectrum', alt: (s) => `Spectrum of ${s.source} with the limit of the new pixel grid drawn on it` },
+];
+
 function say(text: string, isError = false): void {
   status.textContent = text;
   status.classList.toggle('error', isError);
 }
 
+/** One line for every failure; requests that failed for the same reason share it. */
+function describeFailures(reasons: unknown[]): string {
+  const byProblem = new Map<string, string[]>();
+  for (const reason of reasons) {
+    const [what, problem] = reason instanceof ServiceProblem ? [reason.what, reason.problem] : ['The page', String(reason)];
+    byProblem.set(problem, [...(byProblem.get(problem) ?? []), what]);
+  }
+  const list = (whats: string[]) => whats.map((w, i) => (i === 0 ? w : w[0].toLowerCase() + w.slice(1))).join(', ');
+  return [...byProblem].map(([problem, whats]) => `${list(whats)}: ${problem}.`).join(' ');
+}
+
 async function listSources(): Promise<string[]> {
-  const body = await getJson<unknown>('v1/sources', 'The picture list', new AbortController().signal);
-  const items = Array.isArray(body) ? body : ((body as { sources?: unknown[] }).sources ?? []);
-  const paths = items.map((item) => (typeof item === 'string' ? item : (item as { path?: string }).path));
-  return paths.filter((p): p is string => typeof p === 'string');
+  const body = await getJson<{ sources?: { path?: unknown }[] }>('v1/sources', 'The picture list', new AbortController().signal);
+  return (body.sources ?? []).map((item) => item.path).filter((p): p is string => typeof p === 'string');
 }
 
 function fillSourceList(paths: string[]): void {
   const list = byId<HTMLDataListElement>('source-list');
   list.replaceChildren(...paths.map((path) => Object.assign(document.createElement('option'), { value: path })));
-}
-
-function drawCrops(report: Report, state: InspectState): void {
-  const naiveImg = byId<HTMLImageElement>('naive-img');
-  const plannedImg = byId<HTMLImageElement>('planned-img');
-  const win = riskiestWindow(report.grid, geometryOf(report, naiveImg));
-  placeMark(byId('naive-mark'), win);
-  placeMark(byId('planned-mark'), win);
-  const note = byId<HTMLParagraphElement>('zoom-note');
-  if (!win) {
-    note.textContent = 'The report names no region inside this copy.';
-    return;
-  }
-  const zoom = zoomFactor(win);
-  const where = `output pixels ${win.x}–${win.x + win.width} across, ${win.y}–${win.y + win.height} down`;
-  note.textContent =
-    `The outlined square on each copy (${where}; risk ${win.risk.toFixed(2)}), ` +
-    `shown ${zoom} times larger so every pixel is a clear square.`;
-  drawZoom(byId('naive-zoom'), naiveImg, win, zoom, `Careless copy of ${state.source}, ${where}, enlarged ${zoom} times`);
-  drawZoom(byId('planned-zoom'), plannedImg, win, zoom, `foldwise copy of ${state.source}, ${where}, enlarged ${zoom} times`);
 }
 
 async function run(state: InspectState, history: 'push' | 'replace' | 'keep'): Promise<void> {
@@ -62,42 +59,39 @@ async function run(state: InspectState, history: 'push' | 'replace' | 'keep'): P
   if (history !== 'keep') window.history[`${history}State`](null, '', pageSearch(state));
   results.setAttribute('aria-busy', 'true');
   say(`Making both copies of ${state.source} at ${state.width} px wide…`);
-  const fetched: FetchedImage[] = [];
-  const keep = (image: FetchedImage) => {
-    if (mine === runs) fetched.push(image);
-    else URL.revokeObjectURL(image.objectUrl);
-    return image;
-  };
   try {
     const urls = apiUrls(state);
-    const signal = controller.signal;
-    const [report, naive, planned, map, spectrum] = await Promise.all([
-      getJson<Report>(urls.report, 'The risk report', signal),
-      getImage(urls.naive, 'The careless copy', signal).then(keep),
-      getImage(urls.planned, 'The foldwise copy', signal).then(keep),
-      getImage(urls.map, 'The risk map', signal).then(keep),
-      getImage(urls.spectrum, 'The spectrum', signal).then(keep),
+    const [report, ...images] = await Promise.allSettled([
+      getJson<Report>(urls.report, 'The risk report', controller.signal),
+      ...pictures.map((p) => getImage(urls[p.url], p.what, controller.signal)),
     ]);
-    if (mine !== runs) throw new DOMException('superseded', 'AbortError');
-    const size = `${report.target.width}×${report.target.height}`;
-    await Promise.all([
-      showImage(byId('naive-img'), naive.objectUrl, `Careless copy of ${state.source}, ${size} pixels`),
-      showImage(byId('planned-img'), planned.objectUrl, `foldwise copy of ${state.source}, ${size} pixels`),
-      showImage(byId('map-img'), map.objectUrl, `Risk map of ${state.source} for a ${size} copy`),
-      showImage(byId('spectrum-img'), spectrum.objectUrl, `Spectrum of ${state.source} with the new pixel grid's limit`),
-    ]);
+    const fetched = images.flatMap((r) => (r.status === 'fulfilled' ? [r.value] : []));
+    if (mine !== runs) {
+      for (const image of fetched) URL.revokeObjectURL(image.objectUrl);
+      return;
+    }
+    const shown = await Promise.allSettled(
+      images.map((r, i) => {
+        const img = byId<HTMLImageElement>(pictures[i].img);
+        if (r.status === 'fulfilled') return showImage(img, r.value.objectUrl, pictures[i].what, pictures[i].alt(state));
+        hideImage(img);
+        return Promise.resolve();
+      }),
+    );
     if (mine !== runs) return;
     byId<HTMLAnchorElement>('naive-link').href = urls.naive;
     byId<HTMLAnchorElement>('planned-link').href = urls.planned;
-    renderNumbers(report);
-    renderPlan(planned.plan);
-    drawCrops(report, state);
+    const planned = images[1] as PromiseSettledResult<FetchedImage>;
+    renderPlan(planned.status === 'fulfilled' ? planned.value.plan : null);
+    const copiesShown = [0, 1].every((i) => images[i].status === 'fulfilled' && shown[i].status === 'fulfilled');
+    if (report.status === 'fulfilled') renderNumbers(report.value);
+    else clearNumbers();
+    if (report.status === 'fulfilled' && copiesShown) showCrops(report.value, state.source);
+    else clearCrops('The enlarged crops need both copies and the report.');
+    const failures = [report, ...images, ...shown].flatMap((r) => (r.status === 'rejected' ? [r.reason] : []));
     results.dataset.shown = pageSearch(state);
-    say(`Showing ${state.source} at ${size} pixels.`);
-  } catch (error) {
-    for (const image of fetched) URL.revokeObjectURL(image.objectUrl);
-    if (mine !== runs || (error instanceof DOMException && error.name === 'AbortError')) return;
-    say(error instanceof ServiceProblem ? error.message : `Something went wrong: ${String(error)}`, true);
+    if (failures.length > 0) say(describeFailures(failures), true);
+    else say(`Showing ${state.source} at ${state.width} px wide.`);
   } finally {
     if (mine === runs) results.setAttribute('aria-busy', 'false');
   }

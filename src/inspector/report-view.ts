@@ -9,7 +9,7 @@ import type { Geometry, Grid } from './zoom.js';
 type Level = 'low' | 'moderate' | 'high';
 type Pair = { x: number; y: number };
 
-/** The fields of GET /v1/alias-risk/{source} that the page shows. */
+/** The fields of GET /v1/alias-risk/{source} that the page shows (see src/core/risk). */
 export interface Report {
   source: { width: number; height: number };
   target: { width: number; height: number };
@@ -18,17 +18,20 @@ export interface Report {
   folded: { unfiltered: number; planned: number };
   score: number;
   level: Level;
-  peaks: { frequency: Pair; alias: Pair; share: number; kind: string }[];
+  peaks: { fx: number; fy: number; power: number; kind: string; aliasTo: { fx: number; fy: number }; passed: number }[];
   grid: Grid;
-  recommendedSigma: number;
-  plan: { crop?: Geometry['crop']; reason?: string };
+  recommendedSigma: Pair;
+  reason: string;
+  plan: { crop?: Geometry['crop'] };
 }
 
 const byId = (id: string): HTMLElement => document.getElementById(id) as HTMLElement;
-const percent = (f: number) => `${(f * 100).toFixed(f < 0.001 ? 3 : f < 0.1 ? 2 : 1)} %`;
+/** A share of energy as a percentage and in decibels (10 log10), the unit the levels use. */
+const share = (f: number) => (f > 0 ? `${(f * 100).toPrecision(2)} % (${(10 * Math.log10(f)).toFixed(1)} dB)` : '0 %');
 const fixed = (v: number, d = 3) => v.toFixed(d);
-const period = (f: number) => (f > 0 ? `${fixed(1 / f, 1)}` : '—');
+const period = (f: number) => (f > 0 ? fixed(1 / f, 1) : '—');
 const both = (p: Pair, show: (v: number) => string) => (p.x === p.y ? show(p.x) : `${show(p.x)} / ${show(p.y)}`);
+const xy = (fx: number, fy: number, show: (v: number) => string) => `${show(Math.abs(fx))} / ${show(Math.abs(fy))}`;
 
 /** Where the rendition's pixels come from in the source, for mapping grid cells onto it. */
 export function geometryOf(report: Report, img: HTMLImageElement): Geometry {
@@ -44,8 +47,8 @@ export function geometryOf(report: Report, img: HTMLImageElement): Geometry {
 
 function verdict(report: Report): string {
   const where = describeRegion(report.grid) ?? 'the whole picture';
-  const careless = percent(report.folded.unfiltered);
-  const planned = percent(report.folded.planned);
+  const careless = share(report.folded.unfiltered);
+  const planned = share(report.folded.planned);
   if (report.level === 'low') {
     return `Little risk at this size: only ${careless} of the fine detail would fold into false patterns in the careless copy; foldwise leaves ${planned}.`;
   }
@@ -60,25 +63,28 @@ function term(list: HTMLElement, name: string, value: string, key: string): void
   list.append(dt, dd);
 }
 
-function renderPeaks(report: Report): void {
+function cellsOf(texts: string[]): HTMLTableRowElement {
+  const tr = document.createElement('tr');
+  tr.append(...texts.map((text) => Object.assign(document.createElement('td'), { textContent: text })));
+  return tr;
+}
+
+function renderPeaks(peaks: Report['peaks']): void {
   const body = byId('peaks').querySelector('tbody') as HTMLTableSectionElement;
-  const rows = report.peaks.map((peak) => {
-    const tr = document.createElement('tr');
-    const cells = [
-      both(peak.frequency, (v) => fixed(Math.abs(v))),
-      both(peak.frequency, (v) => period(Math.abs(v))),
-      both(peak.alias, (v) => fixed(Math.abs(v))),
-      both(peak.alias, (v) => period(Math.abs(v))),
-      peak.kind,
-      percent(peak.share),
-    ];
-    tr.append(...cells.map((text) => Object.assign(document.createElement('td'), { textContent: text })));
-    return tr;
-  });
+  const rows = peaks.map((peak) =>
+    cellsOf([
+      xy(peak.fx, peak.fy, (v) => fixed(v)),
+      xy(peak.fx, peak.fy, period),
+      xy(peak.aliasTo.fx, peak.aliasTo.fy, (v) => fixed(v)),
+      xy(peak.aliasTo.fx, peak.aliasTo.fy, period),
+      peak.kind === 'periodic' ? 'stripes or weave: moiré' : 'fine grain: sparkle, jagged edges',
+      share(peak.power),
+      share(peak.passed),
+    ]),
+  );
   if (rows.length === 0) {
-    const td = Object.assign(document.createElement('td'), { textContent: 'No strong fine pattern beyond the new grid.' });
-    td.colSpan = 6;
-    rows.push(Object.assign(document.createElement('tr'), {}));
+    const td = Object.assign(document.createElement('td'), { textContent: 'No strong fine pattern beyond the new grid.', colSpan: 7 });
+    rows.push(document.createElement('tr'));
     rows[0].append(td);
   }
   body.replaceChildren(...rows);
@@ -96,12 +102,20 @@ export function renderNumbers(report: Report): void {
   term(list, 'Size', `${report.source.width}×${report.source.height} → ${report.target.width}×${report.target.height} px`, 'size');
   term(list, 'Shrink factor', both(report.scale, (v) => `${fixed(v, 2)}×`), 'scale');
   term(list, 'Finest pattern the new grid holds (new Nyquist)',
-    `${both(report.nyquist, (v) => fixed(v))} cycles per source pixel (a stripe pair every ${both(report.nyquist, period)} source px)`, 'nyquist');
-  term(list, 'Fine detail that folds back, careless copy', percent(report.folded.unfiltered), 'folded-unfiltered');
-  term(list, 'Fine detail that folds back, foldwise copy', percent(report.folded.planned), 'folded-planned');
-  term(list, 'Blur that would bring the risk to low (recommended sigma)', `${fixed(report.recommendedSigma, 2)} source px`, 'sigma');
-  if (report.plan.reason) term(list, 'Why this plan', report.plan.reason, 'reason');
-  renderPeaks(report);
+    `${both(report.nyquist, (v) => fixed(v))} cycles per source pixel: one stripe pair every ${both(report.nyquist, period)} source px`, 'nyquist');
+  term(list, 'Detail energy that folds back, careless copy', share(report.folded.unfiltered), 'folded-unfiltered');
+  term(list, 'Detail energy that folds back, foldwise copy', share(report.folded.planned), 'folded-planned');
+  term(list, 'Blur that brings the risk to low (recommended sigma)', `${both(report.recommendedSigma, (v) => fixed(v, 2))} source px`, 'sigma');
+  term(list, 'In the analysis\'s words', report.reason, 'reason');
+  renderPeaks(report.peaks);
+}
+
+/** Empties the verdict, figures and peaks, so nothing from an earlier request remains. */
+export function clearNumbers(): void {
+  byId('level-badge').textContent = '';
+  byId('verdict-text').textContent = 'No report for this request.';
+  byId('numbers').replaceChildren();
+  byId('peaks').querySelector('tbody')?.replaceChildren();
 }
 
 export function renderPlan(header: string | null): void {

@@ -1,0 +1,41 @@
+/**
+ * The enlarged crops of the riskiest region from both copies, and the outline that shows on
+ * each copy where they come from.
+ */
+import { geometryOf, type Report } from './report-view.js';
+import { drawZoom, placeMark, riskiestWindow, zoomFactor } from './zoom.js';
+
+const byId = <T extends HTMLElement>(id: string): T => document.getElementById(id) as T;
+
+/** Draws both crops around the riskiest grid cell that the copies show. */
+export function showCrops(report: Report, source: string): void {
+  const naive = byId<HTMLImageElement>('naive-img');
+  const planned = byId<HTMLImageElement>('planned-img');
+  const win = riskiestWindow(report.grid, geometryOf(report, naive));
+  placeMark(byId('naive-mark'), win);
+  placeMark(byId('planned-mark'), win);
+  if (!win) {
+    clearCrops('The report names no region inside this copy.');
+    return;
+  }
+  const zoom = zoomFactor(win);
+  const where = `output pixels ${win.x}–${win.x + win.width} across, ${win.y}–${win.y + win.height} down`;
+  byId('zoom-note').textContent =
+    `The outlined square on each copy (${where}; region risk ${win.risk.toFixed(2)} of 1), ` +
+    `shown ${zoom} times larger so that every pixel is a clear square.`;
+  drawZoom(byId('naive-zoom'), naive, win, zoom, `Careless copy of ${source}, ${where}, enlarged ${zoom} times`);
+  drawZoom(byId('planned-zoom'), planned, win, zoom, `foldwise copy of ${source}, ${where}, enlarged ${zoom} times`);
+}
+
+/** Blanks both crops and the outlines, with a note saying why. */
+export function clearCrops(note: string): void {
+  for (const id of ['naive-zoom', 'planned-zoom']) {
+    const canvas = byId<HTMLCanvasElement>(id);
+    canvas.width = 1;
+    canvas.height = 1;
+    canvas.setAttribute('aria-label', 'Not drawn');
+  }
+  placeMark(byId('naive-mark'), undefined);
+  placeMark(byId('planned-mark'), undefined);
+  byId('zoom-note').textContent = note;
+}
