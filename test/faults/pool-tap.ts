@@ -1,0 +1,37 @@
+/**
+ * Test-side access to the render pool's piscina instance, to inject faults into the real
+ * pool (kill a worker mid-task, run a crashing module, hold a task) without any hook in
+ * production code. Each tap affects the next call only and then restores the pool.
+ */
+import type { Piscina } from 'piscina';
+import type { RenderPool } from '../../src/render/pool.js';
+
+type Run = Piscina['run'];
+
+function piscinaOf(pool: RenderPool): Piscina {
+  return (pool as unknown as { piscina: Piscina }).piscina;
+}
+
+/** Replaces the next `run` call with `replacement(original, task, options)`. */
+export function tapNextRun(pool: RenderPool, replacement: (original: Run, task: unknown, options: Parameters<Run>[1]) => ReturnType<Run>): void {
+  const p = piscinaOf(pool);
+  const original = p.run.bind(p) as Run;
+  p.run = ((task: unknown, options?: Parameters<Run>[1]) => {
+    p.run = original;
+    return replacement(original, task, options);
+  }) as Run;
+}
+
+/** The pool's live worker threads. */
+export function workersOf(pool: RenderPool) {
+  return piscinaOf(pool).threads;
+}
+
+/** Resolves once `done()` is true, checking once per event-loop turn, at most `turns` times. */
+export async function until(done: () => boolean, turns = 200_000): Promise<void> {
+  for (let i = 0; i < turns; i++) {
+    if (done()) return;
+    await new Promise((r) => setImmediate(r));
+  }
+  throw new Error('condition not reached');
+}
