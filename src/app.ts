@@ -9,6 +9,7 @@ import { upstreamFromConfig, withUpstream } from './origins/upstream-route.js';
 import type { Origin } from './origins/types.js';
 import cachePlugin from './plugins/cache.js';
 import contextPlugin from './plugins/context.js';
+import ingestPlugin from './plugins/ingest.js';
 import errorsPlugin, { sendProblem, toFoldwiseError } from './plugins/errors.js';
 import metricsPlugin from './plugins/metrics.js';
 import openApiPlugin from './plugins/openapi.js';
@@ -19,6 +20,7 @@ import signingPlugin from './plugins/signing.js';
 import workerPoolPlugin from './plugins/worker-pool.js';
 import docsRoutes from './routes/docs.js';
 import healthRoutes from './routes/health.js';
+import ingestRoutes from './routes/ingest.js';
 import inspectRoutes from './routes/inspect.js';
 import metricsRoutes from './routes/metrics.js';
 import renditionRoutes from './routes/renditions.js';
@@ -90,7 +92,10 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     signedMaxAgeSeconds: config.http.signedMaxAgeSeconds,
   });
 
+  await app.register(ingestPlugin);
+
   await app.register(renditionRoutes);
+  await app.register(ingestRoutes);
   await app.register(sourcesRoutes);
   await app.register(healthRoutes);
   await app.register(metricsRoutes);

@@ -14,14 +14,19 @@ export interface WidthRisk {
   grid: RiskGrid;
   /** True when the folding energy is a periodic pattern (stripes, weaves), not broadband detail. */
   periodic: boolean;
-  /** Whether `prefilter=auto` brings this width down to low risk. */
-  prefilterAvoids: boolean;
+  /** A prefilter sigma (source px) that brings this width down to low risk, when one is known. */
+  remedySigma?: number;
 }
 
 function symptom(periodic: boolean): string {
   // Periodic energy above the new Nyquist folds to a false low frequency (moiré); broadband
   // energy folds to jagged edges and shimmer (Shannon 1949; common practice for the words).
   return periodic ? 'moiré (fine periodic pattern)' : 'jagged edges and sparkle (fine detail)';
+}
+
+/** Rounded up to a tenth, so the suggested value is at least the recommended blur. */
+function sigmaText(sigma: number): string {
+  return (Math.ceil(sigma * 10) / 10).toFixed(1);
 }
 
 /** One sentence per width that is not low risk, smallest width first. */
@@ -33,7 +38,8 @@ export function writeWarnings(risks: readonly WidthRisk[]): string[] {
     const where = describeRegion(r.grid) ?? 'the whole picture';
     const verb = r.level === 'high' ? 'will show' : 'may show';
     const safer = sorted.slice(i + 1).find((s) => s.level === 'low');
-    const fixes = [safer ? `${safer.width} px` : undefined, r.prefilterAvoids ? 'prefilter=auto' : undefined]
+    const sigma = r.remedySigma !== undefined && r.remedySigma > 0 ? `prefilter=${sigmaText(r.remedySigma)}` : undefined;
+    const fixes = [safer ? `${safer.width} px` : undefined, sigma]
       .filter((f): f is string => f !== undefined);
     const remedy = fixes.length > 0 ? `; ${fixes.join(' or ')} avoids it` : '';
     out.push(`at ${r.width} px ${where} ${verb} ${symptom(r.periodic)}${remedy}`);

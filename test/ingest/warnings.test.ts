@@ -25,7 +25,7 @@ describe('describeRegion', () => {
 });
 
 describe('writeWarnings', () => {
-  const base = { grid: grid(6, 6, [[0, 0]]), periodic: true, prefilterAvoids: true };
+  const base = { grid: grid(6, 6, [[0, 0]]), periodic: true, remedySigma: 2.13 };
   const ladder: WidthRisk[] = [
     { ...base, width: 320, level: 'high', score: 0.8 },
     { ...base, width: 160, level: 'high', score: 0.9 },
@@ -35,8 +35,8 @@ describe('writeWarnings', () => {
 
   it('names width, region, symptom and the nearest safe width', () => {
     expect(writeWarnings(ladder)).toEqual([
-      'at 160 px the upper-left region will show moiré (fine periodic pattern); 480 px or prefilter=auto avoids it',
-      'at 320 px the upper-left region will show moiré (fine periodic pattern); 480 px or prefilter=auto avoids it',
+      'at 160 px the upper-left region will show moiré (fine periodic pattern); 480 px or prefilter=2.2 avoids it',
+      'at 320 px the upper-left region will show moiré (fine periodic pattern); 480 px or prefilter=2.2 avoids it',
     ]);
   });
 
@@ -45,7 +45,7 @@ describe('writeWarnings', () => {
   });
 
   it('words broadband risk and moderate levels differently, and omits remedies it cannot offer', () => {
-    const [w] = writeWarnings([{ ...base, width: 800, level: 'moderate', score: 0.4, periodic: false, prefilterAvoids: false }]);
+    const [w] = writeWarnings([{ ...base, width: 800, level: 'moderate', score: 0.4, periodic: false, remedySigma: undefined }]);
     expect(w).toBe('at 800 px the upper-left region may show jagged edges and sparkle (fine detail)');
   });
 });

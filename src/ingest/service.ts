@@ -1,0 +1,166 @@
+/**
+ * The ingest service: turns an upload (or a source already in the folder origin) into a
+ * manifest, analysing alias risk once and rendering every rendition into the cache with
+ * bounded concurrency. Independent of Fastify, so the route and tests call it alike.
+ */
+import { EventEmitter } from 'node:events';
+import type { Config } from '../config.js';
+import { kernelNames } from '../core/index.js';
+import { analyzeSpectrum } from '../core/risk/index.js';
+import { FoldwiseError } from '../errors.js';
+import type { DecodedImage } from '../media/decode.js';
+import { sourceFormats } from '../media/formats.js';
+import type { Origin } from '../origins/types.js';
+import { renderRendition, type RenderContext } from '../render/service.js';
+import { loadSource } from '../render/source.js';
+import { StageClock } from '../render/timings.js';
+import type { IngestFormat } from '../schemas/ingest.js';
+import { compileRenditionQuery } from '../schemas/rendition.js';
+import { assessLadder } from './assess.js';
+import { mapBounded } from './bounded.js';
+import { JobTable } from './jobs.js';
+import { ladderFor } from './ladder.js';
+import { assembleManifest, type Manifest, type ManifestRendition } from './manifest.js';
+import { OnceByKey } from './single-flight.js';
+import { digestOf, keyFor, storeOnce } from './store.js';
+import { renditionUrl } from './urls.js';
+import { writeWarnings } from './warnings.js';
+
+export interface IngestOptions {
+  /** Widths to render; default the ladder capped at the source width. */
+  widths?: readonly number[];
+  /** Formats to render; default config.ingest.formats. */
+  formats?: readonly IngestFormat[];
+}
+
+/** Prepared ingest work: `key` identifies the manifest; `compute` builds it. */
+export interface IngestWork {
+  key: string;
+  compute: () => Promise<Manifest>;
+}
+
+/** One rendition the service made or found, for observers (metrics, tests). */
+export interface RenditionEvent {
+  source: string;
+  width: number;
+  format: IngestFormat;
+  cache: string;
+}
+
+export class IngestService extends EventEmitter {
+  readonly jobs: JobTable<Manifest>;
+  private readonly manifests: OnceByKey<Manifest>;
+  private readonly query;
+
+  constructor(
+    private readonly config: Config,
+    private readonly render: RenderContext,
+  ) {
+    super();
+    const { ingest, limits } = config;
+    this.jobs = new JobTable<Manifest>(ingest.maxJobs);
+    this.manifests = new OnceByKey<Manifest>(ingest.manifestCacheEntries);
+    this.query = compileRenditionQuery({ maxDimension: limits.maxDimension, kernelNames });
+  }
+
+  /** Whether the manifest for `key` is already made (a repeat answers at once). */
+  isDone(key: string): boolean {
+    return this.manifests.has(key);
+  }
+
+  /** Runs (or joins, or reuses) the work; `reused` says no new work was started. */
+  run(work: IngestWork): { value: Promise<Manifest>; reused: boolean } {
+    return this.manifests.run(work.key, work.compute);
+  }
+
+  /**
+   * Uploaded bytes: refused when the origin is read-only; decoded now (bad bytes fail here,
+   * with the rendition path's own limits), stored under their content key by `compute`.
+   */
+  async fromUpload(bytes: Buffer, options: IngestOptions): Promise<IngestWork> {
+    const { ingest } = this.config;
+    if (!ingest.writable) {
+      throw new FoldwiseError('ERR_INGEST_READ_ONLY', 'uploads are switched off: the folder origin is read-only (ingest.writable)');
+    }
+    if (bytes.length === 0) throw new FoldwiseError('ERR_INGEST_EMPTY', 'the upload has no bytes');
+    const digest = digestOf(bytes);
+    const key = `upload:${digest}|${this.optionsKey(options)}`;
+    // Decode now, so bad bytes are refused before any 202; a repeat skips it (cached manifest).
+    const early = this.isDone(key) ? undefined : await this.decode(bytes, digest);
+    return {
+      key,
+      compute: async () => {
+        const decoded = early ?? (await this.decode(bytes, digest));
+        const sourceKey = keyFor(digest, extensionOf(decoded.format), { prefix: ingest.keyPrefix, digestChars: ingest.digestChars });
+        await storeOnce(this.config.origin.sourceDir, sourceKey, bytes);
+        return this.build(sourceKey, decoded, options);
+      },
+    };
+  }
+
+  /** A source already in the origin: identified now (404 here), read and decoded by `compute`. */
+  async fromSource(path: string, options: IngestOptions): Promise<IngestWork> {
+    const identity = await this.render.origin.identify(path);
+    return {
+      key: `source:${identity.key}@${identity.version}|${this.optionsKey(options)}`,
+      compute: async () => {
+        const { decoded } = await loadSource(this.render.origin, identity.key, this.config.limits, new StageClock());
+        return this.build(identity.key, decoded, options);
+      },
+    };
+  }
+
+  private optionsKey(options: IngestOptions): string {
+    return `${options.widths?.join(',') ?? 'ladder'}|${(options.formats ?? this.config.ingest.formats).join(',')}`;
+  }
+
+  /** Decodes through the rendition path's own loader, so the limits are exactly the same. */
+  private async decode(bytes: Buffer, digest: string): Promise<DecodedImage> {
+    const identity = { key: `upload/${digest}`, version: digest };
+    const once: Origin = {
+      name: 'upload',
+      read: async () => ({ identity, bytes }),
+      identify: async () => identity,
+    };
+    return (await loadSource(once, identity.key, this.config.limits, new StageClock())).decoded;
+  }
+
+  private async build(sourceKey: string, decoded: DecodedImage, options: IngestOptions): Promise<Manifest> {
+    const { raster } = decoded;
+    const formats = options.formats ?? this.config.ingest.formats;
+    const widths = ladderFor(raster.width, options.widths);
+    const queryFor = (width: number, format: IngestFormat) => this.query.parse({ width: String(width), format });
+    const spectrum = analyzeSpectrum(raster);
+    this.emit('analysed', sourceKey);
+    const steps = assessLadder(
+      raster,
+      spectrum,
+      widths.map((width) => ({ width, query: queryFor(width, formats[0]) })),
+      this.config.limits,
+      this.render.adaptiveSigma,
+    );
+    const tasks = steps.flatMap((step) => formats.map((format) => ({ step, format })));
+    const renditions = await mapBounded(tasks, this.config.ingest.concurrency, async ({ step, format }): Promise<ManifestRendition> => {
+      const r = await renderRendition(this.render, sourceKey, queryFor(step.width, format));
+      this.emit('rendition', { source: sourceKey, width: step.width, format, cache: r.cache } satisfies RenditionEvent);
+      return {
+        url: renditionUrl(sourceKey, step.width, format, this.config.signing.keys[0]),
+        width: step.width,
+        height: step.height,
+        format,
+        bytes: r.entry.body.length,
+        etag: r.entry.etag,
+        risk: { level: step.level, score: step.score },
+      };
+    });
+    const source = { key: sourceKey, width: raster.width, height: raster.height };
+    return assembleManifest(source, formats, renditions, writeWarnings(steps));
+  }
+}
+
+/** The file extension a decoded format is stored under (the origin lists by extension). */
+function extensionOf(format: string): string {
+  const found = (sourceFormats[format] ?? (format === 'avif' ? sourceFormats.heif : undefined))?.extensions[0];
+  if (!found) throw new FoldwiseError('ERR_SOURCE_UNSUPPORTED', `uploads of ${format} images are not accepted`);
+  return found;
+}

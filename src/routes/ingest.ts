@@ -1,0 +1,135 @@
+import type { IncomingMessage } from 'node:http';
+import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
+import { errorCodes, FoldwiseError } from '../errors.js';
+import type { IngestWork } from '../ingest/service.js';
+import { prefersAsync, readUpload } from '../ingest/upload.js';
+import { toFoldwiseError } from '../plugins/errors.js';
+import { ingestQuerySchema, ingestSourceBody, jobSchema, manifestSchema } from '../schemas/ingest.js';
+import { jsonBody, problemResponses, queryParameters } from '../schemas/openapi.js';
+import { parseQuery } from '../schemas/query.js';
+import { verifySignature } from '../security/signing.js';
+
+export const ingestPath = '/v1/ingest';
+export const jobsPrefix = '/v1/ingest/jobs/';
+
+/** A failure as a job shows it: code and a sentence; a 5xx shows only its title. */
+function jobError(e: unknown): { code: string; detail: string } {
+  const fw = toFoldwiseError(e);
+  return { code: fw.code, detail: fw.status >= 500 ? errorCodes[fw.code].title : fw.message };
+}
+
+function mediaTypeError(request: FastifyRequest): FoldwiseError {
+  const type = request.headers['content-type'] ?? 'a body without Content-Type';
+  return new FoldwiseError('ERR_INGEST_MEDIA_TYPE', `cannot ingest ${type}: send image/* bytes or application/json {"source": "..."}`);
+}
+
+/**
+ * POST /v1/ingest (the upload hook) and GET /v1/ingest/jobs/{id}. Image bytes (image/*) are
+ * read by this plugin's own content-type parser within limits.maxUploadBytes; JSON names a
+ * source already in the origin. `Prefer: respond-async` (RFC 7240) answers 202 with the job
+ * URL in Location (RFC 9110 section 15.3.3); everything else answers the manifest.
+ */
+export default async function ingestRoutes(app: FastifyInstance): Promise<void> {
+  const { config, ingest } = app;
+  const query = ingestQuerySchema(config.limits.maxDimension);
+  const limit = config.limits.maxUploadBytes;
+
+  app.addContentTypeParser(/^image\/[a-z0-9.+-]+$/i, (request: FastifyRequest, payload: IncomingMessage) =>
+    readUpload(payload, request.headers['content-length'], limit),
+  );
+  app.addContentTypeParser('*', async (request: FastifyRequest) => {
+    throw mediaTypeError(request);
+  });
+
+  // Signing, when on, covers the upload hook too (path and query; the body is not signed), and
+  // is checked before the body is read, so an unsigned upload costs one HMAC.
+  const keys = config.signing.keys;
+  const signingRequired = config.signing.required ?? keys.length > 0;
+  app.addHook('onRequest', async (request) => {
+    if (keys.length === 0 || request.method !== 'POST') return;
+    const [path, search = ''] = request.url.split('?', 2);
+    const check = verifySignature(path, new URLSearchParams(search), keys);
+    if (check === 'invalid') throw new FoldwiseError('ERR_SIGNATURE_INVALID', 'The signature does not match this path and query.');
+    if (check === 'missing' && signingRequired) {
+      throw new FoldwiseError('ERR_SIGNATURE_REQUIRED', 'Uploads need a signed URL (parameter "signature"); see foldwise sign.');
+    }
+  });
+
+  async function workOf(request: FastifyRequest): Promise<IngestWork> {
+    const q = parseQuery(query, request.query as Record<string, unknown>);
+    const options = { widths: q.widths, formats: q.formats };
+    const body: unknown = request.body;
+    if (Buffer.isBuffer(body)) return ingest.fromUpload(body, options);
+    if (body === undefined || body === null) throw new FoldwiseError('ERR_INGEST_EMPTY', 'the request has no body: send image bytes or JSON naming a source');
+    if (!/^application\/json\b/i.test(request.headers['content-type'] ?? '')) throw mediaTypeError(request);
+    const parsed = ingestSourceBody.safeParse(body);
+    if (!parsed.success) throw new FoldwiseError('ERR_REQUEST_INVALID', `JSON body: ${parsed.error.issues[0].message}`);
+    return ingest.fromSource(parsed.data.source, options);
+  }
+
+  async function post(request: FastifyRequest, reply: FastifyReply) {
+    const work = await workOf(request);
+    reply.header('cache-control', 'no-store');
+    if (!prefersAsync(request.headers.prefer) || ingest.isDone(work.key)) {
+      return reply.send(await ingest.run(work).value);
+    }
+    const job = ingest.jobs.start(() => ingest.run(work).value, jobError);
+    if (!job) {
+      throw new FoldwiseError('ERR_INGEST_JOBS_FULL', `${config.ingest.maxJobs} ingest jobs are unfinished`, {
+        headers: { 'retry-after': String(config.pool.retryAfterSeconds) },
+      });
+    }
+    return reply
+      .code(202)
+      .header('location', `${jobsPrefix}${job.id}`)
+      .header('preference-applied', 'respond-async')
+      .send({ id: job.id, state: job.state, createdAt: job.createdAt });
+  }
+
+  app.post(
+    ingestPath,
+    {
+      config: {
+        openapi: {
+          summary: 'Ingest a picture: rendition ladder, srcset, alias-risk warnings, pre-rendered cache',
+          description:
+            'Body: image bytes (image/*, at most limits.maxUploadBytes) stored under a content-addressed key, or JSON {"source": "path/in/origin"}. With "Prefer: respond-async" the answer is 202 and Location names the job.',
+          tags: ['ingest'],
+          parameters: [
+            ...queryParameters(query),
+            { name: 'Prefer', in: 'header', required: false, description: 'respond-async (RFC 7240)', schema: { type: 'string' } },
+          ],
+          requestBody: {
+            content: { 'image/*': {}, 'application/json': { schema: { type: 'object', properties: { source: { type: 'string' } }, required: ['source'] } } },
+          },
+          responses: {
+            '200': jsonBody('The manifest', manifestSchema),
+            '202': jsonBody('Accepted; poll the Location URL', jobSchema),
+            ...problemResponses(400, 403, 404, 413, 415, 422, 503),
+          },
+        },
+      },
+    },
+    post,
+  );
+
+  app.get(
+    `${jobsPrefix}:id`,
+    {
+      config: {
+        openapi: {
+          summary: 'State of an asynchronous ingest job, with its manifest once done',
+          tags: ['ingest'],
+          parameters: [{ name: 'id', in: 'path', required: true, schema: { type: 'string' } }],
+          responses: { '200': jsonBody('The job', jobSchema), ...problemResponses(404) },
+        },
+      },
+    },
+    async (request: FastifyRequest<{ Params: { id: string } }>, reply) => {
+      const job = ingest.jobs.get(request.params.id);
+      if (!job) throw new FoldwiseError('ERR_INGEST_JOB_NOT_FOUND', 'no ingest job with this id (finished jobs are forgotten after a while)');
+      const { result, ...rest } = job;
+      return reply.header('cache-control', 'no-store').send({ ...rest, manifest: result });
+    },
+  );
+}

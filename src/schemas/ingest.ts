@@ -1,0 +1,84 @@
+import { z } from 'zod';
+import { digits } from './query.js';
+
+/** Formats a manifest may list; `auto` has no place in a manifest (the URLs must be fixed). */
+export const ingestFormats = ['webp', 'avif', 'jpeg', 'png'] as const;
+export type IngestFormat = (typeof ingestFormats)[number];
+
+/** At most this many widths per request: a ladder, not a sweep (bounds the render work). */
+export const MAX_LADDER_WIDTHS = 24;
+
+function commaList<T extends z.ZodType<unknown, string>>(name: string, item: T, max: number) {
+  return z
+    .string()
+    .transform((s) => s.split(',').map((p) => p.trim()))
+    .pipe(
+      z
+        .array(item)
+        .min(1, `${name} must list at least one value`)
+        .max(max, `${name} may list at most ${max} values`),
+    )
+    .refine((list) => new Set(list as unknown[]).size === list.length, `${name} lists a value twice`);
+}
+
+/** Query of POST /v1/ingest, compiled once per app for its width limit. */
+export function ingestQuerySchema(maxDimension: number) {
+  return z.strictObject({
+    widths: commaList('widths', digits('widths', 1, maxDimension), MAX_LADDER_WIDTHS)
+      .optional()
+      .meta({ description: 'Comma list of widths; default 160..2560 capped at the source width.' }),
+    formats: commaList('formats', z.enum(ingestFormats, 'formats: each must be webp, avif, jpeg or png'), ingestFormats.length)
+      .optional()
+      .meta({ description: 'Comma list of formats; default ingest.formats (webp,jpeg).' }),
+    signature: z
+      .string()
+      .regex(/^[A-Za-z0-9_-]{1,256}$/, 'signature must be URL-safe base64')
+      .optional()
+      .meta({ description: 'HMAC of the path and canonical query, when signing is on.' }),
+  });
+}
+export type IngestQuery = z.output<ReturnType<typeof ingestQuerySchema>>;
+
+/** JSON body naming a source that is already in the folder origin. */
+export const ingestSourceBody = z.strictObject({
+  source: z.string().min(1, 'source must name a path in the origin').max(1024),
+});
+
+const riskLevel = z.enum(['low', 'moderate', 'high']);
+
+/** The manifest POST /v1/ingest answers (and GET /v1/ingest/jobs/{id} once done). */
+export const manifestSchema = z
+  .object({
+    source: z.object({
+      key: z.string().meta({ description: 'Path of the source in the folder origin.' }),
+      width: z.number().int(),
+      height: z.number().int(),
+    }),
+    renditions: z.array(
+      z.object({
+        url: z.string().meta({ description: 'GET this for the rendition (a cache hit after ingest).' }),
+        width: z.number().int(),
+        height: z.number().int(),
+        format: z.enum(ingestFormats),
+        bytes: z.number().int(),
+        etag: z.string(),
+        risk: z.object({ level: riskLevel, score: z.number() }),
+      }),
+    ),
+    srcset: z.record(z.string(), z.string()).meta({ description: 'One srcset string per format.' }),
+    sizes: z.string().meta({ description: 'A default sizes suggestion.' }),
+    warnings: z.array(z.string()).meta({ description: 'Alias-risk warnings in plain words.' }),
+  })
+  .meta({ id: 'IngestManifest' });
+
+/** The state of an asynchronous ingest job. */
+export const jobSchema = z
+  .object({
+    id: z.string(),
+    state: z.enum(['queued', 'running', 'done', 'failed']),
+    createdAt: z.string(),
+    finishedAt: z.string().optional(),
+    manifest: manifestSchema.optional(),
+    error: z.object({ code: z.string(), detail: z.string() }).optional(),
+  })
+  .meta({ id: 'IngestJob' });
