@@ -9,6 +9,7 @@ import type { PixelRaster, Plan } from '../core/types.js';
 import { planRendition } from '../render/plan.js';
 import type { RenderContext } from '../render/service.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
+import type { RiskGrid } from './regions.js';
 import type { WidthRisk } from './warnings.js';
 
 export interface LadderStep extends WidthRisk {
@@ -18,6 +19,25 @@ export interface LadderStep extends WidthRisk {
 
 /** A PlanResponse (core/risk) read from the plan's own weight tables. */
 const responseOf = (plan: Plan) => (axis: 'x' | 'y', f: number) => planResponse(plan, axis, f);
+
+/**
+ * Where the folded energy is, region by region: the grid's folded fraction times the region's
+ * own spectral energy, scaled to 0..1. A region of flat colour that a tile barely reaches may
+ * fold a large fraction of almost nothing; what shows as moiré is the folded energy itself.
+ */
+function foldedEnergyGrid(spectrum: SourceSpectrum, report: RiskReport): RiskGrid {
+  const { columns, rows, bins, power } = spectrum.grid;
+  const cells = new Array<number>(columns * rows).fill(0);
+  const per = bins * bins;
+  let max = 0;
+  for (let r = 0; r < columns * rows; r++) {
+    let energy = 0;
+    for (let c = 0; c < per; c++) energy += power[r * per + c];
+    cells[r] = (report.grid.folded[r] ?? 0) * energy;
+    max = Math.max(max, cells[r]);
+  }
+  return { columns, rows, cells: max > 0 ? cells.map((v) => v / max) : cells };
+}
 
 /** Whether the folding that remains is mostly one periodic pattern (a weave, a stripe). */
 function isPeriodic(report: RiskReport): boolean {
@@ -47,7 +67,7 @@ export function assessLadder(
       height: layout.targetHeight,
       level: report.level,
       score: report.score,
-      grid: report.grid,
+      grid: foldedEnergyGrid(spectrum, report),
       periodic: isPeriodic(report),
       remedySigma: report.level === 'low' ? undefined : Math.max(report.recommendedSigma.x, report.recommendedSigma.y),
       report,
