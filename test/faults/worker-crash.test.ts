@@ -5,15 +5,15 @@
  */
 import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { MemoryTier } from '../../src/cache/memory.js';
 import { build, type TestApp } from '../helpers/build.js';
 import { at, pixels, writePng } from '../helpers/images.js';
+import { memoryEntries } from '../security/cache-probe.js';
 import { tapNextRun, until, workersOf } from './pool-tap.js';
 
 const crashModule = fileURLToPath(new URL('./crash-worker.ts', import.meta.url));
 let t: TestApp;
 
-const entries = () => (t.app.renditionCache.cache.tiers.find((x) => x instanceof MemoryTier) as MemoryTier).entries;
+const entries = () => memoryEntries(t.app);
 
 async function expectCleanFailure(url: string): Promise<void> {
   const before = entries();

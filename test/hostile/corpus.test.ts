@@ -8,9 +8,9 @@ import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { MemoryTier } from '../../src/cache/memory.js';
 import { build, type TestApp } from '../helpers/build.js';
 import { at, pixels, writePng } from '../helpers/images.js';
+import { memoryEntries } from '../security/cache-probe.js';
 import { settledMemory } from './memory.js';
 import { parameterCases, traversalCases, type RequestCase } from './requests.js';
 import { hostileSources, type SourceCase } from './sources.js';
@@ -24,9 +24,8 @@ let baseline: { rss: number; heap: number };
 
 /** Entries in the memory tier plus files in the disk tier: what "cached" means here. */
 async function cachedCount(): Promise<number> {
-  const memory = t.app.renditionCache.cache.tiers.find((x) => x instanceof MemoryTier) as MemoryTier | undefined;
   const files = await readdir(t.cacheDir, { recursive: true }).catch(() => []);
-  return (memory?.entries ?? 0) + files.length;
+  return memoryEntries(t.app) + files.length;
 }
 
 /** A flat mid-grey source: any correct downscale of a flat field is the same flat field. */

@@ -4,9 +4,8 @@
  * the limit or the declared length. No assertion here depends on how long anything took.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { FoldwiseError } from '../../src/errors.js';
 import { createHttpOrigin, type HttpOriginOptions } from '../../src/origins/http.js';
-import { payload, startUpstream, type Upstream } from './upstream-server.js';
+import { codeOf, payload, startUpstream, type Upstream } from './upstream-server.js';
 
 let up: Upstream;
 let other: Upstream;
@@ -28,16 +27,6 @@ function origin(over: Partial<HttpOriginOptions> = {}) {
     maxRedirects: 3,
     ...over,
   });
-}
-
-async function codeOf(p: Promise<unknown>): Promise<string> {
-  try {
-    await p;
-  } catch (e) {
-    if (e instanceof FoldwiseError) return e.code;
-    throw e;
-  }
-  throw new Error('expected a rejection');
 }
 
 describe('http origin: faults', () => {

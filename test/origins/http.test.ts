@@ -1,8 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { FoldwiseError } from '../../src/errors.js';
 import { createHttpOrigin, type HttpOriginOptions } from '../../src/origins/http.js';
 import { parseAllowHosts } from '../../src/origins/http-allowlist.js';
-import { payload, payloadSha256, startUpstream, type Upstream } from './upstream-server.js';
+import { codeOf, payload, payloadSha256, startUpstream, type Upstream } from './upstream-server.js';
 
 let up: Upstream;
 beforeAll(async () => {
@@ -21,17 +20,6 @@ function origin(over: Partial<HttpOriginOptions> = {}) {
     maxRedirects: 3,
     ...over,
   });
-}
-
-/** The FoldwiseError code a promise rejects with. */
-async function codeOf(p: Promise<unknown>): Promise<string> {
-  try {
-    await p;
-  } catch (e) {
-    if (e instanceof FoldwiseError) return e.code;
-    throw e;
-  }
-  throw new Error('expected a rejection');
 }
 
 describe('http origin: reading', () => {

@@ -4,6 +4,7 @@
  */
 import { createHash } from 'node:crypto';
 import http from 'node:http';
+import { FoldwiseError } from '../../src/errors.js';
 import type { AddressInfo, Socket } from 'node:net';
 
 export interface Upstream {
@@ -110,4 +111,15 @@ export async function startUpstream(extra: Record<string, Route> = {}): Promise<
         server.close(() => resolve());
       }),
   };
+}
+
+/** The FoldwiseError code a promise rejects with; fails when it resolves or throws otherwise. */
+export async function codeOf(p: Promise<unknown>): Promise<string> {
+  try {
+    await p;
+  } catch (e) {
+    if (e instanceof FoldwiseError) return e.code;
+    throw e;
+  }
+  throw new Error('expected a rejection');
 }

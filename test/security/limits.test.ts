@@ -6,14 +6,14 @@ import { writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { MemoryTier } from '../../src/cache/memory.js';
 import { tapNextRun } from '../faults/pool-tap.js';
 import { build, type TestApp } from '../helpers/build.js';
 import { writePng } from '../helpers/images.js';
+import { memoryEntries } from './cache-probe.js';
 
 let t: TestApp;
 
-const entries = () => (t.app.renditionCache.cache.tiers.find((x) => x instanceof MemoryTier) as MemoryTier).entries;
+const entries = () => memoryEntries(t.app);
 
 async function refused(url: string, status: number, code: string): Promise<void> {
   const before = entries();

@@ -1,17 +1,13 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { MemoryTier } from '../../src/cache/memory.js';
 import { signUrl } from '../../src/security/signing.js';
 import { build, type TestApp } from '../helpers/build.js';
 import { writePng } from '../helpers/images.js';
+import { memoryEntries } from './cache-probe.js';
 
 const key = 'selvedge-signing-key-2026';
 const oldKey = 'selvedge-signing-key-2025';
 const path = '/v1/renditions/stripes.png';
 
-function memoryEntries(t: TestApp): number {
-  const tier = t.app.renditionCache.cache.tiers.find((x) => x instanceof MemoryTier) as MemoryTier;
-  return tier.entries;
-}
 
 async function withStripes(config: Record<string, unknown>): Promise<TestApp> {
   const t = await build({ config });
@@ -33,7 +29,7 @@ describe('signed URLs, signing required (keys set)', () => {
       expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
       expect(res.json()).toMatchObject({ status: 403, code: 'ERR_SIGNATURE_REQUIRED' });
     }
-    expect(memoryEntries(t)).toBe(0);
+    expect(memoryEntries(t.app)).toBe(0);
   });
 
   it('serves a signed URL with Cache-Control public, max-age one year, immutable (RFC 8246)', async () => {
@@ -54,7 +50,7 @@ describe('signed URLs, signing required (keys set)', () => {
   });
 
   it('refuses tampered parameters and paths with 403 ERR_SIGNATURE_INVALID, nothing cached', async () => {
-    const before = memoryEntries(t);
+    const before = memoryEntries(t.app);
     const good = signUrl(path, { width: '16', format: 'png' }, key);
     const tampered = [good.replace('width=16', 'width=17'), good.replace('stripes', 'other'), `${good}&quality=5`];
     for (const url of tampered) {
@@ -63,7 +59,7 @@ describe('signed URLs, signing required (keys set)', () => {
       expect(res.json()).toMatchObject({ code: 'ERR_SIGNATURE_INVALID' });
       expect(res.headers['cache-control']).toBe('no-store');
     }
-    expect(memoryEntries(t)).toBe(before);
+    expect(memoryEntries(t.app)).toBe(before);
   });
 
   it('accepts a URL signed with the older of two keys (rotation)', async () => {
