@@ -1,5 +1,6 @@
 import { availableParallelism } from 'node:os';
-import { fileURLToPath } from 'node:url';
+import { createRequire } from 'node:module';
+import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Piscina } from 'piscina';
 import type { PixelRaster, Plan } from '../core/types.js';
 import { FoldwiseError } from '../errors.js';
@@ -16,6 +17,8 @@ export interface RenderPoolOptions {
 /** Running from TypeScript sources (tsx, vitest): workers need tsx's loader too. */
 const fromSource = import.meta.url.endsWith('.ts');
 const workerFile = fileURLToPath(new URL(fromSource ? '../worker.ts' : '../worker.js', import.meta.url));
+// tsx resolved from this package, not from the working directory: the CLI runs from anywhere.
+const tsxLoader = fromSource ? pathToFileURL(createRequire(import.meta.url).resolve('tsx')).href : '';
 
 // Below this many output pixels one worker does the whole rendition: a split would cost more
 // in hand-off than it saves (common practice; revisit with load/ measurements).
@@ -48,7 +51,7 @@ export class RenderPool {
       maxThreads: this.threads,
       // Two band tasks per render at most, so the pool queue never exceeds twice the bound.
       maxQueue: Math.max(1, 2 * this.bound),
-      execArgv: fromSource ? ['--import', 'tsx'] : [],
+      execArgv: fromSource ? ['--import', tsxLoader] : [],
     });
   }
 
