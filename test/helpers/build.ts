@@ -37,7 +37,9 @@ export async function build(options: TestAppOptions = {}): Promise<TestApp> {
         server: { logLevel: 'silent' },
         origin: { sourceDir, generateDemo: false },
         pool: { threads: 1, maxQueue: 8 },
-        cache: { dir: cacheDir },
+        // Ask the origin every time, so tests that change a source see it at once
+        // (the identity memo has its own test).
+        cache: { dir: cacheDir, identityTtlMs: 0 },
       },
       options.config ?? {},
     ),
