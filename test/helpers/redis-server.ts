@@ -15,6 +15,14 @@ export const redisSkipReason = redisBinary
   : 'redis-server not found on PATH: Redis tests skipped (apt-get install redis-server; .ci/run does it)';
 if (redisSkipReason) console.warn(redisSkipReason);
 
+/**
+ * Resolves on the emitter's next `event`. Unlike events.once it does not reject on 'error',
+ * which a Redis client emits on every failed reconnect attempt while we wait for 'ready'.
+ */
+export function next(emitter: NodeJS.EventEmitter, event: string): Promise<void> {
+  return new Promise((resolve) => emitter.once(event, () => resolve()));
+}
+
 /** A free TCP port on loopback (the kernel picks it; closed again before use). */
 export async function freePort(): Promise<number> {
   const server = createServer();

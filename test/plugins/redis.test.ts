@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import metricsPlugin from '../../src/plugins/metrics.js';
 import redisPlugin, { type RedisSettings } from '../../src/plugins/redis.js';
 import type { CacheEntry } from '../../src/cache/types.js';
-import { redisBinary, startRedis, type RedisProcess } from '../helpers/redis-server.js';
+import { next, redisBinary, startRedis, type RedisProcess } from '../helpers/redis-server.js';
 
 const settings = (url: string): RedisSettings => ({
   url, ttlSeconds: 60, maxEntryBytes: 1 << 20, lockTtlMs: 2_000, waitDeadlineMs: 10_000,
@@ -64,7 +64,7 @@ describe.skipIf(!redisBinary)('redis plugin on a real redis-server', () => {
     const app = await replica(server.url);
     const shared = app.sharedRedis!;
     await shared.tier.link.ready();
-    const dropped = once(shared.tier.link.client, 'close');
+    const dropped = next(shared.tier.link.client, 'close');
     await server.kill();
     await dropped;
     let renders = 0;
