@@ -62,14 +62,6 @@ function digest(key: string, path: string, query: string): Buffer {
   return createHmac('sha256', key).update(`${path}\n${query}`).digest();
 }
 
-/** Parses FOLDWISE_SIGNING_KEY: comma-separated keys, blanks dropped; the first one signs. */
-export function parseSigningKeys(text: string | undefined): string[] {
-  return (text ?? '')
-    .split(',')
-    .map((k) => k.trim())
-    .filter((k) => k.length > 0);
-}
-
 /**
  * Signs `path` (as it appears in the URL, e.g. "/v1/renditions/fabric/weave.png") with
  * `query`, and returns the URL path with the canonical query and the signature appended.

@@ -36,6 +36,9 @@ export const traversalCases: RequestCase[] = [
   // Not a dot segment, but the folder origin refuses hidden (dot-led) names as well.
   ['four dots', '..../secret.png?width=8', 400, 'ERR_SOURCE_PATH_INVALID'],
   ['symlink pointing out of the root', 'escape.png?width=8', 400, 'ERR_SOURCE_PATH_INVALID'],
+  // Server-side request forgery through the upstream origin, which this app has switched off.
+  ['upstream to the metadata address', '~upstream/169.254.169.254/latest/meta-data?width=8', 404, 'ERR_ORIGIN_DISABLED'],
+  ['upstream to loopback', '~upstream/127.0.0.1:22/x.png?width=8', 404, 'ERR_ORIGIN_DISABLED'],
 ].map(([name, url, status, code]) => ({ name, url, status, code }) as RequestCase);
 
 const manyParams = Array.from({ length: 500 }, (_, i) => `p${i}=1`).join('&');

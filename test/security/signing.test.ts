@@ -3,7 +3,6 @@ import { describe, expect, it } from 'vitest';
 import {
   canonicalSigningPath,
   canonicalSigningQuery,
-  parseSigningKeys,
   signUrl,
   verifySignature,
 } from '../../src/security/signing.js';
@@ -103,10 +102,5 @@ describe('signing', () => {
     expect(canonicalSigningPath('/v1/renditions/%7Efabric/a%2Fb')).toBe('/v1/renditions/~fabric/a%2Fb');
     expect(canonicalSigningPath('/v1/renditions/%E0%A4%A')).toBeUndefined();
     expect(() => signUrl(path, {}, '')).toThrow(RangeError);
-  });
-
-  it('parses FOLDWISE_SIGNING_KEY as a comma-separated list', () => {
-    expect(parseSigningKeys(' new-key-1234567890 , old-key-1234567890,, ')).toEqual(['new-key-1234567890', 'old-key-1234567890']);
-    expect(parseSigningKeys(undefined)).toEqual([]);
   });
 });
