@@ -58,6 +58,8 @@ export const configSchema = z.strictObject({
   }),
   cache: z.strictObject({
     memoryBytes: z.number().int().min(0),
+    /** How long a source's identity (size + mtime, upstream ETag) is trusted; 0 = always ask. */
+    identityTtlMs: z.number().int().min(0).max(3_600_000),
     dir: z.string().min(1),
     diskBytes: z.number().int().min(0),
     redisUrl: z.string().url().nullable(),

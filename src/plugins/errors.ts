@@ -62,7 +62,10 @@ export function sendProblem(request: FastifyRequest, reply: FastifyReply, error:
 async function errorsPlugin(app: FastifyInstance): Promise<void> {
   app.setErrorHandler((error, request, reply) => {
     const fw = toFoldwiseError(error);
-    if (fw.status >= 500) request.log.error({ err: fw.cause ?? fw, code: fw.code }, fw.message);
+    // Unexpected failures get the stack; expected refusals (4xx, overload 503s) a short line.
+    if (fw.code === 'ERR_INTERNAL' || fw.code === 'ERR_RENDER_FAILED') {
+      request.log.error({ err: fw.cause ?? fw, code: fw.code }, fw.message);
+    } else if (fw.status >= 500) request.log.warn({ code: fw.code, detail: fw.message }, 'request refused');
     else request.log.info({ code: fw.code, detail: fw.message }, 'request refused');
     return sendProblem(request, reply, fw);
   });

@@ -1,5 +1,6 @@
 import type { FastifyInstance } from 'fastify';
 import fp from 'fastify-plugin';
+import { IdentityMemo } from '../render/identity.js';
 import type { RenderContext } from '../render/service.js';
 
 declare module 'fastify' {
@@ -14,6 +15,7 @@ async function renderPlugin(app: FastifyInstance): Promise<void> {
   const { metrics } = app;
   app.decorate('renderContext', {
     origin: app.origin,
+    identities: new IdentityMemo(app.origin, app.config.cache.identityTtlMs),
     cache: app.renditionCache.cache,
     flight: app.renditionCache.flight,
     pool: app.renderPool,

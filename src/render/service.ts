@@ -9,9 +9,10 @@ import { FoldwiseError } from '../errors.js';
 import { encodeImage } from '../media/encode.js';
 import { outputFormats, type OutputFormat } from '../media/formats.js';
 import { negotiateFormat } from '../media/negotiate.js';
-import type { Origin } from '../origins/types.js';
+import type { Origin, SourceIdentity } from '../origins/types.js';
 import { canonicalQuery } from '../schemas/canonical.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
+import type { IdentityMemo } from './identity.js';
 import { renditionKey, strongEtag } from './key.js';
 import { checkRequestedSize, planRendition } from './plan.js';
 import type { RenderPool } from './pool.js';
@@ -29,6 +30,8 @@ export interface RenderContext {
   observe?: (stage: Stage, seconds: number) => void;
   /** Cache outcome of each call: 'hit-<tier>' or 'miss'. */
   onLookup?: (result: string) => void;
+  /** Short-lived memo of source identities (hits then skip the origin); default ask the origin. */
+  identities?: IdentityMemo;
   /** Content-adaptive prefilter (alias-risk analysis), asked only when prefilter=auto. */
   adaptiveSigma?: (raster: PixelRaster, layout: RenditionLayout) => { x: number; y: number } | undefined;
 }
@@ -63,10 +66,10 @@ async function produce(
   path: string,
   q: RenditionQuery,
   accept: string | undefined,
-): Promise<CacheEntry> {
+): Promise<{ entry: CacheEntry; identity: SourceIdentity }> {
   const release = ctx.pool.admit();
   try {
-    const { decoded } = await loadSource(ctx.origin, path, ctx.limits, ctx.clock);
+    const { decoded, identity } = await loadSource(ctx.origin, path, ctx.limits, ctx.clock);
     const src = decoded.raster;
     const adaptive = (layout: RenditionLayout) =>
       q.prefilter === 'auto' ? ctx.adaptiveSigma?.(src, layout) : undefined;
@@ -82,13 +85,14 @@ async function produce(
         deadline,
       ),
     );
-    return {
+    const entry: CacheEntry = {
       body,
       contentType: outputFormats[format].contentType,
       etag: strongEtag(body),
       headers: { 'rendition-plan': formatPlanHeader(plan) },
       createdAt: Date.now(),
     };
+    return { entry, identity };
   } finally {
     release();
   }
@@ -113,8 +117,10 @@ export async function renderRendition(
 ): Promise<Rendition> {
   checkRequestedSize(query, ctx.limits);
   const clock = new StageClock(ctx.observe);
-  const identity = await clock.time('origin', () => ctx.origin.identify(path));
-  const key = renditionKey(identity, canonicalQuery(query), formatKey(query, accept));
+  const identity = await clock.time('origin', () => ctx.identities?.identify(path) ?? ctx.origin.identify(path));
+  const canonical = canonicalQuery(query);
+  const fmt = formatKey(query, accept);
+  const key = renditionKey(identity, canonical, fmt);
   const hit = await clock.time('cache', () => ctx.cache.get(key));
   if (hit) {
     ctx.onLookup?.(`hit-${hit.tier}`);
@@ -122,8 +128,11 @@ export async function renderRendition(
   }
   ctx.onLookup?.('miss');
   const { value: entry } = await ctx.flight.run(key, async () => {
-    const made = await produce({ ...ctx, clock }, path, query, accept);
-    await clock.time('cache', () => ctx.cache.set(key, made));
+    const { entry: made, identity: read } = await produce({ ...ctx, clock }, path, query, accept);
+    // The source changed between identify and read: file the bytes under what was read.
+    const storeKey = read.version === identity.version ? key : renditionKey(read, canonical, fmt);
+    if (storeKey !== key) ctx.identities?.forget(path);
+    await clock.time('cache', () => ctx.cache.set(storeKey, made));
     return made;
   });
   return { entry, cache: 'miss', timings: clock.timings, key };
