@@ -1,0 +1,40 @@
+# foldwise: multi-stage build. The build stage compiles TypeScript to dist/; the runtime stage
+# carries only production dependencies and the compiled service, and runs as a non-root user.
+#   docker build -t foldwise .
+#   docker run --rm -p 8080:8080 -v foldwise-cache:/data/cache foldwise
+# Own pictures: mount them at /data/images and a config file that turns the demo off, e.g.
+#   echo '{"origin":{"generateDemo":false}}' > foldwise.json
+#   docker run --rm -p 8080:8080 -v "$PWD/pictures:/data/images:ro" \
+#     -v "$PWD/foldwise.json:/etc/foldwise.json:ro" -e FOLDWISE_CONFIG=/etc/foldwise.json foldwise
+
+FROM node:20-bookworm-slim AS build
+WORKDIR /app
+COPY package.json package-lock.json ./
+RUN npm ci --no-audit --no-fund
+COPY tsconfig.json tsconfig.build.json ./
+COPY src ./src
+RUN npm run build && npm prune --omit=dev --no-audit --no-fund
+
+FROM node:20-bookworm-slim AS runtime
+ENV NODE_ENV=production \
+    HOST=0.0.0.0 \
+    PORT=8080 \
+    FOLDWISE_SOURCE_DIR=/data/images \
+    FOLDWISE_CACHE_DIR=/data/cache
+WORKDIR /app
+COPY --from=build /app/node_modules ./node_modules
+COPY --from=build /app/dist ./dist
+COPY package.json ./
+COPY bin ./bin
+COPY config ./config
+# The /inspect page's HTML, CSS and client script (compiled by esbuild on first request).
+COPY src/inspector ./src/inspector
+RUN mkdir -p /data/images /data/cache && chown -R node:node /data
+# The official Node image's unprivileged user (uid 1000).
+USER node
+EXPOSE 8080
+VOLUME ["/data/cache"]
+# Liveness through the service's own /healthz; Node 20 has fetch, so no curl in the image.
+HEALTHCHECK --interval=30s --timeout=3s --start-period=60s --retries=3 \
+  CMD ["node", "-e", "fetch('http://127.0.0.1:'+(process.env.PORT||8080)+'/healthz').then(r=>process.exit(r.ok?0:1),()=>process.exit(1))"]
+CMD ["node", "dist/server.js"]
