@@ -86,7 +86,8 @@ beforeAll(async () => {
   });
   await new Promise<void>((r) => probe.listen(0, '127.0.0.1', r));
   const probeUrl = `http://127.0.0.1:${(probe.address() as AddressInfo).port}/thread.png`;
-  t = await build({ config: { limits: { maxFrames: 16 } } });
+  // A queue long enough that the concurrent run below is never shed as overload (503).
+  t = await build({ config: { limits: { maxFrames: 16 }, pool: { maxQueue: 256 } } });
   sources = await hostileSources(probeUrl);
   for (const s of sources) await writeFile(join(t.sourceDir, s.file), s.bytes);
   await writePng(t.sourceDir, 'control.png', 64, 48, 3, () => [118, 118, 118]);
@@ -121,6 +122,18 @@ describe('hostile corpus', () => {
   it.each(traversalCases)('path traversal: $name', async (c: RequestCase) => expectProblem(c.url, c));
 
   it.each(parameterCases)('parameter abuse: $name', async (c: RequestCase) => expectProblem(c.url, c));
+
+  it('serves correct renditions while the whole corpus arrives at once', async () => {
+    const hostile = [
+      ...sources.filter((s) => s.status !== 200).map((s) => ({ url: `${s.file}?width=24&format=png`, code: s.code })),
+      ...traversalCases,
+      ...parameterCases,
+    ];
+    const controls = Array.from({ length: 8 }, () => expectControl());
+    const answers = await Promise.all(hostile.map((c) => send(`/v1/renditions/${c.url}`)));
+    await Promise.all(controls);
+    answers.forEach((res, i) => expect((res.json() as { code: string }).code, hostile[i].url).toBe(hostile[i].code));
+  }, 60_000);
 
   it('still renders a fresh (uncached) rendition correctly afterwards', async () => {
     const res = await t.app.inject({ url: '/v1/renditions/grating.png?width=32&height=24&format=png&kernel=box' });
