@@ -44,7 +44,9 @@ export interface RenditionEvent {
   source: string;
   width: number;
   format: IngestFormat;
+  /** 'miss' when rendered now (or joined a render in flight), else 'hit-<tier>'. */
   cache: string;
+  bytes: number;
 }
 
 export class IngestService extends EventEmitter {
@@ -142,7 +144,7 @@ export class IngestService extends EventEmitter {
     const tasks = steps.flatMap((step) => formats.map((format) => ({ step, format })));
     const renditions = await mapBounded(tasks, this.config.ingest.concurrency, async ({ step, format }): Promise<ManifestRendition> => {
       const r = await renderRendition(this.render, sourceKey, queryFor(step.width, format));
-      this.emit('rendition', { source: sourceKey, width: step.width, format, cache: r.cache } satisfies RenditionEvent);
+      this.emit('rendition', { source: sourceKey, width: step.width, format, cache: r.cache, bytes: r.entry.body.length } satisfies RenditionEvent);
       return {
         url: renditionUrl(sourceKey, step.width, format, this.config.signing.keys[0]),
         width: step.width,

@@ -1,0 +1,17 @@
+/**
+ * The `foldwise` command line: one commander program, one module per command.
+ */
+import { Command } from 'commander';
+import { registerCommands } from './commands/index.js';
+
+/** Builds the program; `run` in index.ts parses argv with it and maps errors to exit codes. */
+export function createProgram(): Command {
+  const program = new Command('foldwise')
+    .description('Image renditions made correctly: render, analyse alias risk, pre-warm, serve.')
+    .showHelpAfterError('(add --help for usage)')
+    .exitOverride()
+    .configureOutput({ outputError: (text, write) => write(`foldwise: ${text.replace(/^error: /, '')}`) });
+  registerCommands(program);
+  for (const sub of program.commands) sub.exitOverride().showHelpAfterError(`(add --help for usage)`);
+  return program;
+}

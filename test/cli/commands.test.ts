@@ -1,0 +1,111 @@
+import { spawn } from 'node:child_process';
+import { mkdir, mkdtemp, readdir, rm, writeFile } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import sharp from 'sharp';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { binPath, runCli } from './run-cli.js';
+
+let dir: string;
+let env: NodeJS.ProcessEnv;
+
+/** A small analytic picture: a vertical cosine grating, 0.3 cycles per pixel. */
+async function gratingPng(width: number, height: number): Promise<Buffer> {
+  const data = Buffer.alloc(width * height);
+  for (let y = 0; y < height; y++) {
+    for (let x = 0; x < width; x++) data[y * width + x] = Math.round(127.5 + 127.5 * Math.cos(2 * Math.PI * 0.3 * x));
+  }
+  return sharp(data, { raw: { width, height, channels: 1 } }).png().toBuffer();
+}
+
+beforeAll(async () => {
+  dir = await mkdtemp(join(tmpdir(), 'fw-cli-'));
+  await mkdir(join(dir, 'shop', 'fabrics'), { recursive: true });
+  await writeFile(join(dir, 'shop', 'fabrics', 'stripe.png'), await gratingPng(200, 100));
+  await writeFile(join(dir, 'shop', 'label.png'), await gratingPng(120, 120));
+  // A configuration of its own: no demo pictures, cache under the temporary folder.
+  await writeFile(join(dir, 'config.json'), JSON.stringify({ origin: { generateDemo: false }, cache: { dir: join(dir, 'cache') }, pool: { threads: 1 } }));
+  env = { FOLDWISE_CONFIG: join(dir, 'config.json') };
+});
+afterAll(() => rm(dir, { recursive: true, force: true }));
+
+describe('foldwise render', () => {
+  it('writes the rendition in the format of the output name', async () => {
+    const out = join(dir, 'stripe-50.webp');
+    const r = await runCli(['render', join(dir, 'shop', 'fabrics', 'stripe.png'), '--width', '50', '-o', out], { env });
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/^wrote .*stripe-50\.webp \(webp, \d+ bytes\)\nplan: scale=4\.000,4\.000; /);
+    const meta = await sharp(out).metadata();
+    expect([meta.format, meta.width, meta.height]).toEqual(['webp', 50, 25]);
+  });
+
+  it('refuses a bad command line with exit 2 and a missing file with exit 1', async () => {
+    const src = join(dir, 'shop', 'label.png');
+    const noSize = await runCli(['render', src, '-o', join(dir, 'x.png')], { env });
+    expect([noSize.code, noSize.stderr]).toEqual([2, expect.stringContaining('give --width, --height, or both')]);
+    const zero = await runCli(['render', src, '--width', '0', '-o', join(dir, 'x.png')], { env });
+    expect([zero.code, zero.stderr]).toEqual([2, expect.stringContaining("option '--width <px>' argument '0' is invalid")]);
+    const badPrefilter = await runCli(['render', src, '--width', '10', '--prefilter', 'lots', '-o', join(dir, 'x.png')], { env });
+    expect([badPrefilter.code, badPrefilter.stderr]).toEqual([2, expect.stringContaining('prefilter')]);
+    const missing = await runCli(['render', join(dir, 'nope.png'), '--width', '10', '-o', join(dir, 'x.png')], { env });
+    expect([missing.code, missing.stderr]).toEqual([1, expect.stringContaining('ERR_SOURCE_NOT_FOUND')]);
+  });
+});
+
+describe('foldwise warm', () => {
+  it('pre-renders a folder into the cache with a progress bar, then finds it all cached', async () => {
+    const first = await runCli(['warm', join(dir, 'shop'), '--widths', '30,60', '--formats', 'webp'], { env });
+    expect(first.code).toBe(0);
+    expect(first.stderr).toMatch(/warm \|[=]+\| 2\/2 files \| 4 renditions/);
+    expect(first.stdout).toMatch(/^ {2}files {4}2$/m);
+    expect(first.stdout).toMatch(/^ {2}done {5}4 renditions rendered$/m);
+    expect(first.stdout).toMatch(/^ {2}skipped {2}0 already cached$/m);
+    expect(first.stdout).toMatch(/^ {2}failed {3}0 files$/m);
+    expect((await readdir(join(dir, 'cache'), { recursive: true })).length).toBeGreaterThan(0);
+
+    // A new process: only the disk tier remembers, and it has every rendition.
+    const second = await runCli(['warm', join(dir, 'shop'), '--widths', '30,60', '--formats', 'webp', '--no-progress'], { env });
+    expect(second.code).toBe(0);
+    expect(second.stderr).toBe('');
+    expect(second.stdout).toMatch(/^ {2}done {5}0 renditions rendered$/m);
+    expect(second.stdout).toMatch(/^ {2}skipped {2}4 already cached$/m);
+  });
+
+  it('counts a corrupt file as failed and exits 1', async () => {
+    const bad = join(dir, 'broken');
+    await mkdir(bad);
+    await writeFile(join(bad, 'torn.png'), (await gratingPng(64, 64)).subarray(0, 60));
+    const r = await runCli(['warm', bad, '--widths', '30', '--no-progress'], { env });
+    expect(r.code).toBe(1);
+    expect(r.stdout).toMatch(/^ {2}failed {3}1 files$/m);
+    expect(r.stdout).toContain('! torn.png: ');
+    expect(r.stderr).toContain('1 of 1 files failed');
+  });
+});
+
+describe('foldwise serve', () => {
+  it('listens like npm start and stops cleanly on SIGTERM', async () => {
+    const child = spawn(process.execPath, [binPath, 'serve', '--port', '0', '--host', '127.0.0.1', '--sources', join(dir, 'shop')], {
+      env: { ...process.env, ...env },
+      stdio: ['ignore', 'pipe', 'pipe'],
+    });
+    const exited = new Promise<number | null>((resolve) => child.on('close', resolve));
+    // The server logs (pino, JSON lines) the address it listens on: wait for that line.
+    const address = await new Promise<string>((resolve, reject) => {
+      let text = '';
+      child.stdout.setEncoding('utf8').on('data', (d: string) => {
+        text += d;
+        const m = /listening at (http:\/\/127\.0\.0\.1:\d+)/.exec(text);
+        if (m) resolve(m[1]);
+      });
+      child.on('close', () => reject(new Error(`server exited early: ${text}`)));
+    });
+    const health = await fetch(`${address}/healthz`);
+    expect(health.status).toBe(200);
+    const rendition = await fetch(`${address}/v1/renditions/fabrics/stripe.png?width=40&format=png`);
+    expect(rendition.status).toBe(200);
+    child.kill('SIGTERM');
+    expect(await exited).toBe(0);
+  });
+});

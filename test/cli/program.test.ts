@@ -1,0 +1,36 @@
+import { describe, expect, it } from 'vitest';
+import { runCli } from './run-cli.js';
+
+// Exit codes: 0 ok, 1 failure, 2 usage error (common practice for Unix command-line tools).
+describe('foldwise (the command line)', () => {
+  it('prints help listing its commands, exit 0', async () => {
+    const r = await runCli(['--help']);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/^Usage: foldwise/);
+    for (const name of ['serve', 'render', 'warm', 'sign']) expect(r.stdout).toContain(`\n  ${name} `);
+  });
+
+  it('answers an unknown command and a bad argument with exit 2 and a clear message', async () => {
+    const unknown = await runCli(['weave']);
+    expect(unknown.code).toBe(2);
+    expect(unknown.stderr).toContain("unknown command 'weave'");
+    const bad = await runCli(['sign', 'no-slash']);
+    expect(bad.code).toBe(2);
+    expect(bad.stderr).toContain('must start with "/"');
+  });
+
+  it('signs a path the way the service verifies it, and fails with exit 1 when signing is off', async () => {
+    const { verifySignature } = await import('../../src/security/signing.js');
+    const key = 'loom-key-0123456789abcdef';
+    const r = await runCli(['sign', '/v1/renditions/fabric/herringbone.png?width=640&format=webp'], {
+      env: { FOLDWISE_SIGNING_KEY: key },
+    });
+    expect(r.code).toBe(0);
+    const url = new URL(r.stdout.trim(), 'http://localhost');
+    expect(verifySignature(url.pathname, url.searchParams, [key])).toBe('valid');
+    expect(verifySignature(url.pathname, url.searchParams, ['another-key-0123456789'])).toBe('invalid');
+    const off = await runCli(['sign', '/v1/renditions/a.png?width=1'], { env: { FOLDWISE_SIGNING_KEY: '' } });
+    expect(off.code).toBe(1);
+    expect(off.stderr).toContain('signing is off');
+  });
+});
