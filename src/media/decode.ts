@@ -1,6 +1,7 @@
 import sharp, { type Metadata, type SharpOptions } from 'sharp';
 import type { Channels, PixelRaster } from '../core/types.js';
 import { FoldwiseError } from '../errors.js';
+import { collapseGreyAlpha, dropOpaqueAlpha } from './channels.js';
 import { sourceFormats } from './formats.js';
 
 /** A decoded source: sRGB-encoded samples, upright, first frame only. */
@@ -73,8 +74,11 @@ async function decodeWithin(bytes: Buffer, limits: DecodeLimits): Promise<Decode
 
   const grey = meta.space === 'b-w' || meta.space === 'grey16';
   const deep = meta.depth !== 'uchar' && meta.depth !== 'char';
+  // sharp's 8-bit 'b-w' output drops alpha, so 8-bit grey + alpha comes out as sRGB + alpha
+  // (R = G = B) and is collapsed back to two channels below.
+  const greyAlpha8 = grey && !deep && meta.hasAlpha;
   let pipeline = sharp(bytes, options).toColourspace(
-    grey ? (deep ? 'grey16' : 'b-w') : deep ? 'rgb16' : 'srgb',
+    grey && !greyAlpha8 ? (deep ? 'grey16' : 'b-w') : deep ? 'rgb16' : 'srgb',
   );
   // For 16-bit RGB with a profile sharp converts to P3 and stops there; this converts on to
   // sRGB. Without an embedded profile the samples are taken as sRGB already (common
@@ -92,7 +96,9 @@ async function decodeWithin(bytes: Buffer, limits: DecodeLimits): Promise<Decode
 
   const channels = info.channels as Channels;
   const samples = deep ? toUint16(data) : new Uint8Array(data.buffer, data.byteOffset, data.length);
-  const raster = dropOpaqueAlpha({ data: samples, width: info.width, height: info.height, channels });
+  let raster: PixelRaster = { data: samples, width: info.width, height: info.height, channels };
+  if (greyAlpha8 && channels === 4) raster = collapseGreyAlpha(raster);
+  raster = dropOpaqueAlpha(raster);
   return { raster, hasAlpha: raster.channels === 2 || raster.channels === 4, format };
 }
 
@@ -153,17 +159,4 @@ function toUint16(data: Buffer): Uint16Array {
   if (data.byteOffset % 2 === 0) return new Uint16Array(data.buffer, data.byteOffset, data.length / 2);
   const copy = new Uint8Array(data);
   return new Uint16Array(copy.buffer, 0, copy.length / 2);
-}
-
-function dropOpaqueAlpha(raster: PixelRaster): PixelRaster {
-  const { data, width, height, channels } = raster;
-  if (channels !== 2 && channels !== 4) return raster;
-  const opaque = data instanceof Uint16Array ? 65535 : 255;
-  for (let i = channels - 1; i < data.length; i += channels) if (data[i] !== opaque) return raster;
-  const colour = channels - 1;
-  const out = data instanceof Uint16Array ? new Uint16Array(width * height * colour) : new Uint8Array(width * height * colour);
-  for (let p = 0, o = 0, i = 0; p < width * height; p++, i++) {
-    for (let c = 0; c < colour; c++) out[o++] = data[i++];
-  }
-  return { data: out, width, height, channels: colour as Channels };
 }

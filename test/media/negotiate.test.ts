@@ -37,7 +37,7 @@ describe('negotiateFormat', () => {
     ['image/avif;q=2,image/webp', false, 'webp', 'an invalid qvalue drops that range'],
     ['image/avif;q=0.1234,image/jpeg;q=0.1', false, 'jpeg', 'four decimals is not a qvalue'],
     ['image/avif;level=1;q=0.5,image/jpeg;q=0.4', false, 'avif', 'other parameters are ignored'],
-  ] as const)('%s (alpha %s) -> %s: %s', (accept, alpha, expected) => {
+  ] as [string | undefined, boolean, string, string][])('%s (alpha %s) -> %s: %s', (accept, alpha, expected) => {
     expect(negotiateFormat(accept, alpha)).toBe(expected);
   });
 
