@@ -4,7 +4,8 @@
  * Prints status counts, p50/p99 latency of the renders, the peak RSS of the server, and the
  * median render against sharp's decode of the same source measured in this run.
  * Targets (DESIGN.md): RSS < 1.5 GiB; no 5xx except deliberate 503 (shedding).
- *   npx tsx load/miss-mix.ts [--seconds 30] [--connections 64]
+ *   npx tsx load/miss-mix.ts [--seconds 30] [--connections 64] [--max-queue N] [--threads N]
+ * (--max-queue / --threads override the pool settings, to compare admission bounds.)
  */
 import { parseArgs } from 'node:util';
 import { join } from 'node:path';
@@ -16,7 +17,17 @@ import { makeSources } from './lib/sources.js';
 import { quantile } from './lib/stats.js';
 import { mib, printTable } from './lib/table.js';
 
-const { values } = parseArgs({ options: { seconds: { type: 'string', default: '30' }, connections: { type: 'string', default: '64' } } });
+const { values } = parseArgs({
+  options: {
+    seconds: { type: 'string', default: '30' },
+    connections: { type: 'string', default: '64' },
+    'max-queue': { type: 'string' },
+    threads: { type: 'string' },
+  },
+});
+const pool: Record<string, number> = {};
+if (values['max-queue'] !== undefined) pool.maxQueue = Number(values['max-queue']);
+if (values.threads !== undefined) pool.threads = Number(values.threads);
 const seconds = Math.min(120, Number(values.seconds));
 const connections = Math.min(256, Number(values.connections));
 const RSS_TARGET = 1.5 * 2 ** 30;
@@ -33,7 +44,7 @@ for (let i = 0; i < 5; i++) {
 }
 const decodeMedian = quantile(decodeMs, 0.5);
 
-const server = await startChild('app', { FOLDWISE_CONFIG: loadConfigFile(dir) });
+const server = await startChild('app', { FOLDWISE_CONFIG: loadConfigFile(dir, { pool }) });
 try {
   let n = 0;
   // Source n % 12 at width 320 + floor(n / 12): no two requests ask for the same rendition.
@@ -51,7 +62,8 @@ try {
   const peak = rss.stop();
   const p50 = quantile(ok, 0.5);
   printTable(
-    `miss mix: ${connections} connections for ${seconds} s over ${names.length} sources of 12 MP, every request a distinct rendition`,
+    `miss mix: ${connections} connections for ${seconds} s over ${names.length} sources of 12 MP, every request a distinct rendition` +
+      ` (pool overrides: ${JSON.stringify(pool)}; server log: ${server.logFile})`,
     ['figure', 'value', 'ratio', 'target'],
     [
       ['2xx (rendered)', run.ok2xx, '', ''],

@@ -1,12 +1,16 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { once } from 'node:events';
-import { readFileSync } from 'node:fs';
+import { createWriteStream, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 /** A server script run in its own process, so its memory and CPU are its own. */
 export interface ChildServer {
   pid: number;
   port: number;
+  /** Where the server's log (stdout) goes. */
+  logFile: string;
   url: string;
   /** Resident set size now, from /proc (Linux), in bytes; 0 where /proc is absent. */
   rss(): number;
@@ -23,9 +27,13 @@ export async function startChild(mode: string, env: Record<string, string> = {})
     env: { ...process.env, ...env },
     stdio: ['ignore', 'pipe', 'inherit'],
   });
+  const logFile = join(tmpdir(), `foldwise-load-${mode}-${child.pid}.log`);
+  const log = createWriteStream(logFile);
+  child.stdout!.pipe(log);
   const port = await new Promise<number>((resolve, reject) => {
     let out = '';
     child.stdout!.on('data', (chunk: Buffer) => {
+      if (out.length > 4096) return;
       out += chunk.toString();
       const m = /listening (\d+)/.exec(out);
       if (m) resolve(Number(m[1]));
@@ -36,6 +44,7 @@ export async function startChild(mode: string, env: Record<string, string> = {})
   return {
     pid,
     port,
+    logFile,
     url: `http://127.0.0.1:${port}`,
     rss: () => {
       try {
