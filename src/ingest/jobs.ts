@@ -38,15 +38,21 @@ export class JobTable<T> extends EventEmitter {
 
   /**
    * Registers a job and runs `work` in the background; returns the job, or `undefined` when
-   * the table is full of unfinished jobs. `describe` turns a failure into code and detail.
+   * the table is full of unfinished jobs. The job is `queued` until `work` calls `started`.
+   * `describe` turns a failure into code and detail.
    */
-  start(work: () => Promise<T>, describe: (e: unknown) => { code: string; detail: string }): JobView<T> | undefined {
+  start(
+    work: (started: () => void) => Promise<T>,
+    describe: (e: unknown) => { code: string; detail: string },
+  ): JobView<T> | undefined {
     if (this.jobs.size >= this.capacity && !this.evictOneFinished()) return undefined;
     const job: JobView<T> = { id: randomUUID(), state: 'queued', createdAt: new Date().toISOString() };
     this.jobs.set(job.id, job);
+    const started = (): void => {
+      if (job.state === 'queued') job.state = 'running';
+    };
     queueMicrotask(() => {
-      job.state = 'running';
-      work().then(
+      work(started).then(
         (result) => this.finish(job, { state: 'done', result }),
         (e: unknown) => this.finish(job, { state: 'failed', error: describe(e) }),
       );

@@ -18,6 +18,7 @@ import type { IngestFormat } from '../schemas/ingest.js';
 import { compileRenditionQuery } from '../schemas/rendition.js';
 import { assessLadder } from './assess.js';
 import { mapBounded } from './bounded.js';
+import { Gate } from './gate.js';
 import { JobTable } from './jobs.js';
 import { ladderFor } from './ladder.js';
 import { assembleManifest, type Manifest, type ManifestRendition } from './manifest.js';
@@ -52,6 +53,8 @@ export interface RenditionEvent {
 export class IngestService extends EventEmitter {
   readonly jobs: JobTable<Manifest>;
   private readonly manifests: OnceByKey<Manifest>;
+  /** Manifests built at once (each holds a decoded source while it renders). */
+  private readonly gate: Gate;
   private readonly query;
 
   constructor(
@@ -62,6 +65,7 @@ export class IngestService extends EventEmitter {
     const { ingest, limits } = config;
     this.jobs = new JobTable<Manifest>(ingest.maxJobs);
     this.manifests = new OnceByKey<Manifest>(ingest.manifestCacheEntries);
+    this.gate = new Gate(ingest.concurrency);
     this.query = compileRenditionQuery({ maxDimension: limits.maxDimension, kernelNames });
   }
 
@@ -70,34 +74,35 @@ export class IngestService extends EventEmitter {
     return this.manifests.has(key);
   }
 
-  /** Runs (or joins, or reuses) the work; `reused` says no new work was started. */
-  run(work: IngestWork): { value: Promise<Manifest>; reused: boolean } {
-    return this.manifests.run(work.key, work.compute);
+  /**
+   * Runs (or joins, or reuses) the work; `reused` says no new work was started. `onStart` is
+   * called when the work gets its build slot (or at once when it joins work in flight).
+   */
+  run(work: IngestWork, onStart?: () => void): { value: Promise<Manifest>; reused: boolean } {
+    const flight = this.manifests.run(work.key, () =>
+      this.gate.run(() => {
+        onStart?.();
+        return work.compute();
+      }),
+    );
+    if (flight.reused) onStart?.();
+    return flight;
   }
 
   /**
    * Uploaded bytes: refused when the origin is read-only; decoded now (bad bytes fail here,
-   * with the rendition path's own limits), stored under their content key by `compute`.
+   * before any 202, with the rendition path's own limits) and stored under their content key;
+   * the decoded pixels are not kept, so waiting work holds bytes on disk, not rasters.
    */
   async fromUpload(bytes: Buffer, options: IngestOptions): Promise<IngestWork> {
-    const { ingest } = this.config;
-    if (!ingest.writable) {
+    if (!this.config.ingest.writable) {
       throw new FoldwiseError('ERR_INGEST_READ_ONLY', 'uploads are switched off: the folder origin is read-only (ingest.writable)');
     }
     if (bytes.length === 0) throw new FoldwiseError('ERR_INGEST_EMPTY', 'the upload has no bytes');
     const digest = digestOf(bytes);
     const key = `upload:${digest}|${this.optionsKey(options)}`;
-    // Decode now, so bad bytes are refused before any 202; a repeat skips it (cached manifest).
-    const early = this.isDone(key) ? undefined : await this.decode(bytes, digest);
-    return {
-      key,
-      compute: async () => {
-        const decoded = early ?? (await this.decode(bytes, digest));
-        const sourceKey = keyFor(digest, extensionOf(decoded.format), { prefix: ingest.keyPrefix, digestChars: ingest.digestChars });
-        await storeOnce(this.config.origin.sourceDir, sourceKey, bytes);
-        return this.build(sourceKey, decoded, options);
-      },
-    };
+    const stored = this.isDone(key) ? undefined : await this.store(bytes, digest);
+    return { key, compute: async () => this.buildFrom(stored ?? (await this.store(bytes, digest)), options) };
   }
 
   /** A source already in the origin: identified now (404 here), read and decoded by `compute`. */
@@ -105,10 +110,7 @@ export class IngestService extends EventEmitter {
     const identity = await this.render.origin.identify(path);
     return {
       key: `source:${identity.key}@${identity.version}|${this.optionsKey(options)}`,
-      compute: async () => {
-        const { decoded } = await loadSource(this.render.origin, identity.key, this.config.limits, new StageClock());
-        return this.build(identity.key, decoded, options);
-      },
+      compute: () => this.buildFrom(identity.key, options),
     };
   }
 
@@ -116,15 +118,24 @@ export class IngestService extends EventEmitter {
     return `${options.widths?.join(',') ?? 'ladder'}|${(options.formats ?? this.config.ingest.formats).join(',')}`;
   }
 
-  /** Decodes through the rendition path's own loader, so the limits are exactly the same. */
-  private async decode(bytes: Buffer, digest: string): Promise<DecodedImage> {
+  /** Validates the bytes with the rendition path's own loader (same limits) and stores them. */
+  private async store(bytes: Buffer, digest: string): Promise<string> {
     const identity = { key: `upload/${digest}`, version: digest };
-    const once: Origin = {
+    const upload: Origin = {
       name: 'upload',
       read: async () => ({ identity, bytes }),
       identify: async () => identity,
     };
-    return (await loadSource(once, identity.key, this.config.limits, new StageClock())).decoded;
+    const { decoded } = await loadSource(upload, identity.key, this.config.limits, new StageClock());
+    const { keyPrefix: prefix, digestChars } = this.config.ingest;
+    const sourceKey = keyFor(digest, extensionOf(decoded.format), { prefix, digestChars });
+    await storeOnce(this.config.origin.sourceDir, sourceKey, bytes);
+    return sourceKey;
+  }
+
+  private async buildFrom(sourceKey: string, options: IngestOptions): Promise<Manifest> {
+    const { decoded } = await loadSource(this.render.origin, sourceKey, this.config.limits, new StageClock());
+    return this.build(sourceKey, decoded, options);
   }
 
   private async build(sourceKey: string, decoded: DecodedImage, options: IngestOptions): Promise<Manifest> {

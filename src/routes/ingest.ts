@@ -73,7 +73,7 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
     if (!prefersAsync(request.headers.prefer) || ingest.isDone(work.key)) {
       return reply.send(await ingest.run(work).value);
     }
-    const job = ingest.jobs.start(() => ingest.run(work).value, jobError);
+    const job = ingest.jobs.start((started) => ingest.run(work, started).value, jobError);
     if (!job) {
       throw new FoldwiseError('ERR_INGEST_JOBS_FULL', `${config.ingest.maxJobs} ingest jobs are unfinished`, {
         headers: { 'retry-after': String(config.pool.retryAfterSeconds) },

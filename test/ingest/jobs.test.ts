@@ -13,12 +13,22 @@ function gate() {
 describe('JobTable', () => {
   it('runs a job to done and to failed, signalling by event', async () => {
     const table = new JobTable<number>(4);
+    const slot = gate();
     const g = gate();
-    const ok = table.start(async () => {
+    let markedStarted!: () => void;
+    const ok = table.start(async (started) => {
+      await slot.opened;
+      started();
+      markedStarted();
       await g.opened;
       return 42;
     }, describeError)!;
     expect(ok.state).toBe('queued');
+    await new Promise<void>((resolve) => {
+      markedStarted = resolve;
+      slot.open();
+    });
+    expect(table.get(ok.id)?.state).toBe('running');
     const bad = table.start(async () => {
       throw new Error('nope');
     }, describeError)!;
@@ -40,6 +50,35 @@ describe('JobTable', () => {
     g.open();
     await Promise.all([table.settled(b.id), table.settled(c.id)]);
     expect(table.start(async () => 5, describeError)).toBeDefined();
+  });
+});
+
+describe('Gate', () => {
+  it('lets at most `limit` calls in, the rest in arrival order', async () => {
+    const { Gate } = await import('../../src/ingest/gate.js');
+    const g = new Gate(2);
+    const gates = [gate(), gate(), gate()];
+    const order: number[] = [];
+    let inside = 0;
+    let most = 0;
+    const runs = gates.map((x, i) =>
+      g.run(async () => {
+        inside++;
+        most = Math.max(most, inside);
+        order.push(i);
+        await x.opened;
+        inside--;
+      }),
+    );
+    await Promise.resolve();
+    expect(order).toEqual([0, 1]);
+    gates[1].open();
+    await runs[1];
+    gates[0].open();
+    gates[2].open();
+    await Promise.all(runs);
+    expect(order).toEqual([0, 1, 2]);
+    expect(most).toBe(2);
   });
 });
 
