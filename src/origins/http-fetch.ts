@@ -22,6 +22,8 @@ export interface HopOptions {
   resolve: Resolver;
   timeouts: { connectMs: number; headersMs: number; bodyMs: number };
   maxBytes: number;
+  /** Extra trusted certificate authorities for https upstreams (PEM); the system list otherwise. */
+  ca?: string | Buffer;
   signal?: AbortSignal;
 }
 
@@ -115,6 +117,7 @@ export async function fetchHop(url: URL, method: 'GET' | 'HEAD', opts: HopOption
       agent: false,
       lookup: pinned(target),
       servername: isIP(hostname) === 0 ? hostname : undefined,
+      ...(opts.ca ? { ca: opts.ca } : {}),
       headers: { accept: 'image/*', 'accept-encoding': 'identity', 'user-agent': 'foldwise-upstream' },
       signal: opts.signal,
     });

@@ -23,6 +23,8 @@ export interface HttpOriginOptions {
   timeouts: { connectMs: number; headersMs: number; bodyMs: number };
   maxBytes: number;
   maxRedirects: number;
+  /** Certificate authorities trusted for https upstreams (PEM), e.g. a private CA. */
+  ca?: string | Buffer;
   /** Name resolution; defaults to the system resolver (dns.lookup, all addresses). */
   resolve?: Resolver;
 }
@@ -55,7 +57,7 @@ export function createHttpOrigin(options: HttpOriginOptions): Origin {
   const resolve = options.resolve ?? systemResolve;
 
   async function follow(start: URL, method: 'GET' | 'HEAD', signal?: AbortSignal): Promise<HopResult> {
-    const hop: HopOptions = { guard, resolve, timeouts: options.timeouts, maxBytes: options.maxBytes, signal };
+    const hop: HopOptions = { guard, resolve, timeouts: options.timeouts, maxBytes: options.maxBytes, ca: options.ca, signal };
     let url = start;
     for (let followed = 0; ; followed++) {
       const result = await fetchHop(url, method, hop);
