@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { digits } from './query.js';
+import { renditionQueryShape } from './rendition.js';
 
 /** Formats a manifest may list; `auto` has no place in a manifest (the URLs must be fixed). */
 export const ingestFormats = ['webp', 'avif', 'jpeg', 'png'] as const;
@@ -30,11 +31,8 @@ export function ingestQuerySchema(maxDimension: number) {
     formats: commaList('formats', z.enum(ingestFormats, 'formats: each must be webp, avif, jpeg or png'), ingestFormats.length)
       .optional()
       .meta({ description: 'Comma list of formats; default ingest.formats (webp,jpeg).' }),
-    signature: z
-      .string()
-      .regex(/^[A-Za-z0-9_-]{1,256}$/, 'signature must be URL-safe base64')
-      .optional()
-      .meta({ description: 'HMAC of the path and canonical query, when signing is on.' }),
+    // The very signature parameter of the rendition query (one definition of its syntax).
+    signature: renditionQueryShape({ maxDimension, kernelNames: [] }).signature,
   });
 }
 export type IngestQuery = z.output<ReturnType<typeof ingestQuerySchema>>;
