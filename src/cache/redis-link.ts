@@ -96,11 +96,13 @@ export class RedisLink {
     this.closed = true;
     await Promise.all(
       [this.client, this.sub].map(async (c) => {
-        if (!c) return;
+        if (!c || c.status === 'end') return;
+        const ended = new Promise<void>((resolve) => c.once('end', () => resolve()));
         if (c.status === 'ready') {
           await withTimeout(c.quit(), this.options.commandTimeoutMs, 'redis quit').catch(() => {});
         }
         c.disconnect(false);
+        await withTimeout(ended, this.options.commandTimeoutMs, 'redis close').catch(() => {});
       }),
     );
   }

@@ -26,7 +26,8 @@ declare module 'fastify' {
 const exempt = new Set(['/healthz', '/metrics']);
 
 const units: Record<string, (v: number) => string> = {
-  eventLoopDelay: (v) => `event-loop delay ${v.toFixed(0)} ms`,
+  // Infinity: the loop was blocked for a whole sample, so no delay could be measured in it.
+  eventLoopDelay: (v) => (Number.isFinite(v) ? `event-loop delay ${v.toFixed(0)} ms` : 'event loop blocked through a whole sample'),
   heapUsedBytes: (v) => `heap ${(v / 2 ** 20).toFixed(0)} MiB`,
   rssBytes: (v) => `resident memory ${(v / 2 ** 20).toFixed(0)} MiB`,
   eventLoopUtilization: (v) => `event-loop utilisation ${(v * 100).toFixed(0)} %`,
