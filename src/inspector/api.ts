@@ -29,13 +29,13 @@ async function fail(response: Response, what: string): Promise<never> {
   throw new ServiceProblem(what, problem, response.status, code);
 }
 
-async function get(url: string, what: string, signal: AbortSignal): Promise<Response> {
+async function get(url: string, what: string, signal?: AbortSignal): Promise<Response> {
   const response = await fetch(url, { signal });
   if (!response.ok) await fail(response, what);
   return response;
 }
 
-export async function getJson<T>(url: string, what: string, signal: AbortSignal): Promise<T> {
+export async function getJson<T>(url: string, what: string, signal?: AbortSignal): Promise<T> {
   return (await (await get(url, what, signal)).json()) as T;
 }
 

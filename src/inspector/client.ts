@@ -42,7 +42,7 @@ function describeFailures(reasons: unknown[]): string {
 }
 
 async function listSources(): Promise<string[]> {
-  const body = await getJson<{ sources?: { path?: unknown }[] }>('v1/sources', 'The picture list', new AbortController().signal);
+  const body = await getJson<{ sources?: { path?: unknown }[] }>('v1/sources', 'The picture list');
   return (body.sources ?? []).map((item) => item.path).filter((p): p is string => typeof p === 'string');
 }
 
