@@ -61,6 +61,10 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     logController: new LogController({ requestIdLogLabel: 'requestId' }),
     // Sources are paths: let "a//b" and trailing slashes reach the path checks, not 404 early.
     routerOptions: { ignoreDuplicateSlashes: false, maxParamLength: 1024 },
+    // Fastify leaves both off by default, so a client that sends slowly, or opens a
+    // connection and stops, would hold it for ever.
+    requestTimeout: config.server.requestTimeoutMs,
+    connectionTimeout: config.server.idleTimeoutMs,
     // URLs the router cannot decode (bad percent-encoding) get problem details too.
     frameworkErrors: (error, request, reply) => sendProblem(request, reply, toFoldwiseError(error)),
   });

@@ -11,6 +11,13 @@ export const configSchema = z.strictObject({
     port: z.number().int().min(0).max(65535),
     logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']),
     trustProxy: z.boolean(),
+    /**
+     * Deadline for receiving a whole request (headers and body), against clients that send
+     * slowly on purpose; Node checks it every 30 s. 0 switches it off.
+     */
+    requestTimeoutMs: z.number().int().min(0),
+    /** A connection idle this long (no bytes either way) is closed. 0 switches it off. */
+    idleTimeoutMs: z.number().int().min(0),
   }),
   origin: z.strictObject({
     sourceDir: z.string().min(1),
