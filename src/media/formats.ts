@@ -13,10 +13,13 @@ export interface OutputFormatSpec {
   /** Whether the format can carry an alpha channel. */
   hasAlpha: boolean;
   /**
-   * Encoder effort (CPU time spent searching for a smaller file). Chosen by measurement:
-   * see scripts/encode-effort.ts. AVIF 2 of 0..9 and WebP 2 of 0..6 keep a 1600x1000
-   * encode in the same order of time as the resample itself; higher levels buy a few per cent
-   * of bytes for several times the CPU.
+   * Encoder effort (CPU spent searching for a smaller file), chosen by measurement with
+   * `npx tsx scripts/encode-effort.ts 5 2` (1200x900 renditions of two demo pictures, time
+   * and bytes as ratios to a JPEG q82 encode in the same run):
+   * - AVIF effort 0 took 3.7-4.1x the JPEG time on both pictures; effort 1 saved 13-26 % of
+   *   bytes but took 4.3x on one picture and 22x on the other, effort 2 17-32x. A miss must
+   *   have a predictable cost, so 0.
+   * - WebP effort 2 took 3.9-4.7x with bytes within 1-7 % of effort 6 (7-35x), so 2.
    */
   effort: number | undefined;
   /** Bits per sample the encoder can write. */
@@ -58,7 +61,7 @@ export const outputFormats: Readonly<Record<OutputFormat, OutputFormatSpec>> = {
     // AVIF's quality scale runs lower than JPEG's for the same look (common practice).
     defaultQuality: 55,
     hasAlpha: true,
-    effort: 2,
+    effort: 0,
     depths: [8],
     extension: 'avif',
   },
