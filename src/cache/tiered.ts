@@ -7,6 +7,7 @@ export interface CacheHit {
 }
 
 export type TierErrorHandler = (tier: string, op: 'get' | 'set', error: unknown) => void;
+export type TierStoreHandler = (tier: string, bytes: number) => void;
 
 /**
  * Tiers in order (L1 memory, then the shared tier: disk by default, Redis when configured).
@@ -18,6 +19,7 @@ export class TieredCache {
   constructor(
     readonly tiers: readonly CacheTier[],
     private readonly onError: TierErrorHandler = () => undefined,
+    private readonly onStored: TierStoreHandler = () => undefined,
   ) {}
 
   async get(key: string): Promise<CacheHit | undefined> {
@@ -46,6 +48,7 @@ export class TieredCache {
     const results = await Promise.allSettled(tiers.map((t) => t.set(key, entry)));
     results.forEach((r, i) => {
       if (r.status === 'rejected') this.onError(tiers[i].name, 'set', r.reason);
+      else this.onStored(tiers[i].name, entry.body.length);
     });
   }
 

@@ -49,10 +49,14 @@ async function cachePlugin(app: FastifyInstance, opts: CachePluginOptions): Prom
   else if (opts.cache.diskBytes > 0) tiers.push(await DiskTier.open(opts.cache.dir, opts.cache.diskBytes));
 
   const { metrics } = app;
-  const cache = new TieredCache(tiers, (tier, op, error) => {
-    metrics.cacheErrors.inc({ tier, op });
-    app.log.warn({ err: error, tier, op }, 'cache tier failed; treated as a miss');
-  });
+  const cache = new TieredCache(
+    tiers,
+    (tier, op, error) => {
+      metrics.cacheErrors.inc({ tier, op });
+      app.log.warn({ err: error, tier, op }, 'cache tier failed; treated as a miss');
+    },
+    (tier, bytes) => metrics.cacheStoredBytes.inc({ tier }, bytes),
+  );
   const events = new EventEmitter();
   const flight = opts.flight ?? new SingleFlight((key, waiters) => events.emit('join', key, waiters));
 

@@ -21,10 +21,12 @@ describe('TieredCache', () => {
     expect(await cache.get('nope')).toBeUndefined();
   });
 
-  it('writes every tier', async () => {
+  it('writes every tier and reports the bytes each stored', async () => {
     const l1 = new MemoryTier(1 << 20);
     const l2 = new MemoryTier(1 << 20);
-    await new TieredCache([l1, l2]).set('k', entry(10));
+    const stored: number[] = [];
+    await new TieredCache([l1, l2], undefined, (_tier, bytes) => stored.push(bytes)).set('k', entry(10));
+    expect(stored).toEqual([10, 10]);
     expect(await l1.get('k')).toBeDefined();
     expect(await l2.get('k')).toBeDefined();
   });

@@ -64,6 +64,8 @@ describe('operational endpoints', () => {
     expect(text).toMatch(/foldwise_cache_lookups_total\{result="miss"\} 1/);
     expect(text).toMatch(/foldwise_cache_lookups_total\{result="hit-memory"\} 1/);
     expect(text).toMatch(/foldwise_cache_bytes\{tier="memory"\} [1-9]/);
+    expect(text).toMatch(/foldwise_cache_stored_bytes_total\{tier="memory"\} [1-9]/);
+    expect(text).toMatch(/foldwise_cache_stored_bytes_total\{tier="disk"\} [1-9]/);
     expect(text).toMatch(/foldwise_pool_queue_depth 0/);
     expect(text).toMatch(/foldwise_process_resident_memory_bytes/);
   });
