@@ -96,7 +96,8 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
             'Body: image bytes (image/*, at most limits.maxUploadBytes) stored under a content-addressed key, or JSON {"source": "path/in/origin"}. With "Prefer: respond-async" the answer is 202 and Location names the job.',
           tags: ['ingest'],
           parameters: [
-            ...queryParameters(query),
+            // Comma lists: OpenAPI style form with explode false.
+            ...queryParameters(query).map((p) => ({ ...(p as object), explode: false })),
             { name: 'Prefer', in: 'header', required: false, description: 'respond-async (RFC 7240)', schema: { type: 'string' } },
           ],
           requestBody: {

@@ -67,7 +67,7 @@ export const manifestSchema = z
     sizes: z.string().meta({ description: 'A default sizes suggestion.' }),
     warnings: z.array(z.string()).meta({ description: 'Alias-risk warnings in plain words.' }),
   })
-  .meta({ id: 'IngestManifest' });
+  .meta({ title: 'IngestManifest' });
 
 /** The state of an asynchronous ingest job. */
 export const jobSchema = z
@@ -79,4 +79,4 @@ export const jobSchema = z
     manifest: manifestSchema.optional(),
     error: z.object({ code: z.string(), detail: z.string() }).optional(),
   })
-  .meta({ id: 'IngestJob' });
+  .meta({ title: 'IngestJob' });
