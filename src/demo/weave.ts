@@ -32,6 +32,14 @@ export function weave(cloth: Cloth): Picture {
   const slubPhase = randomTable(rand, threads);
   const warpColours = Array.from({ length: threads }, (_, i) => cloth.warp(i, warpJitter[i]));
   const weftColours = Array.from({ length: threads }, (_, j) => cloth.weft(j, weftJitter[j]));
+  // Tables instead of two sines per pixel: the cross-section profile by 1/256 of a thread,
+  // and the slub sin(along + phase) split by the angle-addition formula.
+  const profile = Float32Array.from({ length: 257 }, (_, k) => 0.55 + 0.45 * Math.sin((Math.PI * k) / 256));
+  const phaseSin = slubPhase.map((t) => Math.sin(t * 6.283));
+  const phaseCos = slubPhase.map((t) => Math.cos(t * 6.283));
+  const alongSin = (n: number) => Float32Array.from({ length: n }, (_, k) => Math.sin((k / cloth.pitch) * 0.37));
+  const alongCos = (n: number) => Float32Array.from({ length: n }, (_, k) => Math.cos((k / cloth.pitch) * 0.37));
+  const [rowSin, rowCos, colSin, colCos] = [alongSin(cloth.height), alongCos(cloth.height), alongSin(cloth.width), alongCos(cloth.width)];
   const p = createPicture(cloth.width, cloth.height, 3, [0, 0, 0]);
   const d = p.data;
   for (let y = 0, o = 0; y < cloth.height; y++) {
@@ -44,10 +52,11 @@ export function weave(cloth: Cloth): Picture {
       const fx = u - i;
       const up = cloth.warpUp(i, j);
       const across = up ? fx : fy;
-      const along = up ? v : u;
       const id = (up ? i : j) % threads;
-      const slub = 0.06 * Math.sin(along * 0.37 + slubPhase[id] * 6.283);
-      let shade = 0.55 + 0.45 * Math.sin(Math.PI * across) + slub;
+      const slub = up
+        ? 0.06 * (rowSin[y] * phaseCos[id] + rowCos[y] * phaseSin[id])
+        : 0.06 * (colSin[x] * phaseCos[id] + colCos[x] * phaseSin[id]);
+      let shade = profile[Math.round(across * 256)] + slub;
       if (cloth.fibre > 0) shade += (rand() - 0.5) * 2 * cloth.fibre;
       const c = up ? warpColours[i % threads] : weftColours[j % threads];
       d[o] = c[0] * shade;
