@@ -2,7 +2,8 @@
  * The ingest manifest: everything a CMS needs to publish one picture as a responsive image.
  */
 import type { z } from 'zod';
-import type { manifestSchema } from '../schemas/ingest.js';
+import type { IngestFormat, manifestSchema } from '../schemas/ingest.js';
+import { pickFallback, pictureHtml } from './html.js';
 import { buildSrcset, suggestSizes } from './srcset.js';
 
 export type Manifest = z.output<typeof manifestSchema>;
@@ -14,17 +15,24 @@ export type ManifestRendition = Manifest['renditions'][number];
  */
 export function assembleManifest(
   source: Manifest['source'],
-  formats: readonly string[],
+  formats: readonly IngestFormat[],
   renditions: readonly ManifestRendition[],
   warnings: readonly string[],
 ): Manifest {
-  const rank = (f: string): number => formats.indexOf(f);
-  const ordered = [...renditions].sort((a, b) => rank(a.format) - rank(b.format) || a.width - b.width);
+  const rank = (f: string): number => formats.indexOf(f as IngestFormat);
+  const ordered = [...renditions]
+    .sort((a, b) => rank(a.format) - rank(b.format) || a.width - b.width)
+    // Three decimals say all a score can (its levels are coarser still); the rest is noise.
+    .map((r) => ({ ...r, risk: { ...r.risk, score: Math.round(r.risk.score * 1000) / 1000 } }));
   const srcset: Record<string, string> = {};
   for (const format of formats) {
     const own = ordered.filter((r) => r.format === format);
     if (own.length > 0) srcset[format] = buildSrcset(own);
   }
   const largest = ordered.reduce((m, r) => Math.max(m, r.width), 0);
-  return { source, renditions: ordered, srcset, sizes: suggestSizes(largest || source.width), warnings: [...warnings] };
+  const sizes = suggestSizes(largest || source.width);
+  const fallback = pickFallback(ordered.filter((r) => r.format === formats[formats.length - 1]));
+  const src = fallback?.url ?? '';
+  const html = fallback ? pictureHtml({ formats, srcset, sizes, fallback }) : '';
+  return { source, renditions: ordered, srcset, sizes, src, html, warnings: [...warnings] };
 }

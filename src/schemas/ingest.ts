@@ -65,6 +65,8 @@ export const manifestSchema = z
     ),
     srcset: z.record(z.string(), z.string()).meta({ description: 'One srcset string per format.' }),
     sizes: z.string().meta({ description: 'A default sizes suggestion.' }),
+    src: z.string().meta({ description: 'Default src: the fallback format, widest rendition up to 1080 px.' }),
+    html: z.string().meta({ description: 'A ready <picture> element (alt left empty for the CMS to fill).' }),
     warnings: z.array(z.string()).meta({ description: 'Alias-risk warnings in plain words.' }),
   })
   .meta({ title: 'IngestManifest' });

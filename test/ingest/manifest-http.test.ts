@@ -66,6 +66,21 @@ describe('POST /v1/ingest with image bytes', () => {
     }
   });
 
+  it('gives a <picture> element ready to paste, with the fallback format in <img>', () => {
+    const jpeg300 = manifest.renditions.find((r: any) => r.format === 'jpeg' && r.width === 300);
+    expect(manifest.src).toBe(jpeg300.url);
+    // HTML Living Standard: inside a double-quoted attribute value "&" is written "&amp;".
+    const esc = (v: string) => v.replaceAll('&', '&amp;');
+    expect(manifest.html).toBe(
+      [
+        '<picture>',
+        `  <source type="image/webp" srcset="${esc(manifest.srcset.webp)}" sizes="${manifest.sizes}">`,
+        `  <img src="${esc(jpeg300.url)}" srcset="${esc(manifest.srcset.jpeg)}" sizes="${manifest.sizes}" width="300" height="200" alt="">`,
+        '</picture>',
+      ].join('\n'),
+    );
+  });
+
   it('has rendered every entry: each URL is a cache hit with the listed ETag and size', async () => {
     for (const r of manifest.renditions) {
       const res = await t.app.inject({ method: 'GET', url: r.url });
