@@ -19,11 +19,12 @@ export interface ChildServer {
 
 /**
  * Starts `load/lib/serve.ts <mode>` with tsx; it prints `listening <port>` once bound to
- * 127.0.0.1. Extra environment goes to the child (config, Redis URL, thread pool size).
+ * 127.0.0.1. Extra environment goes to the child (config, Redis URL, thread pool size);
+ * `nodeArgs` to node itself (e.g. --cpu-prof to profile the server).
  */
-export async function startChild(mode: string, env: Record<string, string> = {}): Promise<ChildServer> {
+export async function startChild(mode: string, env: Record<string, string> = {}, nodeArgs: string[] = []): Promise<ChildServer> {
   const entry = fileURLToPath(new URL('./serve.ts', import.meta.url));
-  const child: ChildProcess = spawn(process.execPath, ['--import', 'tsx', entry, mode], {
+  const child: ChildProcess = spawn(process.execPath, [...nodeArgs, '--import', 'tsx', entry, mode], {
     env: { ...process.env, ...env },
     stdio: ['ignore', 'pipe', 'inherit'],
   });
