@@ -5,6 +5,7 @@ import { Piscina } from 'piscina';
 import type { PixelRaster, Plan } from '../core/types.js';
 import { FoldwiseError } from '../errors.js';
 import type { ResampleTask, SharedRaster } from '../worker.js';
+import { Admission } from './admission.js';
 
 export interface RenderPoolOptions {
   /** Worker threads; 0 = one per available core. */
@@ -32,56 +33,51 @@ function share(raster: PixelRaster): SharedRaster {
 }
 
 /**
- * The CPU side of rendering: a piscina pool of worker threads running the core, with admission
- * control. At most `threads + maxQueue` renders are admitted at once; past that `admit` throws
- * ERR_OVERLOADED (503 with Retry-After) instead of letting work pile up without bound.
+ * The CPU side of rendering: a piscina pool of worker threads running the core, behind
+ * admission control (src/render/admission.ts): one render per thread holds pixels at a time,
+ * `maxQueue` more wait, and past that `admit` throws ERR_OVERLOADED (503 with Retry-After)
+ * instead of letting work and memory pile up without bound.
  */
 export class RenderPool {
   readonly threads: number;
-  readonly bound: number;
-  private admitted = 0;
+  private readonly admission: Admission;
   private readonly piscina: Piscina<ResampleTask, number>;
 
-  constructor(private readonly opts: RenderPoolOptions) {
+  constructor(opts: RenderPoolOptions) {
     this.threads = opts.threads > 0 ? opts.threads : availableParallelism();
-    this.bound = this.threads + opts.maxQueue;
+    this.admission = new Admission(this.threads, opts.maxQueue, opts.retryAfterSeconds);
     this.piscina = new Piscina<ResampleTask, number>({
       filename: workerFile,
       minThreads: this.threads,
       maxThreads: this.threads,
-      // Two band tasks per render at most, so the pool queue never exceeds twice the bound.
-      maxQueue: Math.max(1, 2 * this.bound),
+      // At most one render per thread reaches the pool, with two band tasks each.
+      maxQueue: Math.max(1, 2 * this.threads),
       execArgv: fromSource ? ['--import', tsxLoader] : [],
     });
   }
 
-  /** Renders admitted and not yet released. */
-  get inFlight(): number {
-    return this.admitted;
+  /** Most renders in flight (running + waiting) before refusals start. */
+  get bound(): number {
+    return this.admission.bound;
   }
 
-  /** Tasks waiting for a worker. */
+  /** Renders admitted and not yet released, running or waiting. */
+  get inFlight(): number {
+    return this.admission.inFlight;
+  }
+
+  /** Renders waiting for a slot plus band tasks waiting for a worker thread. */
   get queueDepth(): number {
-    return this.piscina.queueSize;
+    return this.admission.waiting + this.piscina.queueSize;
   }
 
   get utilization(): number {
     return this.piscina.utilization;
   }
 
-  /** Reserves a render slot; call the returned function exactly once when done. */
-  admit(): () => void {
-    if (this.admitted >= this.bound) {
-      const s = this.opts.retryAfterSeconds;
-      throw new FoldwiseError('ERR_OVERLOADED', `all ${this.bound} render slots are busy; retry in ${s} s`, {
-        headers: { 'retry-after': String(s) },
-      });
-    }
-    this.admitted += 1;
-    let released = false;
-    return () => {
-      if (!released) (released = true), (this.admitted -= 1);
-    };
+  /** Waits for a render slot (or throws ERR_OVERLOADED); call the returned function when done. */
+  admit(): Promise<() => void> {
+    return this.admission.admit();
   }
 
   /** Resamples `src` by `plan` in the pool; big outputs are split into two bands of rows. */

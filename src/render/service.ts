@@ -67,7 +67,7 @@ async function produce(
   q: RenditionQuery,
   accept: string | undefined,
 ): Promise<{ entry: CacheEntry; identity: SourceIdentity }> {
-  const release = ctx.pool.admit();
+  const release = await ctx.pool.admit();
   try {
     const { decoded, identity } = await loadSource(ctx.origin, path, ctx.limits, ctx.clock);
     const src = decoded.raster;
@@ -78,6 +78,7 @@ async function produce(
     const { layout, plan } = sigma ? planRendition(src, q, ctx.limits, sigma) : first;
     const deadline = AbortSignal.timeout(ctx.limits.renderTimeoutMs);
     const resampled = await ctx.clock.time('resample', () => ctx.pool.resample(src, plan, deadline));
+    release(); // the source's pixels are no longer needed: let the next render decode
     const format: OutputFormat = q.format === 'auto' ? negotiateFormat(accept, decoded.hasAlpha) : q.format;
     const body = await ctx.clock.time('encode', () =>
       withDeadline(
