@@ -1,31 +1,20 @@
-import { mkdtemp, rm } from 'node:fs/promises';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
-import { writePng } from '../helpers/images.js';
-import { next, redisBinary, startRedis, type RedisProcess } from '../helpers/redis-server.js';
-import { replica, type Replica } from './replicas.js';
+import { next, redisBinary } from '../helpers/redis-server.js';
+import { fleet, type Fleet, type Replica } from './replicas.js';
 
 const checks = (x: number, y: number) => ((x >> 1) + (y >> 1)) % 2 ? [200, 40, 40] : [30, 30, 120];
 
 describe.skipIf(!redisBinary)('Redis killed under two replicas', () => {
-  let server: RedisProcess;
-  let dir: string;
+  let f: Fleet;
   let a: Replica;
   let b: Replica;
   const url = (w: number) => `/v1/renditions/checks.png?width=${w}&format=png`;
 
   beforeAll(async () => {
-    server = await startRedis();
-    dir = await mkdtemp(join(tmpdir(), 'fw-outage-'));
-    await writePng(dir, 'checks.png', 80, 60, 3, checks);
-    [a, b] = [await replica(dir, server.url), await replica(dir, server.url)];
+    f = await fleet({ name: 'checks.png', width: 80, height: 60, pixel: checks });
+    ({ a, b } = f);
   });
-  afterAll(async () => {
-    await Promise.all([a?.close(), b?.close()]);
-    await server?.stop();
-    await rm(dir, { recursive: true, force: true });
-  });
+  afterAll(() => f?.close());
 
   it('keep serving from memory and by rendering, open the breaker, report degraded, then recover', async () => {
     // Before: a rendition in both replicas' memory (B got it through Redis).
@@ -33,7 +22,7 @@ describe.skipIf(!redisBinary)('Redis killed under two replicas', () => {
     expect((await b.app.inject(url(40))).headers['server-timing']).toMatch(/hit-redis/);
 
     const dropped = [a, b].map((r) => next(r.app.sharedRedis!.tier.link.client, 'close'));
-    await server.kill();
+    await f.server.kill();
     await Promise.all(dropped);
 
     for (const r of [a, b]) {
@@ -56,7 +45,7 @@ describe.skipIf(!redisBinary)('Redis killed under two replicas', () => {
 
     // Redis comes back (empty, on the same port): the clients reconnect by themselves.
     const back = [a, b].map((r) => next(r.app.sharedRedis!.tier.link.client, 'ready'));
-    await server.restart();
+    await f.server.restart();
     await Promise.all(back);
     let w = 50;
     // The breaker lets a probe through once its open time is over; requests drive it closed.

@@ -1,8 +1,13 @@
 import { EventEmitter } from 'node:events';
+import { mkdtemp, rm } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { Writable } from 'node:stream';
 import { createFolderOrigin } from '../../src/origins/folder.js';
 import type { Origin } from '../../src/origins/types.js';
 import { build, type TestApp } from '../helpers/build.js';
+import { writePng } from '../helpers/images.js';
+import { startRedis, type RedisProcess } from '../helpers/redis-server.js';
 
 /** A folder origin that counts source reads (one per render) and can hold them at a gate. */
 export class GatedOrigin extends EventEmitter implements Origin {
@@ -74,4 +79,30 @@ export async function replica(sourceDir: string, redisUrl: string): Promise<Repl
   });
   await t.app.sharedRedis!.tier.link.ready();
   return Object.assign(t, { origin, logs });
+}
+
+/** A redis-server, a source folder holding one PNG, and two replicas sharing both. */
+export interface Fleet {
+  server: RedisProcess;
+  dir: string;
+  a: Replica;
+  b: Replica;
+  close(): Promise<void>;
+}
+
+export async function fleet(
+  png: { name: string; width: number; height: number; pixel: (x: number, y: number) => number[] },
+): Promise<Fleet> {
+  const server = await startRedis();
+  const dir = await mkdtemp(join(tmpdir(), 'fw-fleet-'));
+  await writePng(dir, png.name, png.width, png.height, 3, png.pixel);
+  const [a, b] = [await replica(dir, server.url), await replica(dir, server.url)];
+  return {
+    server, dir, a, b,
+    async close() {
+      await Promise.all([a.close(), b.close()]);
+      await server.stop();
+      await rm(dir, { recursive: true, force: true });
+    },
+  };
 }

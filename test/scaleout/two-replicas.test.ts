@@ -1,32 +1,21 @@
 import { once } from 'node:events';
-import { mkdtemp, rm } from 'node:fs/promises';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { writePng } from '../helpers/images.js';
-import { redisBinary, startRedis, type RedisProcess } from '../helpers/redis-server.js';
-import { replica, type Replica } from './replicas.js';
+import { redisBinary } from '../helpers/redis-server.js';
+import { fleet, type Fleet, type Replica } from './replicas.js';
 
 // Vertical 1-px stripes: a pattern that needs the real resampler (an analytic test input).
 const stripes = (x: number) => (x % 2 ? [255, 255, 255] : [0, 0, 0]);
 
 describe.skipIf(!redisBinary)('two replicas sharing one Redis', () => {
-  let server: RedisProcess;
-  let dir: string;
+  let f: Fleet;
   let a: Replica;
   let b: Replica;
 
   beforeAll(async () => {
-    server = await startRedis();
-    dir = await mkdtemp(join(tmpdir(), 'fw-scaleout-'));
-    await writePng(dir, 'stripes.png', 96, 64, 3, stripes);
-    [a, b] = [await replica(dir, server.url), await replica(dir, server.url)];
+    f = await fleet({ name: 'stripes.png', width: 96, height: 64, pixel: stripes });
+    ({ a, b } = f);
   });
-  afterAll(async () => {
-    await Promise.all([a?.close(), b?.close()]);
-    await server?.stop();
-    await rm(dir, { recursive: true, force: true });
-  });
+  afterAll(() => f?.close());
 
   it('a rendition asked of both at once is rendered once; both answer the same bytes', async () => {
     const url = '/v1/renditions/stripes.png?width=48&format=png';
