@@ -14,6 +14,8 @@ import type { WidthRisk } from './warnings.js';
 
 export interface LadderStep extends WidthRisk {
   height: number;
+  /** The plan the render service will use (content-adaptive sigma included). */
+  plan: Plan;
   report: RiskReport;
 }
 
@@ -70,6 +72,7 @@ export function assessLadder(
       grid: foldedEnergyGrid(spectrum, report),
       periodic: isPeriodic(report),
       remedySigma: report.level === 'low' ? undefined : Math.max(report.recommendedSigma.x, report.recommendedSigma.y),
+      plan,
       report,
     };
   });
