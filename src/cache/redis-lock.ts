@@ -1,6 +1,7 @@
 import { randomUUID } from 'node:crypto';
 import { EventEmitter } from 'node:events';
 import type { RedisLink } from './redis-link.js';
+import { KeyChannels } from './redis-wake.js';
 import type { CacheEntry } from './types.js';
 
 export interface FlightOptions {
@@ -38,8 +39,7 @@ const RENEW = "if redis.call('get', KEYS[1]) == ARGV[1] then return redis.call('
  * replica renders on its own ('solo'). Emits 'leader', 'wait' and 'solo' with the key.
  */
 export class RedisFlight extends EventEmitter {
-  private readonly waiters = new Map<string, { wakers: Set<() => void>; subscribed: Promise<void> }>();
-  private listening = false;
+  private readonly channels: KeyChannels;
   private readonly pollMs: number;
 
   constructor(
@@ -50,6 +50,7 @@ export class RedisFlight extends EventEmitter {
     if (!(options.lockTtlMs >= 10) || !(options.waitDeadlineMs >= 0)) {
       throw new RangeError('flight: lockTtlMs >= 10 and waitDeadlineMs >= 0');
     }
+    this.channels = new KeyChannels(link);
     this.pollMs = options.pollMs ?? Math.max(25, Math.min(250, options.lockTtlMs / 4));
   }
 
@@ -98,7 +99,7 @@ export class RedisFlight extends EventEmitter {
       return entry;
     } finally {
       clearInterval(renew);
-      const channel = this.channel(key);
+      const channel = this.channels.channel(key);
       await this.release(lockKey, token);
       await this.link.call((c) => c.publish(channel, message)).catch(() => {});
     }
@@ -118,7 +119,7 @@ export class RedisFlight extends EventEmitter {
         settled = true;
         clearInterval(poll);
         clearTimeout(limit);
-        this.unlisten(key, check);
+        this.channels.unlisten(key, check);
         resolve(outcome);
       };
       const probe = async (): Promise<WaitOutcome | undefined> => {
@@ -149,43 +150,10 @@ export class RedisFlight extends EventEmitter {
       const poll = setInterval(check, this.pollMs);
       const limit = setTimeout(() => finish('deadline'), Math.max(0, deadline - Date.now()));
       // Check only once subscribed: a result published before that is found by the check.
-      void this.listen(key, check).then(() => {
+      void this.channels.listen(key, check).then(() => {
         this.emit('wait', key);
         check();
       });
     });
-  }
-
-  private channel(key: string): string {
-    return `${this.link.namespace}done:${key}`;
-  }
-
-  /** Adds a waker for the key's channel; resolves once subscribed (or once that failed). */
-  private listen(key: string, wake: () => void): Promise<void> {
-    const sub = this.link.subscriber();
-    if (!this.listening) {
-      this.listening = true;
-      sub.on('message', (channel: string) => {
-        const key = channel.slice(this.channel('').length);
-        for (const w of this.waiters.get(key)?.wakers ?? []) w();
-      });
-    }
-    let entry = this.waiters.get(key);
-    if (!entry) {
-      const subscribed = sub.subscribe(this.channel(key)).then(() => {}, () => {});
-      entry = { wakers: new Set(), subscribed };
-      this.waiters.set(key, entry);
-    }
-    entry.wakers.add(wake);
-    return entry.subscribed;
-  }
-
-  private unlisten(key: string, wake: () => void): void {
-    const entry = this.waiters.get(key);
-    if (!entry) return;
-    entry.wakers.delete(wake);
-    if (entry.wakers.size > 0) return;
-    this.waiters.delete(key);
-    this.link.subscriber().unsubscribe(this.channel(key)).catch(() => {});
   }
 }
