@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { decodeEntry, encodeEntry } from '../../src/cache/entry-codec.js';
 import { packValue, unpackValue } from '../../src/cache/pack.js';
 import type { CacheEntry } from '../../src/cache/types.js';
+import { analyzeSpectrum, type SourceSpectrum } from '../../src/core/spectrum/index.js';
 
 describe('packValue / unpackValue', () => {
   it('round-trips numbers, strings, nesting and every typed-array kind bit for bit', () => {
@@ -45,6 +46,23 @@ describe('packValue / unpackValue', () => {
     const packed = packValue({ a: new Float64Array(4) });
     expect(() => unpackValue(packed.subarray(0, packed.length - 8))).toThrow(TypeError);
     expect(() => packValue({ $fwbin: 1 })).toThrow(TypeError);
+  });
+});
+
+describe('a real SourceSpectrum analysis', () => {
+  it('round-trips bit for bit (what the alias-risk cache stores in any tier)', () => {
+    // A horizontal grating of 0.3 cycles per pixel, grey, 8 bit: an analytic input.
+    const width = 96, height = 80;
+    const data = new Uint8Array(width * height);
+    for (let y = 0; y < height; y++) {
+      for (let x = 0; x < width; x++) data[y * width + x] = Math.round(127.5 + 100 * Math.cos(2 * Math.PI * 0.3 * x));
+    }
+    const spectrum = analyzeSpectrum({ data, width, height, channels: 1 });
+    expect(spectrum.power.length).toBeGreaterThan(0);
+    const back = unpackValue<SourceSpectrum>(packValue(spectrum));
+    expect(back).toEqual(spectrum);
+    expect(back.power).toBeInstanceOf(Float32Array);
+    expect(back.grid.power).toBeInstanceOf(Float32Array);
   });
 });
 
