@@ -41,11 +41,15 @@ function foldedEnergyGrid(spectrum: SourceSpectrum, report: RiskReport): RiskGri
   return { columns, rows, cells: max > 0 ? cells.map((v) => v / max) : cells };
 }
 
-/** Whether the folding that remains is mostly one periodic pattern (a weave, a stripe). */
+/**
+ * Whether the folding that remains is mostly periodic (a weave, a stripe: moiré) rather than
+ * broadband (edges, grain: jaggies): the periodic peaks, after the planned filter, carry at
+ * least half of the folded energy.
+ */
 function isPeriodic(report: RiskReport): boolean {
-  let best: RiskReport['peaks'][number] | undefined;
-  for (const p of report.peaks) if (!best || p.power * p.passed > best.power * best.passed) best = p;
-  return best?.kind === 'periodic';
+  let periodic = 0;
+  for (const p of report.peaks) if (p.kind === 'periodic') periodic += p.power * p.passed;
+  return report.folded.planned > 0 && periodic >= 0.5 * report.folded.planned;
 }
 
 /**

@@ -53,6 +53,33 @@ describe('foldwise render', () => {
   });
 });
 
+describe('foldwise risk', () => {
+  it('prints a readable table, and JSON with the peak where the sampling theorem puts it', async () => {
+    const src = join(dir, 'shop', 'fabrics', 'stripe.png');
+    const table = await runCli(['risk', src, '--width', '50'], { env });
+    expect(table.code).toBe(0);
+    for (const label of ['source', 'target', 'level', 'folded', 'sigma', 'plan', 'peaks', 'regions', 'reason']) {
+      expect(table.stdout).toMatch(new RegExp(`^${label}( |$)`, "m"));
+    }
+    expect(table.stdout).toMatch(/^target {5}50 x 25 {2}\(scale 4\.000 x 4\.000\)$/m);
+
+    const json = await runCli(['risk', src, '--width', '50', '--json'], { env });
+    expect(json.code).toBe(0);
+    const view = JSON.parse(json.stdout);
+    expect(view.target).toEqual({ width: 50, height: 25 });
+    // Sampling theorem (Shannon 1949; CHECKS.md): 0.3 cycles/px decimated by 4 appears at
+    // |4 x 0.3 - round(4 x 0.3)| = 0.2 cycles per output pixel.
+    const [peak] = view.report.peaks;
+    expect(peak.kind).toBe('periodic');
+    expect(Math.abs(Math.abs(peak.fx) - 0.3)).toBeLessThan(1 / 64);
+    expect(Math.abs(peak.aliasTo.fx - 0.2)).toBeLessThan(4 / 64);
+    expect(view.report.folded.unfiltered).toBeGreaterThan(0.5);
+
+    const usage = await runCli(['risk', src], { env });
+    expect([usage.code, usage.stderr]).toEqual([2, expect.stringContaining('give --width, --height, or both')]);
+  });
+});
+
 describe('foldwise warm', () => {
   it('pre-renders a folder into the cache with a progress bar, then finds it all cached', async () => {
     const first = await runCli(['warm', join(dir, 'shop'), '--widths', '30,60', '--formats', 'webp'], { env });

@@ -7,7 +7,7 @@ describe('foldwise (the command line)', () => {
     const r = await runCli(['--help']);
     expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/^Usage: foldwise/);
-    for (const name of ['serve', 'render', 'warm', 'sign']) expect(r.stdout).toContain(`\n  ${name} `);
+    for (const name of ['serve', 'render', 'risk', 'warm', 'sign']) expect(r.stdout).toContain(`\n  ${name} `);
   });
 
   it('answers an unknown command and a bad argument with exit 2 and a clear message', async () => {

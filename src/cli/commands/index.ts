@@ -1,5 +1,6 @@
 import type { Command } from 'commander';
 import { registerRender } from './render.js';
+import { registerRisk } from './risk.js';
 import { registerServe } from './serve.js';
 import { registerSign } from './sign.js';
 import { registerWarm } from './warm.js';
@@ -8,6 +9,7 @@ import { registerWarm } from './warm.js';
 export function registerCommands(program: Command): void {
   registerServe(program);
   registerRender(program);
+  registerRisk(program);
   registerWarm(program);
   registerSign(program);
 }
