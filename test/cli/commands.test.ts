@@ -59,7 +59,7 @@ describe('foldwise risk', () => {
     const table = await runCli(['risk', src, '--width', '50'], { env });
     expect(table.code).toBe(0);
     for (const label of ['source', 'target', 'level', 'folded', 'sigma', 'plan', 'peaks', 'regions', 'reason']) {
-      expect(table.stdout).toMatch(new RegExp(`^${label}( |$)`, "m"));
+      expect(table.stdout).toMatch(new RegExp(`^${label}( |$)`, 'm'));
     }
     expect(table.stdout).toMatch(/^target {5}50 x 25 {2}\(scale 4\.000 x 4\.000\)$/m);
 
