@@ -1,11 +1,33 @@
 /**
- * The enlarged crops of the riskiest region from both copies, and the outline that shows on
- * each copy where they come from.
+ * The enlarged crops of the riskiest region from both copies, drawn at an integer zoom with
+ * no smoothing so each output pixel is a clean square, and the outline on each copy that
+ * shows where they come from.
  */
 import { geometryOf, type Report } from './report-view.js';
-import { drawZoom, placeMark, riskiestWindow, zoomFactor } from './zoom.js';
+import { riskiestWindow, zoomFactor, type ZoomWindow } from './zoom.js';
 
 const byId = <T extends HTMLElement>(id: string): T => document.getElementById(id) as T;
+
+/** Draws `win` of `img` into `canvas`, enlarged `zoom` times, every pixel a hard-edged square. */
+function drawZoom(canvas: HTMLCanvasElement, img: HTMLImageElement, win: ZoomWindow, zoom: number, label: string) {
+  canvas.width = win.width * zoom;
+  canvas.height = win.height * zoom;
+  const context = canvas.getContext('2d');
+  if (!context) return;
+  context.imageSmoothingEnabled = false;
+  context.drawImage(img, win.x, win.y, win.width, win.height, 0, 0, canvas.width, canvas.height);
+  canvas.setAttribute('aria-label', label);
+}
+
+/** Outlines `win` on a rendition shown at its natural size (one CSS pixel per image pixel). */
+function placeMark(mark: HTMLElement, win: ZoomWindow | undefined): void {
+  mark.hidden = !win;
+  if (!win) return;
+  mark.style.left = `${win.x}px`;
+  mark.style.top = `${win.y}px`;
+  mark.style.width = `${win.width}px`;
+  mark.style.height = `${win.height}px`;
+}
 
 /** Draws both crops around the riskiest grid cell that the copies show. */
 export function showCrops(report: Report, source: string): void {

@@ -1,7 +1,7 @@
 /**
- * The enlarged crops: find the riskiest cell of the report's grid, map it from source pixels
- * onto the rendition (through the fit crop), and draw that window of both renditions at an
- * integer zoom with no smoothing, so each output pixel becomes a clean square.
+ * Where the enlarged crops come from: the riskiest cell of the report's grid, mapped from
+ * source pixels onto the rendition through the fit crop, as a window of output pixels, and
+ * the integer zoom that shows it. Pure arithmetic, no DOM: tested in Node.
  */
 
 export interface Geometry {
@@ -72,25 +72,4 @@ export function riskiestWindow(grid: Grid, geo: Geometry): ZoomWindow | undefine
 /** The integer enlargement that brings the window close to the canvas size. */
 export function zoomFactor(win: ZoomWindow): number {
   return Math.max(2, Math.floor(canvasSide / Math.max(win.width, win.height)));
-}
-
-/** Draws `win` of `img` into `canvas`, enlarged `zoom` times, every pixel a hard-edged square. */
-export function drawZoom(canvas: HTMLCanvasElement, img: HTMLImageElement, win: ZoomWindow, zoom: number, label: string) {
-  canvas.width = win.width * zoom;
-  canvas.height = win.height * zoom;
-  const context = canvas.getContext('2d');
-  if (!context) return;
-  context.imageSmoothingEnabled = false;
-  context.drawImage(img, win.x, win.y, win.width, win.height, 0, 0, canvas.width, canvas.height);
-  canvas.setAttribute('aria-label', label);
-}
-
-/** Outlines `win` on a rendition shown at its natural size (one CSS pixel per image pixel). */
-export function placeMark(mark: HTMLElement, win: ZoomWindow | undefined): void {
-  mark.hidden = !win;
-  if (!win) return;
-  mark.style.left = `${win.x}px`;
-  mark.style.top = `${win.y}px`;
-  mark.style.width = `${win.width}px`;
-  mark.style.height = `${win.height}px`;
 }
