@@ -1,5 +1,5 @@
 /** The three resizers the fidelity table compares, each taking an 8-bit grey raster. */
-import sharp from 'sharp';
+import sharp, { type Sharp } from 'sharp';
 import { makePlan, renderRaster } from '../../src/core/index.js';
 import type { PixelRaster, PlanRequest } from '../../src/core/types.js';
 
@@ -22,7 +22,7 @@ function input(src: PixelRaster) {
   });
 }
 
-async function firstChannel(img: sharp.Sharp): Promise<Uint8Array> {
+async function firstChannel(img: Sharp): Promise<Uint8Array> {
   const { data, info } = await img.raw().toBuffer({ resolveWithObject: true });
   if (info.channels === 1) return new Uint8Array(data.buffer, data.byteOffset, data.length);
   const out = new Uint8Array(info.width * info.height);

@@ -1,6 +1,7 @@
 import type { PixelRaster, Plan } from './types.js';
 import { rowCodec, decodeRow, encodeRow } from './color/index.js';
-import { planTable, resampleStrips, type RowSource } from './resample/index.js';
+import { planTable, resampleStream, type RowSource, type WeightTable } from './resample/index.js';
+import { reduceTable } from './pyramid.js';
 
 /** Options of {@link renderRaster}. */
 export interface RenderOptions {
@@ -11,6 +12,22 @@ export interface RenderOptions {
 function isOpaque(data: Uint8Array | Uint16Array, channels: number, max: number): boolean {
   for (let i = channels - 1; i < data.length; i += channels) if (data[i] !== max) return false;
   return true;
+}
+
+/** The reduce-by-2 tables of each pyramid level, (x, y); an axis with fewer levels is copied. */
+function pyramidStages(plan: Plan, width: number, height: number): Array<[WeightTable, WeightTable]> {
+  const levels = Math.max(plan.x.pyramidLevels, plan.y.pyramidLevels);
+  const stages: Array<[WeightTable, WeightTable]> = [];
+  let w = width;
+  let h = height;
+  for (let l = 0; l < levels; l++) {
+    const bx = reduceTable(w, l < plan.x.pyramidLevels);
+    const by = reduceTable(h, l < plan.y.pyramidLevels);
+    stages.push([bx, by]);
+    w = bx.dstLen;
+    h = by.dstLen;
+  }
+  return stages;
 }
 
 function checkSource(src: PixelRaster, plan: Plan): void {
@@ -25,8 +42,10 @@ function checkSource(src: PixelRaster, plan: Plan): void {
 
 /**
  * Renders the plan's target from `src`: decode to linear light (or keep encoded values when
- * the plan says light=encoded), premultiply alpha, separable resample through the plan's
- * weight tables, unpremultiply, encode with correct rounding. Output has the source's channels
+ * the plan says light=encoded), premultiply alpha, reduce through the plan's pyramid levels,
+ * separable resample through the final weight tables, unpremultiply, encode with correct
+ * rounding. Every stage streams rows through a small window, so no full float copy of the
+ * source or of a level exists. Output has the source's channels
  * and bit depth. With `rows`, only that band of output rows is produced, so workers can share
  * one source. Pure: reads src, returns a new raster.
  */
@@ -44,15 +63,29 @@ export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions =
   const dstW = plan.targetWidth;
   const out = deep ? new Uint16Array(dstW * (r1 - r0) * channels) : new Uint8Array(dstW * (r1 - r0) * channels);
   const rowSize = width * channels;
-  const source: RowSource = {
+  let source: RowSource = {
     width,
-    height: src.height,
     lanes: channels,
     read: (y, buf, at) => decodeRow(codec, data, y * rowSize, width, buf, at),
   };
-  const outRow = dstW * channels;
-  resampleStrips(source, planTable(plan, 'x'), planTable(plan, 'y'), r0, r1, (o, row, at) =>
-    encodeRow(codec, row, at, dstW, out, (o - r0) * outRow),
-  );
+  const ty = planTable(plan, 'y');
+  const stages = pyramidStages(plan, width, src.height);
+  // Rows each stage must produce for output rows [r0, r1), from the last stage back.
+  const spans: Array<[number, number]> = [];
+  let span: [number, number] = r1 > r0 ? [ty.start[r0], ty.start[r1 - 1] + ty.taps] : [0, 0];
+  for (let i = stages.length - 1; i >= 0; i--) {
+    spans[i] = span;
+    const by = stages[i][1];
+    span = span[1] > span[0] ? [by.start[span[0]], by.start[span[1] - 1] + by.taps] : [0, 0];
+  }
+  stages.forEach(([bx, by], i) => {
+    source = resampleStream(source, bx, by, spans[i][0], spans[i][1]);
+  });
+  const final = resampleStream(source, planTable(plan, 'x'), ty, r0, r1);
+  const line = new Float32Array(dstW * channels);
+  for (let o = r0; o < r1; o++) {
+    final.read(o, line, 0);
+    encodeRow(codec, line, 0, dstW, out, (o - r0) * dstW * channels);
+  }
   return { data: out, width: dstW, height: r1 - r0, channels };
 }

@@ -1,6 +1,7 @@
 import type { AxisPlan, Plan } from '../types.js';
 import { findKernel } from '../kernels/index.js';
 import { stretchedFilter } from './filter.js';
+import { compensatedFilter } from './compensate.js';
 import { buildWeights, type WeightTable } from './weights.js';
 
 /** Length of an axis after `levels` pyramid reductions (pixel i of a level sits at 2i below). */
@@ -16,8 +17,10 @@ const cache = new Map<string, WeightTable>();
 /**
  * The final weight table of one axis: maps output pixel o to the source coordinate
  * x = crop0 + (o + 1/2) s - 1/2 (pixel centres at integers, no half-pixel shift), expressed on
- * the grid of the last pyramid level (x / 2^levels), with the kernel stretched by the factor
- * left after the pyramid and the prefilter sigma carried over to that grid. Cached per
+ * the grid of the last pyramid level (x / 2^levels: level pixel i sits on source pixel
+ * i 2^levels). Without a pyramid the filter is the kernel stretched by the factor, fused with
+ * the Gaussian prefilter; after a pyramid it is designed so that the whole chain has that same
+ * response (compensate.ts). Cached per
  * (sizes, crop, kernel, sigma, levels); the cache holds at most 64 tables.
  */
 export function finalTable(
@@ -40,7 +43,10 @@ export function finalTable(
   const unit = 2 ** ax.pyramidLevels;
   const step = scale / unit;
   const stretch = kernel.stretch && step > 1 ? step : 1;
-  const filter = stretchedFilter(kernel, stretch, ax.sigma / unit);
+  const filter =
+    ax.pyramidLevels > 0
+      ? compensatedFilter(kernel, scale, ax.sigma, ax.pyramidLevels)
+      : stretchedFilter(kernel, stretch, ax.sigma);
   const origin = (crop0 + 0.5 * scale - 0.5) / unit;
   const table = buildWeights(levelLength(srcLen, ax.pyramidLevels), dstLen, origin, step, filter);
   cache.set(key, table);

@@ -1,6 +1,7 @@
 import type { Plan } from '../types.js';
 import { planTable } from './axis-table.js';
 import type { WeightTable } from './weights.js';
+import { pyramidChainResponse } from '../pyramid.js';
 
 /** Output pixels sampled when averaging a table's response over its phases. */
 const PHASES = 33;
@@ -41,5 +42,5 @@ export function tableResponse(t: WeightTable, f: number): number {
 export function planResponse(plan: Plan, axis: 'x' | 'y', f: number): number {
   if (!Number.isFinite(f)) throw new RangeError(`frequency must be finite, got ${f}`);
   const levels = plan[axis].pyramidLevels;
-  return tableResponse(planTable(plan, axis), f * 2 ** levels);
+  return tableResponse(planTable(plan, axis), f * 2 ** levels) * Math.abs(pyramidChainResponse(f, levels));
 }

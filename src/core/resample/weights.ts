@@ -10,9 +10,24 @@ export interface WeightTable {
   readonly dstLen: number;
   readonly taps: number;
   readonly start: Int32Array;
-  readonly weights: Float64Array;
+  readonly weights: Float32Array;
   /** Centre of each output pixel in input coordinates (for responses and tests). */
   readonly centre: Float64Array;
+}
+
+/**
+ * Writes row * inv as float32 and moves the float32 rounding left over onto the largest
+ * weight, so the stored row sums to 1 as closely as float32 allows (flat fields stay flat).
+ */
+function storeNormalised(row: Float64Array, inv: number, out: Float32Array, at: number): void {
+  let big = 0;
+  let sum = 0;
+  for (let k = 0; k < row.length; k++) {
+    out[at + k] = row[k] * inv;
+    sum += out[at + k];
+    if (Math.abs(row[k]) > Math.abs(row[big])) big = k;
+  }
+  out[at + big] += 1 - sum;
 }
 
 function mirror(j: number, n: number): number {
@@ -63,7 +78,8 @@ export function buildWeights(
   }
   const taps = Math.min(span, srcLen);
   const start = new Int32Array(dstLen);
-  const weights = new Float64Array(dstLen * taps);
+  const row64 = new Float64Array(taps);
+  const weights = new Float32Array(dstLen * taps);
   for (let o = 0; o < dstLen; o++) {
     const c = centre[o];
     const s = Math.min(lo[o], srcLen - taps);
@@ -71,20 +87,15 @@ export function buildWeights(
     const row = o * taps;
     const first = Math.ceil(c - reach);
     const last = Math.floor(c + reach);
-    for (let j = first; j <= last; j++) {
-      const idx = mirror(j, srcLen);
-      weights[row + idx - s] += f.at(j - c);
-    }
+    row64.fill(0);
+    for (let j = first; j <= last; j++) row64[mirror(j, srcLen) - s] += f.at(j - c);
     let sum = 0;
-    for (let k = 0; k < taps; k++) sum += weights[row + k];
+    for (let k = 0; k < taps; k++) sum += row64[k];
     if (Math.abs(sum) < 1e-9) {
-      weights.fill(0, row, row + taps);
-      const near = Math.min(srcLen - 1, Math.max(0, Math.round(c)));
-      weights[row + near - s] = 1;
+      weights[row + Math.min(srcLen - 1, Math.max(0, Math.round(c))) - s] = 1;
       continue;
     }
-    const inv = 1 / sum;
-    for (let k = 0; k < taps; k++) weights[row + k] *= inv;
+    storeNormalised(row64, 1 / sum, weights, row);
   }
   return { srcLen, dstLen, taps, start, weights, centre };
 }

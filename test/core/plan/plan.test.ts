@@ -90,7 +90,7 @@ describe('planResponse', () => {
   it('is 1 at DC and follows the Gaussian prefilter exp(-2 pi^2 sigma^2 f^2) (CHECKS.md)', () => {
     const plain = makePlan({ ...base, kernel: 'lanczos3', prefilter: 'none' });
     const blurred = makePlan({ ...base, kernel: 'lanczos3', prefilter: 2 });
-    expect(planResponse(plain, 'x', 0)).toBeCloseTo(1, 9);
+    expect(planResponse(plain, 'x', 0)).toBeCloseTo(1, 6); // float32 tables
     for (const f of [0.02, 0.05, 0.08]) {
       const g = Math.exp(-2 * Math.PI ** 2 * 4 * f * f);
       expect(planResponse(blurred, 'x', f) / planResponse(plain, 'x', f)).toBeCloseTo(g, 2);

@@ -18,7 +18,7 @@ describe('weight tables', () => {
     const o = 10;
     const got = Array.from(t.weights.subarray(o * t.taps, (o + 1) * t.taps)).filter((w) => w !== 0);
     expect(got.length).toBe(want.length);
-    got.forEach((w, i) => expect(w).toBeCloseTo(want[i], 12));
+    got.forEach((w, i) => expect(w).toBeCloseTo(want[i], 6)); // float32 tables
     // Centre of output o is 2o + 0.5 (x = (o + 1/2) s - 1/2): the taps straddle 2o and 2o + 1.
     expect(t.centre[o]).toBe(20.5);
   });
@@ -33,7 +33,8 @@ describe('weight tables', () => {
         for (let o = 0; o < dst; o++) {
           let sum = 0;
           for (let k = 0; k < t.taps; k++) sum += t.weights[o * t.taps + k];
-          if (Math.abs(sum - 1) > 1e-12) expect(sum).toBe(1);
+          // Stored as float32: the sum is 1 within float32 rounding of a few dozen terms.
+          if (Math.abs(sum - 1) > 1e-6) expect(sum).toBe(1);
           expect(t.start[o]).toBeGreaterThanOrEqual(0);
           expect(t.start[o] + t.taps).toBeLessThanOrEqual(src);
         }

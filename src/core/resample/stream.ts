@@ -1,0 +1,69 @@
+import { resampleAxis } from './separable.js';
+import type { WeightTable } from './weights.js';
+
+/** Rows of working floats, produced on demand (decoded source rows, or a stage's output). */
+export interface RowSource {
+  readonly width: number;
+  readonly lanes: number;
+  /** Writes row y (width * lanes floats) to out[at...]. Callers ask for rows in non-decreasing order. */
+  read(y: number, out: Float32Array, at: number): void;
+}
+
+/** Spare window rows beyond the filter's taps: the live rows move to the front once per SLACK rows. */
+const SLACK = 64;
+
+/**
+ * A separable resample of `source` through tables tx (columns) and ty (rows), itself a
+ * RowSource of output rows [o0, o1), read in non-decreasing order. A sliding window holds only
+ * the input rows the current output row needs plus some slack, so no full float copy of the
+ * input ever exists and every input row is produced once. The cheaper axis order is taken,
+ * which is the more-shrinking axis first: horizontal first filters each input row down to the
+ * output width as it enters the window; vertical first combines full-width rows, then filters
+ * the one combined row. Not in place; allocates only when built.
+ */
+export function resampleStream(source: RowSource, tx: WeightTable, ty: WeightTable, o0: number, o1: number): RowSource {
+  const lanes = source.lanes;
+  const dstW = tx.dstLen;
+  const rows = o1 > o0 ? ty.start[o1 - 1] + ty.taps - ty.start[o0] : 0;
+  const outRows = o1 - o0;
+  const hFirstCost = rows * dstW * tx.taps + outRows * dstW * ty.taps;
+  const vFirstCost = outRows * source.width * ty.taps + outRows * dstW * tx.taps;
+  const hFirst = hFirstCost <= vFirstCost;
+  const rowLen = (hFirst ? dstW : source.width) * lanes;
+  const capacity = Math.min(rows, ty.taps + Math.max(SLACK, ty.taps));
+  const win = new Float32Array(capacity * rowLen);
+  const line = new Float32Array((hFirst ? source.width : 1) * lanes);
+  const mixed = hFirst ? line : new Float32Array(rowLen);
+  let winLo = o1 > o0 ? ty.start[o0] : 0;
+  let winHi = winLo;
+  return {
+    width: dstW,
+    lanes,
+    read(o: number, out: Float32Array, at: number): void {
+      const lo = ty.start[o];
+      const hi = lo + ty.taps;
+      if (hi - winLo > capacity) {
+        const keep = Math.max(lo, winLo);
+        if (keep < winHi) win.copyWithin(0, (keep - winLo) * rowLen, (winHi - winLo) * rowLen);
+        else winHi = keep;
+        winLo = keep;
+      }
+      for (let y = winHi; y < hi; y++) {
+        const slot = (y - winLo) * rowLen;
+        if (hFirst) {
+          source.read(y, line, 0);
+          resampleAxis(win, slot, lanes, line, 0, lanes, lanes, tx, 0, dstW);
+        } else {
+          source.read(y, win, slot);
+        }
+      }
+      if (hi > winHi) winHi = hi;
+      if (hFirst) {
+        resampleAxis(out, at - o * rowLen, rowLen, win, -winLo * rowLen, rowLen, rowLen, ty, o, o + 1);
+      } else {
+        resampleAxis(mixed, -o * rowLen, rowLen, win, -winLo * rowLen, rowLen, rowLen, ty, o, o + 1);
+        resampleAxis(out, at, lanes, mixed, 0, lanes, lanes, tx, 0, dstW);
+      }
+    },
+  };
+}
