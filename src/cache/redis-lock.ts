@@ -151,6 +151,7 @@ export class RedisFlight extends EventEmitter {
       const limit = setTimeout(() => finish('deadline'), Math.max(0, deadline - Date.now()));
       // Check only once subscribed: a result published before that is found by the check.
       void this.channels.listen(key, check).then(() => {
+        if (settled) return;
         this.emit('wait', key);
         check();
       });
