@@ -19,17 +19,16 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
   const { config, renderContext } = app;
   const query = compileRenditionQuery({ maxDimension: config.limits.maxDimension, kernelNames });
   const plainCache = `public, max-age=${config.http.maxAgeSeconds}`;
-  const signedCache = `public, max-age=${config.http.signedMaxAgeSeconds}, immutable`;
 
   async function handler(request: FastifyRequest, reply: FastifyReply) {
     const path = sourcePathOf(request.url, renditionsPrefix);
     const q: RenditionQuery = query.parse(request.query as Record<string, unknown>);
-    // Checked before parsing by the signing plugin (src/plugins/signing.ts).
-    const signed = request.signed;
     const r = await renderRendition(renderContext, path, q, request.headers.accept);
     reply
       .header('etag', r.entry.etag)
-      .header('cache-control', signed ? signedCache : plainCache)
+      // For validly signed URLs the signing plugin (src/plugins/signing.ts), which checked the
+      // signature before parsing, replaces this with a year and immutable.
+      .header('cache-control', plainCache)
       .header('server-timing', serverTiming(r.cache, r.timings));
     if (q.format === 'auto') reply.header('vary', 'Accept');
     for (const [k, v] of Object.entries(r.entry.headers)) reply.header(k, v);
