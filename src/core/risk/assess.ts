@@ -6,7 +6,7 @@ import type { Plan } from '../types.js';
 import type { SourceSpectrum } from '../spectrum/index.js';
 import { sampleResponse, type PlanResponse } from './filter.js';
 import { regionRisk, type RiskGrid } from './grid.js';
-import { axisTable, foldedEnergy, nyquistOf } from './model.js';
+import { axisTable, coarseEnergy, foldedEnergy, foldedFraction, nyquistOf } from './model.js';
 import { findPeaks, type RiskPeak } from './peaks.js';
 import { blurForTarget, extraSigmaFor, foldedWithBlur, type FoldSetup } from './recommend.js';
 import { fractionDb, levelOf, LOW_FRACTION, scoreOf, type RiskLevel } from './score.js';
@@ -51,7 +51,8 @@ function unfilteredFraction(setup: FoldSetup): number {
   const n = setup.spec.tileSize;
   if (n === 0) return 0;
   const f = foldedEnergy(setup.spec.power, 0, axisTable(n, 1, setup.nyquist.x), axisTable(n, 1, setup.nyquist.y));
-  return f.total > 0 ? f.folded / f.total : 0;
+  f.total += coarseEnergy(setup.spec.coarse, n);
+  return foldedFraction(f);
 }
 
 const pct = (v: number) => `${(100 * v).toPrecision(2)} %`;
@@ -63,7 +64,7 @@ export function assessRisk(spec: SourceSpectrum, plan: Plan, response: PlanRespo
   const planned = foldedWithBlur(setup, 0);
   const level = levelOf(planned);
   const n = spec.tileSize;
-  let total = 0;
+  let total = coarseEnergy(spec.coarse, n);
   for (let i = 0; i < spec.power.length; i++) total += spec.power[i];
   const peaks = findPeaks({
     power: spec.power,

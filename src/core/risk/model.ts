@@ -63,6 +63,15 @@ export function foldedEnergy(power: Float32Array, offset: number, tx: AxisTable,
   return { total, folded };
 }
 
+/**
+ * The whole-source energy of a Welch spectrum in the units of its cells: the within-tile part
+ * (sum of cells) plus the between-tile part, `coarse` variance times tileSize^2 (Parseval:
+ * sum over k of P = T^2 times the window-weighted variance of the tile).
+ */
+export function coarseEnergy(coarse: number, tileSize: number): number {
+  return coarse * tileSize * tileSize;
+}
+
 /** Folded share of the energy; 0 for a spectrum with no energy (a flat field). */
 export function foldedFraction(f: Folding): number {
   return f.total > 0 ? Math.max(0, f.folded) / f.total : 0;

@@ -5,7 +5,7 @@
  */
 import type { SourceSpectrum } from '../spectrum/index.js';
 import { withExtraBlur } from './filter.js';
-import { axisTable, foldedEnergy, foldedFraction } from './model.js';
+import { axisTable, coarseEnergy, foldedEnergy, foldedFraction } from './model.js';
 
 export interface FoldSetup {
   spec: SourceSpectrum;
@@ -28,7 +28,9 @@ export function foldedWithBlur(setup: FoldSetup, t: number): number {
   const extra = extraSigmaFor(setup, t);
   const tx = axisTable(n, 1, nyquist.x, withExtraBlur(sampled.x, n, extra.x));
   const ty = axisTable(n, 1, nyquist.y, withExtraBlur(sampled.y, n, extra.y));
-  return foldedFraction(foldedEnergy(spec.power, 0, tx, ty));
+  const f = foldedEnergy(spec.power, 0, tx, ty);
+  f.total += coarseEnergy(spec.coarse, n);
+  return foldedFraction(f);
 }
 
 /** Largest blur parameter searched: sigma = 2 s puts the Gaussian at exp(-19.7) at the new Nyquist. */

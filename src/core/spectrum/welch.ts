@@ -30,6 +30,12 @@ export interface SourceSpectrum {
   tiles: number;
   /** Averaged periodogram, tileSize x tileSize cells. */
   power: Float32Array;
+  /**
+   * Variance of the tiles' windowed means (linear luminance squared): the energy at
+   * frequencies too low for one tile to resolve. By the law of total variance the source's
+   * non-DC energy is the mean within-tile energy (sum of `power` / tileSize^2) plus this.
+   */
+  coarse: number;
   /** Per-region spectra for the risk grid, each `bins` x `bins` cells; a cell sums binSize^2 full cells. */
   grid: { columns: number; rows: number; bins: number; binSize: number; power: Float32Array };
 }
@@ -50,8 +56,8 @@ function scratchFor(t: number): Scratch {
   return s;
 }
 
-/** Windowed, mean-removed luminance of tile `k` into `dst`. */
-function loadTile(dst: Float64Array, lum: Float64Array, src: PixelRaster, layout: TileLayout, k: number): void {
+/** Windowed, mean-removed luminance of tile `k` into `dst`; returns the windowed mean. */
+function loadTile(dst: Float64Array, lum: Float64Array, src: PixelRaster, layout: TileLayout, k: number): number {
   const t = layout.tileSize;
   const w = hannWindow(t);
   tileLuminance(lum, src, layout.corners[2 * k], layout.corners[2 * k + 1], t);
@@ -65,6 +71,7 @@ function loadTile(dst: Float64Array, lum: Float64Array, src: PixelRaster, layout
   for (let y = 0; y < t; y++) {
     for (let x = 0; x < t; x++) dst[y * t + x] = (lum[y * t + x] - mean) * w[x] * w[y];
   }
+  return mean;
 }
 
 /**
@@ -94,12 +101,19 @@ export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
   const norm = 1 / (4 * ((3 * t) / 8) ** 2);
   const mask = t - 1;
   const half = t >> 1;
+  let meanSum = 0;
+  let meanSquares = 0;
   for (let k = 0; k < count; k += 2) {
     const ra = layout.region[k];
     const rb = k + 1 < count ? layout.region[k + 1] : -1;
-    loadTile(re, lum, src, layout, k);
-    if (rb >= 0) loadTile(im, lum, src, layout, k + 1);
-    else im.fill(0);
+    const ma = loadTile(re, lum, src, layout, k);
+    meanSum += ma;
+    meanSquares += ma * ma;
+    if (rb >= 0) {
+      const mb = loadTile(im, lum, src, layout, k + 1);
+      meanSum += mb;
+      meanSquares += mb * mb;
+    } else im.fill(0);
     fft2d(plan, re, im);
     perRegion[ra]++;
     if (rb >= 0) perRegion[rb]++;
@@ -141,6 +155,7 @@ export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
     tileSize: t,
     tiles: count,
     power: out,
+    coarse: count > 0 ? Math.max(0, meanSquares / count - (meanSum / count) ** 2) : 0,
     grid: { columns: layout.columns, rows: layout.rows, bins, binSize: BIN, power: grid },
   };
 }
