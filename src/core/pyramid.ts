@@ -40,7 +40,9 @@ export function reduceTable(n: number, reduce: boolean): WeightTable {
   const key = `${n}|${reduce}`;
   let t = cache.get(key);
   if (!t) {
-    t = reduce ? buildWeights(n, Math.ceil(n / 2), 0, 2, generating) : buildWeights(n, n, 0, 1, identity);
+    t = reduce
+      ? { ...buildWeights(n, Math.ceil(n / 2), 0, 2, generating), symmetric5: [TAPS[2], TAPS[1], TAPS[0]] as const }
+      : buildWeights(n, n, 0, 1, identity);
     if (cache.size > 64) cache.clear();
     cache.set(key, t);
   }

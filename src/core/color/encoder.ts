@@ -10,6 +10,11 @@ import { srgbDecode } from './srgb.js';
  */
 export interface SrgbQuantiser {
   readonly max: number;
+  /** thresholds[k]: smallest linear value that rounds to code k + 1 (thresholds[max] = Infinity). */
+  readonly thresholds: Float64Array;
+  /** start[b]: the code of linear value b / buckets. */
+  readonly start: Int32Array;
+  readonly buckets: number;
   encode(v: number): number;
 }
 
@@ -30,6 +35,9 @@ function buildQuantiser(max: number, bucketsPerLevel: number): SrgbQuantiser {
   }
   return {
     max,
+    thresholds,
+    start,
+    buckets,
     encode(v: number): number {
       if (!(v > 0)) return 0;
       if (v >= 1) return max;
@@ -51,4 +59,31 @@ export function srgbQuantiser8(): SrgbQuantiser {
 /** The shared 16-bit quantiser (built on first use). */
 export function srgbQuantiser16(): SrgbQuantiser {
   return (q16 ??= buildQuantiser(65535, 4));
+}
+
+/**
+ * Quantises n working values src[srcAt...] to codes out[outAt...] with q, the same result as
+ * q.encode on each, with the tables in locals (the loop of every opaque output row).
+ * Not in place (float in, integer out); allocates nothing.
+ */
+export function quantiseRun(
+  q: SrgbQuantiser,
+  src: Float32Array,
+  srcAt: number,
+  n: number,
+  out: Uint8Array | Uint16Array,
+  outAt: number,
+): void {
+  const { thresholds, start, buckets, max } = q;
+  for (let i = 0; i < n; i++) {
+    const v = src[srcAt + i];
+    let code: number;
+    if (!(v > 0)) code = 0;
+    else if (v >= 1) code = max;
+    else {
+      code = start[(v * buckets) | 0];
+      while (v >= thresholds[code]) code++;
+    }
+    out[outAt + i] = code;
+  }
 }

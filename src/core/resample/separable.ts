@@ -25,6 +25,15 @@ export function resampleAxis(
 ): void {
   if (dst === src) throw new RangeError('resampleAxis works out of place: dst === src');
   if (lanes > 4) return across(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, table, o0, o1);
+  if (table.symmetric5) return reduce5(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, table, o0, o1);
+  pixels(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, table, o0, o1);
+}
+
+/** Pixels of 1..4 interleaved samples through any table. */
+function pixels(
+  dst: Float32Array, dstBase: number, dstStep: number, src: Float32Array, srcBase: number,
+  srcStep: number, lanes: number, table: WeightTable, o0: number, o1: number,
+): void {
   // Pixels of 1..4 interleaved samples: one accumulator per lane, specialised so the inner
   // loop has no lane test (the JIT keeps the accumulators in registers).
   const { taps, start, weights } = table;
@@ -68,7 +77,45 @@ export function resampleAxis(
   }
 }
 
-/** Many lanes (whole rows): accumulate row by row so the inner loop runs over contiguous memory. */
+/**
+ * Pixels through a table of symmetric 5-tap rows (the pyramid's reduce): interior rows use the
+ * symmetry, a (x0) + b (x-1 + x1) + c (x-2 + x2), with the weights held in registers; rows at
+ * the border go through the general loop.
+ */
+function reduce5(
+  dst: Float32Array, dstBase: number, dstStep: number, src: Float32Array, srcBase: number,
+  srcStep: number, lanes: number, table: WeightTable, o0: number, o1: number,
+): void {
+  const [a, b, c] = table.symmetric5!;
+  const first = Math.min(o1, Math.max(o0, 1));
+  const last = Math.max(first, Math.min(o1, (table.srcLen - 3) >> 1));
+  if (o0 < first) pixels(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, table, o0, first);
+  const s1 = srcStep, s2 = 2 * srcStep, s3 = 3 * srcStep, s4 = 4 * srcStep;
+  if (lanes === 3) {
+    for (let o = first; o < last; o++) {
+      const j = srcBase + (2 * o - 2) * srcStep;
+      const d = dstBase + o * dstStep;
+      dst[d] = a * src[j + s2] + b * (src[j + s1] + src[j + s3]) + c * (src[j] + src[j + s4]);
+      dst[d + 1] = a * src[j + s2 + 1] + b * (src[j + s1 + 1] + src[j + s3 + 1]) + c * (src[j + 1] + src[j + s4 + 1]);
+      dst[d + 2] = a * src[j + s2 + 2] + b * (src[j + s1 + 2] + src[j + s3 + 2]) + c * (src[j + 2] + src[j + s4 + 2]);
+    }
+  } else {
+    for (let o = first; o < last; o++) {
+      const s = srcBase + (2 * o - 2) * srcStep;
+      const d = dstBase + o * dstStep;
+      for (let l = 0; l < lanes; l++) {
+        const j = s + l;
+        dst[d + l] = a * src[j + s2] + b * (src[j + s1] + src[j + s3]) + c * (src[j] + src[j + s4]);
+      }
+    }
+  }
+  if (last < o1) pixels(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, table, last, o1);
+}
+
+/**
+ * Many lanes (whole rows): the inner loop runs over contiguous memory, four input rows per pass
+ * so the output row is read and written once per four taps.
+ */
 function across(
   dst: Float32Array, dstBase: number, dstStep: number, src: Float32Array, srcBase: number,
   srcStep: number, lanes: number, table: WeightTable, o0: number, o1: number,
@@ -78,14 +125,26 @@ function across(
     const d = dstBase + o * dstStep;
     const dEnd = d + lanes;
     const row = o * taps;
-    let s = srcBase + start[o] * srcStep;
-    let w = weights[row];
-    for (let i = d, j = s; i < dEnd; i++, j++) dst[i] = w * src[j];
-    for (let k = 1; k < taps; k++) {
-      s += srcStep;
-      w = weights[row + k];
-      if (w === 0) continue;
-      for (let i = d, j = s; i < dEnd; i++, j++) dst[i] += w * src[j];
+    const s = srcBase + start[o] * srcStep;
+    let k = 0;
+    if (taps >= 4) {
+      const w0 = weights[row], w1 = weights[row + 1], w2 = weights[row + 2], w3 = weights[row + 3];
+      const s1 = srcStep, s2 = 2 * srcStep, s3 = 3 * srcStep;
+      for (let i = d, j = s; i < dEnd; i++, j++) dst[i] = w0 * src[j] + w1 * src[j + s1] + w2 * src[j + s2] + w3 * src[j + s3];
+      k = 4;
+    } else {
+      const w0 = weights[row];
+      for (let i = d, j = s; i < dEnd; i++, j++) dst[i] = w0 * src[j];
+      k = 1;
+    }
+    for (; k + 4 <= taps; k += 4) {
+      const w0 = weights[row + k], w1 = weights[row + k + 1], w2 = weights[row + k + 2], w3 = weights[row + k + 3];
+      const j0 = s + k * srcStep, s1 = srcStep, s2 = 2 * srcStep, s3 = 3 * srcStep;
+      for (let i = d, j = j0; i < dEnd; i++, j++) dst[i] += w0 * src[j] + w1 * src[j + s1] + w2 * src[j + s2] + w3 * src[j + s3];
+    }
+    for (; k < taps; k++) {
+      const w = weights[row + k];
+      for (let i = d, j = s + k * srcStep; i < dEnd; i++, j++) dst[i] += w * src[j];
     }
   }
 }

@@ -13,6 +13,11 @@ export interface WeightTable {
   readonly weights: Float32Array;
   /** Centre of each output pixel in input coordinates (for responses and tests). */
   readonly centre: Float64Array;
+  /**
+   * Set when every row that does not touch the border is the same symmetric 5-tap row
+   * [c, b, a, b, c] starting at 2o - 2 (the pyramid's reduce): a faster loop serves those rows.
+   */
+  readonly symmetric5?: readonly [number, number, number];
 }
 
 /**

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { srgbToLinear8, srgbToLinear16, linearToSrgb8, linearToSrgb16 } from '../../../src/core/index.js';
-import { srgbQuantiser8, srgbQuantiser16, srgbEncode } from '../../../src/core/color/index.js';
+import { srgbQuantiser8, srgbQuantiser16, srgbEncode, quantiseRun } from '../../../src/core/color/index.js';
 
 describe('sRGB transfer function', () => {
   // IEC 61966-2-1:1999 check values, as listed in CHECKS.md.
@@ -40,11 +40,15 @@ describe('sRGB transfer function', () => {
     const rnd = () => ((seed = (seed * 1103515245 + 12345) >>> 0) / 2 ** 32);
     const q8 = srgbQuantiser8();
     const q16 = srgbQuantiser16();
-    for (let i = 0; i < 200000; i++) {
-      const v = rnd() * 1.2 - 0.1;
+    const values = Float32Array.from({ length: 200000 }, () => rnd() * 1.2 - 0.1);
+    const run8 = new Uint8Array(values.length);
+    const run16 = new Uint16Array(values.length);
+    quantiseRun(q8, values, 0, values.length, run8, 0);
+    quantiseRun(q16, values, 0, values.length, run16, 0);
+    values.forEach((v, i) => {
       const a = q8.encode(v), b = linearToSrgb8(v);
       const c = q16.encode(v), d = linearToSrgb16(v);
-      if (a !== b || c !== d) expect([v, a, c]).toEqual([v, b, d]);
-    }
+      if (a !== b || c !== d || run8[i] !== b || run16[i] !== d) expect([v, a, c, run8[i], run16[i]]).toEqual([v, b, d, b, d]);
+    });
   });
 });

@@ -1,0 +1,72 @@
+/**
+ * `npm run bench`: the rendition pipeline's cost as ratios against the reference library's
+ * decode-only time of the same JPEG, all measured in this run (medians).
+ */
+import sharp from 'sharp';
+import { makePlan, renderRaster } from '../src/core/index.js';
+import type { PixelRaster } from '../src/core/types.js';
+import { benchJpeg } from './bench/texture.js';
+import { BandPool } from './bench/bands.js';
+
+const RUNS = Number(process.env.BENCH_RUNS ?? 7);
+
+async function median(fn: () => Promise<unknown>): Promise<number> {
+  await fn(); // warm-up: JIT, weight tables, codec init
+  const times: number[] = [];
+  for (let i = 0; i < RUNS; i++) {
+    const t = performance.now();
+    await fn();
+    times.push(performance.now() - t);
+  }
+  return times.sort((a, b) => a - b)[RUNS >> 1];
+}
+
+async function decodeRaw(jpeg: Buffer): Promise<PixelRaster> {
+  const { data, info } = await sharp(jpeg).raw().toBuffer({ resolveWithObject: true });
+  return { data: new Uint8Array(data.buffer, data.byteOffset, data.length), width: info.width, height: info.height, channels: info.channels as 3 };
+}
+
+function planOf(src: PixelRaster, w: number, h: number) {
+  return makePlan({ sourceWidth: src.width, sourceHeight: src.height, targetWidth: w, targetHeight: h, kernel: 'auto', prefilter: 'auto', light: 'linear' });
+}
+
+function ourResample(src: PixelRaster, w: number, h: number): PixelRaster {
+  return renderRaster(src, planOf(src, w, h));
+}
+
+const pool = new BandPool(2);
+
+async function ourPipeline(jpeg: Buffer, w: number, h: number, threads: 1 | 2): Promise<Buffer> {
+  const src = await decodeRaw(jpeg);
+  const out = threads === 1 ? ourResample(src, w, h) : await pool.render(src, planOf(src, w, h));
+  return sharp(Buffer.from(out.data.buffer, out.data.byteOffset, out.data.byteLength), { raw: { width: out.width, height: out.height, channels: out.channels } }).jpeg({ quality: 82 }).toBuffer();
+}
+
+const jobs: Array<[string, number, number, number, number]> = [
+  ['12 MP -> 800 px', 4000, 3000, 800, 600],
+  ['4 MP -> 320 px', 2304, 1728, 320, 240],
+  ['upscale 400 -> 1200 px', 400, 300, 1200, 900],
+];
+
+console.log(`median of ${RUNS} runs; ratios are against sharp's decode-only time of the same JPEG\n`);
+const table: string[][] = [];
+for (const [label, sw, sh, tw, th] of jobs) {
+  const jpeg = await benchJpeg(sw, sh, 42);
+  const decode = await median(() => decodeRaw(jpeg));
+  const raw = await decodeRaw(jpeg);
+  const resample = await median(async () => ourResample(raw, tw, th));
+  const pipeline = await median(() => ourPipeline(jpeg, tw, th, 1));
+  const pipeline2 = await median(() => ourPipeline(jpeg, tw, th, 2));
+  const sharpDefault = await median(() => sharp(jpeg).resize(tw, th).jpeg({ quality: 82 }).toBuffer());
+  const sharpLinear = await median(() => sharp(jpeg).pipelineColourspace('scrgb').resize(tw, th).toColourspace('srgb').jpeg({ quality: 82 }).toBuffer());
+  const r = (t: number) => `${(t / decode).toFixed(2)}x`;
+  table.push([label, `${decode.toFixed(1)} ms`, r(pipeline), r(pipeline2), r(resample), r(sharpDefault), r(sharpLinear)]);
+}
+const head = ['job', 'sharp decode-only', 'foldwise pipeline, 1 thread', 'foldwise pipeline, 2 worker threads', 'ours: resample only, 1 thread', 'sharp default resize', 'sharp linear-light resize'];
+const widths = head.map((h, i) => Math.max(h.length, ...table.map((t) => t[i].length)));
+const line = (c: string[]) => `| ${c.map((x, i) => x.padEnd(widths[i])).join(' | ')} |`;
+console.log(line(head));
+console.log(`|${widths.map((w) => '-'.repeat(w + 2)).join('|')}|`);
+for (const t of table) console.log(line(t));
+console.log('\npipeline = sharp decode to raw + our resample + sharp JPEG encode; target: 12 MP -> 800 px pipeline <= 1.30x');
+await pool.close();
