@@ -4,7 +4,7 @@
  */
 import type { Limits } from '../config.js';
 import { planResponse } from '../core/index.js';
-import { assessRisk, type RiskReport, type SourceSpectrum } from '../core/risk/index.js';
+import { assessRisk, CEIL_DB, FLOOR_DB, type RiskReport, type SourceSpectrum } from '../core/risk/index.js';
 import type { PixelRaster, Plan } from '../core/types.js';
 import { planRendition } from '../render/plan.js';
 import type { RenderContext } from '../render/service.js';
@@ -23,22 +23,15 @@ export interface LadderStep extends WidthRisk {
 const responseOf = (plan: Plan) => (axis: 'x' | 'y', f: number) => planResponse(plan, axis, f);
 
 /**
- * Where the folded energy is, region by region: the grid's folded fraction times the region's
- * own spectral energy, scaled to 0..1. A region of flat colour that a tile barely reaches may
- * fold a large fraction of almost nothing; what shows as moiré is the folded energy itself.
+ * The region grid on a linear energy scale, for naming where the moiré is: the report's cell
+ * scores are folded energy (against the source's mean) in dB mapped onto 0..1 between FLOOR_DB
+ * and CEIL_DB (core/risk/score.ts), so 10^(dB / 10) undoes the mapping. "Hot" then means at
+ * least half the strongest region's folded energy, not half its decibels. Scaled to 0..1.
  */
-function foldedEnergyGrid(spectrum: SourceSpectrum, report: RiskReport): RiskGrid {
-  const { columns, rows, bins, power } = spectrum.grid;
-  const cells = new Array<number>(columns * rows).fill(0);
-  const per = bins * bins;
-  let max = 0;
-  for (let r = 0; r < columns * rows; r++) {
-    let energy = 0;
-    for (let c = 0; c < per; c++) energy += power[r * per + c];
-    cells[r] = (report.grid.folded[r] ?? 0) * energy;
-    max = Math.max(max, cells[r]);
-  }
-  return { columns, rows, cells: max > 0 ? cells.map((v) => v / max) : cells };
+function linearGrid(grid: RiskReport['grid']): RiskGrid {
+  const energy = grid.cells.map((score) => (score > 0 ? 10 ** ((FLOOR_DB + score * (CEIL_DB - FLOOR_DB)) / 10) : 0));
+  const max = Math.max(0, ...energy);
+  return { columns: grid.columns, rows: grid.rows, cells: max > 0 ? energy.map((e) => e / max) : energy };
 }
 
 /**
@@ -73,7 +66,7 @@ export function assessLadder(
       height: layout.targetHeight,
       level: report.level,
       score: report.score,
-      grid: foldedEnergyGrid(spectrum, report),
+      grid: linearGrid(report.grid),
       periodic: isPeriodic(report),
       remedySigma: report.level === 'low' ? undefined : Math.max(report.recommendedSigma.x, report.recommendedSigma.y),
       plan,
