@@ -9,10 +9,16 @@ import type { PixelRaster } from '../src/core/types.js';
 
 const N = 1024;
 const FACTORS = [2, 4, 5.33, 8];
+// The two published Gaussian rules, fused with the default kernel, show why prefilter=auto
+// adds no Gaussian to it: Lowe (2004) blur combination to half an output pixel,
+// sqrt((s/2)^2 - 0.5^2), and scikit-image's anti-aliasing sigma max(0, (s - 1) / 2).
 const resizers: Array<[string, Resizer]> = [
   ['foldwise (defaults)', ours()],
   ['sharp default', sharpDefault],
   ['sharp linear light', sharpLinear],
+  ['foldwise + Lowe-rule Gaussian', ours({}, (s) => Math.sqrt(Math.max(0, (s / 2) ** 2 - 0.25)))],
+  ['foldwise + scikit-image-rule Gaussian', ours({}, (s) => Math.max(0, (s - 1) / 2))],
+  ['foldwise, kernel=lanczos3', ours({ kernel: 'lanczos3' })],
 ];
 
 async function run(r: Resizer, src: PixelRaster, w: number, h: number): Promise<Output> {

@@ -5,12 +5,15 @@ import type { PixelRaster, PlanRequest } from '../../src/core/types.js';
 
 export type Resizer = (src: PixelRaster, w: number, h: number) => Promise<Uint8Array>;
 
-/** foldwise with the defaults (kernel=auto, prefilter=auto, light=linear), or with options. */
-export function ours(opts: Partial<PlanRequest> = {}): Resizer {
+/**
+ * foldwise with the defaults (kernel=auto, prefilter=auto, light=linear), or with options;
+ * `sigmaOf` sets prefilter to a sigma computed from the factor (to compare published rules).
+ */
+export function ours(opts: Partial<PlanRequest> = {}, sigmaOf?: (s: number) => number): Resizer {
   return async (src, w, h) => {
     const plan = makePlan({
       sourceWidth: src.width, sourceHeight: src.height, targetWidth: w, targetHeight: h,
-      kernel: 'auto', prefilter: 'auto', light: 'linear', ...opts,
+      kernel: 'auto', prefilter: sigmaOf ? sigmaOf(src.width / w) : 'auto', light: 'linear', ...opts,
     });
     return renderRaster(src, plan).data as Uint8Array;
   };

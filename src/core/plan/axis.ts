@@ -1,6 +1,6 @@
 import type { AxisPlan, KernelName, PlanRequest } from '../types.js';
 import { findKernel } from '../kernels/index.js';
-import { autoSigma, ADAPTIVE_CAP } from './sigma.js';
+import { prefilterSigma } from './sigma.js';
 import { pyramidLevelsFor } from './levels.js';
 
 /** Upscales beyond this factor use Catmull-Rom: Lanczos-3's lobes become visible halos once
@@ -24,25 +24,11 @@ export function planAxis(
   const kernel = req.kernel === 'auto' ? autoKernel(scale) : req.kernel;
   const k = findKernel(kernel)!;
   const words: string[] = [];
-  words.push(req.kernel === 'auto' ? `${kernel} (${scale > 1 ? 'downscale' : 'upscale'})` : `${kernel} (asked)`);
-  let sigma: number;
-  if (typeof req.prefilter === 'number') {
-    sigma = req.prefilter;
-    words.push(`sigma ${sigma} (asked)`);
-  } else if (req.prefilter === 'none' || scale <= 1) {
-    sigma = 0;
-    if (scale <= 1 && req.prefilter === 'auto') words.push('no prefilter on upscale');
-  } else {
-    const planned = autoSigma(k, scale);
-    sigma = planned;
-    if (adaptive > 0) {
-      const cap = ADAPTIVE_CAP * scale;
-      // Blurs combine in quadrature (Lowe 2004, CHECKS.md).
-      const combined = Math.sqrt(planned * planned + adaptive * adaptive);
-      sigma = Math.min(cap, combined);
-      words.push(`sigma raised by content to ${sigma.toFixed(2)}${combined > cap ? ' (capped)' : ''}`);
-    }
-  }
+  const what = scale > 1 ? 'downscale, low-pass at the new Nyquist' : scale < 1 ? 'upscale, interpolating' : 'same size';
+  words.push(req.kernel === 'auto' ? `${kernel} (${what})` : `${kernel} (asked)`);
+  const pre = prefilterSigma(req.prefilter, scale, adaptive);
+  if (pre.why) words.push(pre.why);
+  const sigma = pre.sigma;
   const pyramidLevels = pyramidLevelsFor(k, scale);
   if (pyramidLevels > 0) words.push(`${pyramidLevels} pyramid level(s)`);
   return { axis: { scale, kernel, sigma, pyramidLevels }, why: words.join(', ') };
