@@ -1,15 +1,5 @@
 import type { Kernel } from './kernel.js';
 
-/** Nearest neighbour: the one sample in [-1/2, 1/2); never stretched (common practice). */
-export const nearest: Kernel = {
-  name: 'nearest',
-  support: 0.5,
-  interpolating: true,
-  stretch: false,
-  source: 'nearest neighbour (common practice)',
-  weight: (x) => (x >= -0.5 && x < 0.5 ? 1 : 0),
-};
-
 /**
  * Box: the area average when stretched, half-open [-1/2, 1/2) so a sample on the boundary
  * counts once (common practice; Pillow's BOX filter, CHECKS.md).
@@ -22,6 +12,9 @@ export const box: Kernel = {
   source: 'box (area average)',
   weight: (x) => (x >= -0.5 && x < 0.5 ? 1 : 0),
 };
+
+/** Nearest neighbour: the box's one sample in [-1/2, 1/2), never stretched (common practice). */
+export const nearest: Kernel = { ...box, name: 'nearest', stretch: false, source: 'nearest neighbour (common practice)' };
 
 /** Triangle 1 - |x| (linear interpolation; the tent of Pillow's BILINEAR, CHECKS.md). */
 export const triangle: Kernel = {

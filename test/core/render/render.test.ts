@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { renderRaster, kernelNames, srgbToLinear8 } from '../../../src/core/index.js';
+import { renderRaster, kernelNames, srgbToLinear8, makePlan, linearToSrgb16 } from '../../../src/core/index.js';
 import type { PixelRaster } from '../../../src/core/types.js';
 import { planFor } from './helpers.js';
 
@@ -112,5 +112,29 @@ describe('bands and shapes', () => {
     expect(() => renderRaster({ ...img, width: 96 }, plan)).toThrow(RangeError);
     expect(() => renderRaster(img, plan, { rows: [5, 31] })).toThrow(RangeError);
     expect(() => renderRaster(img, plan, { rows: [Number.NaN, 3] })).toThrow(RangeError);
+  });
+});
+
+describe('crop, depth and channels', () => {
+  it('folds a fractional crop in exactly: a ramp read through the triangle kernel at x + 0.5', () => {
+    // Linear interpolation reproduces a linear ramp exactly (common practice), so the output is
+    // the ramp at the cropped positions; a crop rounded to whole pixels would be off by 500.
+    const ramp = raster(100, 1, 1, true, (x) => 1000 * x);
+    const plan = makePlan({ sourceWidth: 100, sourceHeight: 1, crop: { x: 10.5, y: 0, width: 50, height: 1 }, targetWidth: 50, targetHeight: 1, kernel: 'triangle', prefilter: 'none', light: 'encoded' });
+    const out = renderRaster(ramp, plan).data;
+    for (let o = 0; o < 50; o++) expect(Math.abs(out[o] - 1000 * (10.5 + o))).toBeLessThanOrEqual(1);
+  });
+
+  it('keeps 16-bit depth: stripes halved in linear light give linear 0.5 as a 16-bit code (IEC 61966-2-1)', () => {
+    const stripes16 = raster(64, 8, 1, true, (x) => (x % 2 ? 65535 : 0));
+    const out = renderRaster(stripes16, planFor(64, 8, 32, 4));
+    expect(out.data).toBeInstanceOf(Uint16Array);
+    expect(Math.abs(out.data[2 * 32 + 16] - linearToSrgb16(0.5))).toBeLessThanOrEqual(1);
+  });
+
+  it('grey + alpha: a white square on transparent black keeps its grey wherever alpha > 0', () => {
+    const ga = raster(40, 40, 2, false, (x, y, c) => (x >= 10 && x < 30 && y >= 10 && y < 30 ? 255 : c === 0 ? 0 : 0));
+    const out = renderRaster(ga, planFor(40, 40, 15, 15)).data;
+    for (let i = 0; i < out.length; i += 2) if (out[i + 1] > 0) expect(out[i]).toBe(255);
   });
 });
