@@ -99,6 +99,10 @@ describe('POST /v1/ingest with image bytes', () => {
     const again = await upload(t.app, bytes, '?widths=80,160,240,400');
     expect(again.json()).toEqual(manifest);
     expect({ renders: events.length, analyses }).toEqual(before);
+    // The same counts, as the Prometheus text format shows them (GET /metrics).
+    const metrics = (await t.app.inject({ method: 'GET', url: '/metrics' })).body;
+    expect(metrics).toMatch(new RegExp(`^foldwise_ingest_renditions_total\\{cache="miss"\\} ${before.renders}$`, 'm'));
+    expect(metrics).toMatch(new RegExp(`^foldwise_ingest_analyses_total ${before.analyses}$`, 'm'));
   });
 
   it('joins concurrent uploads of the same new bytes into one analysis', async () => {
