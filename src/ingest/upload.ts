@@ -32,7 +32,10 @@ export function readUpload(body: Readable, declaredLength: string | undefined, l
     };
     const onEnd = (): void => resolve(Buffer.concat(chunks, total));
     const onError = (e: Error): void => reject(new FoldwiseError('ERR_REQUEST_INVALID', 'the upload was cut off', { cause: e }));
-    body.on('data', onData).once('end', onEnd).once('error', onError);
+    // A client that goes away mid-upload closes the stream without 'end' (and maybe without
+    // 'error'): settle then, so nothing waits forever. After 'end' this rejection is a no-op.
+    const onClose = (): void => reject(new FoldwiseError('ERR_REQUEST_INVALID', 'the upload was cut off'));
+    body.on('data', onData).once('end', onEnd).once('error', onError).once('close', onClose);
   });
 }
 
