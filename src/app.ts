@@ -17,6 +17,7 @@ import pressurePlugin from './plugins/pressure.js';
 import redisPlugin, { redisSettings } from './plugins/redis.js';
 import renderPlugin from './plugins/render.js';
 import signingPlugin from './plugins/signing.js';
+import spectraPlugin from './plugins/spectra.js';
 import workerPoolPlugin from './plugins/worker-pool.js';
 import docsRoutes from './routes/docs.js';
 import healthRoutes from './routes/health.js';
@@ -87,6 +88,7 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     flight: options.flight ?? app.sharedRedis?.flight,
   });
   await app.register(workerPoolPlugin, config.pool);
+  await app.register(spectraPlugin);
   await app.register(renderPlugin);
   await app.register(signingPlugin, {
     keys: config.signing.keys,

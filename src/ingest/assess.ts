@@ -58,7 +58,7 @@ export function assessLadder(
 ): LadderStep[] {
   return queries.map(({ width, query }) => {
     const first = planRendition(raster, query, limits);
-    const sigma = query.prefilter === 'auto' ? adaptive?.(raster, first.layout) : undefined;
+    const sigma = query.prefilter === 'auto' ? adaptive?.(raster, first.plan) : undefined;
     const { layout, plan } = sigma ? planRendition(raster, query, limits, sigma) : first;
     const report = assessRisk(spectrum, plan, responseOf(plan));
     return {

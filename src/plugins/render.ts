@@ -2,6 +2,7 @@ import type { FastifyInstance } from 'fastify';
 import fp from 'fastify-plugin';
 import { IdentityMemo } from '../render/identity.js';
 import type { RenderContext } from '../render/service.js';
+import { adaptiveHook } from '../risk/adaptive.js';
 
 declare module 'fastify' {
   interface FastifyInstance {
@@ -22,11 +23,12 @@ async function renderPlugin(app: FastifyInstance): Promise<void> {
     limits: app.config.limits,
     observe: (stage, seconds) => metrics.stageSeconds.observe({ stage }, seconds),
     onLookup: (result) => metrics.cacheLookups.inc({ result }),
+    adaptiveSigma: adaptiveHook(app.spectra),
   } satisfies RenderContext);
 }
 
 export default fp(renderPlugin, {
   name: 'foldwise-render',
   fastify: '5.x',
-  dependencies: ['foldwise-context', 'foldwise-metrics', 'foldwise-cache', 'foldwise-worker-pool'],
+  dependencies: ['foldwise-context', 'foldwise-metrics', 'foldwise-cache', 'foldwise-worker-pool', 'foldwise-spectra'],
 });

@@ -3,8 +3,7 @@ import type { TieredCache } from '../cache/tiered.js';
 import type { CacheEntry } from '../cache/types.js';
 import type { Limits } from '../config.js';
 import { formatPlanHeader } from '../core/index.js';
-import type { PixelRaster } from '../core/types.js';
-import type { RenditionLayout } from '../core/geometry.js';
+import type { PixelRaster, Plan } from '../core/types.js';
 import { FoldwiseError } from '../errors.js';
 import { encodeImage } from '../media/encode.js';
 import { outputFormats, type OutputFormat } from '../media/formats.js';
@@ -32,8 +31,11 @@ export interface RenderContext {
   onLookup?: (result: string) => void;
   /** Short-lived memo of source identities (hits then skip the origin); default ask the origin. */
   identities?: IdentityMemo;
-  /** Content-adaptive prefilter (alias-risk analysis), asked only when prefilter=auto. */
-  adaptiveSigma?: (raster: PixelRaster, layout: RenditionLayout) => { x: number; y: number } | undefined;
+  /**
+   * Content-adaptive prefilter (alias-risk analysis, src/risk/adaptive.ts), asked only when
+   * prefilter=auto, with the plan it would raise and the source version (for its cache).
+   */
+  adaptiveSigma?: (raster: PixelRaster, plan: Plan, identity?: SourceIdentity) => { x: number; y: number } | undefined;
 }
 
 export interface Rendition {
@@ -71,10 +73,8 @@ async function produce(
   try {
     const { decoded, identity } = await loadSource(ctx.origin, path, ctx.limits, ctx.clock);
     const src = decoded.raster;
-    const adaptive = (layout: RenditionLayout) =>
-      q.prefilter === 'auto' ? ctx.adaptiveSigma?.(src, layout) : undefined;
     const first = planRendition(src, q, ctx.limits);
-    const sigma = adaptive(first.layout);
+    const sigma = q.prefilter === 'auto' ? ctx.adaptiveSigma?.(src, first.plan, identity) : undefined;
     const { layout, plan } = sigma ? planRendition(src, q, ctx.limits, sigma) : first;
     const deadline = AbortSignal.timeout(ctx.limits.renderTimeoutMs);
     const resampled = await ctx.clock.time('resample', () => ctx.pool.resample(src, plan, deadline));

@@ -1,0 +1,19 @@
+/**
+ * The content-adaptive prefilter of the render path: prefilter=auto asks the alias-risk model
+ * for extra sigma on sources whose planned rendition would still alias visibly
+ * (src/core/risk: adaptiveSigma), using the cached spectrum of that source version.
+ */
+import { planResponse } from '../core/index.js';
+import { adaptiveSigma } from '../core/risk/index.js';
+import type { PixelRaster, Plan } from '../core/types.js';
+import type { SourceIdentity } from '../origins/types.js';
+import type { SpectrumStore } from './spectra.js';
+
+/** A PlanResponse (core/risk) read from the plan's own weight tables. */
+export const planResponseOf = (plan: Plan) => (axis: 'x' | 'y', f: number) => planResponse(plan, axis, f);
+
+/** The render context's adaptiveSigma hook, backed by `store`. */
+export function adaptiveHook(store: SpectrumStore) {
+  return (raster: PixelRaster, plan: Plan, identity?: SourceIdentity): { x: number; y: number } | undefined =>
+    adaptiveSigma(store.ofRaster(raster, identity), plan, planResponseOf(plan));
+}

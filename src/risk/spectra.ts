@@ -1,0 +1,111 @@
+/**
+ * One spectrum analysis per source version: many widths, views and renditions of the same
+ * source cost one Welch analysis. L1 is an in-process LRU bounded in bytes; L2, when the app
+ * has a shared tier (Redis), lets every replica reuse one replica's analysis.
+ */
+import { LRUCache } from 'lru-cache';
+import { analyzeSpectrum, type SourceSpectrum } from '../core/risk/index.js';
+import type { PixelRaster } from '../core/types.js';
+import type { SourceIdentity } from '../origins/types.js';
+
+/** Bump when the analysis changes (tiles, window, units): stored spectra then stop matching. */
+export const spectrumVersion = 'fw-spectrum-2';
+
+/** The part of a shared tier the store uses (RedisTier has it). */
+export interface SharedValues {
+  getValue<T>(key: string): Promise<T | undefined>;
+  setValue(key: string, value: unknown): Promise<void>;
+}
+
+export interface SpectrumStoreOptions {
+  /** L1 budget in bytes. */
+  maxBytes: number;
+  shared?: SharedValues | null;
+  /** Called when a shared-tier write fails (the analysis is still served). */
+  onSharedError?: (error: unknown) => void;
+}
+
+/** Where a spectrum came from. */
+export type SpectrumOrigin = 'memory' | 'shared' | 'analysed';
+
+const bytesOf = (s: SourceSpectrum) => s.power.byteLength + s.grid.power.byteLength + 512;
+
+export class SpectrumStore {
+  private readonly lru: LRUCache<string, SourceSpectrum>;
+  private readonly byRaster = new WeakMap<PixelRaster, SourceSpectrum>();
+  private readonly inflight = new Map<string, Promise<SourceSpectrum>>();
+  /** Analyses run by this store (for metrics and tests). */
+  analyses = 0;
+
+  constructor(private readonly options: SpectrumStoreOptions) {
+    this.lru = new LRUCache<string, SourceSpectrum>({ maxSize: options.maxBytes, sizeCalculation: bytesOf });
+  }
+
+  /** The cache key of one source version. */
+  keyOf(identity: SourceIdentity): string {
+    return `spectrum:${spectrumVersion}:${identity.version}:${identity.key}`;
+  }
+
+  private remember(key: string | undefined, raster: PixelRaster | undefined, s: SourceSpectrum): void {
+    if (key) this.lru.set(key, s);
+    if (raster) this.byRaster.set(raster, s);
+  }
+
+  private analyse(raster: PixelRaster): SourceSpectrum {
+    this.analyses++;
+    return analyzeSpectrum(raster);
+  }
+
+  /**
+   * The spectrum of a raster already in memory (the render path): L1 by identity, or this
+   * raster's earlier analysis, or a new one now (stored in L1 and, in the background, in L2).
+   */
+  ofRaster(raster: PixelRaster, identity?: SourceIdentity): SourceSpectrum {
+    const key = identity ? this.keyOf(identity) : undefined;
+    const known = (key && this.lru.get(key)) || this.byRaster.get(raster);
+    if (known) return known;
+    const s = this.analyse(raster);
+    this.remember(key, raster, s);
+    if (key && this.options.shared) this.options.shared.setValue(key, s).catch((e) => this.options.onSharedError?.(e));
+    return s;
+  }
+
+  /**
+   * The spectrum of a source version: L1, then L2, else `load` decodes it and it is analysed,
+   * once however many callers ask at the same time.
+   */
+  async get(identity: SourceIdentity, load: () => Promise<SourceSpectrumInput>): Promise<{ spectrum: SourceSpectrum; from: SpectrumOrigin }> {
+    const key = this.keyOf(identity);
+    const hit = this.lru.get(key);
+    if (hit) return { spectrum: hit, from: 'memory' };
+    const running = this.inflight.get(key);
+    if (running) return { spectrum: await running, from: 'analysed' };
+    let from: SpectrumOrigin = 'analysed';
+    const work = (async () => {
+      const stored = await this.options.shared?.getValue<SourceSpectrum>(key).catch(() => undefined);
+      if (stored && stored.power instanceof Float32Array) {
+        from = 'shared';
+        this.remember(key, undefined, stored);
+        return stored;
+      }
+      const input = await load();
+      const s = input.analyse(() => this.analyse(input.raster));
+      this.remember(key, input.raster, s);
+      await this.options.shared?.setValue(key, s).catch((e) => this.options.onSharedError?.(e));
+      return s;
+    })();
+    this.inflight.set(key, work);
+    try {
+      return { spectrum: await work, from };
+    } finally {
+      this.inflight.delete(key);
+    }
+  }
+}
+
+/** What `get`'s loader hands back: the decoded raster and a way to time the analysis. */
+export interface SourceSpectrumInput {
+  raster: PixelRaster;
+  /** Runs `run` (the analysis); the caller may time it or release memory after it. */
+  analyse(run: () => SourceSpectrum): SourceSpectrum;
+}
