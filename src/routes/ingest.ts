@@ -47,8 +47,9 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
   const signingRequired = config.signing.required ?? keys.length > 0;
   app.addHook('onRequest', async (request) => {
     if (keys.length === 0 || request.method !== 'POST') return;
-    const [path, search = ''] = request.url.split('?', 2);
-    const check = verifySignature(path, new URLSearchParams(search), keys);
+    const at = request.url.indexOf('?');
+    const path = at < 0 ? request.url : request.url.slice(0, at);
+    const check = verifySignature(path, new URLSearchParams(at < 0 ? '' : request.url.slice(at + 1)), keys);
     if (check === 'invalid') throw new FoldwiseError('ERR_SIGNATURE_INVALID', 'The signature does not match this path and query.');
     if (check === 'missing' && signingRequired) {
       throw new FoldwiseError('ERR_SIGNATURE_REQUIRED', 'Uploads need a signed URL (parameter "signature"); see foldwise sign.');
