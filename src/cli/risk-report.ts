@@ -3,23 +3,18 @@
  * each of its widths: the source decoded with the service's limits, its spectrum estimated
  * once, the render service's plan assessed against it.
  */
-import { formatPlanHeader, kernelNames } from '../core/index.js';
+import { formatPlanHeader } from '../core/index.js';
 import { analyzeSpectrum } from '../core/risk/index.js';
 import { assessLadder } from '../ingest/assess.js';
 import { writeWarnings } from '../ingest/warnings.js';
 import { loadSource } from '../render/source.js';
 import { StageClock } from '../render/timings.js';
-import { compileRenditionQuery } from '../schemas/rendition.js';
-import { asUsage, type CommandApp } from './app.js';
+import type { CommandApp } from './app.js';
+import { parseRenditionQuery } from './rendition-flags.js';
 import type { RiskView } from './risk-table.js';
 
 export async function assessOne({ app, config }: CommandApp, path: string, raw: Record<string, string>): Promise<RiskView> {
-  let query;
-  try {
-    query = compileRenditionQuery({ maxDimension: config.limits.maxDimension, kernelNames }).parse(raw);
-  } catch (e) {
-    throw asUsage(e);
-  }
+  const query = await parseRenditionQuery(config, raw);
   const { decoded } = await loadSource(app.origin, path, config.limits, new StageClock());
   const { raster } = decoded;
   const [step] = assessLadder(raster, analyzeSpectrum(raster), [{ width: query.width ?? 0, query }], config.limits, app.renderContext.adaptiveSigma);
