@@ -3,11 +3,12 @@
  * spectrum is estimated once, then each width's plan is checked against it (cheap).
  */
 import type { Limits } from '../config.js';
-import { planResponse } from '../core/index.js';
 import { assessRisk, CEIL_DB, FLOOR_DB, type RiskReport, type SourceSpectrum } from '../core/risk/index.js';
 import type { PixelRaster, Plan } from '../core/types.js';
+import type { SourceIdentity } from '../origins/types.js';
 import { planRendition } from '../render/plan.js';
 import type { RenderContext } from '../render/service.js';
+import { planResponseOf } from '../risk/adaptive.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import type { RiskGrid } from './regions.js';
 import type { WidthRisk } from './warnings.js';
@@ -18,9 +19,6 @@ export interface LadderStep extends WidthRisk {
   plan: Plan;
   report: RiskReport;
 }
-
-/** A PlanResponse (core/risk) read from the plan's own weight tables. */
-const responseOf = (plan: Plan) => (axis: 'x' | 'y', f: number) => planResponse(plan, axis, f);
 
 /**
  * The region grid on a linear energy scale, for naming where the moiré is: the report's cell
@@ -55,12 +53,13 @@ export function assessLadder(
   queries: ReadonlyArray<{ width: number; query: RenditionQuery }>,
   limits: Limits,
   adaptive?: RenderContext['adaptiveSigma'],
+  identity?: SourceIdentity,
 ): LadderStep[] {
   return queries.map(({ width, query }) => {
     const first = planRendition(raster, query, limits);
-    const sigma = query.prefilter === 'auto' ? adaptive?.(raster, first.plan) : undefined;
+    const sigma = query.prefilter === 'auto' ? adaptive?.(raster, first.plan, identity) : undefined;
     const { layout, plan } = sigma ? planRendition(raster, query, limits, sigma) : first;
-    const report = assessRisk(spectrum, plan, responseOf(plan));
+    const report = assessRisk(spectrum, plan, planResponseOf(plan));
     return {
       width,
       height: layout.targetHeight,

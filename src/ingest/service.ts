@@ -6,14 +6,13 @@
 import { EventEmitter } from 'node:events';
 import type { Config } from '../config.js';
 import { kernelNames } from '../core/index.js';
-import { analyzeSpectrum } from '../core/risk/index.js';
 import { FoldwiseError } from '../errors.js';
-import type { DecodedImage } from '../media/decode.js';
 import { sourceFormats } from '../media/formats.js';
 import type { Origin } from '../origins/types.js';
 import { renderRendition, type RenderContext } from '../render/service.js';
-import { loadSource } from '../render/source.js';
+import { type LoadedSource, loadSource } from '../render/source.js';
 import { StageClock } from '../render/timings.js';
+import type { SpectrumStore } from '../risk/spectra.js';
 import type { IngestFormat } from '../schemas/ingest.js';
 import { compileRenditionQuery } from '../schemas/rendition.js';
 import { assessLadder } from './assess.js';
@@ -60,6 +59,7 @@ export class IngestService extends EventEmitter {
   constructor(
     private readonly config: Config,
     private readonly render: RenderContext,
+    private readonly spectra: SpectrumStore,
   ) {
     super();
     const { ingest, limits } = config;
@@ -134,23 +134,27 @@ export class IngestService extends EventEmitter {
   }
 
   private async buildFrom(sourceKey: string, options: IngestOptions): Promise<Manifest> {
-    const { decoded } = await loadSource(this.render.origin, sourceKey, this.config.limits, new StageClock());
-    return this.build(sourceKey, decoded, options);
+    const source = await loadSource(this.render.origin, sourceKey, this.config.limits, new StageClock());
+    return this.build(sourceKey, source, options);
   }
 
-  private async build(sourceKey: string, decoded: DecodedImage, options: IngestOptions): Promise<Manifest> {
+  private async build(sourceKey: string, { identity, decoded }: LoadedSource, options: IngestOptions): Promise<Manifest> {
     const { raster } = decoded;
     const formats = options.formats ?? this.config.ingest.formats;
     const widths = ladderFor(raster.width, options.widths);
     const queryFor = (width: number, format: IngestFormat) => this.query.parse({ width: String(width), format });
-    const spectrum = analyzeSpectrum(raster);
-    this.emit('analysed', sourceKey);
+    // The render path's spectrum store: analysed once per source version, and the renders'
+    // content-adaptive prefilter below finds it there by identity.
+    const before = this.spectra.analyses;
+    const spectrum = this.spectra.ofRaster(raster, identity);
+    if (this.spectra.analyses > before) this.emit('analysed', sourceKey);
     const steps = assessLadder(
       raster,
       spectrum,
       widths.map((width) => ({ width, query: queryFor(width, formats[0]) })),
       this.config.limits,
       this.render.adaptiveSigma,
+      identity,
     );
     const tasks = steps.flatMap((step) => formats.map((format) => ({ step, format })));
     const renditions = await mapBounded(tasks, this.config.ingest.concurrency, async ({ step, format }): Promise<ManifestRendition> => {

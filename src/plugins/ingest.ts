@@ -15,7 +15,7 @@ declare module 'fastify' {
  * its work in the app's metrics registry: renditions by cache outcome, analyses, and jobs.
  */
 async function ingestPlugin(app: FastifyInstance): Promise<void> {
-  const ingest = new IngestService(app.config, app.renderContext);
+  const ingest = new IngestService(app.config, app.renderContext, app.spectra);
   const registers = [app.metrics.registry];
   const renditions = new Counter({
     name: 'foldwise_ingest_renditions_total',
@@ -40,5 +40,5 @@ async function ingestPlugin(app: FastifyInstance): Promise<void> {
 export default fp(ingestPlugin, {
   name: 'foldwise-ingest',
   fastify: '5.x',
-  dependencies: ['foldwise-context', 'foldwise-metrics', 'foldwise-render'],
+  dependencies: ['foldwise-context', 'foldwise-metrics', 'foldwise-render', 'foldwise-spectra'],
 });
