@@ -25,6 +25,7 @@ import ingestRoutes from './routes/ingest.js';
 import inspectRoutes from './routes/inspect.js';
 import metricsRoutes from './routes/metrics.js';
 import renditionRoutes from './routes/renditions.js';
+import aliasRiskRoutes from './routes/alias-risk.js';
 import sourcesRoutes from './routes/sources.js';
 
 export interface BuildOptions {
@@ -101,6 +102,7 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   await app.register(ingestPlugin);
 
   await app.register(renditionRoutes);
+  await app.register(aliasRiskRoutes);
   await app.register(ingestRoutes);
   await app.register(sourcesRoutes);
   await app.register(healthRoutes);

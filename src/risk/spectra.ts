@@ -71,10 +71,14 @@ export class SpectrumStore {
   }
 
   /**
-   * The spectrum of a source version: L1, then L2, else `load` decodes it and it is analysed,
-   * once however many callers ask at the same time.
+   * The spectrum of a source version: L1, then L2, else `produce` decodes the source and hands
+   * its raster to `analyse` (it may hold a render slot meanwhile); once however many callers
+   * ask at the same time.
    */
-  async get(identity: SourceIdentity, load: () => Promise<SourceSpectrumInput>): Promise<{ spectrum: SourceSpectrum; from: SpectrumOrigin }> {
+  async get(
+    identity: SourceIdentity,
+    produce: (analyse: (raster: PixelRaster) => SourceSpectrum) => Promise<SourceSpectrum>,
+  ): Promise<{ spectrum: SourceSpectrum; from: SpectrumOrigin }> {
     const key = this.keyOf(identity);
     const hit = this.lru.get(key);
     if (hit) return { spectrum: hit, from: 'memory' };
@@ -88,9 +92,12 @@ export class SpectrumStore {
         this.remember(key, undefined, stored);
         return stored;
       }
-      const input = await load();
-      const s = input.analyse(() => this.analyse(input.raster));
-      this.remember(key, input.raster, s);
+      const s = await produce((raster) => {
+        const made = this.analyse(raster);
+        this.remember(undefined, raster, made);
+        return made;
+      });
+      this.remember(key, undefined, s);
       await this.options.shared?.setValue(key, s).catch((e) => this.options.onSharedError?.(e));
       return s;
     })();
@@ -101,11 +108,4 @@ export class SpectrumStore {
       this.inflight.delete(key);
     }
   }
-}
-
-/** What `get`'s loader hands back: the decoded raster and a way to time the analysis. */
-export interface SourceSpectrumInput {
-  raster: PixelRaster;
-  /** Runs `run` (the analysis); the caller may time it or release memory after it. */
-  analyse(run: () => SourceSpectrum): SourceSpectrum;
 }

@@ -1,0 +1,59 @@
+/**
+ * One alias-risk report as the HTTP API answers it: the rendition the same query would produce
+ * (same layout, same plan, the same content-adaptive prefilter), assessed against the source's
+ * cached spectrum.
+ */
+import type { Limits } from '../config.js';
+import type { RenditionLayout } from '../core/geometry.js';
+import { formatPlanHeader } from '../core/index.js';
+import { adaptiveSigma, assessRisk, type RiskReport, type SourceSpectrum } from '../core/risk/index.js';
+import type { Plan } from '../core/types.js';
+import { planRendition } from '../render/plan.js';
+import type { RenditionQuery } from '../schemas/rendition.js';
+import { planResponseOf } from './adaptive.js';
+
+export interface AssessedRendition {
+  layout: RenditionLayout;
+  plan: Plan;
+  /** Extra sigma prefilter=auto adds for this source (source px), if any. */
+  adaptive?: { x: number; y: number };
+  report: RiskReport;
+}
+
+/** Plans the query on the analysed source as the render path does, then assesses it. */
+export function assessRendition(spectrum: SourceSpectrum, q: RenditionQuery, limits: Limits): AssessedRendition {
+  const source = { width: spectrum.width, height: spectrum.height };
+  const first = planRendition(source, q, limits);
+  const adaptive = q.prefilter === 'auto' ? adaptiveSigma(spectrum, first.plan, planResponseOf(first.plan)) : undefined;
+  const { layout, plan } = adaptive ? planRendition(source, q, limits, adaptive) : first;
+  return { layout, plan, adaptive, report: assessRisk(spectrum, plan, planResponseOf(plan)) };
+}
+
+/** The JSON body of GET /v1/alias-risk/{source}. */
+export function riskBody(path: string, spectrum: SourceSpectrum, a: AssessedRendition) {
+  const { layout, plan, report } = a;
+  return {
+    source: { path, width: spectrum.width, height: spectrum.height },
+    target: { width: layout.targetWidth, height: layout.targetHeight },
+    canvas: layout.canvas ?? null,
+    scale: report.scale,
+    nyquist: report.nyquist,
+    plan: {
+      header: formatPlanHeader(plan),
+      crop: plan.crop,
+      x: plan.x,
+      y: plan.y,
+      light: plan.light,
+      adaptiveSigma: a.adaptive ?? null,
+      reason: plan.reason,
+    },
+    folded: report.folded,
+    score: report.score,
+    level: report.level,
+    peaks: report.peaks,
+    grid: report.grid,
+    recommendedSigma: report.recommendedSigma,
+    reason: report.reason,
+    analysis: { tileSize: spectrum.tileSize, tiles: spectrum.tiles },
+  };
+}
