@@ -1,6 +1,8 @@
 import type { PixelRaster, Plan } from './types.js';
-import { rowCodec, decodeRow, encodeRow } from './color/index.js';
-import { planTable, resampleStream, type RowSource, type WeightTable } from './resample/index.js';
+import { rowCodec, encodeRow } from './color/index.js';
+import { rasterRows, rowScratchBytes } from './raster-rows.js';
+import { planTable, resampleStream, streamLayout, type RowSource, type WeightTable } from './resample/index.js';
+import { simdKernels, arenaFor, arenaBytes, type Arena } from './simd/index.js';
 import { reduceTable } from './pyramid.js';
 
 /** Options of {@link renderRaster}. */
@@ -12,6 +14,39 @@ export interface RenderOptions {
 function isOpaque(data: Uint8Array | Uint16Array, channels: number, max: number): boolean {
   for (let i = channels - 1; i < data.length; i += channels) if (data[i] !== max) return false;
   return true;
+}
+
+/**
+ * With the SIMD kernels available, an arena big enough for every buffer and table copy of the
+ * render (each pass's window and lines, the output line), else null.
+ */
+function simdArena(
+  passes: ReadonlyArray<[WeightTable, WeightTable, number, number]>,
+  width: number,
+  lanes: number,
+  dstW: number,
+  scratchBytes: number,
+): Arena | null {
+  const k = simdKernels();
+  if (!k) return null;
+  // The scratch is two areas (codes and table), each padded and aligned on its own.
+  const counts: number[] = [dstW * lanes, Math.ceil(scratchBytes / 4) + 16];
+  let w = width;
+  for (const [tx, ty, a, b] of passes) {
+    counts.push(...streamLayout(w, lanes, tx, ty, a, b).sizes);
+    for (const t of [tx, ty]) counts.push(t.dstLen, t.weights.length);
+    w = tx.dstLen;
+  }
+  return arenaFor(k, arenaBytes(counts));
+}
+
+/** A copy of the table whose start and weights live in the arena, marked for the SIMD loops. */
+function placed(arena: Arena, t: WeightTable): WeightTable {
+  const start = arena.ints(t.dstLen);
+  start.set(t.start);
+  const weights = arena.floats(t.weights.length);
+  weights.set(t.weights);
+  return { ...t, start, weights, simd: simdKernels()! };
 }
 
 /** The reduce-by-2 tables of each pyramid level, (x, y); an axis with fewer levels is copied. */
@@ -62,12 +97,6 @@ export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions =
   const codec = rowCodec(deep, channels, plan.light === 'linear', hasAlpha && !isOpaque(data, channels, max));
   const dstW = plan.targetWidth;
   const out = deep ? new Uint16Array(dstW * (r1 - r0) * channels) : new Uint8Array(dstW * (r1 - r0) * channels);
-  const rowSize = width * channels;
-  let source: RowSource = {
-    width,
-    lanes: channels,
-    read: (y, buf, at) => decodeRow(codec, data, y * rowSize, width, buf, at),
-  };
   const ty = planTable(plan, 'y');
   const stages = pyramidStages(plan, width, src.height);
   // Rows each stage must produce for output rows [r0, r1), from the last stage back.
@@ -78,11 +107,16 @@ export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions =
     const by = stages[i][1];
     span = span[1] > span[0] ? [by.start[span[0]], by.start[span[1] - 1] + by.taps] : [0, 0];
   }
-  stages.forEach(([bx, by], i) => {
-    source = resampleStream(source, bx, by, spans[i][0], spans[i][1]);
-  });
-  const final = resampleStream(source, planTable(plan, 'x'), ty, r0, r1);
-  const line = new Float32Array(dstW * channels);
+  const passes: Array<[WeightTable, WeightTable, number, number]> = stages.map(([bx, by], i) => [bx, by, spans[i][0], spans[i][1]]);
+  passes.push([planTable(plan, 'x'), ty, r0, r1]);
+  const arena = simdArena(passes, width, channels, dstW, rowScratchBytes(src, codec));
+  const alloc = arena ? arena.floats : (n: number) => new Float32Array(n);
+  let source: RowSource = rasterRows(src, codec, arena ? { k: simdKernels()!, arena } : undefined);
+  for (const [bx, by, a, b] of passes) {
+    source = resampleStream(source, arena ? placed(arena, bx) : bx, arena ? placed(arena, by) : by, a, b, alloc);
+  }
+  const final = source;
+  const line = alloc(dstW * channels);
   for (let o = r0; o < r1; o++) {
     final.read(o, line, 0);
     encodeRow(codec, line, 0, dstW, out, (o - r0) * dstW * channels);

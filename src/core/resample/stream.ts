@@ -13,6 +13,23 @@ export interface RowSource {
 const SLACK = 64;
 
 /**
+ * Buffer layout of a stream: which axis goes first (the cheaper order), the window's row
+ * length and capacity in rows, and the float counts of its buffers [window, line, mixed].
+ */
+export function streamLayout(sourceWidth: number, lanes: number, tx: WeightTable, ty: WeightTable, o0: number, o1: number) {
+  const dstW = tx.dstLen;
+  const rows = o1 > o0 ? ty.start[o1 - 1] + ty.taps - ty.start[o0] : 0;
+  const outRows = o1 - o0;
+  const hFirstCost = rows * dstW * tx.taps + outRows * dstW * ty.taps;
+  const vFirstCost = outRows * sourceWidth * ty.taps + outRows * dstW * tx.taps;
+  const hFirst = hFirstCost <= vFirstCost;
+  const rowLen = (hFirst ? dstW : sourceWidth) * lanes;
+  const capacity = Math.min(rows, ty.taps + Math.max(SLACK, ty.taps));
+  const sizes = [capacity * rowLen, (hFirst ? sourceWidth : 1) * lanes, hFirst ? 0 : rowLen] as const;
+  return { hFirst, rowLen, capacity, sizes };
+}
+
+/**
  * A separable resample of `source` through tables tx (columns) and ty (rows), itself a
  * RowSource of output rows [o0, o1), read in non-decreasing order. A sliding window holds only
  * the input rows the current output row needs plus some slack, so no full float copy of the
@@ -21,19 +38,20 @@ const SLACK = 64;
  * output width as it enters the window; vertical first combines full-width rows, then filters
  * the one combined row. Not in place; allocates only when built.
  */
-export function resampleStream(source: RowSource, tx: WeightTable, ty: WeightTable, o0: number, o1: number): RowSource {
+export function resampleStream(
+  source: RowSource,
+  tx: WeightTable,
+  ty: WeightTable,
+  o0: number,
+  o1: number,
+  alloc: (n: number) => Float32Array = (n) => new Float32Array(n),
+): RowSource {
   const lanes = source.lanes;
   const dstW = tx.dstLen;
-  const rows = o1 > o0 ? ty.start[o1 - 1] + ty.taps - ty.start[o0] : 0;
-  const outRows = o1 - o0;
-  const hFirstCost = rows * dstW * tx.taps + outRows * dstW * ty.taps;
-  const vFirstCost = outRows * source.width * ty.taps + outRows * dstW * tx.taps;
-  const hFirst = hFirstCost <= vFirstCost;
-  const rowLen = (hFirst ? dstW : source.width) * lanes;
-  const capacity = Math.min(rows, ty.taps + Math.max(SLACK, ty.taps));
-  const win = new Float32Array(capacity * rowLen);
-  const line = new Float32Array((hFirst ? source.width : 1) * lanes);
-  const mixed = hFirst ? line : new Float32Array(rowLen);
+  const { hFirst, rowLen, capacity, sizes } = streamLayout(source.width, lanes, tx, ty, o0, o1);
+  const win = alloc(sizes[0]);
+  const line = alloc(sizes[1]);
+  const mixed = hFirst ? line : alloc(sizes[2]);
   let winLo = o1 > o0 ? ty.start[o0] : 0;
   let winHi = winLo;
   return {

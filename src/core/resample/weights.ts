@@ -1,4 +1,5 @@
 import type { AxisFilter } from './filter.js';
+import type { SimdKernels } from '../simd/index.js';
 
 /**
  * A resampling weight table for one axis: output pixel o is
@@ -18,6 +19,11 @@ export interface WeightTable {
    * [c, b, a, b, c] starting at 2o - 2 (the pyramid's reduce): a faster loop serves those rows.
    */
   readonly symmetric5?: readonly [number, number, number];
+  /**
+   * Set on a copy placed in the SIMD memory (start and weights there): passes whose buffers are
+   * in that memory too run the compiled f32x4 loops.
+   */
+  readonly simd?: SimdKernels;
 }
 
 /**

@@ -1,0 +1,126 @@
+// AssemblyScript source of the optional SIMD resampling kernels (compiled by
+// scripts/build-simd.ts into src/core/simd/bytes.ts). Each function is the f32x4 twin of a
+// loop in src/core/resample/separable.ts, which stays the reference: same arguments as there,
+// with every array given as a byte address in the imported memory and element offsets as i32.
+// Out of place; allocates nothing. Reads up to 3 floats past a pixel's last sample (the arena
+// pads every buffer).
+
+@inline function addr(base: i32, index: i32): usize {
+  return <usize>(base + (index << 2));
+}
+
+/** Many lanes: dst row = sum_k w_k * src row (start + k), four taps per pass, f32x4 over lanes. */
+export function across(
+  dst: i32, dstBase: i32, dstStep: i32, src: i32, srcBase: i32, srcStep: i32,
+  lanes: i32, taps: i32, start: i32, weights: i32, o0: i32, o1: i32,
+): void {
+  const vec = lanes & ~3;
+  for (let o = o0; o < o1; o++) {
+    const d = addr(dst, dstBase + o * dstStep);
+    const row = addr(weights, o * taps);
+    const s = addr(src, srcBase + load<i32>(addr(start, o)) * srcStep);
+    const sb = <usize>(srcStep << 2);
+    const w0 = load<f32>(row);
+    const v0 = f32x4.splat(w0);
+    for (let i = 0; i < vec; i += 4) {
+      const j = <usize>(i << 2);
+      v128.store(d + j, f32x4.mul(v0, v128.load(s + j)));
+    }
+    for (let i = vec; i < lanes; i++) {
+      const j = <usize>(i << 2);
+      store<f32>(d + j, w0 * load<f32>(s + j));
+    }
+    let k = 1;
+    for (; k + 4 <= taps; k += 4) {
+      const a0 = load<f32>(row + (<usize>k << 2));
+      const a1 = load<f32>(row + (<usize>(k + 1) << 2));
+      const a2 = load<f32>(row + (<usize>(k + 2) << 2));
+      const a3 = load<f32>(row + (<usize>(k + 3) << 2));
+      const x0 = s + <usize>k * sb;
+      const x1 = x0 + sb;
+      const x2 = x1 + sb;
+      const x3 = x2 + sb;
+      const b0 = f32x4.splat(a0), b1 = f32x4.splat(a1), b2 = f32x4.splat(a2), b3 = f32x4.splat(a3);
+      for (let i = 0; i < vec; i += 4) {
+        const j = <usize>(i << 2);
+        let acc = v128.load(d + j);
+        acc = f32x4.add(acc, f32x4.mul(b0, v128.load(x0 + j)));
+        acc = f32x4.add(acc, f32x4.mul(b1, v128.load(x1 + j)));
+        acc = f32x4.add(acc, f32x4.mul(b2, v128.load(x2 + j)));
+        acc = f32x4.add(acc, f32x4.mul(b3, v128.load(x3 + j)));
+        v128.store(d + j, acc);
+      }
+      for (let i = vec; i < lanes; i++) {
+        const j = <usize>(i << 2);
+        store<f32>(d + j, load<f32>(d + j) + a0 * load<f32>(x0 + j) + a1 * load<f32>(x1 + j) + a2 * load<f32>(x2 + j) + a3 * load<f32>(x3 + j));
+      }
+    }
+    for (; k < taps; k++) {
+      const a = load<f32>(row + (<usize>k << 2));
+      const x = s + <usize>k * sb;
+      const b = f32x4.splat(a);
+      for (let i = 0; i < vec; i += 4) {
+        const j = <usize>(i << 2);
+        v128.store(d + j, f32x4.add(v128.load(d + j), f32x4.mul(b, v128.load(x + j))));
+      }
+      for (let i = vec; i < lanes; i++) {
+        const j = <usize>(i << 2);
+        store<f32>(d + j, load<f32>(d + j) + a * load<f32>(x + j));
+      }
+    }
+  }
+}
+
+@inline function storeLanes(d: usize, acc: v128, lanes: i32): void {
+  store<f32>(d, f32x4.extract_lane(acc, 0));
+  if (lanes > 1) store<f32>(d + 4, f32x4.extract_lane(acc, 1));
+  if (lanes > 2) store<f32>(d + 8, f32x4.extract_lane(acc, 2));
+  if (lanes > 3) store<f32>(d + 12, f32x4.extract_lane(acc, 3));
+}
+
+/** Pixels of 1..4 interleaved samples: one f32x4 accumulator holds every lane of a pixel. */
+export function pixels(
+  dst: i32, dstBase: i32, dstStep: i32, src: i32, srcBase: i32, srcStep: i32,
+  lanes: i32, taps: i32, start: i32, weights: i32, o0: i32, o1: i32,
+): void {
+  const sb = <usize>(srcStep << 2);
+  for (let o = o0; o < o1; o++) {
+    const row = addr(weights, o * taps);
+    let s = addr(src, srcBase + load<i32>(addr(start, o)) * srcStep);
+    let acc = f32x4.splat(0);
+    for (let k = 0; k < taps; k++, s += sb) {
+      acc = f32x4.add(acc, f32x4.mul(f32x4.splat(load<f32>(row + (<usize>k << 2))), v128.load(s)));
+    }
+    storeLanes(addr(dst, dstBase + o * dstStep), acc, lanes);
+  }
+}
+
+/** Interior rows of the pyramid's symmetric 5-tap reduce: a x0 + b (x-1 + x1) + c (x-2 + x2). */
+export function reduce5(
+  dst: i32, dstBase: i32, dstStep: i32, src: i32, srcBase: i32, srcStep: i32,
+  lanes: i32, a: f32, b: f32, c: f32, o0: i32, o1: i32,
+): void {
+  const sb = <usize>(srcStep << 2);
+  const va = f32x4.splat(a), vb = f32x4.splat(b), vc = f32x4.splat(c);
+  for (let o = o0; o < o1; o++) {
+    const s = addr(src, srcBase + (2 * o - 2) * srcStep);
+    const x0 = v128.load(s), x1 = v128.load(s + sb), x2 = v128.load(s + 2 * sb);
+    const x3 = v128.load(s + 3 * sb), x4 = v128.load(s + 4 * sb);
+    const acc = f32x4.add(f32x4.add(f32x4.mul(va, x2), f32x4.mul(vb, f32x4.add(x1, x3))), f32x4.mul(vc, f32x4.add(x0, x4)));
+    storeLanes(addr(dst, dstBase + o * dstStep), acc, lanes);
+  }
+}
+
+/** n 8-bit codes at src to working floats at dst through the 256-entry table at lut. */
+export function decode8(dst: i32, src: i32, lut: i32, n: i32): void {
+  for (let i = 0; i < n; i++) {
+    store<f32>(<usize>(dst + (i << 2)), load<f32>(<usize>(lut + (<i32>load<u8>(<usize>(src + i)) << 2))));
+  }
+}
+
+/** n 16-bit codes at src to working floats at dst through the 65536-entry table at lut. */
+export function decode16(dst: i32, src: i32, lut: i32, n: i32): void {
+  for (let i = 0; i < n; i++) {
+    store<f32>(<usize>(dst + (i << 2)), load<f32>(<usize>(lut + (<i32>load<u16>(<usize>(src + (i << 1))) << 2))));
+  }
+}

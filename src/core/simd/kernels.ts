@@ -1,0 +1,62 @@
+import { SIMD_WASM_BASE64 } from './bytes.js';
+
+type Pass = (
+  dst: number, dstBase: number, dstStep: number, src: number, srcBase: number, srcStep: number,
+  lanes: number, taps: number, start: number, weights: number, o0: number, o1: number,
+) => void;
+type Reduce = (
+  dst: number, dstBase: number, dstStep: number, src: number, srcBase: number, srcStep: number,
+  lanes: number, a: number, b: number, c: number, o0: number, o1: number,
+) => void;
+
+type Decode = (dst: number, src: number, lut: number, n: number) => void;
+
+/** The part of the WebAssembly JS API used here (the project's lib settings carry no DOM types). */
+export interface WasmMemory {
+  readonly buffer: ArrayBuffer;
+  grow(pages: number): number;
+}
+interface WasmApi {
+  validate(bytes: Uint8Array): boolean;
+  Memory: new (d: { initial: number }) => WasmMemory;
+  Module: new (bytes: Uint8Array) => object;
+  Instance: new (m: object, imports: object) => { exports: Record<string, unknown> };
+}
+
+/** The compiled f32x4 twins of the loops in resample/separable.ts, on one shared memory. */
+export interface SimdKernels {
+  readonly memory: WasmMemory;
+  readonly across: Pass;
+  readonly pixels: Pass;
+  readonly reduce5: Reduce;
+  readonly decode8: Decode;
+  readonly decode16: Decode;
+}
+
+let enabled = true;
+let kernels: SimdKernels | null | undefined;
+
+function instantiate(): SimdKernels | null {
+  const bin = atob(SIMD_WASM_BASE64);
+  const bytes = new Uint8Array(bin.length);
+  for (let i = 0; i < bin.length; i++) bytes[i] = bin.charCodeAt(i);
+  const wasm = (globalThis as unknown as { WebAssembly?: WasmApi }).WebAssembly;
+  // Engines without WebAssembly SIMD reject the module: the scalar loops serve then.
+  if (!wasm || !wasm.validate(bytes)) return null;
+  const memory = new wasm.Memory({ initial: 2 });
+  const inst = new wasm.Instance(new wasm.Module(bytes), { env: { memory } });
+  const e = inst.exports as unknown as Omit<SimdKernels, 'memory'>;
+  return { memory, across: e.across, pixels: e.pixels, reduce5: e.reduce5, decode8: e.decode8, decode16: e.decode16 };
+}
+
+/** The SIMD kernels of this thread, or null when disabled or unsupported. */
+export function simdKernels(): SimdKernels | null {
+  if (!enabled) return null;
+  if (kernels === undefined) kernels = instantiate();
+  return kernels;
+}
+
+/** Turns the SIMD kernels off or on (the scalar loops are the reference; tests compare both). */
+export function setSimdEnabled(on: boolean): void {
+  enabled = on;
+}
