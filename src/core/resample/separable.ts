@@ -26,10 +26,10 @@ export function resampleAxis(
   if (dst === src) throw new RangeError('resampleAxis works out of place: dst === src');
   const k = table.simd;
   if (k && dst.buffer === k.memory.buffer && src.buffer === dst.buffer) {
-    const args = [dst.byteOffset, dstBase, dstStep, src.byteOffset, srcBase, srcStep, lanes] as const;
-    if (lanes > 4) return k.across(...args, table.taps, table.start.byteOffset, table.weights.byteOffset, o0, o1);
-    if (table.symmetric5) return simdReduce5(k, args, table, o0, o1);
-    return k.pixels(...args, table.taps, table.start.byteOffset, table.weights.byteOffset, o0, o1);
+    const d = dst.byteOffset, s = src.byteOffset;
+    if (table.symmetric5 && lanes <= 4) return simdReduce5(k, d, dstBase, dstStep, s, srcBase, srcStep, lanes, table, o0, o1);
+    const pass = lanes > 4 ? k.across : k.pixels;
+    return pass(d, dstBase, dstStep, s, srcBase, srcStep, lanes, table.taps, table.start.byteOffset, table.weights.byteOffset, o0, o1);
   }
   if (lanes > 4) return across(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, table, o0, o1);
   if (table.symmetric5) return reduce5(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, table, o0, o1);
@@ -121,19 +121,18 @@ function reduce5(
 
 /** reduce5 through the SIMD kernels: interior rows by symmetry, border rows as plain pixels. */
 function simdReduce5(
-  k: NonNullable<WeightTable['simd']>,
-  args: readonly [number, number, number, number, number, number, number],
-  table: WeightTable,
-  o0: number,
-  o1: number,
+  k: NonNullable<WeightTable['simd']>, d: number, dstBase: number, dstStep: number, s: number,
+  srcBase: number, srcStep: number, lanes: number, table: WeightTable, o0: number, o1: number,
 ): void {
   const [a, b, c] = table.symmetric5!;
   const first = Math.min(o1, Math.max(o0, 1));
   const last = Math.max(first, Math.min(o1, (table.srcLen - 3) >> 1));
-  const t = [table.taps, table.start.byteOffset, table.weights.byteOffset] as const;
-  if (o0 < first) k.pixels(...args, ...t, o0, first);
-  k.reduce5(...args, a, b, c, first, last);
-  if (last < o1) k.pixels(...args, ...t, last, o1);
+  const { taps } = table;
+  const start = table.start.byteOffset;
+  const weights = table.weights.byteOffset;
+  if (o0 < first) k.pixels(d, dstBase, dstStep, s, srcBase, srcStep, lanes, taps, start, weights, o0, first);
+  k.reduce5(d, dstBase, dstStep, s, srcBase, srcStep, lanes, a, b, c, first, last);
+  if (last < o1) k.pixels(d, dstBase, dstStep, s, srcBase, srcStep, lanes, taps, start, weights, last, o1);
 }
 
 /**
