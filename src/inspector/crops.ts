@@ -33,7 +33,7 @@ function placeMark(mark: HTMLElement, win: ZoomWindow | undefined): void {
 export function showCrops(report: Report, source: string): void {
   const naive = byId<HTMLImageElement>('naive-img');
   const planned = byId<HTMLImageElement>('planned-img');
-  const win = riskiestWindow(report.grid, geometryOf(report, naive));
+  const win = riskiestWindow(report.grid, geometryOf(report));
   placeMark(byId('naive-mark'), win);
   placeMark(byId('planned-mark'), win);
   if (!win) {
@@ -43,7 +43,8 @@ export function showCrops(report: Report, source: string): void {
   const zoom = zoomFactor(win);
   const where = `output pixels ${win.x}–${win.x + win.width} across, ${win.y}–${win.y + win.height} down`;
   byId('zoom-note').textContent =
-    `The outlined square on each copy (${where}; region risk ${win.risk.toFixed(2)} of 1), ` +
+    `The outlined square on each copy (${where}), around the region the report rates riskiest ` +
+    `(score ${win.risk.toFixed(2)} of 1 for the foldwise copy), ` +
     `shown ${zoom} times larger so that every pixel is a clear square.`;
   drawZoom(byId('naive-zoom'), naive, win, zoom, `Careless copy of ${source}, ${where}, enlarged ${zoom} times`);
   drawZoom(byId('planned-zoom'), planned, win, zoom, `foldwise copy of ${source}, ${where}, enlarged ${zoom} times`);

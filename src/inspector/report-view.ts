@@ -3,6 +3,7 @@
  * peaks and the Rendition-Plan header. Every figure keeps its unit; each is also said in
  * pixels ("repeats every 2.2 px") for readers who do not think in cycles per pixel.
  */
+import { levelOf, scoreOf } from '../core/risk/score.js';
 import { describeRegion } from '../ingest/regions.js';
 import type { Geometry, Grid } from './zoom.js';
 
@@ -13,6 +14,8 @@ type Pair = { x: number; y: number };
 export interface Report {
   source: { width: number; height: number };
   target: { width: number; height: number };
+  /** The output image when `contain` puts the picture on bars; null otherwise. */
+  canvas: { width: number; height: number; left: number; top: number } | null;
   scale: Pair;
   nyquist: Pair;
   folded: { unfiltered: number; planned: number };
@@ -22,38 +25,68 @@ export interface Report {
   grid: Grid;
   recommendedSigma: Pair;
   reason: string;
-  plan: { crop?: Geometry['crop'] };
+  plan: { crop: Geometry['crop']; header: string };
 }
 
 const byId = (id: string): HTMLElement => document.getElementById(id) as HTMLElement;
 /** A share of energy as a percentage and in decibels (10 log10), the unit the levels use. */
-const share = (f: number) => (f > 0 ? `${(f * 100).toPrecision(2)} % (${(10 * Math.log10(f)).toFixed(1)} dB)` : '0 %');
+function share(f: number): string {
+  if (!(f > 0)) return '0 %';
+  // Below -60 dB (one part in a million) nothing of it can show in 8-bit output.
+  if (f < 1e-6) return '< 0.0001 % (< -60 dB)';
+  const percent = f * 100;
+  const text = percent >= 10 ? percent.toFixed(0) : percent >= 1 ? percent.toFixed(1) : percent.toPrecision(2);
+  const db = 10 * Math.log10(f);
+  return `${text} % (${Math.abs(db) < 0.05 ? '0.0' : db.toFixed(1)} dB)`;
+}
 const fixed = (v: number, d = 3) => v.toFixed(d);
-const period = (f: number) => (f > 0 ? fixed(1 / f, 1) : '—');
+/** Source or output pixels per cycle; a dash where the pattern does not vary along that axis. */
+const period = (f: number) => (f >= 1e-3 ? fixed(1 / f, 1) : '—');
 const both = (p: Pair, show: (v: number) => string) => (p.x === p.y ? show(p.x) : `${show(p.x)} / ${show(p.y)}`);
 const xy = (fx: number, fy: number, show: (v: number) => string) => `${show(Math.abs(fx))} / ${show(Math.abs(fy))}`;
 
 /** Where the rendition's pixels come from in the source, for mapping grid cells onto it. */
-export function geometryOf(report: Report, img: HTMLImageElement): Geometry {
-  const { width: sourceWidth, height: sourceHeight } = report.source;
+export function geometryOf(report: Report): Geometry {
   return {
-    sourceWidth,
-    sourceHeight,
-    crop: report.plan.crop ?? { x: 0, y: 0, width: sourceWidth, height: sourceHeight },
-    targetWidth: img.naturalWidth,
-    targetHeight: img.naturalHeight,
+    sourceWidth: report.source.width,
+    sourceHeight: report.source.height,
+    crop: report.plan.crop,
+    targetWidth: report.target.width,
+    targetHeight: report.target.height,
+    offset: report.canvas ? { x: report.canvas.left, y: report.canvas.top } : undefined,
   };
 }
 
+/** The careless copy's level: the same thresholds applied to the unfiltered folded fraction. */
+const carelessLevel = (report: Report): Level => levelOf(report.folded.unfiltered);
+
+const looks: Record<Level, string> = {
+  high: 'will shimmer',
+  moderate: 'may show faint false patterns',
+  low: 'is safe',
+};
+
 function verdict(report: Report): string {
-  const where = describeRegion(report.grid) ?? 'the whole picture';
-  const careless = share(report.folded.unfiltered);
-  const planned = share(report.folded.planned);
+  const careless = carelessLevel(report);
+  const folded = share(report.folded.unfiltered);
+  const kept = share(report.folded.planned);
+  const first =
+    careless === 'low'
+      ? `Neither copy is at risk at this size: only ${folded} of the fine detail would fold back even in the careless copy.`
+      : `The careless copy ${looks[careless]}: ${folded} of the picture's fine detail folds into false coarse bands (moiré).`;
+  if (careless === 'low') return first;
   if (report.level === 'low') {
-    return `Little risk at this size: only ${careless} of the fine detail would fold into false patterns in the careless copy; foldwise leaves ${planned}.`;
+    return `${first} The foldwise copy is safe: it blurs that detail away first and leaves ${kept}.`;
   }
-  const verb = report.level === 'high' ? 'will shimmer' : 'may show faint false patterns';
-  return `The careless copy ${verb}, mostly in ${where}: ${careless} of the fine detail folds into false coarse bands (moiré). The foldwise copy blurs it away first and leaves ${planned}.`;
+  const where = describeRegion(report.grid);
+  const sigma = Math.max(report.recommendedSigma.x, report.recommendedSigma.y).toFixed(2);
+  return `${first} Even the foldwise copy ${looks[report.level]} (${kept} folds back${where ? `, mostly in ${where}` : ''}); a blur of sigma ${sigma} source px would make it safe.`;
+}
+
+function badge(id: string, level: Level): void {
+  const element = byId(id);
+  element.textContent = `${level} risk`;
+  element.className = `badge ${level}`;
 }
 
 function term(list: HTMLElement, name: string, value: string, key: string): void {
@@ -92,14 +125,16 @@ function renderPeaks(peaks: Report['peaks']): void {
 
 /** Fills the verdict, the figures and the peak table from one report. */
 export function renderNumbers(report: Report): void {
-  const badge = byId('level-badge');
-  badge.textContent = report.level;
-  badge.className = `badge ${report.level}`;
+  const careless = carelessLevel(report);
+  badge('naive-level', careless);
+  badge('planned-level', report.level);
   byId('verdict-text').textContent = verdict(report);
   const list = byId('numbers');
   list.replaceChildren();
-  term(list, 'Risk', `${report.level} (score ${fixed(report.score, 2)} of 1)`, 'score');
-  term(list, 'Size', `${report.source.width}×${report.source.height} → ${report.target.width}×${report.target.height} px`, 'size');
+  term(list, 'Risk of the careless copy', `${careless} (score ${fixed(scoreOf(report.folded.unfiltered), 2)} of 1)`, 'careless-score');
+  term(list, 'Risk of the foldwise copy', `${report.level} (score ${fixed(report.score, 2)} of 1)`, 'score');
+  const bars = report.canvas ? ` on a ${report.canvas.width}×${report.canvas.height} canvas` : '';
+  term(list, 'Size', `${report.source.width}×${report.source.height} → ${report.target.width}×${report.target.height} px${bars}`, 'size');
   term(list, 'Shrink factor', both(report.scale, (v) => `${fixed(v, 2)}×`), 'scale');
   term(list, 'Finest pattern the new grid holds (new Nyquist)',
     `${both(report.nyquist, (v) => fixed(v))} cycles per source pixel: one stripe pair every ${both(report.nyquist, period)} source px`, 'nyquist');
@@ -112,7 +147,7 @@ export function renderNumbers(report: Report): void {
 
 /** Empties the verdict, figures and peaks, so nothing from an earlier request remains. */
 export function clearNumbers(): void {
-  byId('level-badge').textContent = '';
+  for (const id of ['naive-level', 'planned-level']) byId(id).textContent = '';
   byId('verdict-text').textContent = 'No report for this request.';
   byId('numbers').replaceChildren();
   byId('peaks').querySelector('tbody')?.replaceChildren();

@@ -9,8 +9,11 @@ export interface Geometry {
   sourceHeight: number;
   /** The region of the source that fills the rendition, in source pixels. */
   crop: { x: number; y: number; width: number; height: number };
+  /** The picture's size in output pixels (without any contain bars). */
   targetWidth: number;
   targetHeight: number;
+  /** Where the picture sits in the output image when `contain` adds bars; default 0, 0. */
+  offset?: { x: number; y: number };
 }
 
 export interface Grid {
@@ -20,7 +23,7 @@ export interface Grid {
   cells: ArrayLike<number>;
 }
 
-/** A window of the rendition, in output pixels, and the grid cell it shows. */
+/** A window of the output image, in its pixels, and the grid cell it shows. */
 export interface ZoomWindow {
   x: number;
   y: number;
@@ -63,7 +66,7 @@ export function riskiestWindow(grid: Grid, geo: Geometry): ZoomWindow | undefine
       const height = Math.min(windowSide, geo.targetHeight);
       const x = centred((rect.x0 + rect.x1) / 2, width, geo.targetWidth);
       const y = centred((rect.y0 + rect.y1) / 2, height, geo.targetHeight);
-      best = { x, y, width, height, column, row, risk };
+      best = { x: x + (geo.offset?.x ?? 0), y: y + (geo.offset?.y ?? 0), width, height, column, row, risk };
     }
   }
   return best;

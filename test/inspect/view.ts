@@ -16,7 +16,8 @@ export interface View {
   spectrum: ImageView;
   /** The figures of the numbers list, by their data-key. */
   numbers: Record<string, string>;
-  level: string;
+  /** The level badges of the two copies. */
+  levels: { naive: string; planned: string };
   verdict: string;
   plan: string;
   peakRows: number;
@@ -72,7 +73,10 @@ const collect = `(() => {
     map: image('map-img'),
     spectrum: image('spectrum-img'),
     numbers,
-    level: document.getElementById('level-badge').textContent,
+    levels: {
+      naive: document.getElementById('naive-level').textContent,
+      planned: document.getElementById('planned-level').textContent,
+    },
     verdict: document.getElementById('verdict-text').textContent,
     plan: document.getElementById('plan-header').textContent,
     peakRows: document.querySelectorAll('#peaks tbody tr').length,
@@ -90,6 +94,26 @@ export async function shown(page: Page): Promise<View> {
   const outcome = await (await page.waitForFunction(finished)).jsonValue();
   if (outcome === 'error') throw new Error(`the page reports: ${await page.textContent('#status')}`);
   return page.evaluate<View>(collect);
+}
+
+/**
+ * Standard deviation of the grey level (Rec. 709 luma weights on the 8-bit codes) of each
+ * enlarged crop: how much false contrast each copy holds in the riskiest region.
+ */
+export function cropSpread(page: Page): Promise<{ naive: number; planned: number }> {
+  return page.evaluate(`(() => {
+    const spread = (id) => {
+      const canvas = document.getElementById(id);
+      const { data } = canvas.getContext('2d').getImageData(0, 0, canvas.width, canvas.height);
+      let sum = 0, sum2 = 0, n = 0;
+      for (let i = 0; i < data.length; i += 4) {
+        const y = 0.2126 * data[i] + 0.7152 * data[i + 1] + 0.0722 * data[i + 2];
+        sum += y; sum2 += y * y; n++;
+      }
+      return Math.sqrt(Math.max(0, sum2 / n - (sum / n) ** 2));
+    };
+    return { naive: spread('naive-zoom'), planned: spread('planned-zoom') };
+  })()`);
 }
 
 export function readView(page: Page): Promise<View> {

@@ -41,6 +41,11 @@ describe('the enlarged window around the riskiest region', () => {
     expect(win).toMatchObject({ column: 1, row: 1, risk: 0.7, x: 126, y: 26, width: 48, height: 48 });
   });
 
+  it('shifts the window by the bars that contain puts around the picture', () => {
+    const barred: Geometry = { ...whole, offset: { x: 40, y: 0 } };
+    expect(riskiestWindow(grid({ 6: 0.9 }), barred)).toMatchObject({ x: 141, y: 66 });
+  });
+
   it('uses the whole rendition when it is smaller than the window', () => {
     const tiny: Geometry = { ...whole, targetWidth: 30, targetHeight: 36 };
     expect(riskiestWindow(grid({ 9: 0.5 }), tiny)).toMatchObject({ x: 0, y: 0, width: 30, height: 36 });
