@@ -59,9 +59,9 @@ function send(path: string): Promise<{ statusCode: number; headers: http.Incomin
   });
 }
 
-async function expectProblem(url: string, c: { name: string; status: number; code: string }): Promise<void> {
+async function expectProblem(url: string, c: { name: string; status: number; code: string }, endpoint = 'renditions'): Promise<void> {
   const before = await cachedCount();
-  const res = await send(`/v1/renditions/${url}`);
+  const res = await send(`/v1/${endpoint}/${url}`);
   if (c.status === 200) {
     expect(res.statusCode, res.body.slice(0, 200)).toBe(200);
   } else {
@@ -120,6 +120,16 @@ describe('hostile corpus', () => {
   }, 60_000);
 
   it.each(traversalCases)('path traversal: $name', async (c: RequestCase) => expectProblem(c.url, c));
+
+  it.each(traversalCases)('alias-risk path traversal: $name', async (c: RequestCase) => expectProblem(c.url, c, 'alias-risk'));
+
+  it('hostile source files through the alias-risk endpoint', async () => {
+    for (const s of sources.filter((x) => x.status !== 200)) {
+      await expectProblem(`${s.file}?width=32`, s, 'alias-risk').catch((e: Error) => {
+        throw new Error(`${s.name}: ${e.message}`, { cause: e });
+      });
+    }
+  }, 60_000);
 
   it.each(parameterCases)('parameter abuse: $name', async (c: RequestCase) => expectProblem(c.url, c));
 

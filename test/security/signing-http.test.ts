@@ -78,6 +78,16 @@ describe('signed URLs, signing required (keys set)', () => {
     expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
   });
 
+  it('covers the alias-risk endpoint too; a rendition signature does not carry over', async () => {
+    const risk = '/v1/alias-risk/stripes.png';
+    expect((await t.app.inject({ url: `${risk}?width=16` })).json()).toMatchObject({ status: 403, code: 'ERR_SIGNATURE_REQUIRED' });
+    const borrowed = signUrl(path, { width: '16' }, key).replace(path, risk);
+    expect((await t.app.inject({ url: borrowed })).json()).toMatchObject({ status: 403, code: 'ERR_SIGNATURE_INVALID' });
+    const res = await t.app.inject({ url: signUrl(risk, { width: '16' }, key) });
+    expect(res.statusCode, res.body).toBe(200);
+    expect(res.headers['cache-control']).toBe('public, max-age=31536000, immutable');
+  });
+
   it('other endpoints need no signature', async () => {
     expect((await t.app.inject({ url: '/healthz' })).statusCode).toBe(200);
   });
