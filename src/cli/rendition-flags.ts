@@ -48,10 +48,14 @@ export async function parseRenditionQuery(config: Config, raw: Record<string, st
   }
 }
 
-/** App settings for a command on one file: its folder is the origin; no cache at all. */
+/**
+ * App settings for a command on one file: its folder is the origin; no cache at all; no
+ * signing (the command calls the app in-process, on behalf of whoever may read the file).
+ */
 export function oneFileSettings(folder: string): (config: Config) => void {
   return (config) => {
     config.origin.sourceDir = folder;
     config.cache = { ...config.cache, memoryBytes: 0, diskBytes: 0, redisUrl: null };
+    config.signing = { ...config.signing, keys: [], required: false };
   };
 }

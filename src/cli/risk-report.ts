@@ -1,30 +1,56 @@
 /**
- * One alias-risk report for the command line, computed the way the ingest ladder computes
- * each of its widths: the source decoded with the service's limits, its spectrum from the
- * service's store, the render service's plan (adaptive prefilter included) assessed against it.
+ * One alias-risk report for the command line: GET /v1/alias-risk/{source} on the in-process
+ * app, so the JSON, the numbers and the heat map are exactly the API's.
  */
-import { formatPlanHeader } from '../core/index.js';
-import { assessLadder } from '../ingest/assess.js';
+import { writeFile } from 'node:fs/promises';
+import type { RiskReport } from '../core/risk/index.js';
+import { type ErrorCode, FoldwiseError } from '../errors.js';
+import { widthRisk } from '../ingest/assess.js';
 import { writeWarnings } from '../ingest/warnings.js';
-import { loadSource } from '../render/source.js';
-import { StageClock } from '../render/timings.js';
+import { aliasRiskPrefix } from '../routes/alias-risk.js';
+import type { riskBody } from '../risk/report.js';
 import type { CommandApp } from './app.js';
-import { parseRenditionQuery } from './rendition-flags.js';
+import { UsageError } from './exit.js';
 import type { RiskView } from './risk-table.js';
 
-export async function assessOne({ app, config }: CommandApp, path: string, raw: Record<string, string>): Promise<RiskView> {
-  const query = await parseRenditionQuery(config, raw);
-  const { decoded, identity } = await loadSource(app.origin, path, config.limits, new StageClock());
-  const { raster } = decoded;
-  const spectrum = app.spectra.ofRaster(raster, identity);
-  const steps = assessLadder(raster, spectrum, [{ width: query.width ?? 0, query }], config.limits, app.renderContext.adaptiveSigma, identity);
-  const step = steps[0];
+export type RiskBody = ReturnType<typeof riskBody>;
+
+async function get(app: CommandApp['app'], url: string) {
+  const res = await app.inject({ method: 'GET', url });
+  if (res.statusCode === 200) return res;
+  const problem = res.json() as { code: ErrorCode; detail: string };
+  // A refused parameter is the command line's fault (exit 2); anything else is a failure.
+  if (problem.code.startsWith('ERR_PARAM_')) throw new UsageError(problem.detail);
+  throw new FoldwiseError(problem.code, problem.detail);
+}
+
+/** The report of `path` for the rendition query `raw`; with `mapFile`, the heat map too. */
+export async function fetchRisk({ app }: CommandApp, path: string, raw: Record<string, string>, mapFile?: string): Promise<RiskBody> {
+  const url = `${aliasRiskPrefix}${encodeURIComponent(path)}?${new URLSearchParams(raw)}`;
+  const body = (await get(app, url)).json() as RiskBody;
+  if (mapFile) await writeFile(mapFile, (await get(app, `${url}&view=map`)).rawPayload);
+  return body;
+}
+
+/** The table's view of an API answer, with the ingest hook's warning sentence for it. */
+export function riskView(body: RiskBody): RiskView {
+  const report: RiskReport = {
+    nyquist: body.nyquist,
+    scale: body.scale,
+    folded: body.folded,
+    score: body.score,
+    level: body.level,
+    peaks: body.peaks,
+    grid: body.grid,
+    recommendedSigma: body.recommendedSigma,
+    reason: body.reason,
+  };
   return {
-    file: path,
-    source: { width: raster.width, height: raster.height },
-    target: { width: step.plan.targetWidth, height: step.plan.targetHeight },
-    plan: formatPlanHeader(step.plan),
-    report: step.report,
-    warnings: writeWarnings([{ ...step, width: step.plan.targetWidth }]),
+    file: body.source.path,
+    source: { width: body.source.width, height: body.source.height },
+    target: body.target,
+    plan: body.plan.header,
+    report,
+    warnings: writeWarnings([widthRisk(body.target.width, report)]),
   };
 }

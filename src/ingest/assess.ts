@@ -1,14 +1,12 @@
 /**
  * The alias risk of every width of a ladder, from one spectrum analysis of the source: the
- * spectrum is estimated once, then each width's plan is checked against it (cheap).
+ * spectrum is estimated once, then each width's plan is checked against it (cheap), and the
+ * report is turned into what the warnings need (where, moiré or jaggies, what avoids it).
  */
 import type { Limits } from '../config.js';
-import { assessRisk, CEIL_DB, FLOOR_DB, type RiskReport, type SourceSpectrum } from '../core/risk/index.js';
-import type { PixelRaster, Plan } from '../core/types.js';
-import type { SourceIdentity } from '../origins/types.js';
-import { planRendition } from '../render/plan.js';
-import type { RenderContext } from '../render/service.js';
-import { planResponseOf } from '../risk/adaptive.js';
+import { CEIL_DB, FLOOR_DB, type RiskReport, type SourceSpectrum } from '../core/risk/index.js';
+import type { Plan } from '../core/types.js';
+import { assessRendition } from '../risk/report.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import type { RiskGrid } from './regions.js';
 import type { WidthRisk } from './warnings.js';
@@ -43,33 +41,29 @@ function isPeriodic(report: RiskReport): boolean {
   return report.folded.planned > 0 && periodic >= 0.5 * report.folded.planned;
 }
 
+/** What a warning needs to know about one width, from its risk report. */
+export function widthRisk(width: number, report: RiskReport): WidthRisk {
+  return {
+    width,
+    level: report.level,
+    score: report.score,
+    grid: linearGrid(report.grid),
+    periodic: isPeriodic(report),
+    remedySigma: report.level === 'low' ? undefined : Math.max(report.recommendedSigma.x, report.recommendedSigma.y),
+  };
+}
+
 /**
- * Plans each query as the render service will (the same layout, and the same content-adaptive
- * prefilter when `adaptive` is wired), then assesses its alias risk against `spectrum`.
+ * Each query planned and assessed exactly as GET /v1/alias-risk does it (src/risk/report.ts:
+ * the render path's layout and plan, its content-adaptive prefilter), against one spectrum.
  */
 export function assessLadder(
-  raster: PixelRaster,
   spectrum: SourceSpectrum,
   queries: ReadonlyArray<{ width: number; query: RenditionQuery }>,
   limits: Limits,
-  adaptive?: RenderContext['adaptiveSigma'],
-  identity?: SourceIdentity,
 ): LadderStep[] {
   return queries.map(({ width, query }) => {
-    const first = planRendition(raster, query, limits);
-    const sigma = query.prefilter === 'auto' ? adaptive?.(raster, first.plan, identity) : undefined;
-    const { layout, plan } = sigma ? planRendition(raster, query, limits, sigma) : first;
-    const report = assessRisk(spectrum, plan, planResponseOf(plan));
-    return {
-      width,
-      height: layout.targetHeight,
-      level: report.level,
-      score: report.score,
-      grid: linearGrid(report.grid),
-      periodic: isPeriodic(report),
-      remedySigma: report.level === 'low' ? undefined : Math.max(report.recommendedSigma.x, report.recommendedSigma.y),
-      plan,
-      report,
-    };
+    const { layout, plan, report } = assessRendition(spectrum, query, limits);
+    return { ...widthRisk(width, report), height: layout.targetHeight, plan, report };
   });
 }

@@ -149,12 +149,9 @@ export class IngestService extends EventEmitter {
     const spectrum = this.spectra.ofRaster(raster, identity);
     if (this.spectra.analyses > before) this.emit('analysed', sourceKey);
     const steps = assessLadder(
-      raster,
       spectrum,
       widths.map((width) => ({ width, query: queryFor(width, formats[0]) })),
       this.config.limits,
-      this.render.adaptiveSigma,
-      identity,
     );
     const tasks = steps.flatMap((step) => formats.map((format) => ({ step, format })));
     const renditions = await mapBounded(tasks, this.config.ingest.concurrency, async ({ step, format }): Promise<ManifestRendition> => {

@@ -54,7 +54,7 @@ describe('foldwise render', () => {
 });
 
 describe('foldwise risk', () => {
-  it('prints a readable table, and JSON with the peak where the sampling theorem puts it', async () => {
+  it('prints a readable table, the API JSON with the peak where the sampling theorem puts it, and the heat map', async () => {
     const src = join(dir, 'shop', 'fabrics', 'stripe.png');
     const table = await runCli(['risk', src, '--width', '50'], { env });
     expect(table.code).toBe(0);
@@ -63,17 +63,20 @@ describe('foldwise risk', () => {
     }
     expect(table.stdout).toMatch(/^target {5}50 x 25 {2}\(scale 4\.000 x 4\.000\)$/m);
 
-    const json = await runCli(['risk', src, '--width', '50', '--json'], { env });
+    const map = join(dir, 'stripe-risk.png');
+    const json = await runCli(['risk', src, '--width', '50', '--json', '--map', map], { env });
     expect(json.code).toBe(0);
-    const view = JSON.parse(json.stdout);
+    const view = JSON.parse(json.stdout); // the body of GET /v1/alias-risk/{source}
     expect(view.target).toEqual({ width: 50, height: 25 });
     // Sampling theorem (Shannon 1949; CHECKS.md): 0.3 cycles/px decimated by 4 appears at
     // |4 x 0.3 - round(4 x 0.3)| = 0.2 cycles per output pixel.
-    const [peak] = view.report.peaks;
+    const [peak] = view.peaks;
     expect(peak.kind).toBe('periodic');
     expect(Math.abs(Math.abs(peak.fx) - 0.3)).toBeLessThan(1 / 64);
     expect(Math.abs(peak.aliasTo.fx - 0.2)).toBeLessThan(4 / 64);
-    expect(view.report.folded.unfiltered).toBeGreaterThan(0.5);
+    expect(view.folded.unfiltered).toBeGreaterThan(0.5);
+    const meta = await sharp(map).metadata();
+    expect([meta.format, meta.width, meta.height]).toEqual(['png', 200, 100]);
 
     const usage = await runCli(['risk', src], { env });
     expect([usage.code, usage.stderr]).toEqual([2, expect.stringContaining('give --width, --height, or both')]);
