@@ -78,7 +78,10 @@ export function across(
   if (lanes > 3) store<f32>(d + 12, f32x4.extract_lane(acc, 3));
 }
 
-/** Pixels of 1..4 interleaved samples: one f32x4 accumulator holds every lane of a pixel. */
+/**
+ * Pixels of 1..4 interleaved samples: f32x4 accumulators hold every lane of a pixel; four of
+ * them take alternate taps so the additions do not wait on each other.
+ */
 export function pixels(
   dst: i32, dstBase: i32, dstStep: i32, src: i32, srcBase: i32, srcStep: i32,
   lanes: i32, taps: i32, start: i32, weights: i32, o0: i32, o1: i32,
@@ -87,11 +90,19 @@ export function pixels(
   for (let o = o0; o < o1; o++) {
     const row = addr(weights, o * taps);
     let s = addr(src, srcBase + load<i32>(addr(start, o)) * srcStep);
-    let acc = f32x4.splat(0);
-    for (let k = 0; k < taps; k++, s += sb) {
-      acc = f32x4.add(acc, f32x4.mul(f32x4.splat(load<f32>(row + (<usize>k << 2))), v128.load(s)));
+    let acc0 = f32x4.splat(0), acc1 = f32x4.splat(0), acc2 = f32x4.splat(0), acc3 = f32x4.splat(0);
+    let k = 0;
+    for (; k + 4 <= taps; k += 4, s += 4 * sb) {
+      const r = row + (<usize>k << 2);
+      acc0 = f32x4.add(acc0, f32x4.mul(v128.load32_splat(r), v128.load(s)));
+      acc1 = f32x4.add(acc1, f32x4.mul(v128.load32_splat(r + 4), v128.load(s + sb)));
+      acc2 = f32x4.add(acc2, f32x4.mul(v128.load32_splat(r + 8), v128.load(s + 2 * sb)));
+      acc3 = f32x4.add(acc3, f32x4.mul(v128.load32_splat(r + 12), v128.load(s + 3 * sb)));
     }
-    storeLanes(addr(dst, dstBase + o * dstStep), acc, lanes);
+    for (; k < taps; k++, s += sb) {
+      acc0 = f32x4.add(acc0, f32x4.mul(f32x4.splat(load<f32>(row + (<usize>k << 2))), v128.load(s)));
+    }
+    storeLanes(addr(dst, dstBase + o * dstStep), f32x4.add(f32x4.add(acc0, acc1), f32x4.add(acc2, acc3)), lanes);
   }
 }
 
