@@ -10,6 +10,8 @@ import type { WeightTable } from './weights.js';
  * A row of interleaved pixels is lanes = channels, step = channels; a block of rows filtered
  * down its columns is lanes = row length, step = row length (the lane loop is then the
  * contiguous inner loop). Not in place: dst and src must be different arrays. Allocates nothing.
+ * When the table was placed in the SIMD memory and both arrays live there too, the compiled
+ * f32x4 twin of the loop runs (assembly/resample.ts); these scalar loops are its reference.
  */
 export function resampleAxis(
   dst: Float32Array,

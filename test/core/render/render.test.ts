@@ -107,6 +107,15 @@ describe('bands and shapes', () => {
     expect(Array.from(top.data)).toEqual(Array.from(whole.data.subarray(0, cut * tw * 3)));
     expect(Array.from(rest.data)).toEqual(Array.from(whole.data.subarray(cut * tw * 3)));
   });
+  it('bands agree with the whole render through a pyramid level too (400x300 -> 60x45)', () => {
+    const big = raster(400, 300, 3, false, (x, y, c) => (x * 5 + y * 11 + c * 70 + ((x * y) % 7)) % 256);
+    const plan = planFor(400, 300, 60, 45);
+    expect(plan.y.pyramidLevels).toBe(1);
+    const whole = renderRaster(big, plan).data;
+    const parts = [[0, 17], [17, 30], [30, 45]].map(([a, b]) => renderRaster(big, plan, { rows: [a, b] }).data);
+    expect(Array.from(parts.flatMap((p) => Array.from(p)))).toEqual(Array.from(whole));
+  });
+
   it('rejects a raster that does not match the plan, and bad row bands', () => {
     const plan = planFor(97, 83, 40, 30);
     expect(() => renderRaster({ ...img, width: 96 }, plan)).toThrow(RangeError);
