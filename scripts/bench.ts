@@ -89,3 +89,7 @@ console.log(simd
   ? `working memory of the resample (SIMD arena, largest job): ${(simd.memory.buffer.byteLength / 2 ** 20).toFixed(1)} MiB against ${(4000 * 3000 * 3 / 2 ** 20).toFixed(1)} MiB of decoded 12 MP pixels`
   : 'SIMD kernels unavailable: scalar loops measured');
 await pool.close();
+
+// The alias-risk analysis of the same kind of source, as a ratio to the same decode (scripts/bench-risk.ts).
+const { riskBenchTable } = await import('./bench-risk.js');
+console.log(`\n${await riskBenchTable(RUNS)}`);

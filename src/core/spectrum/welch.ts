@@ -56,21 +56,29 @@ function scratchFor(t: number): Scratch {
   return s;
 }
 
+const windows2d = new Map<number, Float64Array>();
+
+/** The separable 2-D periodic Hann window w(x) w(y), cached per side. */
+function window2d(t: number): Float64Array {
+  let w2 = windows2d.get(t);
+  if (!w2) {
+    const w = hannWindow(t);
+    w2 = new Float64Array(t * t);
+    for (let y = 0; y < t; y++) for (let x = 0; x < t; x++) w2[y * t + x] = w[x] * w[y];
+    windows2d.set(t, w2);
+  }
+  return w2;
+}
+
 /** Windowed, mean-removed luminance of tile `k` into `dst`; returns the windowed mean. */
 function loadTile(dst: Float64Array, lum: Float64Array, src: PixelRaster, layout: TileLayout, k: number): number {
   const t = layout.tileSize;
-  const w = hannWindow(t);
+  const w2 = window2d(t);
   tileLuminance(lum, src, layout.corners[2 * k], layout.corners[2 * k + 1], t);
   let sum = 0;
-  for (let y = 0; y < t; y++) {
-    let row = 0;
-    for (let x = 0; x < t; x++) row += w[x] * lum[y * t + x];
-    sum += w[y] * row;
-  }
+  for (let i = 0; i < t * t; i++) sum += w2[i] * lum[i];
   const mean = sum / ((t / 2) * (t / 2)); // sum of the 2-D periodic Hann window is (T/2)^2
-  for (let y = 0; y < t; y++) {
-    for (let x = 0; x < t; x++) dst[y * t + x] = (lum[y * t + x] - mean) * w[x] * w[y];
-  }
+  for (let i = 0; i < t * t; i++) dst[i] = (lum[i] - mean) * w2[i];
   return mean;
 }
 

@@ -1,0 +1,68 @@
+/**
+ * The alias-risk analysis cost against sharp's decode-only time of the same 12 MP JPEG, both
+ * measured in this run (DESIGN.md target: analysis <= 0.3x decode). Prints a table of
+ * ratios; asserts nothing. Standalone: `npx tsx scripts/bench-risk.ts`; `npm run bench` also
+ * prints it (scripts/bench.ts).
+ */
+import { fileURLToPath } from 'node:url';
+import sharp from 'sharp';
+import { makePlan, planResponse } from '../src/core/index.js';
+import { analyzeSpectrum, assessRisk } from '../src/core/risk/index.js';
+import type { PixelRaster } from '../src/core/types.js';
+import { benchJpeg } from './bench/texture.js';
+
+interface Timing {
+  wall: number;
+  cpu: number;
+  /** Fastest wall time: the least disturbed by other work on a shared machine. */
+  best: number;
+}
+
+/** Median wall and process CPU time (ms) of `runs` calls after one warm-up. */
+async function median(runs: number, fn: () => unknown): Promise<Timing> {
+  await fn();
+  const walls: number[] = [];
+  const cpus: number[] = [];
+  for (let i = 0; i < runs; i++) {
+    const c = process.cpuUsage();
+    const t = performance.now();
+    await fn();
+    walls.push(performance.now() - t);
+    const used = process.cpuUsage(c);
+    cpus.push((used.user + used.system) / 1000);
+  }
+  const mid = (v: number[]) => v.sort((a, b) => a - b)[runs >> 1];
+  return { wall: mid(walls), cpu: mid(cpus), best: Math.min(...walls) };
+}
+
+async function decodeRaw(jpeg: Buffer): Promise<PixelRaster> {
+  const { data, info } = await sharp(jpeg).raw().toBuffer({ resolveWithObject: true });
+  return { data: new Uint8Array(data.buffer, data.byteOffset, data.length), width: info.width, height: info.height, channels: info.channels as 3 };
+}
+
+/** The table of the analysis cost as ratios to the decode of one 12 MP JPEG. */
+export async function riskBenchTable(runs = Number(process.env.BENCH_RUNS ?? 9)): Promise<string> {
+  const jpeg = await benchJpeg(4000, 3000, 42);
+  const decode = await median(runs, () => decodeRaw(jpeg));
+  const raw = await decodeRaw(jpeg);
+  const analysis = await median(runs, () => analyzeSpectrum(raw));
+  const spec = analyzeSpectrum(raw);
+  const plan = makePlan({ sourceWidth: 4000, sourceHeight: 3000, targetWidth: 800, targetHeight: 600, kernel: 'auto', prefilter: 'auto', light: 'linear' });
+  const report = await median(runs, () => assessRisk(spec, plan, (a, f) => planResponse(plan, a, f)));
+  const r = (t: Timing) =>
+    `${(t.wall / decode.wall).toFixed(3)}x (cpu ${(t.cpu / decode.cpu).toFixed(3)}x, best ${(t.best / decode.best).toFixed(3)}x)`;
+  const ms = (t: Timing) => `${t.wall.toFixed(1)} ms (best ${t.best.toFixed(1)})`;
+  return [
+    `alias-risk analysis, 12 MP JPEG (4000x3000, ${spec.tiles} tiles of ${spec.tileSize} px), median of ${runs} runs`,
+    '| step | median wall time | ratio to sharp decode-only: median wall (median cpu, best wall) |',
+    '|---|---:|---:|',
+    `| sharp decode-only (reference) | ${ms(decode)} | 1.000x |`,
+    `| analyzeSpectrum (Welch, linear luminance) | ${ms(analysis)} | ${r(analysis)} |`,
+    `| assessRisk for 800 px (model, peaks, grid, sigma) | ${ms(report)} | ${r(report)} |`,
+    'target: analyzeSpectrum <= 0.30x',
+  ].join('\n');
+}
+
+if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
+  console.log(await riskBenchTable());
+}
