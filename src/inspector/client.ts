@@ -6,7 +6,7 @@
  */
 import { getImage, getJson, hideImage, showImage, ServiceProblem, type FetchedImage } from './api.js';
 import { clearCrops, showCrops } from './crops.js';
-import { clearNumbers, renderNumbers, renderPlan, type Report } from './report-view.js';
+import { clearNumbers, recommendedPrefilter, renderNumbers, renderPlan, type Report } from './report-view.js';
 import { apiUrls, fromParams, pageSearch, readForm, startWidth, writeForm, type ApiUrls, type InspectState } from './state.js';
 
 const byId = <T extends HTMLElement>(id: string): T => document.getElementById(id) as T;
@@ -51,6 +51,12 @@ function fillSourceList(paths: string[]): void {
   list.replaceChildren(...paths.map((path) => Object.assign(document.createElement('option'), { value: path })));
 }
 
+/** A link to this view with the recommended prefilter, when the planned copy is not yet safe. */
+function offerBlur(sigma: string | undefined, state: InspectState): void {
+  byId('try').hidden = sigma === undefined || state.prefilter === sigma;
+  if (sigma !== undefined) byId<HTMLAnchorElement>('try-link').href = pageSearch({ ...state, prefilter: sigma });
+}
+
 async function run(state: InspectState, history: 'push' | 'replace' | 'keep'): Promise<void> {
   const mine = ++runs;
   inFlight?.abort();
@@ -86,12 +92,13 @@ async function run(state: InspectState, history: 'push' | 'replace' | 'keep'): P
     const copiesShown = [0, 1].every((i) => images[i].status === 'fulfilled' && shown[i].status === 'fulfilled');
     if (report.status === 'fulfilled') renderNumbers(report.value);
     else clearNumbers();
+    offerBlur(report.status === 'fulfilled' ? recommendedPrefilter(report.value) : undefined, state);
     if (report.status === 'fulfilled' && copiesShown) showCrops(report.value, state.source);
     else clearCrops('The enlarged crops need both copies and the report.');
     const failures = [report, ...images, ...shown].flatMap((r) => (r.status === 'rejected' ? [r.reason] : []));
     results.dataset.shown = pageSearch(state);
     if (failures.length > 0) say(describeFailures(failures), true);
-    else say(`Showing ${state.source} at ${state.width} px wide.`);
+    else say(`Showing ${state.source} at ${state.height ? `${state.width}×${state.height} px` : `${state.width} px wide`}.`);
   } finally {
     if (mine === runs) results.setAttribute('aria-busy', 'false');
   }

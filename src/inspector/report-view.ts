@@ -79,8 +79,15 @@ function verdict(report: Report): string {
     return `${first} The foldwise copy is safe: it blurs that detail away first and leaves ${kept}.`;
   }
   const where = describeRegion(report.grid);
-  const sigma = Math.max(report.recommendedSigma.x, report.recommendedSigma.y).toFixed(2);
-  return `${first} Even the foldwise copy ${looks[report.level]} (${kept} folds back${where ? `, mostly in ${where}` : ''}); a blur of sigma ${sigma} source px would make it safe.`;
+  const sigma = recommendedPrefilter(report);
+  const place = !where ? '' : where.startsWith('the ') ? `, mostly in ${where}` : `, over ${where}`;
+  return `${first} Even the foldwise copy ${looks[report.level]} (${kept} folds back${place}); a blur of sigma ${sigma} source px (prefilter=${sigma}) would make it safe.`;
+}
+
+/** The prefilter value that brings the planned copy to low, or undefined when it already is. */
+export function recommendedPrefilter(report: Report): string | undefined {
+  if (report.level === 'low') return undefined;
+  return Math.max(report.recommendedSigma.x, report.recommendedSigma.y).toFixed(2);
 }
 
 function badge(id: string, level: Level): void {

@@ -59,7 +59,7 @@ describe.skipIf(browserSkipReason)('the inspector page in chromium', () => {
     expect(first.levels.naive).toMatch(/^(low|moderate|high) risk$/);
     expect(first.levels.planned).toMatch(/^(low|moderate|high) risk$/);
     // The header of the planned rendition names the same plan the report assessed.
-    const report = await fetch(`${base}/v1/alias-risk/${fabric}?width=320`).then((r) => r.json());
+    const report = (await fetch(`${base}/v1/alias-risk/${fabric}?width=320`).then((r) => r.json())) as { plan: { header: string } };
     expect(first.plan).toBe(report.plan.header);
     expect(first.peakRows).toBeGreaterThan(0);
     expect(first.zoom.width).toBeGreaterThan(1);
