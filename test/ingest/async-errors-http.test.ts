@@ -76,6 +76,7 @@ describe('bad uploads get 4xx problem details (RFC 9457) with a stable code', ()
     ['unknown parameter', async () => ({ headers: { 'content-type': 'image/png' }, payload: await png(8, 8, rampCode(8)), query: '?width=320' }), 400, 'ERR_PARAM_UNKNOWN'],
     ['JSON without source', async () => ({ headers: { 'content-type': 'application/json' }, payload: '{"path":"x.png"}' }), 400, 'ERR_REQUEST_INVALID'],
     ['JSON source missing', async () => ({ headers: { 'content-type': 'application/json' }, payload: '{"source":"none/such.png"}' }), 404, 'ERR_SOURCE_NOT_FOUND'],
+    ['JSON source outside the origin', async () => ({ headers: { 'content-type': 'application/json' }, payload: '{"source":"../../etc/shadow.png"}' }), 400, 'ERR_SOURCE_PATH_INVALID'],
   ];
 
   it.each(cases)('%s', async (_name, make, status, code) => {
