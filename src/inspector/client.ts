@@ -115,10 +115,16 @@ form.addEventListener('submit', (event) => {
   void run(state, 'push');
 });
 
-window.addEventListener('popstate', () => {
+/** Shows the state the page URL names (back and forward, or a page restored from cache). */
+function followUrl(): void {
   const state = fromParams(new URLSearchParams(window.location.search));
   writeForm(form, state);
   if (state.source && state.width) void run(state, 'keep');
+}
+
+window.addEventListener('popstate', followUrl);
+window.addEventListener('pageshow', (event) => {
+  if (event.persisted && results.dataset.shown !== window.location.search) followUrl();
 });
 
 async function start(): Promise<void> {
