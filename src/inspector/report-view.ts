@@ -70,10 +70,13 @@ function verdict(report: Report): string {
   const careless = carelessLevel(report);
   const folded = share(report.folded.unfiltered);
   const kept = share(report.folded.planned);
+  // A sharp spectral line folds into one false frequency (moiré); broadband energy folds into
+  // noise-like jaggies (the peak kinds of src/core/risk/peaks.ts).
+  const into = report.peaks[0]?.kind === 'periodic' ? 'false coarse bands (moiré)' : 'jagged steps and sparkle';
   const first =
     careless === 'low'
-      ? `Neither copy is at risk at this size: only ${folded} of the fine detail would fold back even in the careless copy.`
-      : `The careless copy ${looks[careless]}: ${folded} of the picture's fine detail folds into false coarse bands (moiré).`;
+      ? `Neither copy is at risk at this size: only ${folded} of the detail energy would fold back even in the careless copy.`
+      : `The careless copy ${looks[careless]}: ${folded} of the picture's detail energy folds into ${into}.`;
   if (careless === 'low') return first;
   if (report.level === 'low') {
     return `${first} The foldwise copy is safe: it blurs that detail away first and leaves ${kept}.`;
