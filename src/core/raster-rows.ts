@@ -34,7 +34,7 @@ export function rasterRows(src: PixelRaster, codec: RowCodec, simd?: { k: SimdKe
     lanes: channels,
     read(y, buf, at) {
       if (buf.buffer !== k.memory.buffer) return decodeRow(codec, data, y * n, width, buf, at);
-      stage.set(data.subarray(y * n, y * n + n));
+      stage.set(data.subarray(y * n, y * n + n)); // one small view per row; the copy is a memcpy
       convert(buf.byteOffset + at * 4, codes, lut, n);
     },
   };

@@ -33,7 +33,7 @@ function simdArena(
   const counts: number[] = [dstW * lanes, Math.ceil(scratchBytes / 4) + 16];
   let w = width;
   for (const [tx, ty, a, b] of passes) {
-    counts.push(...streamLayout(w, lanes, tx, ty, a, b).sizes);
+    counts.push(...streamLayout(w, lanes, tx, ty, a, b, true).sizes);
     for (const t of [tx, ty]) counts.push(t.dstLen, t.weights.length);
     w = tx.dstLen;
   }

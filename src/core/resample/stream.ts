@@ -15,13 +15,19 @@ const SLACK = 64;
 /**
  * Buffer layout of a stream: which axis goes first (the cheaper order), the window's row
  * length and capacity in rows, and the float counts of its buffers [window, line, mixed].
+ * Cost counts multiply-adds: a horizontal tap costs one per sample in the scalar loops but
+ * one f32x4 per pixel in the SIMD ones, where a vertical tap costs a quarter per sample.
  */
-export function streamLayout(sourceWidth: number, lanes: number, tx: WeightTable, ty: WeightTable, o0: number, o1: number) {
+export function streamLayout(
+  sourceWidth: number, lanes: number, tx: WeightTable, ty: WeightTable, o0: number, o1: number, simd: boolean,
+) {
   const dstW = tx.dstLen;
   const rows = o1 > o0 ? ty.start[o1 - 1] + ty.taps - ty.start[o0] : 0;
   const outRows = o1 - o0;
-  const hFirstCost = rows * dstW * tx.taps + outRows * dstW * ty.taps;
-  const vFirstCost = outRows * sourceWidth * ty.taps + outRows * dstW * tx.taps;
+  const h = simd ? 1 : lanes;
+  const v = simd ? lanes / 4 : lanes;
+  const hFirstCost = rows * dstW * tx.taps * h + outRows * dstW * ty.taps * v;
+  const vFirstCost = outRows * sourceWidth * ty.taps * v + outRows * dstW * tx.taps * h;
   const hFirst = hFirstCost <= vFirstCost;
   const rowLen = (hFirst ? dstW : sourceWidth) * lanes;
   const capacity = Math.min(rows, ty.taps + Math.max(SLACK, ty.taps));
@@ -48,7 +54,7 @@ export function resampleStream(
 ): RowSource {
   const lanes = source.lanes;
   const dstW = tx.dstLen;
-  const { hFirst, rowLen, capacity, sizes } = streamLayout(source.width, lanes, tx, ty, o0, o1);
+  const { hFirst, rowLen, capacity, sizes } = streamLayout(source.width, lanes, tx, ty, o0, o1, tx.simd !== undefined);
   const win = alloc(sizes[0]);
   const line = alloc(sizes[1]);
   const mixed = hFirst ? line : alloc(sizes[2]);
