@@ -81,7 +81,7 @@ export function assessRisk(spec: SourceSpectrum, plan: Plan, response: PlanRespo
     y: Math.hypot(plan.y.sigma, extra.y),
   };
   const db = planned > 0 ? `${fractionDb(planned).toFixed(1)} dB` : 'none';
-  const parts = [`the planned filter lets ${pct(planned)} of the detail energy fold back (${db}): ${level}`];
+  const parts = [`this plan's filter lets ${pct(planned)} of the detail energy fold back (${db}): ${level}`];
   const moire = peaks.find((p) => p.kind === 'periodic' && p.power * p.passed >= TARGET);
   if (moire) {
     parts.push(

@@ -9,13 +9,20 @@ export const FLOOR_DB = -50;
 /** Folded energy at or above -10 dB (10 %) scores 1: the alias is as strong as a third of the signal amplitude. */
 export const CEIL_DB = -10;
 /**
- * Below -40 dB the folded part stays under 1 % of the signal amplitude, the same bound the
- * fidelity target sets for the residual above the new Nyquist (DESIGN.md): level low.
+ * Below -40 dB the folded part stays under 1 % of the detail's amplitude: for a full-contrast
+ * pattern (linear amplitude 0.4) an alias of RMS 0.0028, under half an 8-bit code step at
+ * mid-grey (codes 188 -> 189 are 0.0060 apart in linear light, IEC 61966-2-1), so it cannot
+ * show in an 8-bit rendition. It is also the bound the fidelity target sets for the residual
+ * above the new Nyquist (DESIGN.md). Level low below it.
  */
 export const LOW_DB = -40;
 /**
- * At or above -20 dB (10 % of the amplitude) the alias is plainly visible; see the measured
- * calibration printed by test/core/risk/correlation.test.ts: level high.
+ * At or above -20 dB the alias has 10 % of the detail's amplitude: about five code steps at
+ * mid-grey for a full-contrast pattern, far above the ~1 % contrast people see at these
+ * frequencies (from memory; contrast-sensitivity data), so the moiré is plainly visible.
+ * Level high from here. The reported fraction matches the alias energy measured in real
+ * renders within about 1 dB (test/core/risk/correlation.test.ts), so these levels hold for
+ * the rendered output, not just for the model.
  */
 export const HIGH_DB = -20;
 

@@ -104,6 +104,10 @@ describe('reported folded fraction against alias energy measured in real renders
     );
     // Spearman (1904) rank correlation; 0.85 leaves a margin under what this set gives.
     expect(rho).toBeGreaterThan(0.85);
+    // The levels (thresholds in src/core/risk/score.ts) put the measured alias energy of the
+    // render in the same class as the reported fraction for at least 90 % of the renders.
+    const agree = reported.filter((r, i) => levelOf(r) === levelOf(measured[i])).length;
+    expect(agree / reported.length).toBeGreaterThanOrEqual(0.9);
     // Where the fold is substantial (measured above -30 dB), the reported fraction is the
     // measured alias energy within 3 dB.
     for (let i = 0; i < measured.length; i++) {
