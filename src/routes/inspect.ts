@@ -5,6 +5,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import { FoldwiseError } from '../errors.js';
+import { matchesIfNoneMatch } from './conditional.js';
 
 /** One served file of the inspector page: its bytes, type and a strong validator. */
 interface Asset {
@@ -83,7 +84,7 @@ function send(request: FastifyRequest, reply: FastifyReply, file: Asset) {
     .header('ETag', file.etag)
     .header('Cache-Control', 'no-cache')
     .header('X-Content-Type-Options', 'nosniff');
-  if (request.headers['if-none-match'] === file.etag) return reply.code(304).send();
+  if (matchesIfNoneMatch(request.headers['if-none-match'], file.etag)) return reply.code(304).send();
   return reply.send(file.body);
 }
 

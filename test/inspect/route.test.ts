@@ -38,6 +38,16 @@ describe('GET /inspect and its assets', () => {
     const revalidated = await t.app.inject({ url: '/inspect/assets/client.js', headers: { 'if-none-match': etag } });
     expect(revalidated.statusCode).toBe(304);
     expect(revalidated.body).toBe('');
+    // RFC 9110, section 13.1.2: If-None-Match may list several entity tags.
+    const listed = await t.app.inject({ url: '/inspect/assets/client.js', headers: { 'if-none-match': `"other", ${etag}` } });
+    expect(listed.statusCode).toBe(304);
+  });
+
+  it('answers HEAD for the page without a body', async () => {
+    const res = await t.app.inject({ method: 'HEAD', url: '/inspect' });
+    expect(res.statusCode).toBe(200);
+    expect(res.body).toBe('');
+    expect(res.headers['content-type']).toBe('text/html; charset=utf-8');
   });
 
   it('serves the stylesheet and the icon', async () => {
