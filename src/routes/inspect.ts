@@ -15,7 +15,7 @@ interface Asset {
 }
 
 /**
- * The page may talk to this service only: scripts, styles and images come from here (images
+ * The page may reach this service only: scripts, styles and images come from here (images
  * also as blob: URLs the client makes from fetched renditions), nothing from elsewhere.
  */
 const contentSecurityPolicy = [
