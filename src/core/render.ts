@@ -80,9 +80,9 @@ function checkSource(src: PixelRaster, plan: Plan): void {
  * the plan says light=encoded), premultiply alpha, reduce through the plan's pyramid levels,
  * separable resample through the final weight tables, unpremultiply, encode with correct
  * rounding. Every stage streams rows through a small window, so no full float copy of the
- * source or of a level exists. Output has the source's channels
- * and bit depth. With `rows`, only that band of output rows is produced, so workers can share
- * one source. Pure: reads src, returns a new raster.
+ * source or of a level exists. Output has the source's channels and bit depth. With `rows`,
+ * only that band of output rows is produced, so workers can share one source. Pure: reads
+ * src, returns a new raster (SIMD kernels, where available, work in a per-thread arena).
  */
 export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions = {}): PixelRaster {
   checkSource(src, plan);
