@@ -10,30 +10,9 @@ import { makePlan, planResponse } from '../src/core/index.js';
 import { analyzeSpectrum, assessRisk } from '../src/core/risk/index.js';
 import type { PixelRaster } from '../src/core/types.js';
 import { benchJpeg } from './bench/texture.js';
+import { timeRuns, type Timing } from './bench/timing.js';
 
-interface Timing {
-  wall: number;
-  cpu: number;
-  /** Fastest wall time: the least disturbed by other work on a shared machine. */
-  best: number;
-}
-
-/** Median wall and process CPU time (ms) of `runs` calls after one warm-up. */
-async function median(runs: number, fn: () => unknown): Promise<Timing> {
-  await fn();
-  const walls: number[] = [];
-  const cpus: number[] = [];
-  for (let i = 0; i < runs; i++) {
-    const c = process.cpuUsage();
-    const t = performance.now();
-    await fn();
-    walls.push(performance.now() - t);
-    const used = process.cpuUsage(c);
-    cpus.push((used.user + used.system) / 1000);
-  }
-  const mid = (v: number[]) => v.sort((a, b) => a - b)[runs >> 1];
-  return { wall: mid(walls), cpu: mid(cpus), best: Math.min(...walls) };
-}
+const median = timeRuns;
 
 async function decodeRaw(jpeg: Buffer): Promise<PixelRaster> {
   const { data, info } = await sharp(jpeg).raw().toBuffer({ resolveWithObject: true });

@@ -8,30 +8,12 @@ import type { PixelRaster } from '../src/core/types.js';
 import { benchJpeg } from './bench/texture.js';
 import { simdKernels } from '../src/core/simd/index.js';
 import { BandPool } from './bench/bands.js';
+import { timeRuns, type Timing } from './bench/timing.js';
 
 const RUNS = Number(process.env.BENCH_RUNS ?? 7);
 
-/** Median wall time and median process CPU time (all threads: libvips', workers') in ms. */
-interface Timing {
-  wall: number;
-  cpu: number;
-}
-
-async function median(fn: () => Promise<unknown>): Promise<Timing> {
-  await fn(); // warm-up: JIT, weight tables, codec init
-  const walls: number[] = [];
-  const cpus: number[] = [];
-  for (let i = 0; i < RUNS; i++) {
-    const c = process.cpuUsage();
-    const t = performance.now();
-    await fn();
-    walls.push(performance.now() - t);
-    const used = process.cpuUsage(c);
-    cpus.push((used.user + used.system) / 1000);
-  }
-  const mid = (v: number[]) => v.sort((a, b) => a - b)[RUNS >> 1];
-  return { wall: mid(walls), cpu: mid(cpus) };
-}
+/** Median wall and process CPU time of RUNS calls after a warm-up (scripts/bench/timing.ts). */
+const median = (fn: () => Promise<unknown>): Promise<Timing> => timeRuns(RUNS, fn);
 
 async function decodeRaw(jpeg: Buffer): Promise<PixelRaster> {
   const { data, info } = await sharp(jpeg).raw().toBuffer({ resolveWithObject: true });

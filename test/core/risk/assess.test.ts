@@ -6,23 +6,10 @@ import {
   assessRisk,
   gaussianResponse,
 } from '../../../src/core/risk/index.js';
-import type { Plan } from '../../../src/core/types.js';
 import { gradient, grating, greyRaster, noise } from './patterns.js';
+import { handPlan } from './render-helpers.js';
 
-function planOf(width: number, height: number, s: number, sigma = 0): Plan {
-  const axis = { scale: s, kernel: 'nearest', sigma, pyramidLevels: 0 };
-  return {
-    sourceWidth: width,
-    sourceHeight: height,
-    crop: { x: 0, y: 0, width, height },
-    targetWidth: Math.round(width / s),
-    targetHeight: Math.round(height / s),
-    x: axis,
-    y: { ...axis },
-    light: 'linear',
-    reason: 'test',
-  };
-}
+const planOf = (w: number, h: number, s: number, sigma = 0) => handPlan(w, h, s, s, sigma);
 const gauss = (sigma: number) => (_a: 'x' | 'y', f: number) => gaussianResponse(sigma, f);
 const none = () => 1;
 

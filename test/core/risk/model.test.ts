@@ -8,24 +8,10 @@ import {
   nyquistOf,
   scoreOf,
 } from '../../../src/core/risk/index.js';
-import type { Plan } from '../../../src/core/types.js';
 import { grating, greyRaster, noise } from './patterns.js';
+import { handPlan } from './render-helpers.js';
 
-/** A hand-made plan (plain data) for a scale per axis; the filter comes from the response. */
-function planOf(width: number, height: number, sx: number, sy = sx): Plan {
-  const axis = (scale: number) => ({ scale, kernel: 'nearest', sigma: 0, pyramidLevels: 0 });
-  return {
-    sourceWidth: width,
-    sourceHeight: height,
-    crop: { x: 0, y: 0, width, height },
-    targetWidth: Math.round(width / sx),
-    targetHeight: Math.round(height / sy),
-    x: axis(sx),
-    y: axis(sy),
-    light: 'linear',
-    reason: 'test',
-  };
-}
+const planOf = (w: number, h: number, sx: number, sy = sx) => handPlan(w, h, sx, sy);
 const none = () => 1;
 const gauss = (sigma: number) => (_a: 'x' | 'y', f: number) => gaussianResponse(sigma, f);
 

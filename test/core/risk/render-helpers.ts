@@ -13,3 +13,22 @@ export const naivePlan = (n: number, s: number) => squarePlan(n, s, 'nearest', '
 
 /** The response the service hands to the risk model. */
 export const responseOf = (plan: Plan) => (axis: 'x' | 'y', f: number) => planResponse(plan, axis, f);
+
+/**
+ * A hand-made plan (plain data) of a width x height source shrunk by sx, sy, with prefilter
+ * `sigma`; the model reads its filter from the response the test passes, not from this plan.
+ */
+export function handPlan(width: number, height: number, sx: number, sy = sx, sigma = 0): Plan {
+  const axis = (scale: number) => ({ scale, kernel: 'nearest', sigma, pyramidLevels: 0 });
+  return {
+    sourceWidth: width,
+    sourceHeight: height,
+    crop: { x: 0, y: 0, width, height },
+    targetWidth: Math.round(width / sx),
+    targetHeight: Math.round(height / sy),
+    x: axis(sx),
+    y: axis(sy),
+    light: 'linear',
+    reason: 'test',
+  };
+}

@@ -1,16 +1,8 @@
 /** Deterministic analytic test signals (no invented data): ramps, sines, impulses, noise. */
+import { mulberry32 } from '../../../src/demo/prng.js';
 
-/** Mulberry32, a small seeded PRNG, so noise inputs are the same on every run. */
-export function seededRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** A seeded generator (mulberry32, src/demo/prng.ts), so noise inputs are the same on every run. */
+export const seededRandom = mulberry32;
 
 export type SignalKind = 'impulse' | 'ramp' | 'sine' | 'noise';
 
