@@ -103,7 +103,7 @@ export function buildWeights(
     let sum = 0;
     for (let k = 0; k < taps; k++) sum += row64[k];
     if (Math.abs(sum) < 1e-9) {
-      weights[row + Math.min(srcLen - 1, Math.max(0, Math.round(c))) - s] = 1;
+      weights[row + Math.min(taps - 1, Math.max(0, Math.round(c) - s))] = 1;
       continue;
     }
     storeNormalised(row64, 1 / sum, weights, row);
