@@ -12,8 +12,13 @@ import type { SpectrumStore } from './spectra.js';
 /** A PlanResponse (core/risk) read from the plan's own weight tables. */
 export const planResponseOf = (plan: Plan) => (axis: 'x' | 'y', f: number) => planResponse(plan, axis, f);
 
-/** The render context's adaptiveSigma hook, backed by `store`. */
+/**
+ * The render context's adaptiveSigma hook, backed by `store`. A plan that shrinks neither axis
+ * cannot fold anything, so it never costs an analysis.
+ */
 export function adaptiveHook(store: SpectrumStore) {
   return (raster: PixelRaster, plan: Plan, identity?: SourceIdentity): { x: number; y: number } | undefined =>
-    adaptiveSigma(store.ofRaster(raster, identity), plan, planResponseOf(plan));
+    plan.x.scale > 1 || plan.y.scale > 1
+      ? adaptiveSigma(store.ofRaster(raster, identity), plan, planResponseOf(plan))
+      : undefined;
 }

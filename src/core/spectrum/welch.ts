@@ -9,36 +9,14 @@ import type { PixelRaster } from '../types.js';
 import { fft2d, fftPlan } from './fft.js';
 import { tileLuminance } from './luminance.js';
 import { layoutTiles, type TileLayout } from './tiles.js';
-import { hannWindow } from './window.js';
+import type { SourceSpectrum } from './types.js';
+import { window2d } from './window.js';
+
+export type { SourceSpectrum } from './types.js';
 
 /** Full-resolution cells per region-spectrum bin along each axis (2^BIN_SHIFT). */
 const BIN_SHIFT = 2;
 const BIN = 1 << BIN_SHIFT;
-
-/**
- * Welch power spectrum of one source, as plain numbers and typed arrays (cacheable,
- * serialisable). Spectra are in centred order: cell (i, j) of a side-n spectrum is the
- * frequency fx = (i - n/2) / n, fy = (j - n/2) / n cycles per source pixel, stored at j * n + i.
- * Units: white noise of variance v reads v in every full-resolution cell.
- */
-export interface SourceSpectrum {
-  width: number;
-  height: number;
-  /** Tile side (a power of two); 0 when the image is too small to analyse. */
-  tileSize: number;
-  /** Number of tiles averaged. */
-  tiles: number;
-  /** Averaged periodogram, tileSize x tileSize cells. */
-  power: Float32Array;
-  /**
-   * Variance of the tiles' windowed means (linear luminance squared): the energy at
-   * frequencies too low for one tile to resolve. By the law of total variance the source's
-   * non-DC energy is the mean within-tile energy (sum of `power` / tileSize^2) plus this.
-   */
-  coarse: number;
-  /** Per-region spectra for the risk grid, each `bins` x `bins` cells; a cell sums binSize^2 full cells. */
-  grid: { columns: number; rows: number; bins: number; binSize: number; power: Float32Array };
-}
 
 interface Scratch {
   re: Float64Array;
@@ -54,20 +32,6 @@ function scratchFor(t: number): Scratch {
     scratches.set(t, s);
   }
   return s;
-}
-
-const windows2d = new Map<number, Float64Array>();
-
-/** The separable 2-D periodic Hann window w(x) w(y), cached per side. */
-function window2d(t: number): Float64Array {
-  let w2 = windows2d.get(t);
-  if (!w2) {
-    const w = hannWindow(t);
-    w2 = new Float64Array(t * t);
-    for (let y = 0; y < t; y++) for (let x = 0; x < t; x++) w2[y * t + x] = w[x] * w[y];
-    windows2d.set(t, w2);
-  }
-  return w2;
 }
 
 /** Windowed, mean-removed luminance of tile `k` into `dst`; returns the windowed mean. */

@@ -19,3 +19,17 @@ export function hannWindow(length: number): Float64Array {
   windows.set(length, w);
   return w;
 }
+
+const windows2d = new Map<number, Float64Array>();
+
+/** The separable 2-D periodic Hann window w(x) w(y), row-major, cached per side. Do not mutate it. */
+export function window2d(t: number): Float64Array {
+  let w2 = windows2d.get(t);
+  if (!w2) {
+    const w = hannWindow(t);
+    w2 = new Float64Array(t * t);
+    for (let y = 0; y < t; y++) for (let x = 0; x < t; x++) w2[y * t + x] = w[x] * w[y];
+    windows2d.set(t, w2);
+  }
+  return w2;
+}
