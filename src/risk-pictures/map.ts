@@ -1,5 +1,5 @@
 /**
- * view=map: a preview of the source with each region of the risk grid tinted by its score
+ * view=map: a grey preview of the source with each region of the risk grid tinted by its score
  * (more opaque where the risk is higher), the grid drawn, and the crop outlined when the
  * rendition shows only part of the source.
  */
@@ -9,7 +9,19 @@ import { strokeRect, tintRect, type RgbImage } from './canvas.js';
 import { CROP_LINE, riskColour } from './palette.js';
 
 /** Opacity of a cell's tint: a hint even at score 0, most of the picture hidden at 1 (common practice). */
-const alphaOf = (score: number) => 0.15 + 0.5 * score;
+const alphaOf = (score: number) => 0.25 + 0.45 * score;
+
+/**
+ * Turns the preview grey and a little darker (Rec. 709 luma weights on the codes, a display
+ * approximation that is enough for a backdrop), so the risk colours stand out on any picture.
+ */
+function greyBackdrop(img: RgbImage): void {
+  const d = img.data;
+  for (let i = 0; i < d.length; i += 3) {
+    const g = Math.round(0.75 * (0.2126 * d[i] + 0.7152 * d[i + 1] + 0.0722 * d[i + 2]));
+    d[i] = d[i + 1] = d[i + 2] = g;
+  }
+}
 
 /**
  * Draws the grid of `report` over `preview`, a picture of the whole source (any size, same
@@ -23,6 +35,7 @@ export function riskMap(
 ): RgbImage {
   const { columns, rows, cells } = report.grid;
   const { width: w, height: h } = preview;
+  greyBackdrop(preview);
   for (let r = 0; r < rows; r++) {
     for (let c = 0; c < columns; c++) {
       const score = cells[r * columns + c];
