@@ -135,3 +135,21 @@ export function decode16(dst: i32, src: i32, lut: i32, n: i32): void {
     store<f32>(<usize>(dst + (i << 2)), load<f32>(<usize>(lut + (<i32>load<u16>(<usize>(src + (i << 1))) << 2))));
   }
 }
+
+/**
+ * n working floats at src to 8-bit sRGB codes at dst, the twin of quantiseRun in
+ * src/core/color/encoder.ts: a bucket table (start, buckets entries) gives a first code and the
+ * thresholds (f64, one per code, the last +Infinity) finish it; NaN and values <= 0 give 0.
+ */
+export function quantise8(dst: i32, src: i32, n: i32, thresholds: i32, start: i32, buckets: f64): void {
+  for (let i = 0; i < n; i++) {
+    const v = <f64>load<f32>(<usize>(src + (i << 2)));
+    let code: i32 = 0;
+    if (v >= 1) code = 255;
+    else if (v > 0) {
+      code = load<i32>(<usize>(start + (<i32>(v * buckets) << 2)));
+      while (v >= load<f64>(<usize>(thresholds + (code << 3)))) code++;
+    }
+    store<u8>(<usize>(dst + i), code);
+  }
+}

@@ -1,5 +1,5 @@
 import type { PixelRaster } from './types.js';
-import { decodeRow, type RowCodec } from './color/index.js';
+import { decodeRow, encodeRow, type RowCodec } from './color/index.js';
 import type { RowSource } from './resample/index.js';
 import type { Arena, SimdKernels } from './simd/index.js';
 
@@ -37,5 +37,45 @@ export function rasterRows(src: PixelRaster, codec: RowCodec, simd?: { k: SimdKe
       stage.set(data.subarray(y * n, y * n + n)); // one small view per row; the copy is a memcpy
       convert(buf.byteOffset + at * 4, codes, lut, n);
     },
+  };
+}
+
+/** Whether the SIMD quantiser serves this codec (8-bit, linear light, no alpha). */
+function simdEncodes(codec: RowCodec): boolean {
+  return codec.alpha < 0 && codec.max === 255 && codec.quantiser !== undefined;
+}
+
+/** Scratch bytes the SIMD row encoder needs for rows of `samples` samples (0 when not used). */
+export function encodeScratchBytes(codec: RowCodec, samples: number): number {
+  const q = codec.quantiser;
+  return simdEncodes(codec) && q ? samples + q.thresholds.length * 8 + q.start.length * 4 + 64 : 0;
+}
+
+/**
+ * Writes working rows (dstW pixels) as codes into out, row o - r0: unpremultiplied, clamped
+ * and correctly rounded (encodeRow), or, for 8-bit linear rows without alpha with the SIMD
+ * kernels at hand, quantised in the kernels' memory with the same tables and copied out.
+ */
+export function rowEncoder(
+  codec: RowCodec,
+  out: Uint8Array | Uint16Array,
+  dstW: number,
+  r0: number,
+  simd?: { k: SimdKernels; arena: Arena },
+): (o: number, line: Float32Array) => void {
+  const n = dstW * codec.channels;
+  const q = codec.quantiser;
+  if (!simd || !q || !simdEncodes(codec)) return (o, line) => encodeRow(codec, line, 0, dstW, out, (o - r0) * n);
+  const { k, arena } = simd;
+  const thresholds = arena.scratch(q.thresholds.length * 8);
+  new Float64Array(k.memory.buffer, thresholds, q.thresholds.length).set(q.thresholds);
+  const start = arena.scratch(q.start.length * 4);
+  new Int32Array(k.memory.buffer, start, q.start.length).set(q.start);
+  const codes = arena.scratch(n);
+  const row = new Uint8Array(k.memory.buffer, codes, n);
+  return (o, line) => {
+    if (line.buffer !== k.memory.buffer) return encodeRow(codec, line, 0, dstW, out, (o - r0) * n);
+    k.quantise8(codes, line.byteOffset, n, thresholds, start, q.buckets);
+    out.set(row, (o - r0) * n);
   };
 }

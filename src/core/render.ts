@@ -1,6 +1,6 @@
 import type { PixelRaster, Plan } from './types.js';
-import { rowCodec, encodeRow } from './color/index.js';
-import { rasterRows, rowScratchBytes } from './raster-rows.js';
+import { rowCodec } from './color/index.js';
+import { rasterRows, rowScratchBytes, rowEncoder, encodeScratchBytes } from './raster-rows.js';
 import { planTable, resampleStream, streamLayout, type RowSource, type WeightTable } from './resample/index.js';
 import { simdKernels, arenaFor, arenaBytes, type Arena } from './simd/index.js';
 import { reduceTable } from './pyramid.js';
@@ -29,8 +29,8 @@ function simdArena(
 ): Arena | null {
   const k = simdKernels();
   if (!k) return null;
-  // The scratch is two areas (codes and table), each padded and aligned on its own.
-  const counts: number[] = [dstW * lanes, Math.ceil(scratchBytes / 4) + 16];
+  // The scratch is up to five areas (codes and tables), each padded and aligned on its own.
+  const counts: number[] = [dstW * lanes, Math.ceil(scratchBytes / 4) + 40];
   let w = width;
   for (const [tx, ty, a, b] of passes) {
     counts.push(...streamLayout(w, lanes, tx, ty, a, b, true).sizes);
@@ -109,17 +109,20 @@ export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions =
   }
   const passes: Array<[WeightTable, WeightTable, number, number]> = stages.map(([bx, by], i) => [bx, by, spans[i][0], spans[i][1]]);
   passes.push([planTable(plan, 'x'), ty, r0, r1]);
-  const arena = simdArena(passes, width, channels, dstW, rowScratchBytes(src, codec));
+  const scratch = rowScratchBytes(src, codec) + encodeScratchBytes(codec, dstW * channels);
+  const arena = simdArena(passes, width, channels, dstW, scratch);
   const alloc = arena ? arena.floats : (n: number) => new Float32Array(n);
-  let source: RowSource = rasterRows(src, codec, arena ? { k: simdKernels()!, arena } : undefined);
+  const simd = arena ? { k: simdKernels()!, arena } : undefined;
+  let source: RowSource = rasterRows(src, codec, simd);
   for (const [bx, by, a, b] of passes) {
     source = resampleStream(source, arena ? placed(arena, bx) : bx, arena ? placed(arena, by) : by, a, b, alloc);
   }
   const final = source;
   const line = alloc(dstW * channels);
+  const emit = rowEncoder(codec, out, dstW, r0, simd);
   for (let o = r0; o < r1; o++) {
     final.read(o, line, 0);
-    encodeRow(codec, line, 0, dstW, out, (o - r0) * dstW * channels);
+    emit(o, line);
   }
   return { data: out, width: dstW, height: r1 - r0, channels };
 }

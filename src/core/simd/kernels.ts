@@ -10,6 +10,7 @@ type Reduce = (
 ) => void;
 
 type Decode = (dst: number, src: number, lut: number, n: number) => void;
+type Quantise = (dst: number, src: number, n: number, thresholds: number, start: number, buckets: number) => void;
 
 /** The part of the WebAssembly JS API used here (the project's lib settings carry no DOM types). */
 export interface WasmMemory {
@@ -31,6 +32,7 @@ export interface SimdKernels {
   readonly reduce5: Reduce;
   readonly decode8: Decode;
   readonly decode16: Decode;
+  readonly quantise8: Quantise;
 }
 
 let enabled = true;
@@ -46,7 +48,8 @@ function instantiate(): SimdKernels | null {
   const memory = new wasm.Memory({ initial: 2 });
   const inst = new wasm.Instance(new wasm.Module(bytes), { env: { memory } });
   const e = inst.exports as unknown as Omit<SimdKernels, 'memory'>;
-  return { memory, across: e.across, pixels: e.pixels, reduce5: e.reduce5, decode8: e.decode8, decode16: e.decode16 };
+  const { across, pixels, reduce5, decode8, decode16, quantise8 } = e;
+  return { memory, across, pixels, reduce5, decode8, decode16, quantise8 };
 }
 
 /** The SIMD kernels of this thread, or null when disabled or unsupported. */
