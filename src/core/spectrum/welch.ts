@@ -8,6 +8,7 @@
 import type { PixelRaster } from '../types.js';
 import { fft2d, fftPlan } from './fft.js';
 import { tileLuminance } from './luminance.js';
+import { accumulatePacked } from './periodogram.js';
 import { layoutTiles, type TileLayout } from './tiles.js';
 import type { SourceSpectrum } from './types.js';
 import { window2d } from './window.js';
@@ -71,8 +72,7 @@ export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
   // U = sum of the squared 2-D window = (3T/8)^2 (periodic Hann, Welch 1967); the 1/4 undoes
   // the packing of two real tiles into one complex transform.
   const norm = 1 / (4 * ((3 * t) / 8) ** 2);
-  const mask = t - 1;
-  const half = t >> 1;
+  const sinks = { power, regionPower, bins, shift: BIN_SHIFT };
   let meanSum = 0;
   let meanSquares = 0;
   for (let k = 0; k < count; k += 2) {
@@ -89,30 +89,7 @@ export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
     fft2d(plan, re, im);
     perRegion[ra]++;
     if (rb >= 0) perRegion[rb]++;
-    // Two real tiles a + i b: A(k) = (Z(k) + conj Z(-k)) / 2, B(k) = (Z(k) - conj Z(-k)) / 2i.
-    const baseA = ra * bins * bins;
-    const baseB = rb * bins * bins;
-    for (let v = 0; v < t; v++) {
-      const rowNeg = ((t - v) & mask) * t;
-      const vc = (v + half) & mask;
-      const outRow = vc * t;
-      const cellRow = (vc >> BIN_SHIFT) * bins;
-      for (let u = 0; u < t; u++) {
-        const i = v * t + u;
-        const j = rowNeg + ((t - u) & mask);
-        const sr = re[i] + re[j];
-        const di = im[i] - im[j];
-        const dr = re[i] - re[j];
-        const si = im[i] + im[j];
-        const pa = (sr * sr + di * di) * norm;
-        const pb = (dr * dr + si * si) * norm;
-        const uc = (u + half) & mask;
-        power[outRow + uc] += pa + pb;
-        const cell = cellRow + (uc >> BIN_SHIFT);
-        regionPower[baseA + cell] += pa;
-        if (rb >= 0) regionPower[baseB + cell] += pb;
-      }
-    }
+    accumulatePacked(re, im, t, norm, sinks, ra * bins * bins, rb >= 0 ? rb * bins * bins : -1);
   }
   const out = new Float32Array(t * t);
   for (let i = 0; i < out.length; i++) out[i] = power[i] / count;
