@@ -1,4 +1,5 @@
 import { createHash } from 'node:crypto';
+import { LRUCache } from 'lru-cache';
 import type { SourceIdentity } from '../origins/types.js';
 
 /**
@@ -7,14 +8,26 @@ import type { SourceIdentity } from '../origins/types.js';
  */
 export const pipelineVersion = 'fw-pipeline-1';
 
+// Hits ask for the same few keys over and over; hashing is most of a hit's key cost. The memo
+// maps the exact hashed text to its digest (so it cannot answer for different inputs) and is
+// bounded in bytes.
+const digests = new LRUCache<string, string>({
+  maxSize: 8 * 2 ** 20,
+  sizeCalculation: (_digest, text) => 2 * text.length + 192,
+});
+
 /**
  * The cache key of a rendition: the source's identity (key and version), the canonical query,
  * the format (or, for format=auto, what Accept allows), and the pipeline version; SHA-256 hex.
  */
 export function renditionKey(identity: SourceIdentity, canonical: string, formatKey: string): string {
-  return createHash('sha256')
-    .update(JSON.stringify([pipelineVersion, identity.key, identity.version, canonical, formatKey]))
-    .digest('hex');
+  const text = JSON.stringify([pipelineVersion, identity.key, identity.version, canonical, formatKey]);
+  let key = digests.get(text);
+  if (key === undefined) {
+    key = createHash('sha256').update(text).digest('hex');
+    digests.set(text, key);
+  }
+  return key;
 }
 
 /** A strong validator: the SHA-256 of the bytes, base64url, quoted (RFC 9110 §8.8.3). */

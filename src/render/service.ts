@@ -11,6 +11,7 @@ import { negotiateFormat } from '../media/negotiate.js';
 import type { Origin, SourceIdentity } from '../origins/types.js';
 import { canonicalQuery } from '../schemas/canonical.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
+import { formatKey } from './format-key.js';
 import type { IdentityMemo } from './identity.js';
 import { renditionKey, strongEtag } from './key.js';
 import { checkRequestedSize, planRendition } from './plan.js';
@@ -44,12 +45,6 @@ export interface Rendition {
   cache: string;
   timings: StageTiming[];
   key: string;
-}
-
-/** What the format part of the key is: the format, or for auto the choices Accept allows. */
-function formatKey(q: RenditionQuery, accept: string | undefined): string {
-  if (q.format !== 'auto') return q.format;
-  return `auto:${negotiateFormat(accept, false)}/${negotiateFormat(accept, true)}`;
 }
 
 /** Settles like `work`, or rejects with ERR_RENDER_TIMEOUT once `deadline` aborts. */
@@ -106,7 +101,8 @@ interface RenditionContextInternal extends RenderContext {
 /**
  * One rendition of `path` for `query`: from the cache when any tier has it, else rendered once
  * however many callers ask at the same time (single-flight), then stored in every tier.
- * `accept` is the request's Accept header (used when format=auto).
+ * `accept` is the request's Accept header (used when format=auto); `canonical` is
+ * canonicalQuery(query), for callers that already have it.
  *
  * @throws FoldwiseError for every refusal (not found, limits, overload, decode failures).
  */
@@ -115,11 +111,11 @@ export async function renderRendition(
   path: string,
   query: RenditionQuery,
   accept?: string,
+  canonical: string = canonicalQuery(query),
 ): Promise<Rendition> {
   checkRequestedSize(query, ctx.limits);
   const clock = new StageClock(ctx.observe);
   const identity = await clock.time('origin', () => ctx.identities?.identify(path) ?? ctx.origin.identify(path));
-  const canonical = canonicalQuery(query);
   const fmt = formatKey(query, accept);
   const key = renditionKey(identity, canonical, fmt);
   const hit = await clock.time('cache', () => ctx.cache.get(key));
