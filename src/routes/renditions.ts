@@ -1,12 +1,11 @@
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import { kernelNames } from '../core/index.js';
-import { FoldwiseError } from '../errors.js';
 import { renderRendition } from '../render/service.js';
 import { serverTiming } from '../render/timings.js';
 import { problemResponses, queryParameters } from '../schemas/openapi.js';
-import { compileRenditionQuery, type RenditionQuery } from '../schemas/rendition.js';
+import { compileRenditionQuery } from '../schemas/rendition.js';
 import { matchesIfNoneMatch } from './conditional.js';
-import { sourcePathOf } from './path.js';
+import { renditionRequestReader } from './rendition-request.js';
 
 export const renditionsPrefix = '/v1/renditions/';
 
@@ -18,12 +17,12 @@ export const renditionsPrefix = '/v1/renditions/';
 export default async function renditionRoutes(app: FastifyInstance): Promise<void> {
   const { config, renderContext } = app;
   const query = compileRenditionQuery({ maxDimension: config.limits.maxDimension, kernelNames });
+  const requests = renditionRequestReader(renditionsPrefix, query.parse);
   const plainCache = `public, max-age=${config.http.maxAgeSeconds}`;
 
   async function handler(request: FastifyRequest, reply: FastifyReply) {
-    const path = sourcePathOf(request.url, renditionsPrefix);
-    const q: RenditionQuery = query.parse(request.query as Record<string, unknown>);
-    const r = await renderRendition(renderContext, path, q, request.headers.accept);
+    const { path, query: q, canonical } = requests.read(request.url, request.query as Record<string, unknown>);
+    const r = await renderRendition(renderContext, path, q, request.headers.accept, canonical);
     reply
       .header('etag', r.entry.etag)
       // For validly signed URLs the signing plugin (src/plugins/signing.ts), which checked the
