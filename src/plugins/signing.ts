@@ -45,9 +45,10 @@ async function signingPlugin(app: FastifyInstance, options: SigningOptions): Pro
   const cacheControl = `public, max-age=${options.signedMaxAgeSeconds}, immutable`;
   const applies = (path: string): boolean => options.prefixes.some((p) => path.startsWith(p));
   app.decorateRequest('signed', false);
+  // No key: nothing can be signed, so every request is spared both hooks.
+  if (options.keys.length === 0) return;
 
   app.addHook('onRequest', async (request: FastifyRequest) => {
-    if (options.keys.length === 0) return;
     if (!applies(request.routeOptions.url ?? '')) return;
     const { path, query } = splitUrl(request.url);
     const check = verifySignature(path, query, options.keys);
