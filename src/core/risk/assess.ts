@@ -4,8 +4,9 @@
  */
 import type { Plan } from '../types.js';
 import type { SourceSpectrum } from '../spectrum/index.js';
-import { sampleResponse, type PlanResponse } from './filter.js';
-import { regionRisk, type RiskGrid } from './grid.js';
+import { cropRatio, cropWeights } from './crop.js';
+import { sampleResponse, withExtraBlur, type PlanResponse } from './filter.js';
+import { regionFoldings, regionRisk, type RiskGrid } from './grid.js';
 import { axisTable, coarseEnergy, foldedEnergy, foldedFraction, nyquistOf } from './model.js';
 import { findPeaks, type RiskPeak } from './peaks.js';
 import { blurForTarget, extraSigmaFor, foldedWithBlur, type FoldSetup } from './recommend.js';
@@ -17,11 +18,16 @@ export interface RiskReport {
   nyquist: { x: number; y: number };
   /** Source extent / target extent per axis. */
   scale: { x: number; y: number };
-  /** Share of the non-DC energy that folds back, with no prefilter and with the planned filter. */
+  /**
+   * Share of the non-DC energy that folds back, with no prefilter and with the planned filter,
+   * for the part of the source the plan's crop shows (crop.ts).
+   */
   folded: { unfiltered: number; planned: number };
   score: number;
   level: RiskLevel;
+  /** Strongest peaks beyond the new Nyquist in the whole source's spectrum. */
   peaks: RiskPeak[];
+  /** Per-region risk over the whole source (the crop is drawn on the map). */
   grid: RiskGrid;
   /** Total Gaussian prefilter sigma per axis (source px) that brings the level to low. */
   recommendedSigma: { x: number; y: number };
@@ -44,7 +50,15 @@ function setupOf(spec: SourceSpectrum, plan: Plan, response: PlanResponse): Fold
   const sampled = n === 0
     ? { x: new Float64Array(1), y: new Float64Array(1) }
     : { x: sampleResponse(response, 'x', n), y: sampleResponse(response, 'y', n) };
-  return { spec, scale, nyquist: { x: nyquistOf(scale.x), y: nyquistOf(scale.y) }, sampled };
+  const nyquist = { x: nyquistOf(scale.x), y: nyquistOf(scale.y) };
+  const weights = cropWeights(spec, plan.crop);
+  const crop = weights
+    ? {
+        planned: cropRatio(regionFoldings(spec, nyquist, withExtraBlur(sampled.x, n, 0), withExtraBlur(sampled.y, n, 0)), weights),
+        unfiltered: cropRatio(regionFoldings(spec, nyquist), weights),
+      }
+    : { planned: 1, unfiltered: 1 };
+  return { spec, scale, nyquist, sampled, crop };
 }
 
 function unfilteredFraction(setup: FoldSetup): number {
@@ -52,7 +66,7 @@ function unfilteredFraction(setup: FoldSetup): number {
   if (n === 0) return 0;
   const f = foldedEnergy(setup.spec.power, 0, axisTable(n, 1, setup.nyquist.x), axisTable(n, 1, setup.nyquist.y));
   f.total += coarseEnergy(setup.spec.coarse, n);
-  return foldedFraction(f);
+  return Math.min(1, foldedFraction(f) * setup.crop.unfiltered);
 }
 
 const pct = (v: number) => `${(100 * v).toPrecision(2)} %`;

@@ -7,7 +7,7 @@
  */
 import type { SourceSpectrum } from '../spectrum/index.js';
 import { withExtraBlur } from './filter.js';
-import { axisTable, coarseEnergy, foldedEnergy, foldedFraction, type Folding } from './model.js';
+import { axisTable, coarseEnergy, foldedEnergy, foldedFraction, type AxisResponse, type Folding } from './model.js';
 import type { FoldSetup } from './recommend.js';
 import { scoreOf } from './score.js';
 
@@ -20,29 +20,40 @@ export interface RiskGrid {
   folded: number[];
 }
 
+/**
+ * Total and folded energy of every region's coarse spectrum (row-major) under the axis
+ * responses (undefined: no filter). Empty when the source was too small to analyse.
+ */
+export function regionFoldings(
+  spec: SourceSpectrum,
+  nyquist: { x: number; y: number },
+  hx?: AxisResponse,
+  hy?: AxisResponse,
+): Folding[] {
+  const { columns, rows, bins, binSize, power } = spec.grid;
+  if (spec.tileSize === 0) return [];
+  const tx = axisTable(bins, binSize, nyquist.x, hx);
+  const ty = axisTable(bins, binSize, nyquist.y, hy);
+  const parts: Folding[] = [];
+  for (let r = 0; r < columns * rows; r++) parts.push(foldedEnergy(power, r * bins * bins, tx, ty));
+  return parts;
+}
+
 /** Region scores of one spectrum under the planned filter. */
 export function regionRisk(setup: FoldSetup): RiskGrid {
   const spec: SourceSpectrum = setup.spec;
-  const { columns, rows, bins, binSize, power } = spec.grid;
-  const cells: number[] = [];
-  const folded: number[] = [];
-  if (spec.tileSize === 0) {
+  const { columns, rows } = spec.grid;
+  const n = spec.tileSize;
+  const parts = regionFoldings(spec, setup.nyquist, withExtraBlur(setup.sampled.x, n, 0), withExtraBlur(setup.sampled.y, n, 0));
+  if (parts.length === 0) {
     return { columns, rows, cells: new Array(columns * rows).fill(0), folded: new Array(columns * rows).fill(0) };
   }
-  const n = spec.tileSize;
-  const tx = axisTable(bins, binSize, setup.nyquist.x, withExtraBlur(setup.sampled.x, n, 0));
-  const ty = axisTable(bins, binSize, setup.nyquist.y, withExtraBlur(setup.sampled.y, n, 0));
-  const regions = columns * rows;
-  const parts: Folding[] = [];
   let mean = coarseEnergy(spec.coarse, n);
-  for (let r = 0; r < regions; r++) {
-    const f = foldedEnergy(power, r * bins * bins, tx, ty);
-    parts.push(f);
-    mean += f.total / regions;
-  }
-  for (const f of parts) {
-    folded.push(foldedFraction(f));
-    cells.push(mean > 0 ? scoreOf(Math.max(0, f.folded) / mean) : 0);
-  }
-  return { columns, rows, cells, folded };
+  for (const f of parts) mean += f.total / parts.length;
+  return {
+    columns,
+    rows,
+    cells: parts.map((f) => (mean > 0 ? scoreOf(Math.max(0, f.folded) / mean) : 0)),
+    folded: parts.map(foldedFraction),
+  };
 }

@@ -13,6 +13,8 @@ export interface FoldSetup {
   nyquist: { x: number; y: number };
   /** Planned responses sampled on the spectrum grid (filter.ts). */
   sampled: { x: Float64Array; y: Float64Array };
+  /** How much more the plan's crop folds than the whole source (crop.ts), planned and unfiltered. */
+  crop: { planned: number; unfiltered: number };
 }
 
 /** Extra sigma per axis for a blur parameter t (0 on axes that do not shrink). */
@@ -30,7 +32,7 @@ export function foldedWithBlur(setup: FoldSetup, t: number): number {
   const ty = axisTable(n, 1, nyquist.y, withExtraBlur(sampled.y, n, extra.y));
   const f = foldedEnergy(spec.power, 0, tx, ty);
   f.total += coarseEnergy(spec.coarse, n);
-  return foldedFraction(f);
+  return Math.min(1, foldedFraction(f) * setup.crop.planned);
 }
 
 /** Largest blur parameter searched: sigma = 2 s puts the Gaussian at exp(-19.7) at the new Nyquist. */

@@ -113,3 +113,27 @@ describe('region grid', () => {
     expect(Math.max(...cells.slice(columns * 4))).toBe(0);
   });
 });
+
+describe('cropped renditions', () => {
+  // A cover crop renders only part of the source: what folds is what that part holds.
+  const w = 1024;
+  const h = 512;
+  const g = grating(0.3, 0.2);
+  const spec = analyzeSpectrum(greyRaster(w, h, (x, y) => (x < 256 ? g(x, y) : 0.5 + 0.02 * Math.cos(x / 40)), 16));
+  const cropped = (x: number, width: number) => ({ ...planOf(w, h, 2), crop: { x, y: 0, width, height: h } });
+
+  it('folds nothing where the crop leaves the pattern out', () => {
+    const whole = assessRisk(spec, planOf(w, h, 2), none);
+    const right = assessRisk(spec, cropped(512, 512), none);
+    expect(whole.level).toBe('high');
+    expect(right.folded.unfiltered).toBeLessThan(whole.folded.unfiltered / 100);
+    expect(right.level).not.toBe('high');
+  });
+
+  it('folds more where the crop holds only the pattern', () => {
+    const whole = assessRisk(spec, planOf(w, h, 2), none);
+    const left = assessRisk(spec, cropped(0, 256), none);
+    expect(left.folded.unfiltered).toBeGreaterThan(whole.folded.unfiltered);
+    expect(left.folded.unfiltered).toBeLessThanOrEqual(1);
+  });
+});
