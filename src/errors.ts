@@ -41,6 +41,7 @@ export const errorCodes = {
   ERR_INGEST_READ_ONLY: { status: 403, title: 'Uploads are switched off (read-only origin)' },
   ERR_INGEST_JOBS_FULL: { status: 503, title: 'Too many ingest jobs in progress; retry later' },
   ERR_INGEST_JOB_NOT_FOUND: { status: 404, title: 'No such ingest job' },
+  ERR_SERVICE_STOPPING: { status: 503, title: 'Service is shutting down; retry later' },
 } as const satisfies Record<string, { status: number; title: string }>;
 
 export type ErrorCode = keyof typeof errorCodes;

@@ -3,7 +3,7 @@ import { createRequire } from 'node:module';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Piscina } from 'piscina';
 import type { PixelRaster, Plan } from '../core/types.js';
-import { FoldwiseError } from '../errors.js';
+import { type ErrorCode, FoldwiseError } from '../errors.js';
 import type { ResampleTask, SharedRaster } from '../worker.js';
 import { Admission } from './admission.js';
 
@@ -37,14 +37,22 @@ function share(raster: PixelRaster): SharedRaster {
  * admission control (src/render/admission.ts): one render per thread holds pixels at a time,
  * `maxQueue` more wait, and past that `admit` throws ERR_OVERLOADED (503 with Retry-After)
  * instead of letting work and memory pile up without bound.
+ *
+ * Every way a task can be cut short has its own answer: the render's deadline gives
+ * ERR_RENDER_TIMEOUT and the pool closing (shutdown) ERR_SERVICE_STOPPING, both 503 with
+ * Retry-After, since a retry (later, or on another replica) can succeed; only a task that
+ * failed by itself (a worker that crashed or threw) is ERR_RENDER_FAILED (500).
  */
 export class RenderPool {
   readonly threads: number;
+  readonly retryAfterSeconds: number;
   private readonly admission: Admission;
   private readonly piscina: Piscina<ResampleTask, number>;
+  private closing?: Promise<void>;
 
   constructor(opts: RenderPoolOptions) {
     this.threads = opts.threads > 0 ? opts.threads : availableParallelism();
+    this.retryAfterSeconds = opts.retryAfterSeconds;
     this.admission = new Admission(this.threads, opts.maxQueue, opts.retryAfterSeconds);
     this.piscina = new Piscina<ResampleTask, number>({
       filename: workerFile,
@@ -75,13 +83,24 @@ export class RenderPool {
     return this.piscina.utilization;
   }
 
-  /** Waits for a render slot (or throws ERR_OVERLOADED); call the returned function when done. */
+  /** A 503 refusal with Retry-After: the deadline passed, or the pool is closing. */
+  refusal(code: Extract<ErrorCode, 'ERR_RENDER_TIMEOUT' | 'ERR_SERVICE_STOPPING'>, detail: string, cause?: unknown): FoldwiseError {
+    return new FoldwiseError(code, detail, { cause, headers: { 'retry-after': String(this.retryAfterSeconds) } });
+  }
+
+  /**
+   * Waits for a render slot; call the returned function when done. Throws ERR_OVERLOADED past
+   * the bound, ERR_SERVICE_STOPPING once the pool is closing.
+   */
   admit(): Promise<() => void> {
+    if (this.closing) return Promise.reject(this.stopping());
     return this.admission.admit();
   }
 
   /** Resamples `src` by `plan` in the pool; big outputs are split into two bands of rows. */
   async resample(src: PixelRaster, plan: Plan, signal?: AbortSignal): Promise<PixelRaster> {
+    // A closed piscina would start fresh threads for a late task: refuse it here instead.
+    if (this.closing) throw this.stopping();
     const shared = share(src);
     const bytesPer = shared.depth / 8;
     const out = new SharedArrayBuffer(plan.targetWidth * plan.targetHeight * src.channels * bytesPer);
@@ -91,14 +110,23 @@ export class RenderPool {
     try {
       await Promise.all(bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out }, { signal })));
     } catch (e) {
-      if (signal?.aborted) throw new FoldwiseError('ERR_RENDER_TIMEOUT', 'resampling took longer than allowed', { cause: e });
+      // piscina rejects with its AbortError for our deadline, and with its own abort or
+      // "Terminating worker thread" when it is closed under a task: neither is a failed render.
+      if (signal?.aborted) throw this.refusal('ERR_RENDER_TIMEOUT', 'resampling took longer than allowed', e);
+      if (this.closing) throw this.stopping(e);
       throw new FoldwiseError('ERR_RENDER_FAILED', 'resampling failed', { cause: e });
     }
     const data = shared.depth === 16 ? new Uint16Array(out) : new Uint8Array(out);
     return { data, width: plan.targetWidth, height: plan.targetHeight, channels: src.channels };
   }
 
-  async close(): Promise<void> {
-    await this.piscina.close();
+  /** Refuses new renders at once, lets running tasks finish (piscina's close), then ends the threads. */
+  close(): Promise<void> {
+    this.closing ??= this.piscina.close();
+    return this.closing;
+  }
+
+  private stopping(cause?: unknown): FoldwiseError {
+    return this.refusal('ERR_SERVICE_STOPPING', 'the render pool is shutting down', cause);
   }
 }

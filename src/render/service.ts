@@ -4,7 +4,6 @@ import type { CacheEntry } from '../cache/types.js';
 import type { Limits } from '../config.js';
 import { formatPlanHeader } from '../core/index.js';
 import type { PixelRaster, Plan } from '../core/types.js';
-import { FoldwiseError } from '../errors.js';
 import { encodeImage } from '../media/encode.js';
 import { outputFormats, type OutputFormat } from '../media/formats.js';
 import { negotiateFormat } from '../media/negotiate.js';
@@ -47,9 +46,8 @@ export interface Rendition {
   key: string;
 }
 
-/** Settles like `work`, or rejects with ERR_RENDER_TIMEOUT once `deadline` aborts. */
-function withDeadline<T>(work: Promise<T>, deadline: AbortSignal): Promise<T> {
-  const late = () => new FoldwiseError('ERR_RENDER_TIMEOUT', 'encoding took longer than allowed');
+/** Settles like `work`, or rejects with `late()` once `deadline` aborts. */
+function withDeadline<T>(work: Promise<T>, deadline: AbortSignal, late: () => Error): Promise<T> {
   if (deadline.aborted) return Promise.reject(late());
   return new Promise<T>((resolve, reject) => {
     const onAbort = () => reject(late());
@@ -79,6 +77,7 @@ async function produce(
       withDeadline(
         encodeImage(resampled, { format, quality: q.quality, background: q.background, canvas: layout.canvas }),
         deadline,
+        () => ctx.pool.refusal('ERR_RENDER_TIMEOUT', 'encoding took longer than allowed'),
       ),
     );
     const entry: CacheEntry = {

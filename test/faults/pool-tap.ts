@@ -22,6 +22,11 @@ export function tapNextRun(pool: RenderPool, replacement: (original: Run, task: 
   }) as Run;
 }
 
+/** Resolves when the pool next reports a worker thread ready (piscina's 'workerCreate'). */
+export function nextWorkerReady(pool: RenderPool): Promise<void> {
+  return new Promise((resolve) => piscinaOf(pool).once('workerCreate', () => resolve()));
+}
+
 /** The pool's live worker threads. */
 export function workersOf(pool: RenderPool) {
   return piscinaOf(pool).threads;
