@@ -35,16 +35,36 @@ function scratchFor(t: number): Scratch {
   return s;
 }
 
-/** Windowed, mean-removed luminance of tile `k` into `dst`; returns the windowed mean. */
+/** Windowed luminance of tile `k` into `dst`; returns its windowed mean. */
 function loadTile(dst: Float64Array, lum: Float64Array, src: PixelRaster, layout: TileLayout, k: number): number {
   const t = layout.tileSize;
   const w2 = window2d(t);
   tileLuminance(lum, src, layout.corners[2 * k], layout.corners[2 * k + 1], t);
   let sum = 0;
-  for (let i = 0; i < t * t; i++) sum += w2[i] * lum[i];
-  const mean = sum / ((t / 2) * (t / 2)); // sum of the 2-D periodic Hann window is (T/2)^2
-  for (let i = 0; i < t * t; i++) dst[i] = (lum[i] - mean) * w2[i];
-  return mean;
+  for (let i = 0; i < t * t; i++) {
+    const v = lum[i] * w2[i];
+    dst[i] = v;
+    sum += v;
+  }
+  return sum / ((t / 2) * (t / 2)); // sum of the 2-D periodic Hann window is (T/2)^2
+}
+
+/**
+ * Removes the windowed means from a packed transform: FFT((a - ma) w + i (b - mb) w) =
+ * Z - (ma + i mb) FFT(w). The periodic Hann window's DFT is T/2 at k = 0, -T/4 at k = +-1 and
+ * 0 elsewhere (w = 1/2 - e^{2 pi i n/T}/4 - e^{-2 pi i n/T}/4), so only 9 cells change. In place.
+ */
+function removeMeans(re: Float64Array, im: Float64Array, t: number, ma: number, mb: number): void {
+  for (let a = 0; a < 3; a++) {
+    const ka = a === 2 ? t - 1 : a;
+    const wa = a === 0 ? t / 2 : -t / 4;
+    for (let b = 0; b < 3; b++) {
+      const w = wa * (b === 0 ? t / 2 : -t / 4);
+      const i = ka * t + (b === 2 ? t - 1 : b);
+      re[i] -= ma * w;
+      im[i] -= mb * w;
+    }
+  }
 }
 
 /**
@@ -79,14 +99,12 @@ export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
     const ra = layout.region[k];
     const rb = k + 1 < count ? layout.region[k + 1] : -1;
     const ma = loadTile(re, lum, src, layout, k);
-    meanSum += ma;
-    meanSquares += ma * ma;
-    if (rb >= 0) {
-      const mb = loadTile(im, lum, src, layout, k + 1);
-      meanSum += mb;
-      meanSquares += mb * mb;
-    } else im.fill(0);
+    const mb = rb >= 0 ? loadTile(im, lum, src, layout, k + 1) : 0;
+    if (rb < 0) im.fill(0);
+    meanSum += ma + mb;
+    meanSquares += ma * ma + mb * mb;
     fft2d(plan, re, im);
+    removeMeans(re, im, t, ma, mb);
     perRegion[ra]++;
     if (rb >= 0) perRegion[rb]++;
     accumulatePacked(re, im, t, norm, sinks, ra * bins * bins, rb >= 0 ? rb * bins * bins : -1);
