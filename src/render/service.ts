@@ -13,7 +13,7 @@ import type { RenditionQuery } from '../schemas/rendition.js';
 import { formatKey } from './format-key.js';
 import type { IdentityMemo } from './identity.js';
 import { renditionKey, strongEtag } from './key.js';
-import { checkRequestedSize, planRendition } from './plan.js';
+import { checkRequestedSize, type PlannedRendition, planRendition } from './plan.js';
 import type { RenderPool } from './pool.js';
 import { loadSource } from './source.js';
 import { type Stage, StageClock, type StageTiming } from './timings.js';
@@ -56,6 +56,33 @@ function withDeadline<T>(work: Promise<T>, deadline: AbortSignal, late: () => Er
   });
 }
 
+/** A rendition resampled and not yet encoded: what outlives the source's pixels. */
+interface Resampled {
+  raster: PixelRaster;
+  layout: PlannedRendition['layout'];
+  plan: Plan;
+  hasAlpha: boolean;
+  identity: SourceIdentity;
+  /** limits.renderTimeoutMs from the end of planning: covers resample and encode. */
+  deadline: AbortSignal;
+}
+
+/**
+ * The pixel-holding stages (read, decode, plan, resample), under one admission permit. The
+ * decoded source lives only in this frame, so once it returns nothing references the source's
+ * pixels and the permit can go to the next render while this one encodes.
+ */
+async function resampleSource(ctx: RenditionContextInternal, path: string, q: RenditionQuery): Promise<Resampled> {
+  const { decoded, identity } = await loadSource(ctx.origin, path, ctx.limits, ctx.clock);
+  const src = decoded.raster;
+  const first = planRendition(src, q, ctx.limits);
+  const sigma = q.prefilter === 'auto' ? ctx.adaptiveSigma?.(src, first.plan, identity) : undefined;
+  const { layout, plan } = sigma ? planRendition(src, q, ctx.limits, sigma) : first;
+  const deadline = AbortSignal.timeout(ctx.limits.renderTimeoutMs);
+  const raster = await ctx.clock.time('resample', () => ctx.pool.resample(src, plan, deadline));
+  return { raster, layout, plan, hasAlpha: decoded.hasAlpha, identity, deadline };
+}
+
 async function produce(
   ctx: RenditionContextInternal,
   path: string,
@@ -63,34 +90,29 @@ async function produce(
   accept: string | undefined,
 ): Promise<{ entry: CacheEntry; identity: SourceIdentity }> {
   const release = await ctx.pool.admit();
+  let done: Resampled;
   try {
-    const { decoded, identity } = await loadSource(ctx.origin, path, ctx.limits, ctx.clock);
-    const src = decoded.raster;
-    const first = planRendition(src, q, ctx.limits);
-    const sigma = q.prefilter === 'auto' ? ctx.adaptiveSigma?.(src, first.plan, identity) : undefined;
-    const { layout, plan } = sigma ? planRendition(src, q, ctx.limits, sigma) : first;
-    const deadline = AbortSignal.timeout(ctx.limits.renderTimeoutMs);
-    const resampled = await ctx.clock.time('resample', () => ctx.pool.resample(src, plan, deadline));
-    release(); // the source's pixels are no longer needed: let the next render decode
-    const format: OutputFormat = q.format === 'auto' ? negotiateFormat(accept, decoded.hasAlpha) : q.format;
-    const body = await ctx.clock.time('encode', () =>
-      withDeadline(
-        encodeImage(resampled, { format, quality: q.quality, background: q.background, canvas: layout.canvas }),
-        deadline,
-        () => ctx.pool.refusal('ERR_RENDER_TIMEOUT', 'encoding took longer than allowed'),
-      ),
-    );
-    const entry: CacheEntry = {
-      body,
-      contentType: outputFormats[format].contentType,
-      etag: strongEtag(body),
-      headers: { 'rendition-plan': formatPlanHeader(plan) },
-      createdAt: Date.now(),
-    };
-    return { entry, identity };
+    done = await resampleSource(ctx, path, q);
   } finally {
     release();
   }
+  const { raster, layout, plan, deadline } = done;
+  const format: OutputFormat = q.format === 'auto' ? negotiateFormat(accept, done.hasAlpha) : q.format;
+  const body = await ctx.clock.time('encode', () =>
+    withDeadline(
+      encodeImage(raster, { format, quality: q.quality, background: q.background, canvas: layout.canvas }),
+      deadline,
+      () => ctx.pool.refusal('ERR_RENDER_TIMEOUT', 'encoding took longer than allowed'),
+    ),
+  );
+  const entry: CacheEntry = {
+    body,
+    contentType: outputFormats[format].contentType,
+    etag: strongEtag(body),
+    headers: { 'rendition-plan': formatPlanHeader(plan) },
+    createdAt: Date.now(),
+  };
+  return { entry, identity: done.identity };
 }
 
 interface RenditionContextInternal extends RenderContext {
