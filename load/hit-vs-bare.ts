@@ -4,6 +4,9 @@
  * Target (DESIGN.md): hits >= 0.8x the bare route's requests per second.
  * Rounds alternate the order (bare first, then hit first, ...); each round gives one ratio, and
  * the median ratio is the figure (a shared machine's noise moves single runs a lot).
+ * Each server's CPU time per request (from /proc) is printed too: on a small shared machine the
+ * load generator competes for the same cores, so req/s swings with the neighbours, while CPU
+ * per request measures what a hit costs the server; its ratio (bare / hit) is the steadier one.
  *   npx tsx load/hit-vs-bare.ts [--seconds 3] [--rounds 5] [--connections 32]
  */
 import { writeFileSync } from 'node:fs';
@@ -45,26 +48,35 @@ try {
   const targets = { bare: `${bare.url}/bare`, hit: app.url + renditionPath };
   // Warm both (JIT, connection pools), then alternate so drift hits both sides alike.
   for (const url of Object.values(targets)) await cannon({ url, connections, duration: 1 });
-  const runs: Record<'bare' | 'hit', CannonRun[]> = { bare: [], hit: [] };
+  const servers = { bare, hit: app };
+  type Run = CannonRun & { cpuUs: number };
+  const runs: Record<'bare' | 'hit', Run[]> = { bare: [], hit: [] };
   const ratios: number[] = [];
+  const cpuRatios: number[] = [];
   for (let i = 0; i < rounds; i++) {
     for (const side of i % 2 ? (['hit', 'bare'] as const) : (['bare', 'hit'] as const)) {
-      runs[side].push(await cannon({ url: targets[side], connections, duration: seconds }));
+      const cpu0 = servers[side].cpuSeconds();
+      const run = await cannon({ url: targets[side], connections, duration: seconds });
+      const cpuUs = ((servers[side].cpuSeconds() - cpu0) * 1e6) / Math.max(1, run.completed);
+      runs[side].push({ ...run, cpuUs });
     }
     ratios.push(runs.hit[i].rps / runs.bare[i].rps);
+    cpuRatios.push(runs.bare[i].cpuUs / runs.hit[i].cpuUs);
   }
-  const med = (rs: CannonRun[], f: (r: CannonRun) => number) => quantile(rs.map(f), 0.5);
-  const row = (name: string, rs: CannonRun[], ratio: number) => [
+  const med = (rs: Run[], f: (r: Run) => number) => quantile(rs.map(f), 0.5);
+  const row = (name: string, rs: Run[], ratio: number, cpuRatio: number) => [
     name, med(rs, (r) => r.rps), med(rs, (r) => r.p50), med(rs, (r) => r.p99),
-    rs.reduce((s, r) => s + r.completed - r.ok2xx, 0), ratio,
+    rs.reduce((s, r) => s + r.completed - r.ok2xx, 0), ratio, med(rs, (r) => r.cpuUs), cpuRatio,
   ];
   const ratio = quantile(ratios, 0.5);
+  const cpuRatio = quantile(cpuRatios, 0.5);
   printTable(
     `cache hit vs bare route: ${connections} connections, ${rounds} rounds of ${seconds} s per side, ${body.length}-byte body (medians)`,
-    ['server', 'req/s', 'p50 ms', 'p99 ms', 'non-2xx', 'ratio'],
-    [row('bare Fastify route (reference)', runs.bare, 1), row('rendition, cache hit', runs.hit, ratio)],
+    ['server', 'req/s', 'p50 ms', 'p99 ms', 'non-2xx', 'ratio', 'server CPU us/req', 'CPU ratio'],
+    [row('bare Fastify route (reference)', runs.bare, 1, 1), row('rendition, cache hit', runs.hit, ratio, cpuRatio)],
   );
   console.log(`per-round ratios: ${ratios.map((r) => r.toFixed(2)).join(' ')}`);
+  console.log(`per-round CPU ratios (bare CPU per request / hit CPU per request): ${cpuRatios.map((r) => r.toFixed(2)).join(' ')}`);
   console.log(`\nhit / bare = ${ratio.toFixed(2)} (median; target >= 0.80): ${ratio >= 0.8 ? 'met' : 'NOT met'}`);
 } finally {
   await Promise.all([app.stop(), bare?.stop()]);

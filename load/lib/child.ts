@@ -14,6 +14,8 @@ export interface ChildServer {
   url: string;
   /** Resident set size now, from /proc (Linux), in bytes; 0 where /proc is absent. */
   rss(): number;
+  /** CPU time used so far (user + system, all threads), from /proc (Linux), in seconds; 0 where absent. */
+  cpuSeconds(): number;
   stop(): Promise<void>;
 }
 
@@ -51,6 +53,17 @@ export async function startChild(mode: string, env: Record<string, string> = {},
       try {
         const m = /VmRSS:\s+(\d+) kB/.exec(readFileSync(`/proc/${pid}/status`, 'utf8'));
         return m ? Number(m[1]) * 1024 : 0;
+      } catch {
+        return 0;
+      }
+    },
+    cpuSeconds: () => {
+      try {
+        // Fields 14 and 15 of /proc/<pid>/stat, in clock ticks (USER_HZ, 100 on Linux; proc(5)).
+        // The command name (field 2) may hold spaces, so count from its closing parenthesis.
+        const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+        const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+        return (Number(fields[11]) + Number(fields[12])) / 100;
       } catch {
         return 0;
       }
