@@ -71,6 +71,14 @@ export function across(
   }
 }
 
+/**
+ * Outputs before this one may be stored as a whole f32x4: with pixels packed (dstStep = lanes)
+ * the lanes past a pixel land on the next 3 / lanes pixels, which the loop writes afterwards.
+ */
+@inline function wideBefore(dstStep: i32, lanes: i32, o1: i32): i32 {
+  return dstStep == lanes ? o1 - 3 / lanes : -2147483648;
+}
+
 @inline function storeLanes(d: usize, acc: v128, lanes: i32): void {
   store<f32>(d, f32x4.extract_lane(acc, 0));
   if (lanes > 1) store<f32>(d + 4, f32x4.extract_lane(acc, 1));
@@ -87,6 +95,7 @@ export function pixels(
   lanes: i32, taps: i32, start: i32, weights: i32, o0: i32, o1: i32,
 ): void {
   const sb = <usize>(srcStep << 2);
+  const wide = wideBefore(dstStep, lanes, o1);
   for (let o = o0; o < o1; o++) {
     const row = addr(weights, o * taps);
     let s = addr(src, srcBase + load<i32>(addr(start, o)) * srcStep);
@@ -102,23 +111,38 @@ export function pixels(
     for (; k < taps; k++, s += sb) {
       acc0 = f32x4.add(acc0, f32x4.mul(f32x4.splat(load<f32>(row + (<usize>k << 2))), v128.load(s)));
     }
-    storeLanes(addr(dst, dstBase + o * dstStep), f32x4.add(f32x4.add(acc0, acc1), f32x4.add(acc2, acc3)), lanes);
+    const sum = f32x4.add(f32x4.add(acc0, acc1), f32x4.add(acc2, acc3));
+    const d = addr(dst, dstBase + o * dstStep);
+    if (o < wide) v128.store(d, sum);
+    else storeLanes(d, sum, lanes);
   }
 }
 
-/** Interior rows of the pyramid's symmetric 5-tap reduce: a x0 + b (x-1 + x1) + c (x-2 + x2). */
+/**
+ * Interior rows of the pyramid's symmetric 5-tap reduce: a x0 + b (x-1 + x1) + c (x-2 + x2).
+ * Output o reads inputs 2o - 2 .. 2o + 2, so the last three of them are the next output's first
+ * three: two new loads per output.
+ */
 export function reduce5(
   dst: i32, dstBase: i32, dstStep: i32, src: i32, srcBase: i32, srcStep: i32,
   lanes: i32, a: f32, b: f32, c: f32, o0: i32, o1: i32,
 ): void {
+  if (o0 >= o1) return;
   const sb = <usize>(srcStep << 2);
+  const db = <usize>(dstStep << 2);
+  const wide = wideBefore(dstStep, lanes, o1);
   const va = f32x4.splat(a), vb = f32x4.splat(b), vc = f32x4.splat(c);
-  for (let o = o0; o < o1; o++) {
-    const s = addr(src, srcBase + (2 * o - 2) * srcStep);
-    const x0 = v128.load(s), x1 = v128.load(s + sb), x2 = v128.load(s + 2 * sb);
+  let s = addr(src, srcBase + (2 * o0 - 2) * srcStep);
+  let d = addr(dst, dstBase + o0 * dstStep);
+  let x0 = v128.load(s), x1 = v128.load(s + sb), x2 = v128.load(s + 2 * sb);
+  for (let o = o0; o < o1; o++, s += 2 * sb, d += db) {
     const x3 = v128.load(s + 3 * sb), x4 = v128.load(s + 4 * sb);
     const acc = f32x4.add(f32x4.add(f32x4.mul(va, x2), f32x4.mul(vb, f32x4.add(x1, x3))), f32x4.mul(vc, f32x4.add(x0, x4)));
-    storeLanes(addr(dst, dstBase + o * dstStep), acc, lanes);
+    if (o < wide) v128.store(d, acc);
+    else storeLanes(d, acc, lanes);
+    x0 = x2;
+    x1 = x3;
+    x2 = x4;
   }
 }
 
