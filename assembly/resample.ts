@@ -162,18 +162,40 @@ export function decode16(dst: i32, src: i32, lut: i32, n: i32): void {
 
 /**
  * n working floats at src to 8-bit sRGB codes at dst, the twin of quantiseRun in
- * src/core/color/encoder.ts: a bucket table (start, buckets entries) gives a first code and the
- * thresholds (f64, one per code, the last +Infinity) finish it; NaN and values <= 0 give 0.
+ * src/core/color/encoder.ts with the bucket tables of src/core/color/bit-buckets.ts: a value's
+ * float32 bits, shifted, pick a bucket whose first code (start, u8) is at most one threshold
+ * (thresholds, f32, the last +Infinity) below the answer. Values >= 1 are taken as the largest
+ * float32 below 1 (code 255); NaN and values <= 0 give 0. No branch but the loop's exit.
  */
-export function quantise8(dst: i32, src: i32, n: i32, thresholds: i32, start: i32, buckets: f64): void {
-  for (let i = 0; i < n; i++) {
-    const v = <f64>load<f32>(<usize>(src + (i << 2)));
-    let code: i32 = 0;
-    if (v >= 1) code = 255;
-    else if (v > 0) {
-      code = load<i32>(<usize>(start + (<i32>(v * buckets) << 2)));
-      while (v >= load<f64>(<usize>(thresholds + (code << 3)))) code++;
-    }
+export function quantise8(dst: i32, src: i32, n: i32, thresholds: i32, start: i32, shift: i32, base: i32): void {
+  const vec = n & ~3;
+  const nan = i32x4.splat(0x7f800000), top = i32x4.splat(0x3f7fffff), zero = i32x4.splat(0), vb = i32x4.splat(base);
+  for (let i = 0; i < vec; i += 4) {
+    const x = v128.load(<usize>(src + (i << 2)));
+    const u = i32x4.min_s(i32x4.max_s(v128.andnot(x, i32x4.gt_s(x, nan)), zero), top);
+    const b = i32x4.max_s(i32x4.sub(i32x4.shr_s(u, shift), vb), zero);
+    const c0 = <i32>load<u8>(<usize>(start + i32x4.extract_lane(b, 0)));
+    const c1 = <i32>load<u8>(<usize>(start + i32x4.extract_lane(b, 1)));
+    const c2 = <i32>load<u8>(<usize>(start + i32x4.extract_lane(b, 2)));
+    const c3 = <i32>load<u8>(<usize>(start + i32x4.extract_lane(b, 3)));
+    let t = f32x4.splat(load<f32>(<usize>(thresholds + (c0 << 2))));
+    t = f32x4.replace_lane(t, 1, load<f32>(<usize>(thresholds + (c1 << 2))));
+    t = f32x4.replace_lane(t, 2, load<f32>(<usize>(thresholds + (c2 << 2))));
+    t = f32x4.replace_lane(t, 3, load<f32>(<usize>(thresholds + (c3 << 2))));
+    let c = i32x4.splat(c0);
+    c = i32x4.replace_lane(c, 1, c1);
+    c = i32x4.replace_lane(c, 2, c2);
+    c = i32x4.replace_lane(c, 3, c3);
+    c = i32x4.sub(c, f32x4.ge(u, t));
+    const bytes = i8x16.narrow_i16x8_u(i16x8.narrow_i32x4_u(c, c), zero);
+    v128.store32_lane(<usize>(dst + i), bytes, 0);
+  }
+  for (let i = vec; i < n; i++) {
+    const x = load<i32>(<usize>(src + (i << 2)));
+    const u = min<i32>(max<i32>(select<i32>(0, x, x > 0x7f800000), 0), 0x3f7fffff);
+    const v = reinterpret<f32>(u);
+    let code = <i32>load<u8>(<usize>(start + max<i32>((u >> shift) - base, 0)));
+    code += <i32>(v >= load<f32>(<usize>(thresholds + (code << 2))));
     store<u8>(<usize>(dst + i), code);
   }
 }

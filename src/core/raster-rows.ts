@@ -1,5 +1,6 @@
 import type { PixelRaster } from './types.js';
 import { decodeRow, encodeRow, type RowCodec } from './color/index.js';
+import { bitBuckets8 } from './color/bit-buckets.js';
 import type { RowSource } from './resample/index.js';
 import type { Arena, SimdKernels } from './simd/index.js';
 
@@ -48,13 +49,16 @@ function simdEncodes(codec: RowCodec): boolean {
 /** Scratch bytes the SIMD row encoder needs for rows of `samples` samples (0 when not used). */
 export function encodeScratchBytes(codec: RowCodec, samples: number): number {
   const q = codec.quantiser;
-  return simdEncodes(codec) && q ? samples + q.thresholds.length * 8 + q.start.length * 4 + 64 : 0;
+  if (!simdEncodes(codec) || !q) return 0;
+  const { thresholds, start } = bitBuckets8(q);
+  return samples + thresholds.length * 4 + start.length + 64;
 }
 
 /**
  * Writes working rows (dstW pixels) as codes into out, row o - r0: unpremultiplied, clamped
  * and correctly rounded (encodeRow), or, for 8-bit linear rows without alpha with the SIMD
- * kernels at hand, quantised in the kernels' memory with the same tables and copied out.
+ * kernels at hand, quantised in the kernels' memory with the same thresholds (bucketed by the
+ * floats' bits, color/bit-buckets.ts) and copied out.
  */
 export function rowEncoder(
   codec: RowCodec,
@@ -67,15 +71,16 @@ export function rowEncoder(
   const q = codec.quantiser;
   if (!simd || !q || !simdEncodes(codec)) return (o, line) => encodeRow(codec, line, 0, dstW, out, (o - r0) * n);
   const { k, arena } = simd;
-  const thresholds = arena.scratch(q.thresholds.length * 8);
-  new Float64Array(k.memory.buffer, thresholds, q.thresholds.length).set(q.thresholds);
-  const start = arena.scratch(q.start.length * 4);
-  new Int32Array(k.memory.buffer, start, q.start.length).set(q.start);
+  const b = bitBuckets8(q);
+  const thresholds = arena.scratch(b.thresholds.length * 4);
+  new Float32Array(k.memory.buffer, thresholds, b.thresholds.length).set(b.thresholds);
+  const start = arena.scratch(b.start.length);
+  new Uint8Array(k.memory.buffer, start, b.start.length).set(b.start);
   const codes = arena.scratch(n);
   const row = new Uint8Array(k.memory.buffer, codes, n);
   return (o, line) => {
     if (line.buffer !== k.memory.buffer) return encodeRow(codec, line, 0, dstW, out, (o - r0) * n);
-    k.quantise8(codes, line.byteOffset, n, thresholds, start, q.buckets);
+    k.quantise8(codes, line.byteOffset, n, thresholds, start, b.shift, b.base);
     out.set(row, (o - r0) * n);
   };
 }

@@ -10,7 +10,7 @@ type Reduce = (
 ) => void;
 
 type Decode = (dst: number, src: number, lut: number, n: number) => void;
-type Quantise = (dst: number, src: number, n: number, thresholds: number, start: number, buckets: number) => void;
+type Quantise = (dst: number, src: number, n: number, thresholds: number, start: number, shift: number, base: number) => void;
 
 /** The part of the WebAssembly JS API used here (the project's lib settings carry no DOM types). */
 export interface WasmMemory {
