@@ -70,8 +70,10 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     // URLs the router cannot decode (bad percent-encoding) get problem details too.
     frameworkErrors: (error, request, reply) => sendProblem(request, reply, toFoldwiseError(error)),
   });
-  app.addHook('onSend', async (request, reply) => {
+  // Callback style (no promise per response): this runs on every answer, cache hits included.
+  app.addHook('onSend', (request, reply, payload, done) => {
     reply.header('x-request-id', request.id);
+    done(null, payload);
   });
 
   const origin =

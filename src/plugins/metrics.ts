@@ -76,7 +76,8 @@ export function createMetrics(): Metrics {
 async function metricsPlugin(app: FastifyInstance): Promise<void> {
   const metrics = createMetrics();
   app.decorate('metrics', metrics);
-  app.addHook('onResponse', async (request, reply) => {
+  // Callback style (no promise per response): this runs on every answer, cache hits included.
+  app.addHook('onResponse', (request, reply, done) => {
     const labels = {
       route: request.routeOptions.url ?? 'unmatched',
       method: request.method,
@@ -84,6 +85,7 @@ async function metricsPlugin(app: FastifyInstance): Promise<void> {
     };
     metrics.httpRequests.inc(labels);
     metrics.httpSeconds.observe(labels, reply.elapsedTime / 1000);
+    done();
   });
 }
 
