@@ -59,8 +59,11 @@ export const configSchema = z.strictObject({
   pool: z.strictObject({
     /** Worker threads; 0 = one per available core. */
     threads: z.number().int().min(0).max(256),
-    /** Renders allowed to wait for a worker; past it the service answers 503. */
-    maxQueue: z.number().int().min(0),
+    /**
+     * Renders allowed to wait for a worker; past it the service answers 503. null = two per
+     * worker thread (small on purpose: see RenderPool).
+     */
+    maxQueue: z.number().int().min(0).nullable(),
     retryAfterSeconds: positiveInt,
   }),
   cache: z.strictObject({

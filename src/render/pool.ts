@@ -10,10 +10,18 @@ import { Admission } from './admission.js';
 export interface RenderPoolOptions {
   /** Worker threads; 0 = one per available core. */
   threads: number;
-  /** Renders allowed to wait beyond one per thread. */
-  maxQueue: number;
+  /** Renders allowed to wait beyond one per thread; null = `queuePerThread` per thread. */
+  maxQueue: number | null;
   retryAfterSeconds: number;
 }
+
+/**
+ * The default wait line, per worker thread. Waiting renders hold no pixels, but a long line
+ * only turns overload into long waits (and client timeouts) instead of a prompt 503 with
+ * Retry-After; with 2 per thread, 64 concurrent 12 MP misses on 2 cores stay well under the
+ * 1.5 GiB target (load/miss-mix.ts).
+ */
+export const queuePerThread = 2;
 
 /** Running from TypeScript sources (tsx, vitest): workers need tsx's loader too. */
 const fromSource = import.meta.url.endsWith('.ts');
@@ -53,7 +61,7 @@ export class RenderPool {
   constructor(opts: RenderPoolOptions) {
     this.threads = opts.threads > 0 ? opts.threads : availableParallelism();
     this.retryAfterSeconds = opts.retryAfterSeconds;
-    this.admission = new Admission(this.threads, opts.maxQueue, opts.retryAfterSeconds);
+    this.admission = new Admission(this.threads, opts.maxQueue ?? queuePerThread * this.threads, opts.retryAfterSeconds);
     this.piscina = new Piscina<ResampleTask, number>({
       filename: workerFile,
       minThreads: this.threads,
