@@ -146,6 +146,45 @@ export function reduce5(
   }
 }
 
+/** One pixel of 1..4 8-bit codes at src as working floats through the table at lut. */
+@inline function decodePixel(src: usize, lut: usize, lanes: i32): v128 {
+  let v = f32x4.splat(load<f32>(lut + (<usize>load<u8>(src) << 2)));
+  if (lanes > 1) v = f32x4.replace_lane(v, 1, load<f32>(lut + (<usize>load<u8>(src + 1) << 2)));
+  if (lanes > 2) v = f32x4.replace_lane(v, 2, load<f32>(lut + (<usize>load<u8>(src + 2) << 2)));
+  if (lanes > 3) v = f32x4.replace_lane(v, 3, load<f32>(lut + (<usize>load<u8>(src + 3) << 2)));
+  return v;
+}
+
+/**
+ * decode8 and reduce5 in one pass over a row of 8-bit pixels (lanes codes each, packed at
+ * src): interior outputs o0..o1 of the pyramid's reduce, each input pixel decoded through the
+ * table at lut straight into a register, so the decoded row is never stored. Same sums in the
+ * same order as decode8 then reduce5.
+ */
+export function decodeReduce5(
+  dst: i32, dstBase: i32, dstStep: i32, src: i32, lut: i32,
+  lanes: i32, a: f32, b: f32, c: f32, o0: i32, o1: i32,
+): void {
+  if (o0 >= o1) return;
+  const sb = <usize>lanes;
+  const db = <usize>(dstStep << 2);
+  const wide = wideBefore(dstStep, lanes, o1);
+  const va = f32x4.splat(a), vb = f32x4.splat(b), vc = f32x4.splat(c);
+  const t = <usize>lut;
+  let s = <usize>(src + (2 * o0 - 2) * lanes);
+  let d = addr(dst, dstBase + o0 * dstStep);
+  let x0 = decodePixel(s, t, lanes), x1 = decodePixel(s + sb, t, lanes), x2 = decodePixel(s + 2 * sb, t, lanes);
+  for (let o = o0; o < o1; o++, s += 2 * sb, d += db) {
+    const x3 = decodePixel(s + 3 * sb, t, lanes), x4 = decodePixel(s + 4 * sb, t, lanes);
+    const acc = f32x4.add(f32x4.add(f32x4.mul(va, x2), f32x4.mul(vb, f32x4.add(x1, x3))), f32x4.mul(vc, f32x4.add(x0, x4)));
+    if (o < wide) v128.store(d, acc);
+    else storeLanes(d, acc, lanes);
+    x0 = x2;
+    x1 = x3;
+    x2 = x4;
+  }
+}
+
 /** n 8-bit codes at src to working floats at dst through the 256-entry table at lut. */
 export function decode8(dst: i32, src: i32, lut: i32, n: i32): void {
   for (let i = 0; i < n; i++) {

@@ -4,6 +4,7 @@ import { rasterRows, rowScratchBytes, rowEncoder, encodeScratchBytes } from './r
 import { planTable, resampleStream, streamLayout, type RowSource, type WeightTable } from './resample/index.js';
 import { simdKernels, arenaFor, arenaBytes, type Arena } from './simd/index.js';
 import { reduceTable } from './pyramid.js';
+import { fusesReduce, reducedRows, reducedRowsFloats } from './reduced-rows.js';
 
 /** Options of {@link renderRaster}. */
 export interface RenderOptions {
@@ -26,14 +27,16 @@ function simdArena(
   lanes: number,
   dstW: number,
   scratchBytes: number,
+  fusedFloats: number,
 ): Arena | null {
   const k = simdKernels();
   if (!k) return null;
   // The scratch is up to five areas (codes and tables), each padded and aligned on its own.
-  const counts: number[] = [dstW * lanes, Math.ceil(scratchBytes / 4) + 40];
+  const counts: number[] = [dstW * lanes, Math.ceil(scratchBytes / 4) + 40, fusedFloats];
   let w = width;
-  for (const [tx, ty, a, b] of passes) {
-    counts.push(...streamLayout(w, lanes, tx, ty, a, b, true).sizes);
+  for (const [i, [tx, ty, a, b]] of passes.entries()) {
+    // A fused first stage reads rows already reduced along x (reduced-rows.ts).
+    counts.push(...streamLayout(fusedFloats > 0 && i === 0 ? tx.dstLen : w, lanes, fusedFloats > 0 && i === 0 ? null : tx, ty, a, b, true).sizes);
     for (const t of [tx, ty]) counts.push(t.dstLen, t.weights.length);
     w = tx.dstLen;
   }
@@ -110,14 +113,19 @@ export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions =
   const passes: Array<[WeightTable, WeightTable, number, number]> = stages.map(([bx, by], i) => [bx, by, spans[i][0], spans[i][1]]);
   passes.push([planTable(plan, 'x'), ty, r0, r1]);
   const scratch = rowScratchBytes(src, codec) + encodeScratchBytes(codec, dstW * channels);
-  const arena = simdArena(passes, width, channels, dstW, scratch);
+  const fused = stages.length > 0 && fusesReduce(src, codec, stages[0][0], simdKernels() !== null);
+  const arena = simdArena(passes, width, channels, dstW, scratch, fused ? reducedRowsFloats(src) : 0);
   const alloc = arena ? arena.floats : (n: number) => new Float32Array(n);
   const simd = arena ? { k: simdKernels()!, arena } : undefined;
-  let source: RowSource = rasterRows(src, codec, simd);
+  let source: RowSource | undefined;
   for (const [bx, by, a, b] of passes) {
-    source = resampleStream(source, arena ? placed(arena, bx) : bx, arena ? placed(arena, by) : by, a, b, alloc);
+    const tx = arena ? placed(arena, bx) : bx;
+    const ty = arena ? placed(arena, by) : by;
+    // The first pyramid stage's x reduce fused with the decode (reduced-rows.ts), or the plain rows.
+    if (!source && fused) source = resampleStream(reducedRows(src, codec, tx, simd!), null, ty, a, b, alloc);
+    else source = resampleStream(source ?? rasterRows(src, codec, simd), tx, ty, a, b, alloc);
   }
-  const final = source;
+  const final = source!;
   const line = alloc(dstW * channels);
   const emit = rowEncoder(codec, out, dstW, r0, simd);
   for (let o = r0; o < r1; o++) {

@@ -19,24 +19,27 @@ const SLACK = 64;
  * one f32x4 per pixel in the SIMD ones, where a vertical tap costs a quarter per sample.
  */
 export function streamLayout(
-  sourceWidth: number, lanes: number, tx: WeightTable, ty: WeightTable, o0: number, o1: number, simd: boolean,
+  sourceWidth: number, lanes: number, tx: WeightTable | null, ty: WeightTable, o0: number, o1: number, simd: boolean,
 ) {
-  const dstW = tx.dstLen;
+  const dstW = tx ? tx.dstLen : sourceWidth;
+  const taps = tx ? tx.taps : 0;
   const rows = o1 > o0 ? ty.start[o1 - 1] + ty.taps - ty.start[o0] : 0;
   const outRows = o1 - o0;
   const h = simd ? 1 : lanes;
   const v = simd ? lanes / 4 : lanes;
-  const hFirstCost = rows * dstW * tx.taps * h + outRows * dstW * ty.taps * v;
-  const vFirstCost = outRows * sourceWidth * ty.taps * v + outRows * dstW * tx.taps * h;
-  const hFirst = hFirstCost <= vFirstCost;
+  const hFirstCost = rows * dstW * taps * h + outRows * dstW * ty.taps * v;
+  const vFirstCost = outRows * sourceWidth * ty.taps * v + outRows * dstW * taps * h;
+  // With no x table (the source already has the output width) the rows go straight to the window.
+  const hFirst = tx !== null && hFirstCost <= vFirstCost;
   const rowLen = (hFirst ? dstW : sourceWidth) * lanes;
   const capacity = Math.min(rows, ty.taps + Math.max(SLACK, ty.taps));
-  const sizes = [capacity * rowLen, (hFirst ? sourceWidth : 1) * lanes, hFirst ? 0 : rowLen] as const;
+  const sizes = [capacity * rowLen, (hFirst ? sourceWidth : 1) * lanes, hFirst || !tx ? 0 : rowLen] as const;
   return { hFirst, rowLen, capacity, sizes };
 }
 
 /**
- * A separable resample of `source` through tables tx (columns) and ty (rows), itself a
+ * A separable resample of `source` through tables tx (columns; null when the source's rows
+ * already have the output width) and ty (rows), itself a
  * RowSource of output rows [o0, o1), read in non-decreasing order. A sliding window holds only
  * the input rows the current output row needs plus some slack, so no full float copy of the
  * input ever exists and every input row is produced once. The cheaper axis order is taken,
@@ -46,18 +49,18 @@ export function streamLayout(
  */
 export function resampleStream(
   source: RowSource,
-  tx: WeightTable,
+  tx: WeightTable | null,
   ty: WeightTable,
   o0: number,
   o1: number,
   alloc: (n: number) => Float32Array = (n) => new Float32Array(n),
 ): RowSource {
   const lanes = source.lanes;
-  const dstW = tx.dstLen;
-  const { hFirst, rowLen, capacity, sizes } = streamLayout(source.width, lanes, tx, ty, o0, o1, tx.simd !== undefined);
+  const dstW = tx ? tx.dstLen : source.width;
+  const { hFirst, rowLen, capacity, sizes } = streamLayout(source.width, lanes, tx, ty, o0, o1, ty.simd !== undefined);
   const win = alloc(sizes[0]);
   const line = alloc(sizes[1]);
-  const mixed = hFirst ? line : alloc(sizes[2]);
+  const mixed = hFirst || !tx ? line : alloc(sizes[2]);
   let winLo = o1 > o0 ? ty.start[o0] : 0;
   let winHi = winLo;
   return {
@@ -76,13 +79,13 @@ export function resampleStream(
         const slot = (y - winLo) * rowLen;
         if (hFirst) {
           source.read(y, line, 0);
-          resampleAxis(win, slot, lanes, line, 0, lanes, lanes, tx, 0, dstW);
+          resampleAxis(win, slot, lanes, line, 0, lanes, lanes, tx!, 0, dstW);
         } else {
           source.read(y, win, slot);
         }
       }
       if (hi > winHi) winHi = hi;
-      if (hFirst) {
+      if (hFirst || !tx) {
         resampleAxis(out, at - o * rowLen, rowLen, win, -winLo * rowLen, rowLen, rowLen, ty, o, o + 1);
       } else {
         resampleAxis(mixed, -o * rowLen, rowLen, win, -winLo * rowLen, rowLen, rowLen, ty, o, o + 1);

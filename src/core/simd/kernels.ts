@@ -10,6 +10,10 @@ type Reduce = (
 ) => void;
 
 type Decode = (dst: number, src: number, lut: number, n: number) => void;
+type DecodeReduce = (
+  dst: number, dstBase: number, dstStep: number, src: number, lut: number,
+  lanes: number, a: number, b: number, c: number, o0: number, o1: number,
+) => void;
 type Quantise = (dst: number, src: number, n: number, thresholds: number, start: number, shift: number, base: number) => void;
 
 /** The part of the WebAssembly JS API used here (the project's lib settings carry no DOM types). */
@@ -32,6 +36,7 @@ export interface SimdKernels {
   readonly reduce5: Reduce;
   readonly decode8: Decode;
   readonly decode16: Decode;
+  readonly decodeReduce5: DecodeReduce;
   readonly quantise8: Quantise;
 }
 
@@ -48,8 +53,8 @@ function instantiate(): SimdKernels | null {
   const memory = new wasm.Memory({ initial: 2 });
   const inst = new wasm.Instance(new wasm.Module(bytes), { env: { memory } });
   const e = inst.exports as unknown as Omit<SimdKernels, 'memory'>;
-  const { across, pixels, reduce5, decode8, decode16, quantise8 } = e;
-  return { memory, across, pixels, reduce5, decode8, decode16, quantise8 };
+  const { across, pixels, reduce5, decode8, decode16, decodeReduce5, quantise8 } = e;
+  return { memory, across, pixels, reduce5, decode8, decode16, decodeReduce5, quantise8 };
 }
 
 /** The SIMD kernels of this thread, or null when disabled or unsupported. */
