@@ -72,6 +72,35 @@ export function across(
 }
 
 /**
+ * Interior output rows of the pyramid's symmetric 5-tap reduce down columns (many lanes):
+ * dst row o = a r(2o) + b (r(2o - 1) + r(2o + 1)) + c (r(2o - 2) + r(2o + 2)), f32x4 over lanes,
+ * each output row read and written once (the general across pass reads it back per 4 taps).
+ */
+export function across5(
+  dst: i32, dstBase: i32, dstStep: i32, src: i32, srcBase: i32, srcStep: i32,
+  lanes: i32, a: f32, b: f32, c: f32, o0: i32, o1: i32,
+): void {
+  const vec = lanes & ~3;
+  const sb = <usize>(srcStep << 2);
+  const va = f32x4.splat(a), vb = f32x4.splat(b), vc = f32x4.splat(c);
+  for (let o = o0; o < o1; o++) {
+    const d = addr(dst, dstBase + o * dstStep);
+    const x0 = addr(src, srcBase + (2 * o - 2) * srcStep);
+    const x1 = x0 + sb, x2 = x1 + sb, x3 = x2 + sb, x4 = x3 + sb;
+    for (let i = 0; i < vec; i += 4) {
+      const j = <usize>(i << 2);
+      const e = f32x4.add(v128.load(x1 + j), v128.load(x3 + j));
+      const f = f32x4.add(v128.load(x0 + j), v128.load(x4 + j));
+      v128.store(d + j, f32x4.add(f32x4.add(f32x4.mul(va, v128.load(x2 + j)), f32x4.mul(vb, e)), f32x4.mul(vc, f)));
+    }
+    for (let i = vec; i < lanes; i++) {
+      const j = <usize>(i << 2);
+      store<f32>(d + j, a * load<f32>(x2 + j) + b * (load<f32>(x1 + j) + load<f32>(x3 + j)) + c * (load<f32>(x0 + j) + load<f32>(x4 + j)));
+    }
+  }
+}
+
+/**
  * Outputs before this one may be stored as a whole f32x4: with pixels packed (dstStep = lanes)
  * the lanes past a pixel land on the next 3 / lanes pixels, which the loop writes afterwards.
  */

@@ -29,7 +29,7 @@ export function resampleAxis(
   const k = table.simd;
   if (k && dst.buffer === k.memory.buffer && src.buffer === dst.buffer) {
     const d = dst.byteOffset, s = src.byteOffset;
-    if (table.symmetric5 && lanes <= 4) return simdReduce5(k, d, dstBase, dstStep, s, srcBase, srcStep, lanes, table, o0, o1);
+    if (table.symmetric5) return simdReduce5(k, d, dstBase, dstStep, s, srcBase, srcStep, lanes, table, o0, o1);
     const pass = lanes > 4 ? k.across : k.pixels;
     return pass(d, dstBase, dstStep, s, srcBase, srcStep, lanes, table.taps, table.start.byteOffset, table.weights.byteOffset, o0, o1);
   }
@@ -121,7 +121,10 @@ function reduce5(
   if (last < o1) pixels(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, table, last, o1);
 }
 
-/** reduce5 through the SIMD kernels: interior rows by symmetry, border rows as plain pixels. */
+/**
+ * reduce5 through the SIMD kernels: interior rows by symmetry (pixels, or whole rows down
+ * columns when lanes > 4), border rows through the general pass.
+ */
 function simdReduce5(
   k: NonNullable<WeightTable['simd']>, d: number, dstBase: number, dstStep: number, s: number,
   srcBase: number, srcStep: number, lanes: number, table: WeightTable, o0: number, o1: number,
@@ -132,9 +135,10 @@ function simdReduce5(
   const { taps } = table;
   const start = table.start.byteOffset;
   const weights = table.weights.byteOffset;
-  if (o0 < first) k.pixels(d, dstBase, dstStep, s, srcBase, srcStep, lanes, taps, start, weights, o0, first);
-  k.reduce5(d, dstBase, dstStep, s, srcBase, srcStep, lanes, a, b, c, first, last);
-  if (last < o1) k.pixels(d, dstBase, dstStep, s, srcBase, srcStep, lanes, taps, start, weights, last, o1);
+  const pass = lanes > 4 ? k.across : k.pixels;
+  if (o0 < first) pass(d, dstBase, dstStep, s, srcBase, srcStep, lanes, taps, start, weights, o0, first);
+  (lanes > 4 ? k.across5 : k.reduce5)(d, dstBase, dstStep, s, srcBase, srcStep, lanes, a, b, c, first, last);
+  if (last < o1) pass(d, dstBase, dstStep, s, srcBase, srcStep, lanes, taps, start, weights, last, o1);
 }
 
 /**

@@ -34,6 +34,7 @@ export interface SimdKernels {
   readonly across: Pass;
   readonly pixels: Pass;
   readonly reduce5: Reduce;
+  readonly across5: Reduce;
   readonly decode8: Decode;
   readonly decode16: Decode;
   readonly decodeReduce5: DecodeReduce;
@@ -53,8 +54,8 @@ function instantiate(): SimdKernels | null {
   const memory = new wasm.Memory({ initial: 2 });
   const inst = new wasm.Instance(new wasm.Module(bytes), { env: { memory } });
   const e = inst.exports as unknown as Omit<SimdKernels, 'memory'>;
-  const { across, pixels, reduce5, decode8, decode16, decodeReduce5, quantise8 } = e;
-  return { memory, across, pixels, reduce5, decode8, decode16, decodeReduce5, quantise8 };
+  const { across, pixels, reduce5, across5, decode8, decode16, decodeReduce5, quantise8 } = e;
+  return { memory, across, pixels, reduce5, across5, decode8, decode16, decodeReduce5, quantise8 };
 }
 
 /** The SIMD kernels of this thread, or null when disabled or unsupported. */
