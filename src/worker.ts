@@ -24,15 +24,18 @@ export interface ResampleTask {
   out: SharedArrayBuffer;
 }
 
-function view(buffer: SharedArrayBuffer, depth: 8 | 16): Uint8Array | Uint16Array {
-  return depth === 16 ? new Uint16Array(buffer) : new Uint8Array(buffer);
+/** The first `length` samples of `buffer` (a reused buffer may be longer than the raster). */
+function view(buffer: SharedArrayBuffer, depth: 8 | 16, length: number): Uint8Array | Uint16Array {
+  return depth === 16 ? new Uint16Array(buffer, 0, length) : new Uint8Array(buffer, 0, length);
 }
 
 /** Renders rows [from, to) of the plan's output into `out`; returns the number of rows done. */
 export default function resample(task: ResampleTask): number {
   const { src, plan, rows, out } = task;
-  const source: PixelRaster = { data: view(src.buffer, src.depth), width: src.width, height: src.height, channels: src.channels };
+  const samples = src.width * src.height * src.channels;
+  const source: PixelRaster = { data: view(src.buffer, src.depth, samples), width: src.width, height: src.height, channels: src.channels };
   const band = renderRaster(source, plan, { rows });
-  view(out, src.depth).set(band.data, rows[0] * plan.targetWidth * src.channels);
+  const outSamples = plan.targetWidth * plan.targetHeight * src.channels;
+  view(out, src.depth, outSamples).set(band.data, rows[0] * plan.targetWidth * src.channels);
   return band.height;
 }

@@ -6,6 +6,7 @@ import type { PixelRaster, Plan } from '../core/types.js';
 import { type ErrorCode, FoldwiseError } from '../errors.js';
 import type { ResampleTask, SharedRaster } from '../worker.js';
 import { Admission } from './admission.js';
+import { StagingBuffers } from './staging.js';
 
 export interface RenderPoolOptions {
   /** Worker threads; 0 = one per available core. */
@@ -33,9 +34,13 @@ const tsxLoader = fromSource ? pathToFileURL(createRequire(import.meta.url).reso
 // in hand-off than it saves (common practice; revisit with load/ measurements).
 const SPLIT_MIN_PIXELS = 512 * 512;
 
-function share(raster: PixelRaster): SharedRaster {
+// Idle source buffers kept for reuse are at most this big each (a 16 MP RGBA source); larger
+// sources get a fresh buffer (staging.ts).
+const STAGING_MAX_BYTES = 64 * 2 ** 20;
+
+function share(raster: PixelRaster, staging: StagingBuffers): SharedRaster {
   const depth = raster.data instanceof Uint16Array ? 16 : 8;
-  const buffer = new SharedArrayBuffer(raster.data.byteLength);
+  const buffer = staging.take(raster.data.byteLength);
   (depth === 16 ? new Uint16Array(buffer) : new Uint8Array(buffer)).set(raster.data);
   return { buffer, width: raster.width, height: raster.height, channels: raster.channels, depth };
 }
@@ -57,10 +62,12 @@ export class RenderPool {
   private readonly admission: Admission;
   private readonly piscina: Piscina<ResampleTask, number>;
   private closing?: Promise<void>;
+  private readonly staging: StagingBuffers;
 
   constructor(opts: RenderPoolOptions) {
     this.threads = opts.threads > 0 ? opts.threads : availableParallelism();
     this.retryAfterSeconds = opts.retryAfterSeconds;
+    this.staging = new StagingBuffers(this.threads, STAGING_MAX_BYTES);
     this.admission = new Admission(this.threads, opts.maxQueue ?? queuePerThread * this.threads, opts.retryAfterSeconds);
     this.piscina = new Piscina<ResampleTask, number>({
       filename: workerFile,
@@ -109,7 +116,7 @@ export class RenderPool {
   async resample(src: PixelRaster, plan: Plan, signal?: AbortSignal): Promise<PixelRaster> {
     // A closed piscina would start fresh threads for a late task: refuse it here instead.
     if (this.closing) throw this.stopping();
-    const shared = share(src);
+    const shared = share(src, this.staging);
     const bytesPer = shared.depth / 8;
     const out = new SharedArrayBuffer(plan.targetWidth * plan.targetHeight * src.channels * bytesPer);
     const h = plan.targetHeight;
@@ -124,6 +131,8 @@ export class RenderPool {
       if (this.closing) throw this.stopping(e);
       throw new FoldwiseError('ERR_RENDER_FAILED', 'resampling failed', { cause: e });
     }
+    // Only after a clean finish: a task cut short may still be reading the buffer.
+    this.staging.give(shared.buffer);
     const data = shared.depth === 16 ? new Uint16Array(out) : new Uint8Array(out);
     return { data, width: plan.targetWidth, height: plan.targetHeight, channels: src.channels };
   }

@@ -1,0 +1,43 @@
+/**
+ * Reused SharedArrayBuffers for the sources handed to the worker threads. A fresh buffer of a
+ * 12 MP source costs its page faults and zeroing on every render, about four times the copy
+ * into a buffer already mapped (scripts/bench.ts shows the pool's part); reusing one leaves the
+ * copy. Idle buffers are kept up to `keep` (one per render that may hold pixels at a time) and
+ * `maxBytes` each, so what stays mapped between renders is bounded; larger sources get a
+ * buffer of their own, dropped after the render.
+ */
+export class StagingBuffers {
+  private readonly idle: SharedArrayBuffer[] = [];
+
+  constructor(
+    private readonly keep: number,
+    private readonly maxBytes: number,
+  ) {}
+
+  /** A buffer of at least `bytes`: the smallest idle one that fits, else a new one. */
+  take(bytes: number): SharedArrayBuffer {
+    let best = -1;
+    for (let i = 0; i < this.idle.length; i++) {
+      const size = this.idle[i].byteLength;
+      if (size >= bytes && (best < 0 || size < this.idle[best].byteLength)) best = i;
+    }
+    if (best >= 0) return this.idle.splice(best, 1)[0];
+    // Whole MiB, so sources of nearly the same size share buffers.
+    return new SharedArrayBuffer(Math.ceil(bytes / 2 ** 20) * 2 ** 20);
+  }
+
+  /** Returns a buffer taken by `take` once no task reads it any more; the smallest goes past `keep`. */
+  give(buffer: SharedArrayBuffer): void {
+    if (buffer.byteLength > this.maxBytes) return;
+    this.idle.push(buffer);
+    if (this.idle.length > this.keep) {
+      this.idle.sort((a, b) => b.byteLength - a.byteLength);
+      this.idle.length = this.keep;
+    }
+  }
+
+  /** Bytes held by idle buffers. */
+  get idleBytes(): number {
+    return this.idle.reduce((sum, b) => sum + b.byteLength, 0);
+  }
+}
