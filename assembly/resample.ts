@@ -194,6 +194,15 @@ export function decodeReduce5(
   dst: i32, dstBase: i32, dstStep: i32, src: i32, lut: i32,
   lanes: i32, a: f32, b: f32, c: f32, o0: i32, o1: i32,
 ): void {
+  // RGB, the common case, with the lane count a constant so the pixel decode has no branches.
+  if (lanes == 3) decodeReduce5Lanes(dst, dstBase, dstStep, src, lut, 3, a, b, c, o0, o1);
+  else decodeReduce5Lanes(dst, dstBase, dstStep, src, lut, lanes, a, b, c, o0, o1);
+}
+
+@inline function decodeReduce5Lanes(
+  dst: i32, dstBase: i32, dstStep: i32, src: i32, lut: i32,
+  lanes: i32, a: f32, b: f32, c: f32, o0: i32, o1: i32,
+): void {
   if (o0 >= o1) return;
   const sb = <usize>lanes;
   const db = <usize>(dstStep << 2);
