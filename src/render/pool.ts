@@ -17,10 +17,10 @@ export interface RenderPoolOptions {
 }
 
 /**
- * The default wait line, per worker thread. Waiting renders hold no pixels, but a long line
- * only turns overload into long waits (and client timeouts) instead of a prompt 503 with
- * Retry-After; with 2 per thread, 64 concurrent 12 MP misses on 2 cores stay well under the
- * 1.5 GiB target (load/miss-mix.ts).
+ * The default wait line, per worker thread. Waiting renders hold no pixels (the render service
+ * drops a source when its permit is released), so memory is bounded by the threads rather
+ * than by this line; a short line turns overload into a prompt 503 with Retry-After instead of
+ * long waits and client timeouts. Check a setting with load/miss-mix.ts (peak RSS).
  */
 export const queuePerThread = 2;
 
