@@ -63,6 +63,12 @@ export interface AxisPlan {
   kernel: KernelName;
   /** Gaussian prefilter sigma in source pixels (0 = none). */
   sigma: number;
+  /**
+   * Where sigma came from: 'kernel' (none added: the stretched kernel is the low-pass),
+   * 'content' (raised by the alias-risk analysis), 'asked' (a number in the request),
+   * 'none' (turned off, or an upscale). Optional so hand-made plans stay valid.
+   */
+  sigmaFrom?: 'kernel' | 'content' | 'asked' | 'none';
   /** Number of reduce-by-2 pyramid stages before the final exact resample. */
   pyramidLevels: number;
 }

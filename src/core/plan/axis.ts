@@ -31,5 +31,5 @@ export function planAxis(
   const sigma = pre.sigma;
   const pyramidLevels = pyramidLevelsFor(k, scale);
   if (pyramidLevels > 0) words.push(`${pyramidLevels} pyramid level(s)`);
-  return { axis: { scale, kernel, sigma, pyramidLevels }, why: words.join(', ') };
+  return { axis: { scale, kernel, sigma, sigmaFrom: pre.from, pyramidLevels }, why: words.join(', ') };
 }

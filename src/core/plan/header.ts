@@ -6,8 +6,9 @@ function pair(a: string, b: string): string {
 
 /**
  * Value of the `Rendition-Plan` response header, e.g.
- * `scale=4.000,4.000; kernel=bandlimit; sigma=1.12,1.12; pyramid=1,1; light=linear`.
- * Kernel names collapse to one when both axes agree.
+ * `scale=4.000,4.000; kernel=bandlimit; sigma=1.12,1.12; prefilter=content; pyramid=1,1; light=linear`.
+ * Kernel names and the sigma's origin (`prefilter`: kernel, content, asked, none) collapse to
+ * one when both axes agree; `prefilter=content` says the alias-risk analysis raised sigma.
  */
 export function formatPlanHeader(plan: Plan): string {
   const { x, y } = plan;
@@ -15,6 +16,7 @@ export function formatPlanHeader(plan: Plan): string {
     `scale=${x.scale.toFixed(3)},${y.scale.toFixed(3)}`,
     `kernel=${pair(x.kernel, y.kernel)}`,
     `sigma=${x.sigma.toFixed(2)},${y.sigma.toFixed(2)}`,
+    `prefilter=${pair(x.sigmaFrom ?? 'kernel', y.sigmaFrom ?? 'kernel')}`,
     `pyramid=${x.pyramidLevels},${y.pyramidLevels}`,
     `light=${plan.light}`,
   ].join('; ');

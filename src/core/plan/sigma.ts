@@ -24,13 +24,13 @@ export function prefilterSigma(
   choice: PrefilterChoice,
   scale: number,
   adaptive: number,
-): { sigma: number; why: string | undefined } {
-  if (typeof choice === 'number') return { sigma: choice, why: `sigma ${choice} (asked)` };
-  if (choice === 'none') return { sigma: 0, why: undefined };
-  if (scale <= 1) return { sigma: 0, why: 'no prefilter on upscale' };
-  if (!(adaptive > 0)) return { sigma: 0, why: undefined };
+): { sigma: number; from: 'kernel' | 'content' | 'asked' | 'none'; why: string | undefined } {
+  if (typeof choice === 'number') return { sigma: choice, from: 'asked', why: `sigma ${choice} (asked)` };
+  if (choice === 'none') return { sigma: 0, from: 'none', why: undefined };
+  if (scale <= 1) return { sigma: 0, from: 'none', why: 'no prefilter on upscale' };
+  if (!(adaptive > 0)) return { sigma: 0, from: 'kernel', why: undefined };
   const cap = ADAPTIVE_CAP * scale;
   const combined = adaptive; // sqrt(planned^2 + adaptive^2) with the planned sigma 0
   const sigma = Math.min(cap, combined);
-  return { sigma, why: `sigma raised by content to ${sigma.toFixed(2)}${combined > cap ? ' (capped)' : ''}` };
+  return { sigma, from: 'content', why: `sigma raised by content to ${sigma.toFixed(2)}${combined > cap ? ' (capped)' : ''}` };
 }

@@ -70,7 +70,15 @@ describe('makePlan', () => {
 describe('formatPlanHeader', () => {
   it('states scale, kernel, sigma, pyramid levels and light in our own format', () => {
     const p = makePlan({ ...base, kernel: 'lanczos3', prefilter: 1.125 });
-    expect(formatPlanHeader(p)).toBe('scale=4.000,4.000; kernel=lanczos3; sigma=1.13,1.13; pyramid=0,0; light=linear');
+    expect(formatPlanHeader(p)).toBe(
+      'scale=4.000,4.000; kernel=lanczos3; sigma=1.13,1.13; prefilter=asked; pyramid=0,0; light=linear',
+    );
+  });
+  it('says where sigma came from: the kernel alone, the content analysis, or nowhere', () => {
+    expect(formatPlanHeader(makePlan(base))).toContain('sigma=0.00,0.00; prefilter=kernel;');
+    const raised = makePlan({ ...base, adaptiveSigma: { x: 1, y: 0 } });
+    expect(formatPlanHeader(raised)).toContain('sigma=1.00,0.00; prefilter=content,kernel;');
+    expect(formatPlanHeader(makePlan({ ...base, prefilter: 'none' }))).toContain('prefilter=none;');
   });
   it('names both kernels when the axes differ', () => {
     const p = makePlan({ ...base, targetWidth: 8000, targetHeight: 750 });
