@@ -188,32 +188,33 @@ export function reduce5(
  * decode8 and reduce5 in one pass over a row of 8-bit pixels (lanes codes each, packed at
  * src): interior outputs o0..o1 of the pyramid's reduce, each input pixel decoded through the
  * table at lut straight into a register, so the decoded row is never stored. Same sums in the
- * same order as decode8 then reduce5.
+ * same order as decode8 then reduce5. RGB rows read red and green together through `pairs`,
+ * the table of both floats of every two codes (entry g * 256 + r holds lut[r], lut[g]): half
+ * the table reads, and one 8-byte load fills two lanes.
  */
 export function decodeReduce5(
-  dst: i32, dstBase: i32, dstStep: i32, src: i32, lut: i32,
-  lanes: i32, a: f32, b: f32, c: f32, o0: i32, o1: i32,
-): void {
-  // RGB, the common case, with the lane count a constant so the pixel decode has no branches.
-  if (lanes == 3) decodeReduce5Lanes(dst, dstBase, dstStep, src, lut, 3, a, b, c, o0, o1);
-  else decodeReduce5Lanes(dst, dstBase, dstStep, src, lut, lanes, a, b, c, o0, o1);
-}
-
-@inline function decodeReduce5Lanes(
-  dst: i32, dstBase: i32, dstStep: i32, src: i32, lut: i32,
+  dst: i32, dstBase: i32, dstStep: i32, src: i32, lut: i32, pairs: i32,
   lanes: i32, a: f32, b: f32, c: f32, o0: i32, o1: i32,
 ): void {
   if (o0 >= o1) return;
-  const sb = <usize>lanes;
   const db = <usize>(dstStep << 2);
   const wide = wideBefore(dstStep, lanes, o1);
   const va = f32x4.splat(a), vb = f32x4.splat(b), vc = f32x4.splat(c);
   const t = <usize>lut;
+  const p = <usize>pairs;
+  const sb = <usize>lanes;
   let s = <usize>(src + (2 * o0 - 2) * lanes);
   let d = addr(dst, dstBase + o0 * dstStep);
   let x0 = decodePixel(s, t, lanes), x1 = decodePixel(s + sb, t, lanes), x2 = decodePixel(s + 2 * sb, t, lanes);
   for (let o = o0; o < o1; o++, s += 2 * sb, d += db) {
-    const x3 = decodePixel(s + 3 * sb, t, lanes), x4 = decodePixel(s + 4 * sb, t, lanes);
+    let x3: v128, x4: v128;
+    if (lanes == 3) {
+      x3 = f32x4.replace_lane(v128.load64_zero(p + (<usize>load<u16>(s + 9) << 3)), 2, load<f32>(t + (<usize>load<u8>(s + 11) << 2)));
+      x4 = f32x4.replace_lane(v128.load64_zero(p + (<usize>load<u16>(s + 12) << 3)), 2, load<f32>(t + (<usize>load<u8>(s + 14) << 2)));
+    } else {
+      x3 = decodePixel(s + 3 * sb, t, lanes);
+      x4 = decodePixel(s + 4 * sb, t, lanes);
+    }
     const acc = f32x4.add(f32x4.add(f32x4.mul(va, x2), f32x4.mul(vb, f32x4.add(x1, x3))), f32x4.mul(vc, f32x4.add(x0, x4)));
     if (o < wide) v128.store(d, acc);
     else storeLanes(d, acc, lanes);

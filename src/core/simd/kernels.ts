@@ -11,7 +11,7 @@ type Reduce = (
 
 type Decode = (dst: number, src: number, lut: number, n: number) => void;
 type DecodeReduce = (
-  dst: number, dstBase: number, dstStep: number, src: number, lut: number,
+  dst: number, dstBase: number, dstStep: number, src: number, lut: number, pairs: number,
   lanes: number, a: number, b: number, c: number, o0: number, o1: number,
 ) => void;
 type Quantise = (dst: number, src: number, n: number, thresholds: number, start: number, shift: number, base: number) => void;
