@@ -4,7 +4,11 @@
  * different bands of one rendition without copying the source twice.
  */
 import { renderRaster } from './core/index.js';
+import { simdKernels } from './core/simd/index.js';
 import type { Channels, PixelRaster, Plan } from './core/types.js';
+
+// Compile and instantiate the SIMD kernels when the thread starts, not in its first render.
+simdKernels();
 
 /** A raster whose samples live in a SharedArrayBuffer. */
 export interface SharedRaster {
