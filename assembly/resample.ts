@@ -89,9 +89,7 @@ export function across5(
     const x1 = x0 + sb, x2 = x1 + sb, x3 = x2 + sb, x4 = x3 + sb;
     for (let i = 0; i < vec; i += 4) {
       const j = <usize>(i << 2);
-      const e = f32x4.add(v128.load(x1 + j), v128.load(x3 + j));
-      const f = f32x4.add(v128.load(x0 + j), v128.load(x4 + j));
-      v128.store(d + j, f32x4.add(f32x4.add(f32x4.mul(va, v128.load(x2 + j)), f32x4.mul(vb, e)), f32x4.mul(vc, f)));
+      v128.store(d + j, symmetric5(va, vb, vc, v128.load(x0 + j), v128.load(x1 + j), v128.load(x2 + j), v128.load(x3 + j), v128.load(x4 + j)));
     }
     for (let i = vec; i < lanes; i++) {
       const j = <usize>(i << 2);
@@ -113,6 +111,17 @@ export function across5(
   if (lanes > 1) store<f32>(d + 4, f32x4.extract_lane(acc, 1));
   if (lanes > 2) store<f32>(d + 8, f32x4.extract_lane(acc, 2));
   if (lanes > 3) store<f32>(d + 12, f32x4.extract_lane(acc, 3));
+}
+
+/** A packed pixel stored whole (see wideBefore) or lane by lane. */
+@inline function storePixel(d: usize, acc: v128, whole: bool, lanes: i32): void {
+  if (whole) v128.store(d, acc);
+  else storeLanes(d, acc, lanes);
+}
+
+/** The pyramid's symmetric 5-tap sum a x2 + b (x1 + x3) + c (x0 + x4), f32x4. */
+@inline function symmetric5(va: v128, vb: v128, vc: v128, x0: v128, x1: v128, x2: v128, x3: v128, x4: v128): v128 {
+  return f32x4.add(f32x4.add(f32x4.mul(va, x2), f32x4.mul(vb, f32x4.add(x1, x3))), f32x4.mul(vc, f32x4.add(x0, x4)));
 }
 
 /**
@@ -141,9 +150,7 @@ export function pixels(
       acc0 = f32x4.add(acc0, f32x4.mul(f32x4.splat(load<f32>(row + (<usize>k << 2))), v128.load(s)));
     }
     const sum = f32x4.add(f32x4.add(acc0, acc1), f32x4.add(acc2, acc3));
-    const d = addr(dst, dstBase + o * dstStep);
-    if (o < wide) v128.store(d, sum);
-    else storeLanes(d, sum, lanes);
+    storePixel(addr(dst, dstBase + o * dstStep), sum, o < wide, lanes);
   }
 }
 
@@ -166,9 +173,7 @@ export function reduce5(
   let x0 = v128.load(s), x1 = v128.load(s + sb), x2 = v128.load(s + 2 * sb);
   for (let o = o0; o < o1; o++, s += 2 * sb, d += db) {
     const x3 = v128.load(s + 3 * sb), x4 = v128.load(s + 4 * sb);
-    const acc = f32x4.add(f32x4.add(f32x4.mul(va, x2), f32x4.mul(vb, f32x4.add(x1, x3))), f32x4.mul(vc, f32x4.add(x0, x4)));
-    if (o < wide) v128.store(d, acc);
-    else storeLanes(d, acc, lanes);
+    storePixel(d, symmetric5(va, vb, vc, x0, x1, x2, x3, x4), o < wide, lanes);
     x0 = x2;
     x1 = x3;
     x2 = x4;
@@ -215,9 +220,7 @@ export function decodeReduce5(
       x3 = decodePixel(s + 3 * sb, t, lanes);
       x4 = decodePixel(s + 4 * sb, t, lanes);
     }
-    const acc = f32x4.add(f32x4.add(f32x4.mul(va, x2), f32x4.mul(vb, f32x4.add(x1, x3))), f32x4.mul(vc, f32x4.add(x0, x4)));
-    if (o < wide) v128.store(d, acc);
-    else storeLanes(d, acc, lanes);
+    storePixel(d, symmetric5(va, vb, vc, x0, x1, x2, x3, x4), o < wide, lanes);
     x0 = x2;
     x1 = x3;
     x2 = x4;
