@@ -126,6 +126,12 @@ export class RedisLink {
       reported = true;
       this.log.warn({ redis: role, err: err.message }, 'shared cache connection error');
     });
+    // A dropped connection is an outage even when the reconnect succeeds before any error.
+    client.on('close', () => {
+      if (reported || this.closed) return;
+      reported = true;
+      this.log.warn({ redis: role }, 'shared cache connection lost');
+    });
     client.on('ready', () => {
       if (reported) this.log.info({ redis: role }, 'shared cache connection restored');
       reported = false;
