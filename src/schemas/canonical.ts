@@ -14,7 +14,9 @@ function percent(f: number): string {
  * its default, as `name=value` joined by `&` in name order, values percent-encoded, the
  * signature left out. Two queries that ask for the same rendition have the same canonical form
  * (`width=0480&density=1` and `width=480` both give `width=480`), so the cache key cannot be
- * busted with spellings, and signatures cover meaning rather than spelling.
+ * busted with spellings. This form is for the cache key only: signatures do not use it, they
+ * cover the URL's own parameters re-encoded strictly (`canonicalSigningQuery` in
+ * src/security/signing.ts), so `width=0480` and `width=480` need different signatures.
  */
 export function canonicalQuery(q: RenditionQuery): string {
   const pairs: [string, string][] = [];
