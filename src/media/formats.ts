@@ -67,12 +67,6 @@ export const outputFormats: Readonly<Record<OutputFormat, OutputFormatSpec>> = {
   },
 };
 
-export const outputFormatNames = Object.keys(outputFormats) as OutputFormat[];
-
-export function isOutputFormat(name: string): name is OutputFormat {
-  return Object.hasOwn(outputFormats, name);
-}
-
 /**
  * Source formats the decoder accepts, by the name sharp's metadata() reports, with the file
  * extensions the folder origin lists. Everything else is refused: SVG and PDF because they
