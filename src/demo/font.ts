@@ -66,8 +66,6 @@ export function textWidth(text: string, scale: number): number {
   return Math.max(0, text.length * advance - 1) * scale;
 }
 
-export const textHeight = (scale: number) => glyphHeight * scale;
-
 /**
  * Draws `text` with its top-left corner at (x, y); each font cell is a scale x scale block.
  * Characters without a glyph are drawn as blanks.
