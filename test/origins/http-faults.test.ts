@@ -22,16 +22,21 @@ function origin(over: Partial<HttpOriginOptions> = {}) {
   return createHttpOrigin({
     allowHosts: [`http://${up.base}`, `http://${other.base}`],
     allowPrivate: true,
-    timeouts: { connectMs: 1000, headersMs: 300, bodyMs: 300 },
+    // Generous by default, so a slow shared CI machine cannot turn a prompt answer into a
+    // timeout; the two deadline tests below pass their own short `deadlines`.
+    timeouts: { connectMs: 5000, headersMs: 5000, bodyMs: 5000 },
     maxBytes: 64 * 1024,
     maxRedirects: 3,
     ...over,
   });
 }
 
+/** Short deadlines for the tests that wait for one to pass (the upstream never finishes in time). */
+const deadlines = { timeouts: { connectMs: 5000, headersMs: 300, bodyMs: 300 } };
+
 describe('http origin: faults', () => {
   it('an upstream that never answers hits the header deadline', async () => {
-    expect(await codeOf(origin().read(`${up.base}/hang.png`))).toBe('ERR_UPSTREAM_TIMEOUT');
+    expect(await codeOf(origin(deadlines).read(`${up.base}/hang.png`))).toBe('ERR_UPSTREAM_TIMEOUT');
   });
 
   it('a connection reset mid-body is an upstream failure', async () => {
@@ -57,7 +62,7 @@ describe('http origin: faults', () => {
   });
 
   it('a slow dribble hits the body deadline', async () => {
-    expect(await codeOf(origin().read(`${up.base}/dribble.png`))).toBe('ERR_UPSTREAM_TIMEOUT');
+    expect(await codeOf(origin(deadlines).read(`${up.base}/dribble.png`))).toBe('ERR_UPSTREAM_TIMEOUT');
   });
 
   it('the caller can abort a fetch, which closes the upstream connection', async () => {

@@ -31,8 +31,10 @@ beforeAll(async () => {
         upstream: {
           allowHosts: [`http://${up.base}`],
           allowPrivate: true,
-          headersTimeoutMs: 300,
-          bodyTimeoutMs: 300,
+          // hang.png needs a header deadline that passes; 1 s leaves room for a slow shared
+          // CI machine to answer the other requests. No test here waits for the body deadline.
+          headersTimeoutMs: 1000,
+          bodyTimeoutMs: 5000,
         },
       },
     },
