@@ -32,8 +32,13 @@ export function workersOf(pool: RenderPool) {
   return piscinaOf(pool).threads;
 }
 
-/** Resolves once `done()` is true, checking once per event-loop turn, at most `turns` times. */
-export async function until(done: () => boolean, turns = 200_000): Promise<void> {
+/**
+ * Resolves once `done()` is true, checking once per event-loop turn, at most `turns` times.
+ * A turn count is a time bound in disguise (200 000 idle turns pass in about 0.2 s), so the
+ * default is large: a render on a slow shared CI machine must not run out of turns before
+ * vitest's own test timeout would speak.
+ */
+export async function until(done: () => boolean, turns = 20_000_000): Promise<void> {
   for (let i = 0; i < turns; i++) {
     if (done()) return;
     await new Promise((r) => setImmediate(r));
