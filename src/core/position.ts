@@ -33,6 +33,11 @@ const keywords: Record<string, { axis: Axis; at: number }> = {
   center: { axis: 'either', at: 0.5 },
 };
 
+/** The keyword's meaning; own keys only, so 'constructor' or '__proto__' is no keyword. */
+function keyword(token: string): { axis: Axis; at: number } | undefined {
+  return Object.hasOwn(keywords, token) ? keywords[token] : undefined;
+}
+
 function percent(token: string): number | undefined {
   if (!/^\+?(?:\d+(?:\.\d*)?|\.\d+)%$/.test(token)) return undefined;
   const v = Number(token.slice(0, -1));
@@ -40,15 +45,15 @@ function percent(token: string): number | undefined {
 }
 
 function one(token: string): Position | undefined {
-  const k = keywords[token];
+  const k = keyword(token);
   if (k) return k.axis === 'y' ? { x: 0.5, y: k.at } : { x: k.at, y: 0.5 };
   const p = percent(token);
   return p === undefined ? undefined : { x: p, y: 0.5 };
 }
 
 function two(a: string, b: string): Position | undefined {
-  const ka = keywords[a];
-  const kb = keywords[b];
+  const ka = keyword(a);
+  const kb = keyword(b);
   if (ka && kb) {
     // Two keywords: order free, but not both on one axis (`left right`, `top top`).
     if (ka.axis === 'y' || kb.axis === 'x') {
@@ -72,7 +77,7 @@ function four(t: string[]): Position | undefined {
 
 /** `right 10%` is 10 % in from the right edge: 90 % (Backgrounds 3, §3.6). */
 function edgeOffset(edge: string, offset: string): { axis: 'x' | 'y'; at: number } | undefined {
-  const k = keywords[edge];
+  const k = keyword(edge);
   const p = percent(offset);
   if (!k || k.axis === 'either' || p === undefined) return undefined;
   return { axis: k.axis, at: k.at === 0 ? p : 1 - p };

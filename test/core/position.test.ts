@@ -51,6 +51,10 @@ describe('parsePosition', () => {
     'left 10% right 10%',
     '30%% 10%',
     'NaN%',
+    // Names an object literal inherits are not keywords.
+    'constructor',
+    '__proto__',
+    'constructor 10% top 20%',
   ])('refuses %j', (text) => {
     expect(parsePosition(text)).toBeUndefined();
   });
