@@ -65,7 +65,12 @@ export class IngestService extends EventEmitter {
     const { ingest, limits } = config;
     this.jobs = new JobTable<Manifest>(ingest.maxJobs);
     this.manifests = new OnceByKey<Manifest>(ingest.manifestCacheEntries);
-    this.gate = new Gate(ingest.concurrency);
+    // The wait line holds at most maxJobs builds (sync calls and async jobs alike).
+    this.gate = new Gate(ingest.concurrency, ingest.maxJobs, () =>
+      new FoldwiseError('ERR_INGEST_JOBS_FULL', `${ingest.maxJobs} ingest builds are already waiting`, {
+        headers: { 'retry-after': String(config.pool.retryAfterSeconds) },
+      }),
+    );
     this.query = compileRenditionQuery({ maxDimension: limits.maxDimension, kernelNames });
   }
 

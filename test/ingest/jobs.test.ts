@@ -80,6 +80,21 @@ describe('Gate', () => {
     expect(order).toEqual([0, 1, 2]);
     expect(most).toBe(2);
   });
+
+  it('refuses at once past `maxWaiting` waiters, and admits again once the line shortens', async () => {
+    const { Gate } = await import('../../src/ingest/gate.js');
+    const g = new Gate(1, 1, () => new Error('full'));
+    const first = gate();
+    const second = gate();
+    const runs = [g.run(() => first.opened), g.run(() => second.opened)];
+    await expect(g.run(async () => 'third')).rejects.toThrow('full');
+    first.open();
+    await runs[0];
+    // The waiter moved inside: the line is empty again, so one more may wait.
+    const fourth = g.run(async () => 'fourth');
+    second.open();
+    await expect(fourth).resolves.toBe('fourth');
+  });
 });
 
 describe('OnceByKey', () => {
