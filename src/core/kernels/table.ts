@@ -8,9 +8,10 @@ import { kaiserSinc, type KaiserSincDesign } from './designed.js';
  * The designed default for downscaling ("bandlimit"): a Kaiser-windowed sinc stretched by the
  * factor. Targets (DESIGN.md): flat to 1 % below 0.5x the new Nyquist, >= 85 % at 0.8x, <= 1 %
  * (-40 dB) beyond 1.3x, <= 3 % step overshoot. The transition 0.8x..1.3x Nyquist is 0.25 cycles
- * per output pixel wide, and a Kaiser window needs a half-width of about
- * (A - 8) / (2.285 * 2 pi * 0.25) ~ 4 samples for A = 40 dB (Kaiser 1974), so the radius is 5
- * output pixels for margin and beta = 5 (about 0.1102 (A - 8.7), A ~ 54 dB) for the stopband.
+ * per output pixel wide, and a Kaiser window needs an order (full length) of about
+ * (A - 8) / (2.285 * 2 pi * 0.25) ~ 9 samples for A = 40 dB (Kaiser 1974), a half-width of
+ * about 4.5, so the radius is 5 output pixels for margin and beta = 5 (about 0.1102 (A - 8.7),
+ * A ~ 54 dB) for the stopband.
  * The cut-off sits a little under Nyquist (0.49) because the window's transition is
  * symmetric about it while the targets are not (0.8x must pass, 1.3x must stop); on the zone
  * plate that lowers the 8x residual from -38.4 to -39.0 dB for 1 % less at 0.8x. Measured
