@@ -30,8 +30,10 @@ function pow2Floor(v: number): number {
 
 /**
  * Tile corners along one axis: `count` tiles of side t spread evenly from 0 to side - t, each
- * with the region (of `regions` equal ones) holding its centre. Spacing never exceeds a
- * region's width, so every region gets at least one tile.
+ * with the region (of `regions` equal ones) holding its centre. With count >= regions and
+ * t <= side / regions (layoutTiles ensures both), every region gets at least one tile: past
+ * `regions` tiles the spacing is below a region's width, and at exactly `regions` the i-th
+ * centre lies in region i (centres t/2 .. side - t/2 against region edges i side / regions).
  */
 function alongAxis(side: number, t: number, regions: number, count: number): { at: number[]; region: number[] } {
   const at: number[] = [];
