@@ -16,7 +16,7 @@ const sumOf = (parts: Parts): Pattern => (x, y) =>
 /**
  * Power of the rendered output (fft.js, CHECKS.md) at the bins where each part lands: a part
  * of k cycles per image lands, after decimation to M = N / s pixels, on bin k mod M (sampling
- * theorem, Shannon 1949). A 3 x 3 neighbourhood absorbs the leakage of the clamped borders.
+ * theorem, Shannon 1949). A 3 x 3 neighbourhood absorbs the leakage of the borders (mirrored, not periodic).
  */
 function powerAt(out: Float64Array, m: number, parts: Parts): number {
   const p = powerSpectrum(out, m);
