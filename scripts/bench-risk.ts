@@ -5,19 +5,13 @@
  * prints it (scripts/bench.ts).
  */
 import { fileURLToPath } from 'node:url';
-import sharp from 'sharp';
 import { makePlan, planResponse } from '../src/core/index.js';
 import { analyzeSpectrum, assessRisk } from '../src/core/risk/index.js';
-import type { PixelRaster } from '../src/core/types.js';
 import { benchJpeg } from './bench/texture.js';
+import { decodeRaw } from './bench/decode.js';
 import { timeRuns, type Timing } from './bench/timing.js';
 
 const median = timeRuns;
-
-async function decodeRaw(jpeg: Buffer): Promise<PixelRaster> {
-  const { data, info } = await sharp(jpeg).raw().toBuffer({ resolveWithObject: true });
-  return { data: new Uint8Array(data.buffer, data.byteOffset, data.length), width: info.width, height: info.height, channels: info.channels as 3 };
-}
 
 /** The table of the analysis cost as ratios to the decode of one 12 MP JPEG. */
 export async function riskBenchTable(runs = Number(process.env.BENCH_RUNS ?? 9)): Promise<string> {

@@ -6,6 +6,7 @@ import sharp from 'sharp';
 import { makePlan, renderRaster } from '../src/core/index.js';
 import type { PixelRaster } from '../src/core/types.js';
 import { benchJpeg } from './bench/texture.js';
+import { decodeRaw } from './bench/decode.js';
 import { simdKernels } from '../src/core/simd/index.js';
 import { RenderPool } from '../src/render/pool.js';
 import { encodeImage } from '../src/media/encode.js';
@@ -15,11 +16,6 @@ const RUNS = Number(process.env.BENCH_RUNS ?? 7);
 
 /** Median wall and process CPU time of RUNS calls after a warm-up (scripts/bench/timing.ts). */
 const median = (fn: () => Promise<unknown>): Promise<Timing> => timeRuns(RUNS, fn);
-
-async function decodeRaw(jpeg: Buffer): Promise<PixelRaster> {
-  const { data, info } = await sharp(jpeg).raw().toBuffer({ resolveWithObject: true });
-  return { data: new Uint8Array(data.buffer, data.byteOffset, data.length), width: info.width, height: info.height, channels: info.channels as 3 };
-}
 
 function planOf(src: PixelRaster, w: number, h: number) {
   return makePlan({ sourceWidth: src.width, sourceHeight: src.height, targetWidth: w, targetHeight: h, kernel: 'auto', prefilter: 'auto', light: 'linear' });
