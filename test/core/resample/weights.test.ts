@@ -23,6 +23,7 @@ describe('weight tables', () => {
     expect(t.centre[o]).toBe(20.5);
   });
 
+  // CHECKS.md: every kernel's weights sum to 1 at every phase after normalisation.
   const scales = [0.37, 1, 1.5, 2, 3, 4.7, 8];
   describe.each(kernelNames.map((n) => [n]))('%s', (name) => {
     it.each(scales.map((s) => [s]))('rows sum to 1 at every phase, scale %f, with and without sigma', (s) => {
