@@ -6,7 +6,7 @@ import { buildWeights, type WeightTable } from './resample/weights.js';
  * 31(4): the 5-tap generating kernel [1/4 - a/2, 1/4, a, 1/4, 1/4 - a/2]; a = 0.375 gives
  * [1, 4, 6, 4, 1] / 16, the binomial whose response is cos^4(pi f) (CHECKS.md).
  */
-export const PYRAMID_A = 0.375;
+const PYRAMID_A = 0.375;
 const TAPS = [0.25 - PYRAMID_A / 2, 0.25, PYRAMID_A, 0.25, 0.25 - PYRAMID_A / 2];
 
 /** Frequency response W(f) = a + cos(2 pi f) / 2 + (1/2 - a) cos(4 pi f), f in cycles per input pixel. */

@@ -7,7 +7,7 @@ import type { Kernel } from '../kernels/index.js';
  * 1 / (2 s_rem) of the final stage comes through at sin^4(pi / (4 s_rem)), which is
  * -41 dB at s_rem = 2.5 and grows quickly below it.
  */
-export const MIN_FINAL_SCALE = 2.5;
+const MIN_FINAL_SCALE = 2.5;
 
 /**
  * Number of reduce-by-2 pyramid stages before the exact resample: as many as keep the

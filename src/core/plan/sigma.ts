@@ -5,7 +5,7 @@ import type { PrefilterChoice } from '../types.js';
  * blur Lowe (2004) assumes a freshly sampled image carries: past it a rendition looks soft
  * however strong the periodic content is.
  */
-export const ADAPTIVE_CAP = 0.5;
+const ADAPTIVE_CAP = 0.5;
 
 /**
  * The Gaussian prefilter sigma of one axis, in source pixels, and a phrase saying why.

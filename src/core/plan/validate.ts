@@ -15,7 +15,7 @@ function finiteAtLeast(name: string, v: number, min: number): void {
 }
 
 /** The crop, defaulted to the whole source and checked to lie inside it. */
-export function validCrop(req: PlanRequest): CropRect {
+function validCrop(req: PlanRequest): CropRect {
   const crop = req.crop ?? { x: 0, y: 0, width: req.sourceWidth, height: req.sourceHeight };
   finiteAtLeast('crop.x', crop.x, 0);
   finiteAtLeast('crop.y', crop.y, 0);

@@ -36,7 +36,7 @@ export function foldedWithBlur(setup: FoldSetup, t: number): number {
 }
 
 /** Largest blur parameter searched: sigma = 2 s puts the Gaussian at exp(-19.7) at the new Nyquist. */
-export const MAX_BLUR = 2;
+const MAX_BLUR = 2;
 
 /**
  * Smallest t in [0, MAX_BLUR] with foldedWithBlur(t) <= target (bisection to 1e-3 of MAX_BLUR;
