@@ -76,7 +76,8 @@ export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
   if (!(Number.isInteger(width) && Number.isInteger(height) && width >= 1 && height >= 1)) {
     throw new RangeError(`bad raster size ${width}x${height}`);
   }
-  if (!(channels >= 1 && channels <= 4) || data.length < width * height * channels) {
+  if (!(Number.isInteger(channels) && channels >= 1 && channels <= 4)) throw new RangeError(`bad channel count ${channels}`);
+  if (data.length < width * height * channels) {
     throw new RangeError('raster data is shorter than width * height * channels');
   }
   const layout = layoutTiles(width, height);

@@ -127,6 +127,9 @@ describe('analyzeSpectrum', () => {
   it('rejects a raster shorter than its size', () => {
     const bad: PixelRaster = { data: new Uint8Array(10), width: 10, height: 10, channels: 1 };
     expect(() => analyzeSpectrum(bad)).toThrow(RangeError);
+    const half = { data: new Uint8Array(300), width: 10, height: 10, channels: 2.5 } as unknown as PixelRaster;
+    expect(() => analyzeSpectrum(half)).toThrow(RangeError);
+    expect(() => analyzeSpectrum({ ...bad, channels: Number.NaN } as unknown as PixelRaster)).toThrow(RangeError);
   });
 });
 
