@@ -57,11 +57,15 @@ export function findPeaks(input: PeakInput): RiskPeak[] {
   const ring: number[] = [];
   const found: RiskPeak[] = [];
   const h = n / 2;
-  for (let j = h; j < n; j++) {
+  // Each conjugate pair once: the rows 0 < fy < 0.5 whole, and on the rows that are their own
+  // conjugates (fy = 0, and fy = 0.5, stored in row 0 and visited as j = n) fx > 0 and the
+  // cell fx = -0.5 (which is +0.5), so 1-px stripes (the source's own Nyquist) are seen too.
+  for (let j = h; j <= n; j++) {
+    const edgeRow = j === h || j === n;
     for (let i = 0; i < n; i++) {
+      if (edgeRow && i !== 0 && (i < h || (i === h && j === h))) continue;
       const fx = (i - h) / n;
       const fy = (j - h) / n;
-      if (j === h && i <= h) continue; // the other half plane holds the conjugates
       if (Math.abs(fx) <= nyquist.x && Math.abs(fy) <= nyquist.y) continue;
       const p = at(i, j);
       let lobe = 0;
@@ -73,7 +77,8 @@ export function findPeaks(input: PeakInput): RiskPeak[] {
           lobe += q;
         }
       }
-      const share = (2 * lobe) / total;
+      // A cell on both Nyquist-or-zero lines is its own conjugate: its lobe is counted once.
+      const share = ((edgeRow && (i === 0 || i === h) ? 1 : 2) * lobe) / total;
       if (!isMax || share < MIN_SHARE) continue;
       ring.length = 0;
       for (let dj = -4; dj <= 4; dj++) {

@@ -32,6 +32,19 @@ describe('peaks', () => {
     expect(r.reason).toMatch(/moiré/);
   });
 
+  // 1-px stripes sit on the source's own Nyquist frequency 0.5 (CHECKS.md), the cells that are
+  // their own conjugates; decimated by 2.5 they land at |2.5 * 0.5 - round(1.25)| = 0.25.
+  it.each([['vertical', 'x'], ['horizontal', 'y']] as const)('names %s 1-px stripes as periodic', (_name, axis) => {
+    const spec = analyzeSpectrum(greyRaster(256, 256, (x, y) => ((axis === 'x' ? x : y) % 2 ? 0.9 : 0.1)));
+    const top = assessRisk(spec, planOf(256, 256, 2.5), none).peaks[0];
+    expect(top.kind).toBe('periodic');
+    expect(Math.abs(axis === 'x' ? top.fx : top.fy)).toBeCloseTo(0.5, 6);
+    expect(Math.abs(axis === 'x' ? top.fy : top.fx)).toBeLessThan(0.5 / spec.tileSize);
+    expect(axis === 'x' ? top.aliasTo.fx : top.aliasTo.fy).toBeCloseTo(0.25, 6);
+    expect(top.power).toBeGreaterThan(0.9);
+    expect(top.power).toBeLessThanOrEqual(1);
+  });
+
   it('calls white noise broadband, never periodic', () => {
     const spec = analyzeSpectrum(greyRaster(512, 512, noise(512, 512, 0.3, 5)));
     const r = assessRisk(spec, planOf(512, 512, 2), none);
