@@ -6,7 +6,7 @@ function pair(a: string, b: string): string {
 
 /**
  * Value of the `Rendition-Plan` response header, e.g.
- * `scale=4.000,4.000; kernel=bandlimit; sigma=1.12,1.12; prefilter=content; pyramid=1,1; light=linear`.
+ * `scale=5.000,5.000; kernel=bandlimit; sigma=1.75,1.75; prefilter=content; pyramid=1,1; light=linear`.
  * Kernel names and the sigma's origin (`prefilter`: kernel, content, asked, none) collapse to
  * one when both axes agree; `prefilter=content` says the alias-risk analysis raised sigma.
  */
