@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { FoldwiseError } from '../errors.js';
 import { jsonBody, problemResponses } from '../schemas/openapi.js';
 import { renditionsPrefix } from './renditions.js';
+import { signUrl } from '../security/signing.js';
 
 const listingSchema = z.object({
   sources: z.array(
@@ -10,7 +11,9 @@ const listingSchema = z.object({
       path: z.string(),
       bytes: z.number().int(),
       modified: z.string().meta({ description: 'ISO 8601' }),
-      rendition: z.string().meta({ description: 'An example rendition URL (480 CSS px wide).' }),
+      rendition: z
+        .string()
+        .meta({ description: 'An example rendition URL (480 CSS px wide), signed when signing keys are set.' }),
     }),
   ),
 });
@@ -21,6 +24,12 @@ const encodePath = (p: string) => p.split('/').map(encodeURIComponent).join('/')
 /** GET /v1/sources: the folder origin's images; switched off by config (origin.listing). */
 export default async function sourcesRoutes(app: FastifyInstance): Promise<void> {
   const enabled = app.config.origin.listing;
+  // With keys set, the examples are signed with the first (signing) key, so they work as given.
+  const signingKey = app.config.signing.keys[0];
+  const example = (path: string) => {
+    const url = `${renditionsPrefix}${encodePath(path)}`;
+    return signingKey ? signUrl(url, { width: '480' }, signingKey) : `${url}?width=480`;
+  };
   app.get(
     '/v1/sources',
     {
@@ -37,7 +46,7 @@ export default async function sourcesRoutes(app: FastifyInstance): Promise<void>
       if (!enabled || !list) throw new FoldwiseError('ERR_ORIGIN_DISABLED', 'listing sources is switched off');
       const entries = await list();
       return reply.header('cache-control', 'no-cache').send({
-        sources: entries.map((e) => ({ ...e, rendition: `${renditionsPrefix}${encodePath(e.path)}?width=480` })),
+        sources: entries.map((e) => ({ ...e, rendition: example(e.path) })),
       });
     },
   );

@@ -103,6 +103,20 @@ describe('operational endpoints', () => {
     expect((await t.app.inject({ url: woven.rendition.replace('480', '8') })).statusCode).toBe(200);
   });
 
+  it('/v1/sources signs its example links when signing is on, so they render as given', async () => {
+    const signed = await build({ sourceDir: t.sourceDir, config: { signing: { keys: ['ops-test-key-0123456789'] } } });
+    try {
+      const { sources } = (await signed.app.inject({ url: '/v1/sources' })).json();
+      const swatch = sources.find((s: { path: string }) => s.path === 'swatch.png');
+      expect(swatch.rendition).toMatch(/^\/v1\/renditions\/swatch\.png\?width=480&signature=[\w-]{43}$/);
+      expect((await signed.app.inject({ url: swatch.rendition })).statusCode).toBe(200);
+      // The unsigned form is refused, which is what makes the signed example necessary.
+      expect((await signed.app.inject({ url: '/v1/renditions/swatch.png?width=480' })).statusCode).toBe(403);
+    } finally {
+      await signed.close();
+    }
+  });
+
   it('/v1/sources can be switched off', async () => {
     const off = await build({ sourceDir: t.sourceDir, config: { origin: { listing: false } } });
     try {
