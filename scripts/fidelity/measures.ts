@@ -3,7 +3,7 @@
  * sRGB output. Output pixel o sits at source x = (o + 1/2) s - 1/2 (the pixel-centre
  * convention); the new Nyquist frequency is 1 / (2 s) cycles per source pixel.
  */
-import { srgbToLinear8 } from '../../src/core/index.js';
+import { decode8 as srgbToLinear8 } from './srgb.js';
 
 /** A grey 8-bit output (one sample per pixel) with its per-axis factors. */
 export interface Output {

@@ -2,7 +2,7 @@
  * Analytic test patterns for the fidelity script and the reference tests. Each is defined in
  * linear light and stored as 8-bit sRGB (IEC 61966-2-1), as a decoder would hand it over.
  */
-import { linearToSrgb8 } from '../../src/core/index.js';
+import { encode8 as linearToSrgb8 } from './srgb.js';
 import type { PixelRaster } from '../../src/core/types.js';
 
 export interface Pattern {
