@@ -32,6 +32,19 @@ function splitUrl(url: string): { path: string; query: URLSearchParams } {
 }
 
 /**
+ * The one signature check of a raw request URL: true when validly signed; a present but wrong
+ * signature is refused even when signing is optional; a missing one only when `required`.
+ * `unsignedDetail` is the 403 detail for a missing signature.
+ */
+export function checkSignedUrl(url: string, keys: string[], required: boolean, unsignedDetail: string): boolean {
+  const { path, query } = splitUrl(url);
+  const check = verifySignature(path, query, keys);
+  if (check === 'invalid') throw new FoldwiseError('ERR_SIGNATURE_INVALID', 'The signature does not match this path and query.');
+  if (check === 'missing' && required) throw new FoldwiseError('ERR_SIGNATURE_REQUIRED', unsignedDetail);
+  return check === 'valid';
+}
+
+/**
  * Checks signatures on the raw URL before anything else looks at the request (onRequest), so
  * an unsigned request costs one HMAC and never reaches parsing, the cache or the renderer.
  * A signature that is present but wrong is refused even when signing is optional. Successful
@@ -50,15 +63,12 @@ async function signingPlugin(app: FastifyInstance, options: SigningOptions): Pro
 
   app.addHook('onRequest', async (request: FastifyRequest) => {
     if (!applies(request.routeOptions.url ?? '')) return;
-    const { path, query } = splitUrl(request.url);
-    const check = verifySignature(path, query, options.keys);
-    if (check === 'valid') {
-      request.signed = true;
-    } else if (check === 'invalid') {
-      throw new FoldwiseError('ERR_SIGNATURE_INVALID', 'The signature does not match this path and query.');
-    } else if (options.required) {
-      throw new FoldwiseError('ERR_SIGNATURE_REQUIRED', 'This endpoint needs a signed URL (parameter "signature").');
-    }
+    request.signed = checkSignedUrl(
+      request.url,
+      options.keys,
+      options.required,
+      'This endpoint needs a signed URL (parameter "signature").',
+    );
   });
 
   app.addHook('onSend', async (request: FastifyRequest, reply: FastifyReply, payload) => {

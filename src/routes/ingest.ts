@@ -7,7 +7,7 @@ import { toFoldwiseError } from '../plugins/errors.js';
 import { ingestQuerySchema, ingestSourceBody, jobSchema, manifestSchema } from '../schemas/ingest.js';
 import { jsonBody, problemResponses, queryParameters } from '../schemas/openapi.js';
 import { parseQuery } from '../schemas/query.js';
-import { verifySignature } from '../security/signing.js';
+import { checkSignedUrl } from '../plugins/signing.js';
 
 export const ingestPath = '/v1/ingest';
 export const jobsPrefix = '/v1/ingest/jobs/';
@@ -47,13 +47,7 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
   const signingRequired = config.signing.required ?? keys.length > 0;
   app.addHook('onRequest', async (request) => {
     if (keys.length === 0 || request.method !== 'POST') return;
-    const at = request.url.indexOf('?');
-    const path = at < 0 ? request.url : request.url.slice(0, at);
-    const check = verifySignature(path, new URLSearchParams(at < 0 ? '' : request.url.slice(at + 1)), keys);
-    if (check === 'invalid') throw new FoldwiseError('ERR_SIGNATURE_INVALID', 'The signature does not match this path and query.');
-    if (check === 'missing' && signingRequired) {
-      throw new FoldwiseError('ERR_SIGNATURE_REQUIRED', 'Uploads need a signed URL (parameter "signature"); see foldwise sign.');
-    }
+    checkSignedUrl(request.url, keys, signingRequired, 'Uploads need a signed URL (parameter "signature"); see foldwise sign.');
   });
 
   async function workOf(request: FastifyRequest): Promise<IngestWork> {
