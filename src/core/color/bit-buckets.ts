@@ -45,11 +45,12 @@ function roundUp32(x: number): number {
   return f >= x ? f : valueOf(patternOf(f) + 1);
 }
 
-let cached: BitBuckets | undefined;
+const cached = new WeakMap<SrgbQuantiser, BitBuckets>();
 
-/** The bucket tables of the 8-bit quantiser `q` (built on first use). */
+/** The bucket tables of the 8-bit quantiser `q` (built on first use, once per quantiser). */
 export function bitBuckets8(q: SrgbQuantiser): BitBuckets {
-  if (cached) return cached;
+  const known = cached.get(q);
+  if (known) return known;
   const thresholds = Float32Array.from(q.thresholds, (t) => (t === Infinity ? t : roundUp32(t)));
   const base = patternOf(LOWEST) >> SHIFT;
   const count = (patternOf(1) >> SHIFT) - base;
@@ -62,5 +63,7 @@ export function bitBuckets8(q: SrgbQuantiser): BitBuckets {
     if (hi > thresholds[code] && hi > thresholds[code + 1]) throw new Error('sRGB bit buckets too coarse');
     start[b] = code;
   }
-  return (cached = { shift: SHIFT, base, start, thresholds });
+  const buckets = { shift: SHIFT, base, start, thresholds };
+  cached.set(q, buckets);
+  return buckets;
 }
