@@ -10,6 +10,27 @@ import { fusesReduce, reducedRows, reducedRowsFloats } from './reduced-rows.js';
 export interface RenderOptions {
   /** Render only output rows [start, end); the result is then end - start rows high. */
   rows?: [number, number];
+  /**
+   * For a source whose rows are still arriving (a decoder writing them in order): called with
+   * a row's index before that row of `src.data` is read, and returns once the row is there.
+   * Rows are asked in non-decreasing order, each at most once per pass, and only those the
+   * render needs (a band skips the rows above it). With alpha, the last row is asked first,
+   * since the opacity check reads every row. Without it the whole of `src.data` must be filled.
+   */
+  awaitRow?: (y: number) => void;
+}
+
+/** `source`, each row read only after `awaitRow` says it has arrived. */
+function gated(source: RowSource, awaitRow: ((y: number) => void) | undefined): RowSource {
+  if (!awaitRow) return source;
+  return {
+    width: source.width,
+    lanes: source.lanes,
+    read(y, buf, at) {
+      awaitRow(y);
+      source.read(y, buf, at);
+    },
+  };
 }
 
 function isOpaque(data: Uint8Array | Uint16Array, channels: number, max: number): boolean {
@@ -97,6 +118,7 @@ export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions =
   const deep = data instanceof Uint16Array;
   const max = deep ? 65535 : 255;
   const hasAlpha = channels === 2 || channels === 4;
+  if (hasAlpha && src.height > 0) opts.awaitRow?.(src.height - 1);
   const codec = rowCodec(deep, channels, plan.light === 'linear', hasAlpha && !isOpaque(data, channels, max));
   const dstW = plan.targetWidth;
   const out = deep ? new Uint16Array(dstW * (r1 - r0) * channels) : new Uint8Array(dstW * (r1 - r0) * channels);
@@ -122,8 +144,8 @@ export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions =
     const tx = arena ? placed(arena, bx) : bx;
     const ty = arena ? placed(arena, by) : by;
     // The first pyramid stage's x reduce fused with the decode (reduced-rows.ts), or the plain rows.
-    if (!source && fused) source = resampleStream(reducedRows(src, codec, tx, simd!), null, ty, a, b, alloc);
-    else source = resampleStream(source ?? rasterRows(src, codec, simd), tx, ty, a, b, alloc);
+    if (!source && fused) source = resampleStream(gated(reducedRows(src, codec, tx, simd!), opts.awaitRow), null, ty, a, b, alloc);
+    else source = resampleStream(source ?? gated(rasterRows(src, codec, simd), opts.awaitRow), tx, ty, a, b, alloc);
   }
   const final = source!;
   const line = alloc(dstW * channels);

@@ -1,4 +1,4 @@
-import sharp, { type Metadata, type SharpOptions } from 'sharp';
+import sharp, { type Metadata, type Sharp, type SharpOptions } from 'sharp';
 import type { Channels, PixelRaster } from '../core/types.js';
 import { FoldwiseError } from '../errors.js';
 import { collapseGreyAlpha, dropOpaqueAlpha } from './channels.js';
@@ -55,7 +55,19 @@ export async function decodeImage(bytes: Buffer, limits: DecodeLimits): Promise<
   }
 }
 
-async function decodeWithin(bytes: Buffer, limits: DecodeLimits): Promise<DecodedImage> {
+/** The decode's sharp pipeline, set up from the header once its limits are checked. */
+interface Prepared {
+  pipeline: Sharp;
+  format: string;
+  width: number;
+  height: number;
+  deep: boolean;
+  grey: boolean;
+  greyAlpha8: boolean;
+  hasAlpha: boolean;
+}
+
+async function prepare(bytes: Buffer, limits: DecodeLimits): Promise<Prepared> {
   if (bytes.length === 0) throw new FoldwiseError('ERR_SOURCE_UNSUPPORTED', 'The source is empty.');
   const options: SharpOptions = {
     // 'error' refuses truncated and damaged pixel data; sharp's stricter default 'warning'
@@ -70,7 +82,7 @@ async function decodeWithin(bytes: Buffer, limits: DecodeLimits): Promise<Decode
     throw classify(e);
   });
   const format = checkFormat(meta);
-  checkLimits(meta, limits);
+  const [width, height] = checkLimits(meta, limits);
 
   const grey = meta.space === 'b-w' || meta.space === 'grey16';
   const deep = meta.depth !== 'uchar' && meta.depth !== 'char';
@@ -87,6 +99,11 @@ async function decodeWithin(bytes: Buffer, limits: DecodeLimits): Promise<Decode
   // libvips stops the work itself too (whole seconds only), so a timed-out decode does not
   // keep a thread busy after the caller has been answered.
   if (limits.timeoutMs !== undefined) pipeline = pipeline.timeout({ seconds: Math.max(1, Math.ceil(limits.timeoutMs / 1000)) });
+  return { pipeline, format, width, height, deep, grey, greyAlpha8, hasAlpha: meta.hasAlpha === true };
+}
+
+async function decodeWithin(bytes: Buffer, limits: DecodeLimits): Promise<DecodedImage> {
+  const { pipeline, format, deep, greyAlpha8 } = await prepare(bytes, limits);
   const { data, info } = await pipeline
     .raw({ depth: deep ? 'ushort' : 'uchar' })
     .toBuffer({ resolveWithObject: true })
@@ -102,6 +119,37 @@ async function decodeWithin(bytes: Buffer, limits: DecodeLimits): Promise<Decode
   return { raster, hasAlpha: raster.channels === 2 || raster.channels === 4, format };
 }
 
+/** A decode writing its rows, in order, to a spool file (libvips' own uncompressed format). */
+export interface SpooledDecode {
+  width: number;
+  height: number;
+  /** 1 (grey) or 3 (RGB): sources with alpha are not spooled. */
+  channels: 1 | 3;
+  depth: 8 | 16;
+  format: string;
+  /** Settles when the last row is written; rejects with the decode's FoldwiseError. */
+  written: Promise<void>;
+}
+
+/**
+ * Starts decoding `bytes` into the file `path` (its name must end in `.v`), as decodeImage
+ * would (upright, sRGB, 8 or 16 bits) but row by row as libvips decodes them, so a reader can
+ * start on the top rows while the bottom ones are still being decoded (src/render/feed.ts).
+ * Returns null, without writing, for a source with alpha: its opacity is known only after the
+ * last row, so decodeImage serves it. The header checks and their errors are decodeImage's.
+ */
+export async function startSpooledDecode(bytes: Buffer, limits: DecodeLimits, path: string): Promise<SpooledDecode | null> {
+  const { pipeline, format, width, height, deep, grey, hasAlpha } = await prepare(bytes, limits);
+  if (hasAlpha) return null;
+  const written = pipeline.toFile(path).then(
+    () => undefined,
+    (e: unknown) => {
+      throw classify(e);
+    },
+  );
+  return { width, height, channels: grey ? 1 : 3, depth: deep ? 16 : 8, format, written };
+}
+
 function checkFormat(meta: Metadata): string {
   const name = String(meta.format);
   if (!Object.hasOwn(sourceFormats, name)) {
@@ -115,7 +163,8 @@ function checkFormat(meta: Metadata): string {
   return 'avif';
 }
 
-function checkLimits(meta: Metadata, limits: DecodeLimits): void {
+/** The upright size, once checked against the limits. */
+function checkLimits(meta: Metadata, limits: DecodeLimits): [number, number] {
   const width = meta.autoOrient?.width ?? meta.width;
   const height = meta.autoOrient?.height ?? meta.height;
   if (!(width > 0 && height > 0)) {
@@ -140,6 +189,7 @@ function checkLimits(meta: Metadata, limits: DecodeLimits): void {
       `The source has ${frames} frames; the limit is ${limits.maxFrames}.`,
     );
   }
+  return [width, height];
 }
 
 /** Maps sharp's failures onto our codes; sharp's error travels as the cause. */

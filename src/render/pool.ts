@@ -7,6 +7,7 @@ import { type ErrorCode, FoldwiseError } from '../errors.js';
 import type { ResampleTask, SharedRaster } from '../worker.js';
 import { Admission } from './admission.js';
 import { StagingBuffers } from './staging.js';
+import { feedFromSpool, type FeedShape } from './feed.js';
 
 export interface RenderPoolOptions {
   /** Worker threads; 0 = one per available core. */
@@ -117,13 +118,52 @@ export class RenderPool {
     // A closed piscina would start fresh threads for a late task: refuse it here instead.
     if (this.closing) throw this.stopping();
     const shared = share(src, this.staging);
-    const bytesPer = shared.depth / 8;
-    const out = new SharedArrayBuffer(plan.targetWidth * plan.targetHeight * src.channels * bytesPer);
+    const out = await this.runBands(shared, plan, signal);
+    // Only after a clean finish: a task cut short may still be reading the buffer.
+    this.staging.give(shared.buffer);
+    return out;
+  }
+
+  /**
+   * Resamples a source that a decoder is still writing to the spool file at `path`
+   * (src/media/decode.ts startSpooledDecode, whose `written` is passed here): the rows are
+   * read into shared memory as they appear (feed.ts) and the workers start on the top of the
+   * image while the rest is decoded, so most of the resampling overlaps the decode. The
+   * decode's own error (ERR_SOURCE_CORRUPT, ...) wins over the render's.
+   */
+  async resampleSpooled(path: string, shape: FeedShape & { channels: 1 | 3 }, written: Promise<void>, plan: Plan, signal?: AbortSignal): Promise<PixelRaster> {
+    if (this.closing) throw this.stopping();
+    const buffer = this.staging.take(shape.width * shape.height * shape.channels * (shape.depth / 8));
+    const feed = feedFromSpool(path, shape, buffer, written);
+    let decodeFailure: unknown;
+    written.catch((e: unknown) => (decodeFailure = e ?? new Error('the decode failed')));
+    const { width, height, channels, depth } = shape;
+    const shared: SharedRaster = { buffer, width, height, channels, depth };
+    const onAbort = () => feed.stop();
+    signal?.addEventListener('abort', onAbort, { once: true });
+    try {
+      const [out] = await Promise.all([this.runBands(shared, plan, signal, feed.progress), feed.done]);
+      this.staging.give(buffer);
+      return out;
+    } catch (e) {
+      feed.stop();
+      // A failed decode fails the feed and then the workers: report the decode's error.
+      if (decodeFailure !== undefined) throw decodeFailure;
+      throw e instanceof FoldwiseError ? e : new FoldwiseError('ERR_RENDER_FAILED', 'resampling failed', { cause: e });
+    } finally {
+      signal?.removeEventListener('abort', onAbort);
+      feed.done.catch(() => undefined);
+    }
+  }
+
+  /** Runs the plan's bands of output rows over a shared source; the output raster. */
+  private async runBands(shared: SharedRaster, plan: Plan, signal?: AbortSignal, progress?: SharedArrayBuffer): Promise<PixelRaster> {
+    const out = new SharedArrayBuffer(plan.targetWidth * plan.targetHeight * shared.channels * (shared.depth / 8));
     const h = plan.targetHeight;
     const split = this.threads > 1 && plan.targetWidth * h >= SPLIT_MIN_PIXELS;
     const bands: [number, number][] = split ? [[0, h >> 1], [h >> 1, h]] : [[0, h]];
     try {
-      await Promise.all(bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out }, { signal })));
+      await Promise.all(bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out, progress }, { signal })));
     } catch (e) {
       // piscina rejects with its AbortError for our deadline, and with its own abort or
       // "Terminating worker thread" when it is closed under a task: neither is a failed render.
@@ -131,10 +171,8 @@ export class RenderPool {
       if (this.closing) throw this.stopping(e);
       throw new FoldwiseError('ERR_RENDER_FAILED', 'resampling failed', { cause: e });
     }
-    // Only after a clean finish: a task cut short may still be reading the buffer.
-    this.staging.give(shared.buffer);
     const data = shared.depth === 16 ? new Uint16Array(out) : new Uint8Array(out);
-    return { data, width: plan.targetWidth, height: plan.targetHeight, channels: src.channels };
+    return { data, width: plan.targetWidth, height: plan.targetHeight, channels: shared.channels };
   }
 
   /** Refuses new renders at once, lets running tasks finish (piscina's close), then ends the threads. */
