@@ -65,6 +65,12 @@ export const configSchema = z.strictObject({
      */
     maxQueue: z.number().int().min(0).nullable(),
     retryAfterSeconds: positiveInt,
+    /**
+     * Folder for spool files: decodes write their rows there and the workers resample them
+     * while the rest is still decoding. 'auto' = /dev/shm (memory-backed) where it exists,
+     * else the OS temporary folder; 'off' = decode fully first, then resample.
+     */
+    spoolDir: z.string().min(1),
   }),
   cache: z.strictObject({
     memoryBytes: z.number().int().min(0),
@@ -146,6 +152,7 @@ const envMap: Record<string, { path: string[]; parse: (v: string) => unknown }> 
   FOLDWISE_SOURCE_DIR: { path: ['origin', 'sourceDir'], parse: (v) => v },
   FOLDWISE_CACHE_DIR: { path: ['cache', 'dir'], parse: (v) => v },
   FOLDWISE_REDIS_URL: { path: ['cache', 'redisUrl'], parse: (v) => v },
+  FOLDWISE_SPOOL_DIR: { path: ['pool', 'spoolDir'], parse: (v) => v },
   FOLDWISE_UPSTREAM_HOSTS: {
     path: ['origin', 'upstream', 'allowHosts'],
     parse: (v) => v.split(',').map((h) => h.trim()).filter((h) => h.length > 0),

@@ -2,7 +2,7 @@ import type { FastifyInstance } from 'fastify';
 import fp from 'fastify-plugin';
 import { IdentityMemo } from '../render/identity.js';
 import type { RenderContext } from '../render/service.js';
-import { adaptiveHook } from '../risk/adaptive.js';
+import { adaptiveHook, knownAdaptiveHook } from '../risk/adaptive.js';
 
 declare module 'fastify' {
   interface FastifyInstance {
@@ -24,6 +24,7 @@ async function renderPlugin(app: FastifyInstance): Promise<void> {
     observe: (stage, seconds) => metrics.stageSeconds.observe({ stage }, seconds),
     onLookup: (result) => metrics.cacheLookups.inc({ result }),
     adaptiveSigma: adaptiveHook(app.spectra),
+    knownAdaptiveSigma: knownAdaptiveHook(app.spectra),
   } satisfies RenderContext);
 }
 

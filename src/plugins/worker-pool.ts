@@ -37,6 +37,8 @@ async function workerPoolPlugin(app: FastifyInstance, opts: RenderPoolOptions): 
       this.set(pool.utilization);
     },
   });
+  if (pool.spool) app.log.info({ spoolDir: pool.spool.dir }, 'renders resample sources while they decode');
+  else if (opts.spoolDir !== 'off') app.log.warn({ spoolDir: opts.spoolDir }, 'spool folder unavailable: sources are decoded in full before resampling');
   app.decorate('renderPool', pool);
   app.addHook('onClose', async () => pool.close());
 }

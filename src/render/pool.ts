@@ -8,6 +8,7 @@ import type { ResampleTask, SharedRaster } from '../worker.js';
 import { Admission } from './admission.js';
 import { StagingBuffers } from './staging.js';
 import { feedFromSpool, type FeedShape } from './feed.js';
+import { SpoolDir } from './spool.js';
 
 export interface RenderPoolOptions {
   /** Worker threads; 0 = one per available core. */
@@ -15,6 +16,8 @@ export interface RenderPoolOptions {
   /** Renders allowed to wait beyond one per thread; null = `queuePerThread` per thread. */
   maxQueue: number | null;
   retryAfterSeconds: number;
+  /** Spool folder for decodes resampled as they arrive ('auto', a path, or 'off'); default 'off'. */
+  spoolDir?: string;
 }
 
 /**
@@ -64,11 +67,14 @@ export class RenderPool {
   private readonly piscina: Piscina<ResampleTask, number>;
   private closing?: Promise<void>;
   private readonly staging: StagingBuffers;
+  /** Where spooled decodes write (resampleSpooled), or null when spooling is off or unavailable. */
+  readonly spool: SpoolDir | null;
 
   constructor(opts: RenderPoolOptions) {
     this.threads = opts.threads > 0 ? opts.threads : availableParallelism();
     this.retryAfterSeconds = opts.retryAfterSeconds;
     this.staging = new StagingBuffers(this.threads, STAGING_MAX_BYTES);
+    this.spool = SpoolDir.open(opts.spoolDir ?? 'off');
     this.admission = new Admission(this.threads, opts.maxQueue ?? queuePerThread * this.threads, opts.retryAfterSeconds);
     this.piscina = new Piscina<ResampleTask, number>({
       filename: workerFile,
@@ -177,7 +183,7 @@ export class RenderPool {
 
   /** Refuses new renders at once, lets running tasks finish (piscina's close), then ends the threads. */
   close(): Promise<void> {
-    this.closing ??= this.piscina.close();
+    this.closing ??= this.piscina.close().finally(() => this.spool?.close());
     return this.closing;
   }
 

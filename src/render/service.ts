@@ -15,7 +15,8 @@ import type { IdentityMemo } from './identity.js';
 import { renditionKey, strongEtag } from './key.js';
 import { checkRequestedSize, type PlannedRendition, planRendition } from './plan.js';
 import type { RenderPool } from './pool.js';
-import { loadSource } from './source.js';
+import { decodeSource, readSource } from './source.js';
+import { resampleWhileDecoding } from './streamed.js';
 import { type Stage, StageClock, type StageTiming } from './timings.js';
 
 /** Everything a render needs; no Fastify request, so ingest and the CLI can call it too. */
@@ -36,6 +37,12 @@ export interface RenderContext {
    * prefilter=auto, with the plan it would raise and the source version (for its cache).
    */
   adaptiveSigma?: (raster: PixelRaster, plan: Plan, identity?: SourceIdentity) => { x: number; y: number } | undefined;
+  /**
+   * adaptiveSigma's answer before any pixel is decoded, from an analysis already at hand;
+   * null when there is none (then the source is decoded in full first). Lets a rendition of
+   * an analysed source be resampled while it decodes (src/render/streamed.ts).
+   */
+  knownAdaptiveSigma?: (plan: Plan, identity: SourceIdentity) => { sigma: { x: number; y: number } | undefined } | null;
 }
 
 export interface Rendition {
@@ -68,12 +75,16 @@ interface Resampled {
 }
 
 /**
- * The pixel-holding stages (read, decode, plan, resample), under one admission permit. The
+ * The pixel-holding stages (read, decode, plan, resample), under one admission permit:
+ * overlapped where they can be (streamed.ts), else one after the other. The
  * decoded source lives only in this frame, so once it returns nothing references the source's
  * pixels and the permit can go to the next render while this one encodes.
  */
 async function resampleSource(ctx: RenditionContextInternal, path: string, q: RenditionQuery): Promise<Resampled> {
-  const { decoded, identity } = await loadSource(ctx.origin, path, ctx.limits, ctx.clock);
+  const read = await readSource(ctx.origin, path, ctx.limits, ctx.clock);
+  const streamed = await resampleWhileDecoding(ctx, read, q);
+  if (streamed) return { ...streamed, hasAlpha: false, identity: read.identity };
+  const { decoded, identity } = await decodeSource(read, ctx.limits, ctx.clock);
   const src = decoded.raster;
   const first = planRendition(src, q, ctx.limits);
   const sigma = q.prefilter === 'auto' ? ctx.adaptiveSigma?.(src, first.plan, identity) : undefined;

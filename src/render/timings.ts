@@ -1,5 +1,5 @@
-/** Stages of one rendition, as Server-Timing and the metrics name them. */
-export type Stage = 'origin' | 'decode' | 'plan' | 'resample' | 'encode' | 'cache';
+/** Stages of one rendition, as Server-Timing and the metrics name them ('stream': decode and resample overlapped). */
+export type Stage = 'origin' | 'decode' | 'plan' | 'resample' | 'stream' | 'encode' | 'cache';
 
 export interface StageTiming {
   stage: Stage;

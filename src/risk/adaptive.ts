@@ -22,3 +22,16 @@ export function adaptiveHook(store: SpectrumStore) {
       ? adaptiveSigma(store.ofRaster(raster, identity), plan, planResponseOf(plan))
       : undefined;
 }
+
+/**
+ * The render context's knownAdaptiveSigma hook: the same answer as adaptiveHook's, from the
+ * spectrum this process already holds for the source version, so the render can start before
+ * the source is decoded; null when that spectrum is not at hand (the pixels are needed first).
+ */
+export function knownAdaptiveHook(store: SpectrumStore) {
+  return (plan: Plan, identity: SourceIdentity): { sigma: { x: number; y: number } | undefined } | null => {
+    if (!(plan.x.scale > 1 || plan.y.scale > 1)) return { sigma: undefined };
+    const spectrum = store.known(identity);
+    return spectrum ? { sigma: adaptiveSigma(spectrum, plan, planResponseOf(plan)) } : null;
+  };
+}

@@ -56,6 +56,11 @@ export class SpectrumStore {
     return analyzeSpectrum(raster);
   }
 
+  /** The spectrum of a source version when this process has it at hand (L1), else undefined. */
+  known(identity: SourceIdentity): SourceSpectrum | undefined {
+    return this.lru.get(this.keyOf(identity));
+  }
+
   /**
    * The spectrum of a raster already in memory (the render path): L1 by identity, or this
    * raster's earlier analysis, or a new one now (stored in L1 and, in the background, in L2).

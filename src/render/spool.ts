@@ -1,0 +1,46 @@
+import { existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { rm } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+
+/** Where spool files go when the setting is 'auto': memory-backed /dev/shm where it exists. */
+function autoBase(): string {
+  return existsSync('/dev/shm') ? '/dev/shm' : tmpdir();
+}
+
+/**
+ * A private folder (mode 0700, made by mkdtemp) for the spool files of decodes in progress
+ * (src/media/spool-decode.ts writes one, src/render/feed.ts reads it as it grows). Each render
+ * gets a name of its own and removes its file when done; the folder goes with `close`.
+ * A memory-backed file system (tmpfs) is best: the file never needs to reach a disk.
+ */
+export class SpoolDir {
+  private next = 0;
+
+  private constructor(readonly dir: string) {}
+
+  /** The folder under `setting` ('auto', or a path), or null when it is 'off' or cannot be made. */
+  static open(setting: string): SpoolDir | null {
+    if (setting === 'off') return null;
+    try {
+      return new SpoolDir(mkdtempSync(join(setting === 'auto' ? autoBase() : setting, 'foldwise-spool-')));
+    } catch {
+      return null;
+    }
+  }
+
+  /** A fresh file name in the folder, ending in `.v` (libvips' own format). */
+  path(): string {
+    return join(this.dir, `${process.pid}-${this.next++}.v`);
+  }
+
+  /** Removes a file `path` gave (a writer still busy with it keeps writing to the unlinked file). */
+  async remove(path: string): Promise<void> {
+    await rm(path, { force: true });
+  }
+
+  /** Removes the folder and whatever is left in it. */
+  close(): void {
+    rmSync(this.dir, { recursive: true, force: true });
+  }
+}

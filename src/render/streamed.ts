@@ -1,0 +1,72 @@
+import type { Limits } from '../config.js';
+import type { PixelRaster, Plan } from '../core/types.js';
+import { probeSpooledDecode, SpoolWriteError } from '../media/spool-decode.js';
+import type { SourceIdentity } from '../origins/types.js';
+import type { RenditionQuery } from '../schemas/rendition.js';
+import { type PlannedRendition, planRendition } from './plan.js';
+import type { RenderPool } from './pool.js';
+import { decodeLimits, type ReadSource } from './source.js';
+import type { StageClock } from './timings.js';
+
+/** What a streamed render needs of the render context. */
+export interface StreamContext {
+  pool: RenderPool;
+  limits: Limits;
+  clock: StageClock;
+  adaptiveSigma?: unknown;
+  knownAdaptiveSigma?: (plan: Plan, identity: SourceIdentity) => { sigma: { x: number; y: number } | undefined } | null;
+}
+
+/** A rendition resampled while its source decoded. */
+export interface StreamedRendition extends PlannedRendition {
+  raster: PixelRaster;
+  /** Started before the decode: covers decode, resample and then the encode. */
+  deadline: AbortSignal;
+}
+
+/**
+ * The plan for a streamed render, or null when it needs the decoded pixels first: with
+ * prefilter=auto and an adaptive prefilter in play, the source's spectrum must already be
+ * known (an earlier rendition of the same version analysed it).
+ */
+function streamPlan(ctx: StreamContext, size: { width: number; height: number }, q: RenditionQuery, identity: SourceIdentity): PlannedRendition | null {
+  const first = planRendition(size, q, ctx.limits);
+  if (q.prefilter !== 'auto' || !ctx.adaptiveSigma) return first;
+  const known = ctx.knownAdaptiveSigma?.(first.plan, identity);
+  if (!known) return null;
+  return known.sigma ? planRendition(size, q, ctx.limits, known.sigma) : first;
+}
+
+/**
+ * Renders `q` from `source` with the decode and the resample overlapped: libvips writes the
+ * decoded rows to a spool file (src/media/spool-decode.ts) and the pool's workers resample
+ * them as they arrive (RenderPool.resampleSpooled), so the rendition is ready soon after the
+ * last row is decoded instead of a whole resample later. The header is read first (timed as
+ * `decode`), the overlapped part is timed as `stream`.
+ *
+ * Returns null, having decoded nothing, when the render must take the decode-then-resample
+ * path: spooling is off, the source has alpha, or the plan needs a spectrum not at hand. Also
+ * null when the spool file could not be written (a full or missing folder): the caller then
+ * decodes in memory. Errors of the source itself are thrown as the in-memory decode throws them.
+ */
+export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSource, q: RenditionQuery): Promise<StreamedRendition | null> {
+  const spool = ctx.pool.spool;
+  if (!spool) return null;
+  const probe = await ctx.clock.time('decode', () => probeSpooledDecode(source.bytes, decodeLimits(ctx.limits)));
+  if (!probe) return null;
+  const planned = streamPlan(ctx, probe, q, source.identity);
+  if (!planned) return null;
+  const deadline = AbortSignal.timeout(ctx.limits.decodeTimeoutMs + ctx.limits.renderTimeoutMs);
+  const file = spool.path();
+  const written = probe.write(file);
+  try {
+    const raster = await ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, written, planned.plan, deadline));
+    return { ...planned, raster, deadline };
+  } catch (e) {
+    if (e instanceof SpoolWriteError) return null;
+    throw e;
+  } finally {
+    written.catch(() => undefined);
+    await spool.remove(file);
+  }
+}
