@@ -1,0 +1,143 @@
+import { afterAll, describe, expect, it } from 'vitest';
+import { renderRaster } from '../../../src/core/index.js';
+import { setSimdEnabled } from '../../../src/core/simd/index.js';
+import type { Channels, PixelRaster, Plan } from '../../../src/core/types.js';
+import { planFor } from './helpers.js';
+
+/** Seeded noise (a linear congruential generator), 8 or 16 bits; alpha varies across the image. */
+function noise(width: number, height: number, channels: Channels, deep: boolean, seed: number): PixelRaster {
+  const data = deep ? new Uint16Array(width * height * channels) : new Uint8Array(width * height * channels);
+  let s = seed >>> 0;
+  for (let i = 0; i < data.length; i++) {
+    s = (s * 1664525 + 1013904223) >>> 0;
+    data[i] = deep ? s >>> 16 : s >>> 24;
+  }
+  if (channels === 2 || channels === 4) {
+    const max = deep ? 65535 : 255;
+    // Opaque on the left third, then a ramp to fully transparent: the alpha path is taken.
+    for (let y = 0; y < height; y++) {
+      for (let x = 0; x < width; x++) {
+        data[(y * width + x) * channels + channels - 1] = x < width / 3 ? max : Math.round((max * (width - 1 - x)) / width);
+      }
+    }
+  }
+  return { data, width, height, channels };
+}
+
+/**
+ * A copy of `src` whose rows arrive only when `awaitRow` asks for them, as a decoder writing
+ * rows in order would deliver them. Until then a row holds the complement of its samples, so
+ * a row read before it is asked changes the output. `strict`: each call brings in just the
+ * row asked (any other row read is still the complement); otherwise every row up to it
+ * (rows arrive in order, so asking for the last row means the whole image is there).
+ */
+function arriving(src: PixelRaster, strict: boolean) {
+  const max = src.data instanceof Uint16Array ? 65535 : 255;
+  const data = src.data.slice();
+  for (let i = 0; i < data.length; i++) data[i] = max - data[i];
+  const n = src.width * src.channels;
+  const asked: number[] = [];
+  let filled = 0;
+  const awaitRow = (y: number) => {
+    asked.push(y);
+    if (strict) data.set(src.data.subarray(y * n, y * n + n), y * n);
+    else for (; filled <= y; filled++) data.set(src.data.subarray(filled * n, filled * n + n), filled * n);
+  };
+  return { raster: { ...src, data }, awaitRow, asked };
+}
+
+const bytes = (r: PixelRaster) => Buffer.from(r.data.buffer, r.data.byteOffset, r.data.byteLength);
+
+/** Rows asked in increasing order, each once (the contract of RenderOptions.awaitRow). */
+function expectIncreasing(asked: number[]): void {
+  for (let i = 1; i < asked.length; i++) if (!(asked[i] > asked[i - 1])) expect(asked.slice(i - 1, i + 1)).toEqual('increasing');
+}
+
+afterAll(() => setSimdEnabled(true));
+
+// 400x300 -> 80x60 is a factor of 5: one pyramid level; -> 300x225 (4/3) goes direct.
+const plans: Array<[string, Plan]> = [
+  ['400x300 -> 80x60 (pyramid)', planFor(400, 300, 80, 60)],
+  ['400x300 -> 300x225 (direct)', planFor(400, 300, 300, 225)],
+];
+
+describe('renderRaster with awaitRow (rows still arriving)', () => {
+  it('the plans take the paths named', () => {
+    expect(plans[0][1].y.pyramidLevels).toBe(1);
+    expect(plans[1][1].y.pyramidLevels).toBe(0);
+  });
+
+  describe.each([['SIMD on', true], ['SIMD off', false]])('%s', (_label, simd) => {
+    describe.each(plans)('%s', (_name, plan) => {
+      const src = noise(400, 300, 3, false, 7);
+
+      it('8-bit RGB: the same bytes as with the rows all there; rows asked in order, once each', () => {
+        setSimdEnabled(simd);
+        const ref = renderRaster(src, plan);
+        const a = arriving(src, true);
+        // The rows not yet arrived do show in the output when read (so the check below can fail).
+        const early = renderRaster(arriving(src, true).raster, plan);
+        const got = renderRaster(a.raster, plan, { awaitRow: a.awaitRow });
+        setSimdEnabled(true);
+        expect(bytes(early).equals(bytes(ref))).toBe(false);
+        expect(bytes(got).equals(bytes(ref))).toBe(true);
+        expect(a.asked.length).toBeGreaterThan(0);
+        expect(a.asked[0]).toBe(0);
+        expectIncreasing(a.asked);
+        expect(a.asked.every((y) => Number.isInteger(y) && y >= 0 && y < 300)).toBe(true);
+      });
+
+      it('a band of the lower half asks no row at the top, and matches that band of the whole', () => {
+        setSimdEnabled(simd);
+        // Split as the pool splits a rendition between two workers (src/render/pool.ts).
+        const h = plan.targetHeight;
+        const mid = h >> 1;
+        const ref = renderRaster(src, plan, { rows: [mid, h] });
+        const whole = renderRaster(src, plan);
+        const a = arriving(src, true);
+        const got = renderRaster(a.raster, plan, { rows: [mid, h], awaitRow: a.awaitRow });
+        setSimdEnabled(true);
+        expect(bytes(got).equals(bytes(ref))).toBe(true);
+        expect(bytes(got).equals(bytes(whole).subarray(mid * plan.targetWidth * 3))).toBe(true);
+        expect(a.asked[0]).toBeGreaterThan(0);
+        expectIncreasing(a.asked);
+      });
+
+      it('16-bit grey: the same samples, rows asked in order', () => {
+        setSimdEnabled(simd);
+        const grey = noise(400, 300, 1, true, 11);
+        const ref = renderRaster(grey, plan);
+        const a = arriving(grey, true);
+        const got = renderRaster(a.raster, plan, { awaitRow: a.awaitRow });
+        setSimdEnabled(true);
+        expect(got.data).toBeInstanceOf(Uint16Array);
+        expect(bytes(got).equals(bytes(ref))).toBe(true);
+        expectIncreasing(a.asked);
+      });
+
+      it.each([[4, false], [2, true]] as const)('alpha (%i channels, 16-bit %s): the last row is asked first, then rows in order', (channels, deep) => {
+        setSimdEnabled(simd);
+        const cut = noise(400, 300, channels, deep, 13);
+        const ref = renderRaster(cut, plan);
+        const a = arriving(cut, false);
+        const got = renderRaster(a.raster, plan, { awaitRow: a.awaitRow });
+        setSimdEnabled(true);
+        expect(bytes(got).equals(bytes(ref))).toBe(true);
+        expect(a.asked[0]).toBe(299);
+        expectIncreasing(a.asked.slice(1));
+      });
+    });
+  });
+
+  it('a row that never arrives (awaitRow throws) stops the render with that error', () => {
+    const src = noise(400, 300, 3, false, 17);
+    const stop = new Error('the source stopped arriving');
+    const asked: number[] = [];
+    const awaitRow = (y: number) => {
+      asked.push(y);
+      if (y >= 150) throw stop;
+    };
+    expect(() => renderRaster(src, plans[1][1], { awaitRow })).toThrow(stop);
+    expect(asked.at(-1)).toBe(150);
+  });
+});
