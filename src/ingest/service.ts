@@ -143,7 +143,8 @@ export class IngestService extends EventEmitter {
     return this.build(sourceKey, source, options);
   }
 
-  private async build(sourceKey: string, { identity, decoded }: LoadedSource, options: IngestOptions): Promise<Manifest> {
+  private async build(sourceKey: string, loaded: LoadedSource, options: IngestOptions): Promise<Manifest> {
+    const { identity, decoded } = loaded;
     const { raster } = decoded;
     const formats = options.formats ?? this.config.ingest.formats;
     const widths = ladderFor(raster.width, options.widths);
@@ -160,7 +161,8 @@ export class IngestService extends EventEmitter {
     );
     const tasks = steps.flatMap((step) => formats.map((format) => ({ step, format })));
     const renditions = await mapBounded(tasks, this.config.ingest.concurrency, async ({ step, format }): Promise<ManifestRendition> => {
-      const r = await renderRendition(this.render, sourceKey, queryFor(step.width, format));
+      // The source decoded above serves every miss of the ladder: no decode per rendition.
+      const r = await renderRendition({ ...this.render, decoded: loaded }, sourceKey, queryFor(step.width, format));
       this.emit('rendition', { source: sourceKey, width: step.width, format, cache: r.cache, bytes: r.entry.body.length } satisfies RenditionEvent);
       return {
         url: renditionUrl(sourceKey, step.width, format, this.config.signing.keys[0]),

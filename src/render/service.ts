@@ -15,7 +15,7 @@ import type { IdentityMemo } from './identity.js';
 import { renditionKey, strongEtag } from './key.js';
 import { checkRequestedSize, type PlannedRendition, planRendition } from './plan.js';
 import type { RenderPool } from './pool.js';
-import { decodeSource, readSource } from './source.js';
+import { decodeSource, type LoadedSource, readSource } from './source.js';
 import { resampleWhileDecoding } from './streamed.js';
 import { type Stage, StageClock, type StageTiming } from './timings.js';
 
@@ -43,6 +43,12 @@ export interface RenderContext {
    * an analysed source be resampled while it decodes (src/render/streamed.ts).
    */
   knownAdaptiveSigma?: (plan: Plan, identity: SourceIdentity) => { sigma: { x: number; y: number } | undefined } | null;
+  /**
+   * A source the caller has already read and decoded (the upload hook's ladder, the alias-risk
+   * preview): a miss renders from it instead of reading and decoding again, when it is the
+   * version of the path asked for.
+   */
+  decoded?: LoadedSource;
 }
 
 export interface Rendition {
@@ -80,11 +86,20 @@ interface Resampled {
  * decoded source lives only in this frame, so once it returns nothing references the source's
  * pixels and the permit can go to the next render while this one encodes.
  */
-async function resampleSource(ctx: RenditionContextInternal, path: string, q: RenditionQuery): Promise<Resampled> {
+/** The caller's decoded source when it is the version at `path`, else the source read and decoded now (or null: streamed). */
+async function decodedSource(ctx: RenditionContextInternal, path: string, q: RenditionQuery): Promise<LoadedSource | Resampled> {
+  const given = ctx.decoded;
+  if (given && given.identity.key === ctx.asked.key && given.identity.version === ctx.asked.version) return given;
   const read = await readSource(ctx.origin, path, ctx.limits, ctx.clock);
   const streamed = await resampleWhileDecoding(ctx, read, q);
   if (streamed) return { ...streamed, hasAlpha: false, identity: read.identity };
-  const { decoded, identity } = await decodeSource(read, ctx.limits, ctx.clock);
+  return decodeSource(read, ctx.limits, ctx.clock);
+}
+
+async function resampleSource(ctx: RenditionContextInternal, path: string, q: RenditionQuery): Promise<Resampled> {
+  const source = await decodedSource(ctx, path, q);
+  if ('raster' in source) return source;
+  const { decoded, identity } = source;
   const src = decoded.raster;
   const first = planRendition(src, q, ctx.limits);
   const sigma = q.prefilter === 'auto' ? ctx.adaptiveSigma?.(src, first.plan, identity) : undefined;
@@ -128,6 +143,8 @@ async function produce(
 
 interface RenditionContextInternal extends RenderContext {
   clock: StageClock;
+  /** The identity renderRendition found for the path (the cache key's). */
+  asked: SourceIdentity;
 }
 
 /**
@@ -157,7 +174,7 @@ export async function renderRendition(
   }
   ctx.onLookup?.('miss');
   const { value: entry } = await ctx.flight.run(key, async () => {
-    const { entry: made, identity: read } = await produce({ ...ctx, clock }, path, query, accept);
+    const { entry: made, identity: read } = await produce({ ...ctx, clock, asked: identity }, path, query, accept);
     // The source changed between identify and read: file the bytes under what was read.
     const storeKey = read.version === identity.version ? key : renditionKey(read, canonical, fmt);
     if (storeKey !== key) ctx.identities?.forget(path);
