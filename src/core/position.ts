@@ -38,8 +38,9 @@ function keyword(token: string): { axis: Axis; at: number } | undefined {
   return Object.hasOwn(keywords, token) ? keywords[token] : undefined;
 }
 
+/** A CSS <percentage>: a <number> (digits, or digits only after a point: CSS Syntax 3, 'consume a number', from memory) and `%`. */
 function percent(token: string): number | undefined {
-  if (!/^\+?(?:\d+(?:\.\d*)?|\.\d+)%$/.test(token)) return undefined;
+  if (!/^\+?(?:\d+|\d*\.\d+)%$/.test(token)) return undefined;
   const v = Number(token.slice(0, -1));
   return v >= 0 && v <= 100 ? v / 100 : undefined;
 }

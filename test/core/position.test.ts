@@ -51,6 +51,9 @@ describe('parsePosition', () => {
     'left 10% right 10%',
     '30%% 10%',
     'NaN%',
+    // CSS Syntax 3, 'consume a number' (from memory): a number needs digits after its point.
+    '50.%',
+    '1.e2%',
     // Names an object literal inherits are not keywords.
     'constructor',
     '__proto__',
