@@ -147,12 +147,17 @@ export class RenderPool {
     const shared: SharedRaster = { buffer, width, height, channels, depth };
     const onAbort = () => feed.stop();
     signal?.addEventListener('abort', onAbort, { once: true });
+    const bands = this.runBands(shared, plan, signal, feed.progress);
     try {
-      const [out] = await Promise.all([this.runBands(shared, plan, signal, feed.progress), feed.done]);
+      const [out] = await Promise.all([bands, feed.done]);
       this.staging.give(buffer);
       return out;
     } catch (e) {
       feed.stop();
+      // The band tasks give up at once on a stopped feed (worker.ts), but one still queued
+      // behind busy workers would outlive this render and its admission permit in piscina's
+      // bounded queue: wait for them.
+      await bands.catch(() => undefined);
       // A failed decode fails the feed and then the workers: report the decode's error.
       if (decodeFailure !== undefined) throw decodeFailure;
       throw e instanceof FoldwiseError ? e : new FoldwiseError('ERR_RENDER_FAILED', 'resampling failed', { cause: e });
