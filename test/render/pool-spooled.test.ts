@@ -113,6 +113,38 @@ describe('RenderPool.resampleSpooled (resample while libvips decodes)', () => {
     expect(bytes(spooled).equals(bytes(direct))).toBe(true);
   });
 
+  it("a failed render's band tasks are over when it rejects (none left queued behind busy workers)", async () => {
+    // A render whose rows never arrive until released: its two bands hold both workers.
+    const big = await source('jpeg', 900, 800, 3, 8);
+    const slow = (await probeSpooledDecode(big, limits))!;
+    const slowPath = pool.spool!.path();
+    let release!: () => void;
+    const gate = new Promise<void>((resolve) => (release = resolve));
+    const slowWritten = gate.then(() => slow.write(slowPath));
+    const blocker = pool.resampleSpooled(slowPath, slow, slowWritten, plan(900, 800, 600, 540));
+    // A corrupt source rendered meanwhile: its task waits for a worker; its decode fails.
+    const cut = (await source('jpeg', 320, 240, 3, 8)).subarray(0, 4000);
+    const probe = (await probeSpooledDecode(cut, limits))!;
+    const path = pool.spool!.path();
+    const written = probe.write(path);
+    let queuedAtEnd = -1;
+    const failed = pool.resampleSpooled(path, probe, written, plan(320, 240, 100, 75)).then(
+      () => 'rendered',
+      (e: unknown) => {
+        queuedAtEnd = pool.queueDepth;
+        return (e as FoldwiseError).code;
+      },
+    );
+    await written.catch(() => undefined);
+    release();
+    await blocker;
+    expect(await failed).toBe('ERR_SOURCE_CORRUPT');
+    // Else each such failure leaves a task in piscina's bounded queue, after its admission
+    // permit is released, and enough of them refuse the next renders' tasks.
+    expect(queuedAtEnd).toBe(0);
+    await Promise.all([pool.spool!.remove(slowPath), pool.spool!.remove(path)]);
+  });
+
   it('a write into a folder that does not exist rejects with SpoolWriteError, also through resampleSpooled', async () => {
     const input = await source('png', 64, 48, 3, 8);
     const probe = (await probeSpooledDecode(input, limits))!;
