@@ -174,7 +174,11 @@ export class RenderPool {
     const split = this.threads > 1 && plan.targetWidth * h >= SPLIT_MIN_PIXELS;
     const bands: [number, number][] = split ? [[0, h >> 1], [h >> 1, h]] : [[0, h]];
     try {
-      await Promise.all(bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out, progress }, { signal })));
+      // Every band settles before the render does, failed or not: a band still queued or running
+      // would otherwise outlive the render's admission permit in piscina's bounded queue.
+      const settled = await Promise.allSettled(bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out, progress }, { signal })));
+      const failed = settled.find((r) => r.status === 'rejected');
+      if (failed) throw failed.reason;
     } catch (e) {
       // piscina rejects with its AbortError for our deadline, and with its own abort or
       // "Terminating worker thread" when it is closed under a task: neither is a failed render.

@@ -1,4 +1,4 @@
-import { existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { existsSync, mkdtempSync, readdirSync, rmSync } from 'node:fs';
 import { rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -8,11 +8,35 @@ function autoBase(): string {
   return existsSync('/dev/shm') ? '/dev/shm' : tmpdir();
 }
 
+const PREFIX = 'foldwise-spool-';
+
+/** Whether process `pid` is alive on this host (EPERM: alive, someone else's). */
+function alive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (e) {
+    return (e as NodeJS.ErrnoException).code === 'EPERM';
+  }
+}
+
+/**
+ * Removes spool folders left in `base` by processes that ended without closing them (killed,
+ * crashed): their files would otherwise hold memory in a tmpfs until the next reboot.
+ */
+function sweep(base: string): void {
+  for (const name of readdirSync(base)) {
+    const pid = Number(/^foldwise-spool-(\d+)-/.exec(name)?.[1]);
+    if (pid > 0 && pid !== process.pid && !alive(pid)) rmSync(join(base, name), { recursive: true, force: true });
+  }
+}
+
 /**
  * A private folder (mode 0700, made by mkdtemp) for the spool files of decodes in progress
  * (src/media/spool-decode.ts writes one, src/render/feed.ts reads it as it grows). Each render
  * gets a name of its own and removes its file when done; the folder goes with `close`.
- * A memory-backed file system (tmpfs) is best: the file never needs to reach a disk.
+ * A memory-backed file system (tmpfs) is best: the file never needs to reach a disk. The
+ * folder's name carries the process id, so a later start can remove what a killed one left.
  */
 export class SpoolDir {
   private next = 0;
@@ -22,8 +46,10 @@ export class SpoolDir {
   /** The folder under `setting` ('auto', or a path), or null when it is 'off' or cannot be made. */
   static open(setting: string): SpoolDir | null {
     if (setting === 'off') return null;
+    const base = setting === 'auto' ? autoBase() : setting;
     try {
-      return new SpoolDir(mkdtempSync(join(setting === 'auto' ? autoBase() : setting, 'foldwise-spool-')));
+      sweep(base);
+      return new SpoolDir(mkdtempSync(join(base, `${PREFIX}${process.pid}-`)));
     } catch {
       return null;
     }
