@@ -1,5 +1,5 @@
-import { open, type FileHandle } from 'node:fs/promises';
-import { setTimeout as sleep } from 'node:timers/promises';
+import { closeSync, openSync, readSync } from 'node:fs';
+import { setImmediate as nextTurn, setTimeout as sleep } from 'node:timers/promises';
 
 /** What the reader expects of the spool file's pixels. */
 export interface FeedShape {
@@ -22,6 +22,9 @@ export const FEED_FAILED = 2;
  */
 const HEADER_BYTES = 64;
 const MAGIC = [0xb6, 0xa6, 0xf2, 0x08];
+
+/** Most bytes copied by one read: on a memory-backed folder a read is a copy, well under a ms. */
+const CHUNK_BYTES = 4 * 2 ** 20;
 
 /** Why a header does not describe the pixels expected, or null when it does. */
 export function headerMismatch(header: Uint8Array, shape: FeedShape): string | null {
@@ -55,6 +58,11 @@ export interface Feed {
  * Reads whatever the file holds (the file system's reads are atomic per call and the writer
  * only appends); when a read finds nothing new it waits a millisecond. A writer that fails,
  * or finishes short of `height` rows, fails the feed (progress[0] = FEED_FAILED).
+ *
+ * The reads are synchronous, at most CHUNK_BYTES each with a turn of the event loop between
+ * them: sharp holds a thread of libuv's pool (4 by default) for the whole of each decode and
+ * encode, so asynchronous reads would queue behind the very decodes they follow (with four
+ * spooled decodes at once, no row arrived before its decode had ended).
  */
 export function feedFromSpool(path: string, shape: FeedShape, target: SharedArrayBuffer, written: Promise<void>): Feed {
   const progress = new SharedArrayBuffer(8);
@@ -71,24 +79,25 @@ export function feedFromSpool(path: string, shape: FeedShape, target: SharedArra
   const into = new Uint8Array(target, 0, total);
 
   /** Reads from `at` into `buf`, waiting while the file holds nothing new; the bytes read. */
-  async function readSome(fh: FileHandle, buf: Uint8Array, at: number): Promise<number> {
+  async function readSome(fd: number, buf: Uint8Array, at: number): Promise<number> {
     for (;;) {
+      await nextTurn();
       if (stopped) throw new Error('the render was called off');
       if (failure !== undefined) throw failure;
       const wasFinished = finished;
-      const { bytesRead } = await fh.read(buf, 0, buf.length, at);
+      const bytesRead = readSync(fd, buf, 0, Math.min(buf.length, CHUNK_BYTES), at);
       if (bytesRead > 0) return bytesRead;
       if (wasFinished) throw new Error('the spool file ended before its last row');
       await sleep(1);
     }
   }
 
-  /** The file, once the writer has made it. */
-  async function opened(): Promise<FileHandle> {
+  /** The file's descriptor, once the writer has made it. */
+  async function opened(): Promise<number> {
     for (;;) {
       const wasFinished = finished;
       try {
-        return await open(path, 'r');
+        return openSync(path, 'r');
       } catch (e) {
         if ((e as NodeJS.ErrnoException).code !== 'ENOENT' || wasFinished || failure !== undefined || stopped) throw e;
       }
@@ -97,20 +106,20 @@ export function feedFromSpool(path: string, shape: FeedShape, target: SharedArra
   }
 
   async function run(): Promise<void> {
-    const fh = await opened();
+    const fd = await opened();
     try {
       const header = new Uint8Array(HEADER_BYTES);
-      for (let got = 0; got < HEADER_BYTES; ) got += await readSome(fh, header.subarray(got), got);
+      for (let got = 0; got < HEADER_BYTES; ) got += await readSome(fd, header.subarray(got), got);
       const wrong = headerMismatch(header, shape);
       if (wrong) throw new Error(`spool file: ${wrong}`);
       for (let loaded = 0; loaded < total; ) {
-        loaded += await readSome(fh, into.subarray(loaded), HEADER_BYTES + loaded);
+        loaded += await readSome(fd, into.subarray(loaded), HEADER_BYTES + loaded);
         Atomics.store(p, 1, Math.floor(loaded / rowBytes));
         Atomics.notify(p, 1);
       }
       Atomics.store(p, 0, FED);
     } finally {
-      await fh.close();
+      closeSync(fd);
     }
   }
 
@@ -120,6 +129,9 @@ export function feedFromSpool(path: string, shape: FeedShape, target: SharedArra
     // The writer's own error says more than the reader's.
     throw failure ?? e;
   });
+  // Whoever holds the feed sees the failure through `done`; it is not an unhandled rejection
+  // while they are still busy elsewhere (stop() may fail it at any moment).
+  done.catch(() => undefined);
   return {
     progress,
     done,
