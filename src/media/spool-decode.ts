@@ -27,6 +27,12 @@ export interface SpoolableSource {
    * errors (ERR_SOURCE_CORRUPT, ERR_LIMIT_DECODE_TIMEOUT, ...), or SpoolWriteError.
    */
   write(path: string): Promise<void>;
+  /**
+   * Settles once libvips has stopped writing every file `write` was asked for: possibly later
+   * than write's own promise, which the decode deadline settles while libvips runs on to its
+   * own timeout, and whose job waits for a libuv pool thread before it starts at all.
+   */
+  idle(): Promise<void>;
 }
 
 /**
@@ -37,9 +43,12 @@ export interface SpoolableSource {
 export async function probeSpooledDecode(bytes: Buffer, limits: DecodeLimits): Promise<SpoolableSource | null> {
   const { pipeline, format, width, height, deep, grey, hasAlpha } = await prepare(bytes, limits);
   if (hasAlpha) return null;
-  const write = (path: string) =>
-    withinDeadline(
-      pipeline.toFile(path).then(
+  let jobs: Promise<unknown> = Promise.resolve();
+  const write = (path: string) => {
+    const job = pipeline.toFile(path);
+    jobs = Promise.allSettled([jobs, job]);
+    return withinDeadline(
+      job.then(
         () => undefined,
         (e: unknown) => {
           const message = e instanceof Error ? e.message : String(e);
@@ -48,5 +57,7 @@ export async function probeSpooledDecode(bytes: Buffer, limits: DecodeLimits): P
       ),
       limits.timeoutMs,
     );
-  return { width, height, channels: grey ? 1 : 3, depth: deep ? 16 : 8, format, write };
+  };
+  const idle = () => jobs.then(() => undefined);
+  return { width, height, channels: grey ? 1 : 3, depth: deep ? 16 : 8, format, write, idle };
 }

@@ -76,5 +76,9 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
   } finally {
     written.catch(() => undefined);
     await spool.remove(file);
+    // libvips may make or write the file after this (a deadline settled `written` first, or its
+    // job was still waiting for a pool thread): once it is done, remove the file again, or it
+    // would hold memory in /dev/shm until the pool closes.
+    probe.idle().then(() => spool.remove(file)).catch(() => undefined);
   }
 }
