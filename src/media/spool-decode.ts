@@ -1,8 +1,9 @@
 import { classify, type DecodeLimits, prepare, withinDeadline } from './decode-setup.js';
 
 /**
- * The spool file could not be written (folder gone, file system full): nothing is wrong with
- * the source, so the caller decodes it in memory instead.
+ * The spool file could not be written (folder gone, file system full), or not read back (out
+ * of file descriptors, an I/O error): nothing is wrong with the source, so the caller decodes
+ * it in memory instead.
  */
 export class SpoolWriteError extends Error {
   override name = 'SpoolWriteError';

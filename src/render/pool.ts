@@ -7,6 +7,7 @@ import { type ErrorCode, FoldwiseError } from '../errors.js';
 import type { ResampleTask, SharedRaster } from '../worker.js';
 import { Admission } from './admission.js';
 import { StagingBuffers } from './staging.js';
+import { SpoolWriteError } from '../media/spool-decode.js';
 import { feedFromSpool, type FeedShape } from './feed.js';
 import { SpoolDir } from './spool.js';
 
@@ -143,27 +144,36 @@ export class RenderPool {
     const feed = feedFromSpool(path, shape, buffer, written);
     let decodeFailure: unknown;
     written.catch((e: unknown) => (decodeFailure = e ?? new Error('the decode failed')));
+    // The feed's own failure (the file could not be opened or read), not one it was told of.
+    let stopped = false;
+    let readFailure: unknown;
+    feed.done.catch((e: unknown) => (readFailure = stopped ? undefined : e));
+    const stop = () => {
+      stopped = true;
+      feed.stop();
+    };
     const { width, height, channels, depth } = shape;
     const shared: SharedRaster = { buffer, width, height, channels, depth };
-    const onAbort = () => feed.stop();
-    signal?.addEventListener('abort', onAbort, { once: true });
+    signal?.addEventListener('abort', stop, { once: true });
     const bands = this.runBands(shared, plan, signal, feed.progress);
     try {
       const [out] = await Promise.all([bands, feed.done]);
       this.staging.give(buffer);
       return out;
     } catch (e) {
-      feed.stop();
+      stop();
       // The band tasks give up at once on a stopped feed (worker.ts), but one still queued
       // behind busy workers would outlive this render and its admission permit in piscina's
       // bounded queue: wait for them.
       await bands.catch(() => undefined);
       // A failed decode fails the feed and then the workers: report the decode's error.
       if (decodeFailure !== undefined) throw decodeFailure;
+      const refused = e instanceof FoldwiseError && e.code !== 'ERR_RENDER_FAILED';
+      // A spool file that cannot be read says nothing of the source: the caller decodes in memory.
+      if (readFailure !== undefined && !refused) throw new SpoolWriteError(`the spool file ${path} could not be read`, { cause: readFailure });
       throw e instanceof FoldwiseError ? e : new FoldwiseError('ERR_RENDER_FAILED', 'resampling failed', { cause: e });
     } finally {
-      signal?.removeEventListener('abort', onAbort);
-      feed.done.catch(() => undefined);
+      signal?.removeEventListener('abort', stop);
     }
   }
 

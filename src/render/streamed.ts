@@ -53,9 +53,9 @@ function streamPlan(ctx: StreamContext, size: { width: number; height: number },
  *
  * Returns null, having decoded nothing, when the render must take the decode-then-resample
  * path: spooling is off, the source has alpha or fewer than STREAM_MIN_PIXELS pixels, or the
- * plan needs a spectrum not at hand. Also
- * null when the spool file could not be written (a full or missing folder): the caller then
- * decodes in memory. Errors of the source itself are thrown as the in-memory decode throws them.
+ * plan needs a spectrum not at hand. Also null when the spool file could not be written or
+ * read back (a full or missing folder, no file descriptors left): the caller then decodes in
+ * memory. Errors of the source itself are thrown as the in-memory decode throws them.
  */
 export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSource, q: RenditionQuery): Promise<StreamedRendition | null> {
   const spool = ctx.pool.spool;
