@@ -22,12 +22,19 @@ function alive(pid: number): boolean {
 
 /**
  * Removes spool folders left in `base` by processes that ended without closing them (killed,
- * crashed): their files would otherwise hold memory in a tmpfs until the next reboot.
+ * crashed): their files would otherwise hold memory in a tmpfs until the next reboot. Best
+ * effort: a folder this user may not remove (another user's, in a sticky /dev/shm) stays, and
+ * spooling goes on beside it.
  */
 function sweep(base: string): void {
   for (const name of readdirSync(base)) {
     const pid = Number(/^foldwise-spool-(\d+)-/.exec(name)?.[1]);
-    if (pid > 0 && pid !== process.pid && !alive(pid)) rmSync(join(base, name), { recursive: true, force: true });
+    if (!(pid > 0 && pid !== process.pid && !alive(pid))) continue;
+    try {
+      rmSync(join(base, name), { recursive: true, force: true });
+    } catch {
+      // Left for its owner.
+    }
   }
 }
 
