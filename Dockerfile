@@ -1,10 +1,11 @@
 # foldwise: multi-stage build. The build stage compiles TypeScript to dist/; the runtime stage
 # carries only production dependencies and the compiled service, and runs as a non-root user.
 #   docker build -t foldwise .
-#   docker run --rm -p 8080:8080 -v foldwise-cache:/data/cache foldwise
+#   docker run --rm -p 8080:8080 --shm-size=512m -v foldwise-cache:/data/cache foldwise
+# (--shm-size: decodes spool their rows in /dev/shm, 64 MB by default in a container; README.)
 # Own pictures: mount them at /data/images and a config file that turns the demo off, e.g.
 #   echo '{"origin":{"generateDemo":false}}' > foldwise.json
-#   docker run --rm -p 8080:8080 -v "$PWD/pictures:/data/images:ro" \
+#   docker run --rm -p 8080:8080 --shm-size=512m -v "$PWD/pictures:/data/images:ro" \
 #     -v "$PWD/foldwise.json:/etc/foldwise.json:ro" -e FOLDWISE_CONFIG=/etc/foldwise.json foldwise
 
 FROM node:20-bookworm-slim AS build

@@ -42,7 +42,8 @@ export interface SpoolableSource {
  * the last row (decodeImage serves it, and drops an alpha that turns out opaque).
  */
 export async function probeSpooledDecode(bytes: Buffer, limits: DecodeLimits): Promise<SpoolableSource | null> {
-  const { pipeline, format, width, height, deep, grey, hasAlpha } = await prepare(bytes, limits);
+  // The header read is under the decode deadline too, as in decodeImage.
+  const { pipeline, format, width, height, deep, grey, hasAlpha } = await withinDeadline(prepare(bytes, limits), limits.timeoutMs);
   if (hasAlpha) return null;
   let jobs: Promise<unknown> = Promise.resolve();
   const write = (path: string) => {

@@ -43,7 +43,7 @@ export function createMetrics(): Metrics {
     }),
     stageSeconds: new Histogram({
       name: 'foldwise_render_stage_seconds',
-      help: 'Time spent per render stage (origin, decode, resample, encode, cache).',
+      help: 'Time spent per render stage (origin, decode, resample, encode, cache; stream = decode and resample overlapped, then decode is the header read only).',
       labelNames: ['stage'],
       buckets,
       registers,

@@ -133,7 +133,7 @@ export class RenderPool {
 
   /**
    * Resamples a source that a decoder is still writing to the spool file at `path`
-   * (src/media/decode.ts startSpooledDecode, whose `written` is passed here): the rows are
+   * (src/media/spool-decode.ts, whose `written` is passed here): the rows are
    * read into shared memory as they appear (feed.ts) and the workers start on the top of the
    * image while the rest is decoded, so most of the resampling overlaps the decode. The
    * decode's own error (ERR_SOURCE_CORRUPT, ...) wins over the render's.
@@ -157,7 +157,9 @@ export class RenderPool {
     signal?.addEventListener('abort', stop, { once: true });
     const bands = this.runBands(shared, plan, signal, feed.progress);
     try {
-      const [out] = await Promise.all([bands, feed.done]);
+      // The decode must end cleanly too: one that fails after writing its last row (a broken
+      // trailer, a write error) is not rendered and cached.
+      const [out] = await Promise.all([bands, feed.done, written]);
       this.staging.give(buffer);
       return out;
     } catch (e) {

@@ -145,6 +145,27 @@ describe('RenderPool.resampleSpooled (resample while libvips decodes)', () => {
     await Promise.all([pool.spool!.remove(slowPath), pool.spool!.remove(path)]);
   });
 
+  it('a decode that fails after writing its last row is not rendered: its error comes back', async () => {
+    const input = await source('jpeg', 96, 64, 3, 8);
+    const probe = (await probeSpooledDecode(input, limits))!;
+    const path = pool.spool!.path();
+    try {
+      await probe.write(path); // every row is in the file before the render starts
+      let fail!: (e: unknown) => void;
+      const written = new Promise<void>((_, reject) => (fail = reject));
+      const late = new FoldwiseError('ERR_SOURCE_CORRUPT', 'broken after the last row');
+      const render = pool.resampleSpooled(path, probe, written, plan(96, 64, 32, 20));
+      render.catch(() => undefined);
+      // A second render of the same file queues behind the first's band in the pool, so once it
+      // is done the first one's bands and feed are done too; only then does the decode fail.
+      await pool.resampleSpooled(path, probe, Promise.resolve(), plan(96, 64, 32, 20));
+      fail(late);
+      await expect(render).rejects.toBe(late);
+    } finally {
+      await pool.spool!.remove(path);
+    }
+  });
+
   it('a write into a folder that does not exist rejects with SpoolWriteError, also through resampleSpooled', async () => {
     const input = await source('png', 64, 48, 3, 8);
     const probe = (await probeSpooledDecode(input, limits))!;
