@@ -4,6 +4,21 @@ import { bitBuckets8 } from './color/bit-buckets.js';
 import type { RowSource } from './resample/index.js';
 import type { Arena, SimdKernels } from './simd/index.js';
 
+/** Where one source row's samples start: row y is `data[at .. at + width * channels)`. */
+export interface RowSpan {
+  data: Uint8Array | Uint16Array;
+  at: number;
+}
+
+/** Finds source row y (rows are asked in non-decreasing order, each at most once per pass). */
+export type RowAt = (y: number) => RowSpan;
+
+/** Row y of the raster's own samples. */
+export function ownRows(src: PixelRaster): RowAt {
+  const n = src.width * src.channels;
+  return (y) => ({ data: src.data, at: y * n });
+}
+
 /** Scratch bytes the SIMD row decoder needs for one row of this raster (0 when it is not used). */
 export function rowScratchBytes(src: PixelRaster, codec: RowCodec): number {
   if (codec.alpha >= 0) return 0;
@@ -13,16 +28,19 @@ export function rowScratchBytes(src: PixelRaster, codec: RowCodec): number {
 
 /**
  * The raster's rows as working floats (linear light or encoded values, alpha premultiplied as
- * the codec says). Without alpha, and with the SIMD kernels and an arena at hand, each row's
+ * the codec says), each row found by `rowAt` (default: the raster's own samples). Without
+ * alpha, and with the SIMD kernels and an arena at hand, each row's
  * codes are copied next to the lookup table in the kernels' memory and converted there;
  * otherwise decodeRow does it. Both give the same floats (the same table). Not in place.
  */
-export function rasterRows(src: PixelRaster, codec: RowCodec, simd?: { k: SimdKernels; arena: Arena }): RowSource {
+export function rasterRows(src: PixelRaster, codec: RowCodec, simd?: { k: SimdKernels; arena: Arena }, rowAt: RowAt = ownRows(src)): RowSource {
   const { data, width, channels } = src;
   const n = width * channels;
-  if (!simd || codec.alpha >= 0) {
-    return { width, lanes: channels, read: (y, buf, at) => decodeRow(codec, data, y * n, width, buf, at) };
-  }
+  const decode = (y: number, buf: Float32Array, at: number) => {
+    const row = rowAt(y);
+    decodeRow(codec, row.data, row.at, width, buf, at);
+  };
+  if (!simd || codec.alpha >= 0) return { width, lanes: channels, read: decode };
   const { k, arena } = simd;
   const deep = data instanceof Uint16Array;
   const lut = arena.scratch(codec.toWork.length * 4);
@@ -34,8 +52,9 @@ export function rasterRows(src: PixelRaster, codec: RowCodec, simd?: { k: SimdKe
     width,
     lanes: channels,
     read(y, buf, at) {
-      if (buf.buffer !== k.memory.buffer) return decodeRow(codec, data, y * n, width, buf, at);
-      stage.set(data.subarray(y * n, y * n + n)); // one small view per row; the copy is a memcpy
+      if (buf.buffer !== k.memory.buffer) return decode(y, buf, at);
+      const row = rowAt(y);
+      stage.set(row.data.subarray(row.at, row.at + n)); // one small view per row; the copy is a memcpy
       convert(buf.byteOffset + at * 4, codes, lut, n);
     },
   };

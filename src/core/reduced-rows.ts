@@ -2,6 +2,7 @@ import type { PixelRaster } from './types.js';
 import { decodeRow, type RowCodec } from './color/index.js';
 import { resampleAxis, type RowSource, type WeightTable } from './resample/index.js';
 import type { Arena, SimdKernels } from './simd/index.js';
+import { ownRows, type RowAt } from './raster-rows.js';
 
 /**
  * Whether the first pyramid stage can take its source rows decoded and reduced along x in one
@@ -35,7 +36,8 @@ function pairTable(lut: Float32Array): Float32Array {
 
 /**
  * The raster's rows decoded (as rasterRows does: the codec's table, no alpha) and reduced along
- * x through the pyramid table bx (placed in the arena), bx.dstLen pixels per source row.
+ * x through the pyramid table bx (placed in the arena), bx.dstLen pixels per source row;
+ * each row found by `rowAt` (8-bit codes).
  * The reference is decodeRow then resampleAxis through bx. Here each row's codes are copied
  * into the kernels' memory; the interior outputs come from decodeReduce5, which decodes each
  * pixel into a register (RGB through a table of code pairs, the same floats) and sums as
@@ -43,8 +45,7 @@ function pairTable(lut: Float32Array): Float32Array {
  * decode just the pixels they read and take the pixel pass. Not in place; allocates nothing
  * per row.
  */
-export function reducedRows(src: PixelRaster, codec: RowCodec, bx: WeightTable, simd: { k: SimdKernels; arena: Arena }): RowSource {
-  const data = src.data as Uint8Array;
+export function reducedRows(src: PixelRaster, codec: RowCodec, bx: WeightTable, simd: { k: SimdKernels; arena: Arena }, rowAt: RowAt = ownRows(src)): RowSource {
   const { width, channels: lanes } = src;
   const n = width * lanes;
   const { k, arena } = simd;
@@ -69,11 +70,12 @@ export function reducedRows(src: PixelRaster, codec: RowCodec, bx: WeightTable, 
     width: dstLen,
     lanes,
     read(y, buf, at) {
+      const row = rowAt(y);
       if (buf.buffer !== k.memory.buffer) {
-        decodeRow(codec, data, y * n, width, line, 0);
+        decodeRow(codec, row.data, row.at, width, line, 0);
         return resampleAxis(buf, at, lanes, line, 0, lanes, lanes, bx, 0, dstLen);
       }
-      stage.set(data.subarray(y * n, y * n + n));
+      stage.set(row.data.subarray(row.at, row.at + n));
       const out = buf.byteOffset;
       if (head > 0) {
         k.decode8(line.byteOffset, codes, lut, head);

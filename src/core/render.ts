@@ -1,6 +1,6 @@
 import type { PixelRaster, Plan } from './types.js';
 import { rowCodec } from './color/index.js';
-import { rasterRows, rowScratchBytes, rowEncoder, encodeScratchBytes } from './raster-rows.js';
+import { rasterRows, rowScratchBytes, rowEncoder, encodeScratchBytes, ownRows, type RowAt } from './raster-rows.js';
 import { planTable, resampleStream, streamLayout, type RowSource, type WeightTable } from './resample/index.js';
 import { simdKernels, arenaFor, arenaBytes, type Arena } from './simd/index.js';
 import { reduceTable } from './pyramid.js';
@@ -18,19 +18,22 @@ export interface RenderOptions {
    * since the opacity check reads every row. Without it the whole of `src.data` must be filled.
    */
   awaitRow?: (y: number) => void;
+  /**
+   * Where each source row is, instead of `src.data` (whose length is then not checked, and
+   * may be 0): for rows read from elsewhere as they are needed, such as a file a decoder is
+   * still writing. Asked in non-decreasing order, each row at most once, only those needed;
+   * a span need stay valid only until the next call. Sources with alpha are refused with it,
+   * since their opacity check would read every row first.
+   */
+  rowAt?: RowAt;
 }
 
-/** `source`, each row read only after `awaitRow` says it has arrived. */
-function gated(source: RowSource, awaitRow: ((y: number) => void) | undefined): RowSource {
-  if (!awaitRow) return source;
-  return {
-    width: source.width,
-    lanes: source.lanes,
-    read(y, buf, at) {
-      awaitRow(y);
-      source.read(y, buf, at);
-    },
-  };
+/** Where the render finds its source rows: rowAt, or the raster's samples once awaitRow says they arrived. */
+function locator(src: PixelRaster, opts: RenderOptions): RowAt {
+  if (opts.rowAt) return opts.rowAt;
+  const own = ownRows(src);
+  const wait = opts.awaitRow;
+  return wait ? (y) => (wait(y), own(y)) : own;
 }
 
 function isOpaque(data: Uint8Array | Uint16Array, channels: number, max: number): boolean {
@@ -89,14 +92,14 @@ function pyramidStages(plan: Plan, width: number, height: number): Array<[Weight
   return stages;
 }
 
-function checkSource(src: PixelRaster, plan: Plan): void {
+function checkSource(src: PixelRaster, plan: Plan, rowsElsewhere: boolean): void {
   const { width, height, channels, data } = src;
   if (width !== plan.sourceWidth || height !== plan.sourceHeight) {
     throw new RangeError(`source is ${width}x${height} but the plan is for ${plan.sourceWidth}x${plan.sourceHeight}`);
   }
   if (!(channels >= 1 && channels <= 4 && Number.isInteger(channels))) throw new RangeError(`bad channel count ${channels}`);
   if (!(data instanceof Uint8Array || data instanceof Uint16Array)) throw new RangeError('data must be a Uint8Array or Uint16Array');
-  if (data.length !== width * height * channels) throw new RangeError('data length does not match width x height x channels');
+  if (!rowsElsewhere && data.length !== width * height * channels) throw new RangeError('data length does not match width x height x channels');
 }
 
 /**
@@ -109,7 +112,7 @@ function checkSource(src: PixelRaster, plan: Plan): void {
  * src, returns a new raster (SIMD kernels, where available, work in a per-thread arena).
  */
 export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions = {}): PixelRaster {
-  checkSource(src, plan);
+  checkSource(src, plan, opts.rowAt !== undefined);
   const [r0, r1] = opts.rows ?? [0, plan.targetHeight];
   if (!(Number.isInteger(r0) && Number.isInteger(r1) && r0 >= 0 && r0 <= r1 && r1 <= plan.targetHeight)) {
     throw new RangeError(`rows must satisfy 0 <= start <= end <= ${plan.targetHeight}`);
@@ -118,8 +121,10 @@ export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions =
   const deep = data instanceof Uint16Array;
   const max = deep ? 65535 : 255;
   const hasAlpha = channels === 2 || channels === 4;
+  if (hasAlpha && opts.rowAt) throw new RangeError('rowAt serves sources without alpha');
   if (hasAlpha && src.height > 0) opts.awaitRow?.(src.height - 1);
   const codec = rowCodec(deep, channels, plan.light === 'linear', hasAlpha && !isOpaque(data, channels, max));
+  const rowAt = locator(src, opts);
   const dstW = plan.targetWidth;
   const out = deep ? new Uint16Array(dstW * (r1 - r0) * channels) : new Uint8Array(dstW * (r1 - r0) * channels);
   const ty = planTable(plan, 'y');
@@ -144,8 +149,8 @@ export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions =
     const tx = arena ? placed(arena, bx) : bx;
     const ty = arena ? placed(arena, by) : by;
     // The first pyramid stage's x reduce fused with the decode (reduced-rows.ts), or the plain rows.
-    if (!source && fused) source = resampleStream(gated(reducedRows(src, codec, tx, simd!), opts.awaitRow), null, ty, a, b, alloc);
-    else source = resampleStream(source ?? gated(rasterRows(src, codec, simd), opts.awaitRow), tx, ty, a, b, alloc);
+    if (!source && fused) source = resampleStream(reducedRows(src, codec, tx, simd!, rowAt), null, ty, a, b, alloc);
+    else source = resampleStream(source ?? rasterRows(src, codec, simd, rowAt), tx, ty, a, b, alloc);
   }
   const final = source!;
   const line = alloc(dstW * channels);

@@ -24,7 +24,7 @@ export interface SpoolableSource {
    * Decodes into the file `path` (its name must end in `.v`, libvips' uncompressed format), as
    * decodeImage would (upright, sRGB, 8 or 16 bits) but row by row as libvips decodes them, so a
    * reader can start on the top rows while the bottom ones are still being decoded
-   * (src/render/feed.ts). Settles when the last row is written; rejects with decodeImage's
+   * (src/render/spool-rows.ts). Settles when the last row is written; rejects with decodeImage's
    * errors (ERR_SOURCE_CORRUPT, ERR_LIMIT_DECODE_TIMEOUT, ...), or SpoolWriteError.
    */
   write(path: string): Promise<void>;

@@ -4,11 +4,11 @@ import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Piscina } from 'piscina';
 import type { PixelRaster, Plan } from '../core/types.js';
 import { type ErrorCode, FoldwiseError } from '../errors.js';
-import type { ResampleTask, SharedRaster } from '../worker.js';
+import type { ResampleTask, SharedRaster, SpooledRaster } from '../worker.js';
 import { Admission } from './admission.js';
 import { StagingBuffers } from './staging.js';
 import { SpoolWriteError } from '../media/spool-decode.js';
-import { feedFromSpool, type FeedShape } from './feed.js';
+import { FILE_WRONG, READ_FAILED, type SpoolShape, STOPPED, WRITING, WRITTEN } from './spool-rows.js';
 import { SpoolDir } from './spool.js';
 
 export interface RenderPoolOptions {
@@ -38,6 +38,12 @@ const tsxLoader = fromSource ? pathToFileURL(createRequire(import.meta.url).reso
 // Below this many output pixels one worker does the whole rendition: a split would cost more
 // in hand-off than it saves (common practice; revisit with load/ measurements).
 const SPLIT_MIN_PIXELS = 512 * 512;
+
+// A spooled render splits its output only when it shrinks the source's area by less than this:
+// 12 MP -> 800 px keeps pace with the decode in one worker, and measured no slower than with
+// two bands (1.30-1.37x against 1.37-1.55x sharp's decode-only time, three runs each), since a
+// second busy worker slows the decode it overlaps.
+const STREAM_SPLIT_SHRINK = 4;
 
 // Idle source buffers kept for reuse are at most this big each (a 16 MP RGBA source); larger
 // sources get a fresh buffer (staging.ts).
@@ -133,46 +139,53 @@ export class RenderPool {
 
   /**
    * Resamples a source that a decoder is still writing to the spool file at `path`
-   * (src/media/spool-decode.ts, whose `written` is passed here): the rows are
-   * read into shared memory as they appear (feed.ts) and the workers start on the top of the
-   * image while the rest is decoded, so most of the resampling overlaps the decode. The
-   * decode's own error (ERR_SOURCE_CORRUPT, ...) wins over the render's.
+   * (src/media/spool-decode.ts, whose `written` is passed here): the workers read the rows
+   * from the file as they appear (spool-rows.ts) and start on the top of the image while the
+   * rest is decoded, so most of the resampling overlaps the decode, and no copy of the whole
+   * source is made. The decode's own error (ERR_SOURCE_CORRUPT, ...) wins over the render's;
+   * a spool file that cannot be read back, or is not what was written, gives SpoolWriteError
+   * (the caller then decodes in memory).
    */
-  async resampleSpooled(path: string, shape: FeedShape & { channels: 1 | 3 }, written: Promise<void>, plan: Plan, signal?: AbortSignal): Promise<PixelRaster> {
+  async resampleSpooled(path: string, shape: SpoolShape & { channels: 1 | 3 }, written: Promise<void>, plan: Plan, signal?: AbortSignal): Promise<PixelRaster> {
     if (this.closing) throw this.stopping();
-    const buffer = this.staging.take(shape.width * shape.height * shape.channels * (shape.depth / 8));
-    const feed = feedFromSpool(path, shape, buffer, written);
+    const state = new Int32Array(new SharedArrayBuffer(4));
+    const settle = (to: number) => {
+      if (Atomics.compareExchange(state, 0, WRITING, to) === WRITING) Atomics.notify(state, 0);
+    };
     let decodeFailure: unknown;
-    written.catch((e: unknown) => (decodeFailure = e ?? new Error('the decode failed')));
-    // The feed's own failure (the file could not be opened or read), not one it was told of.
-    let stopped = false;
-    let readFailure: unknown;
-    feed.done.catch((e: unknown) => (readFailure = stopped ? undefined : e));
+    written.then(
+      () => settle(WRITTEN),
+      (e: unknown) => {
+        decodeFailure = e ?? new Error('the decode failed');
+        settle(STOPPED);
+      },
+    );
     const stop = () => {
-      stopped = true;
-      feed.stop();
+      Atomics.store(state, 0, STOPPED);
+      Atomics.notify(state, 0);
     };
     const { width, height, channels, depth } = shape;
-    const shared: SharedRaster = { buffer, width, height, channels, depth };
+    const src: SpooledRaster = { path, width, height, channels, depth, state: state.buffer as SharedArrayBuffer };
     signal?.addEventListener('abort', stop, { once: true });
-    const bands = this.runBands(shared, plan, signal, feed.progress);
+    const bands = this.runBands(src, plan, signal);
     try {
       // The decode must end cleanly too: one that fails after writing its last row (a broken
       // trailer, a write error) is not rendered and cached.
-      const [out] = await Promise.all([bands, feed.done, written]);
-      this.staging.give(buffer);
+      const [out] = await Promise.all([bands, written]);
       return out;
     } catch (e) {
       stop();
-      // The band tasks give up at once on a stopped feed (worker.ts), but one still queued
-      // behind busy workers would outlive this render and its admission permit in piscina's
-      // bounded queue: wait for them.
+      // The band tasks give up at once once stopped, but one still queued behind busy workers
+      // would outlive this render and its admission permit in piscina's bounded queue.
       await bands.catch(() => undefined);
-      // A failed decode fails the feed and then the workers: report the decode's error.
+      // A failed decode stops the workers: report the decode's error.
       if (decodeFailure !== undefined) throw decodeFailure;
-      const refused = e instanceof FoldwiseError && e.code !== 'ERR_RENDER_FAILED';
-      // A spool file that cannot be read says nothing of the source: the caller decodes in memory.
-      if (readFailure !== undefined && !refused) throw new SpoolWriteError(`the spool file ${path} could not be read`, { cause: readFailure });
+      const cause = e instanceof FoldwiseError ? e.cause : e;
+      const message = cause instanceof Error ? cause.message : '';
+      // A spool file that cannot be read, or is not what was written, says nothing of the source.
+      if (!(e instanceof FoldwiseError && e.code !== 'ERR_RENDER_FAILED') && (message.includes(READ_FAILED) || message.includes(FILE_WRONG))) {
+        throw new SpoolWriteError(`the spool file ${path} could not be read back`, { cause });
+      }
       throw e instanceof FoldwiseError ? e : new FoldwiseError('ERR_RENDER_FAILED', 'resampling failed', { cause: e });
     } finally {
       signal?.removeEventListener('abort', stop);
@@ -180,15 +193,20 @@ export class RenderPool {
   }
 
   /** Runs the plan's bands of output rows over a shared source; the output raster. */
-  private async runBands(shared: SharedRaster, plan: Plan, signal?: AbortSignal, progress?: SharedArrayBuffer): Promise<PixelRaster> {
+  private async runBands(shared: SharedRaster | SpooledRaster, plan: Plan, signal?: AbortSignal): Promise<PixelRaster> {
     const out = new SharedArrayBuffer(plan.targetWidth * plan.targetHeight * shared.channels * (shared.depth / 8));
     const h = plan.targetHeight;
-    const split = this.threads > 1 && plan.targetWidth * h >= SPLIT_MIN_PIXELS;
+    const pixels = plan.targetWidth * h;
+    // A source still arriving paces the resample: one worker keeps up with the decode unless
+    // the output is large (little shrinking, no pyramid), and the other stays free for the
+    // next render instead of waiting on rows.
+    const paced = 'path' in shared && pixels * STREAM_SPLIT_SHRINK < shared.width * shared.height;
+    const split = this.threads > 1 && pixels >= SPLIT_MIN_PIXELS && !paced;
     const bands: [number, number][] = split ? [[0, h >> 1], [h >> 1, h]] : [[0, h]];
     try {
       // Every band settles before the render does, failed or not: a band still queued or running
       // would otherwise outlive the render's admission permit in piscina's bounded queue.
-      const settled = await Promise.allSettled(bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out, progress }, { signal })));
+      const settled = await Promise.allSettled(bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out }, { signal })));
       const failed = settled.find((r) => r.status === 'rejected');
       if (failed) throw failed.reason;
     } catch (e) {

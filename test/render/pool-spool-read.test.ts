@@ -25,7 +25,7 @@ describe('RenderPool.resampleSpooled when the spool file cannot be read back', (
       const writing = new Promise<void>(() => undefined);
       const failure = await pool.resampleSpooled(path, shape, writing, plan).catch((e: unknown) => e);
       expect(failure).toBeInstanceOf(SpoolWriteError);
-      expect((failure as Error).cause).toMatchObject({ code: 'ELOOP' });
+      expect(String((failure as Error).cause)).toMatch(/ELOOP/);
     } finally {
       await pool.spool!.remove(path);
     }
