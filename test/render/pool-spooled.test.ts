@@ -96,6 +96,16 @@ describe('RenderPool.resampleSpooled (resample while libvips decodes)', () => {
     expect(bytes(spooled).equals(bytes(direct))).toBe(true);
   });
 
+  it('shrunk 4x or more (one band spooled, two in memory): the same bytes', async () => {
+    // 1400x1100 -> 560x600: spooled, one worker keeps pace with the decode; in memory the
+    // output is big enough for two bands. Noise, losslessly: every rounding shows.
+    const raw = Buffer.alloc(1400 * 1100 * 3);
+    for (let i = 0, s = 7; i < raw.length; i++) raw[i] = (s = (Math.imul(s, 1664525) + 1013904223) >>> 0) >>> 24;
+    const input = await sharp(raw, { raw: { width: 1400, height: 1100, channels: 3 } }).png({ compressionLevel: 1 }).toBuffer();
+    const [spooled, direct] = await both(input, (w, h) => plan(w, h, 560, 600));
+    expect(bytes(spooled).equals(bytes(direct))).toBe(true);
+  });
+
   it("a truncated JPEG rejects with the decode's own code, and the pool renders on afterwards", async () => {
     const whole = await source('jpeg', 320, 240, 3, 8);
     const cut = whole.subarray(0, Math.floor(whole.length * 0.6));

@@ -13,10 +13,12 @@ export interface RowSource {
 const SLACK = 64;
 
 /**
- * Buffer layout of a stream: which axis goes first (the cheaper order), the window's row
- * length and capacity in rows, and the float counts of its buffers [window, line, mixed].
- * Cost counts multiply-adds: a horizontal tap costs one per sample in the scalar loops but
- * one f32x4 per pixel in the SIMD ones, where a vertical tap costs a quarter per sample.
+ * Buffer layout of a stream of output rows [o0, o1): which axis goes first (the cheaper order),
+ * the window's row length and capacity in rows, and the float counts of its buffers
+ * [window, line, mixed]. Cost counts multiply-adds: a horizontal tap costs one per sample in
+ * the scalar loops but one f32x4 per pixel in the SIMD ones, where a vertical tap costs a
+ * quarter per sample. The order is costed over all of ty's output rows, not the band: the two
+ * orders round differently, and a band must give exactly the same rows as the whole.
  */
 export function streamLayout(
   sourceWidth: number, lanes: number, tx: WeightTable | null, ty: WeightTable, o0: number, o1: number, simd: boolean,
@@ -24,10 +26,11 @@ export function streamLayout(
   const dstW = tx ? tx.dstLen : sourceWidth;
   const taps = tx ? tx.taps : 0;
   const rows = o1 > o0 ? ty.start[o1 - 1] + ty.taps - ty.start[o0] : 0;
-  const outRows = o1 - o0;
+  const outRows = ty.dstLen;
+  const inRows = outRows > 0 ? ty.start[outRows - 1] + ty.taps - ty.start[0] : 0;
   const h = simd ? 1 : lanes;
   const v = simd ? lanes / 4 : lanes;
-  const hFirstCost = rows * dstW * taps * h + outRows * dstW * ty.taps * v;
+  const hFirstCost = inRows * dstW * taps * h + outRows * dstW * ty.taps * v;
   const vFirstCost = outRows * sourceWidth * ty.taps * v + outRows * dstW * taps * h;
   // With no x table (the source already has the output width) the rows go straight to the window.
   const hFirst = tx !== null && hFirstCost <= vFirstCost;
@@ -42,8 +45,9 @@ export function streamLayout(
  * already have the output width) and ty (rows), itself a
  * RowSource of output rows [o0, o1), read in non-decreasing order. A sliding window holds only
  * the input rows the current output row needs plus some slack, so no full float copy of the
- * input ever exists and every input row is produced once. The cheaper axis order is taken,
- * which is the more-shrinking axis first: horizontal first filters each input row down to the
+ * input ever exists and every input row is produced once. The cheaper axis order for all of
+ * ty's rows is taken (whatever the band, so a band has the whole's bytes), which is the
+ * more-shrinking axis first: horizontal first filters each input row down to the
  * output width as it enters the window; vertical first combines full-width rows, then filters
  * the one combined row. Not in place; allocates only when built.
  */

@@ -171,9 +171,8 @@ describe('renderRaster with rowAt (rows found elsewhere)', () => {
         const band = oneRowAtATime(src);
         const h = plan.targetHeight;
         const part = renderRaster(empty, plan, { rows: [h >> 1, h], rowAt: band.rowAt });
-        // Against the same band from the raster's own samples: the scalar loops may pick another
-        // axis order for a band than for the whole, which can move a 16-bit code by one.
-        expect(bytes(part).equals(bytes(renderRaster(src, plan, { rows: [h >> 1, h] })))).toBe(true);
+        const n = plan.targetWidth * channels;
+        expect(bytes(part).equals(bytes({ ...ref, data: ref.data.subarray((h >> 1) * n) }))).toBe(true);
         expect(band.asked[0]).toBeGreaterThan(0);
       }
     });
