@@ -200,7 +200,7 @@ export class RenderPool {
     // A source still arriving paces the resample: one worker keeps up with the decode unless
     // the output is large (little shrinking, no pyramid), and the other stays free for the
     // next render instead of waiting on rows.
-    const paced = 'path' in shared && pixels * STREAM_SPLIT_SHRINK < shared.width * shared.height;
+    const paced = 'path' in shared && pixels * STREAM_SPLIT_SHRINK <= shared.width * shared.height;
     const split = this.threads > 1 && pixels >= SPLIT_MIN_PIXELS && !paced;
     const bands: [number, number][] = split ? [[0, h >> 1], [h >> 1, h]] : [[0, h]];
     try {

@@ -106,6 +106,28 @@ describe('RenderPool.resampleSpooled (resample while libvips decodes)', () => {
     expect(bytes(spooled).equals(bytes(direct))).toBe(true);
   });
 
+  it('a render that shrinks the area exactly 4x takes one worker, and the other renders meanwhile', async () => {
+    const shape = { width: 1024, height: 1024, channels: 3 as const, depth: 8 as const };
+    const raster = { data: new Uint8Array(1024 * 1024 * 3).map((_, i) => (i * 29) >> 5), ...shape };
+    const theirs = plan(1024, 1024, 512, 512);
+    const path = pool.spool!.path();
+    let finish!: () => void;
+    const written = new Promise<void>((resolve) => (finish = resolve));
+    // Turns a deadlock (two bands waiting for rows that come only after the next render) into a failure.
+    const render = pool.resampleSpooled(path, shape, written, theirs, AbortSignal.timeout(20_000));
+    render.catch(() => undefined);
+    try {
+      const small = { data: new Uint8Array(64 * 48 * 3).fill(77), width: 64, height: 48, channels: 3 as const };
+      const meanwhile = await pool.resample(small, plan(64, 48, 32, 24));
+      await sharp(raster.data, { raw: { width: 1024, height: 1024, channels: 3 } }).toFile(path);
+      finish();
+      expect(meanwhile.data.every((v) => v === 77)).toBe(true);
+      expect(bytes(await render).equals(bytes(await pool.resample(raster, theirs)))).toBe(true);
+    } finally {
+      await pool.spool!.remove(path);
+    }
+  }, 30_000);
+
   it("a truncated JPEG rejects with the decode's own code, and the pool renders on afterwards", async () => {
     const whole = await source('jpeg', 320, 240, 3, 8);
     const cut = whole.subarray(0, Math.floor(whole.length * 0.6));
