@@ -13,7 +13,6 @@ import { SpoolRows } from './render/spool-rows.js';
 // Compile and instantiate the SIMD kernels when the thread starts, not in its first render.
 simdKernels();
 
-
 /** A raster whose samples live in a SharedArrayBuffer. */
 export interface SharedRaster {
   buffer: SharedArrayBuffer;
