@@ -80,12 +80,6 @@ interface Resampled {
   deadline: AbortSignal;
 }
 
-/**
- * The pixel-holding stages (read, decode, plan, resample), under one admission permit:
- * overlapped where they can be (streamed.ts), else one after the other. The
- * decoded source lives only in this frame, so once it returns nothing references the source's
- * pixels and the permit can go to the next render while this one encodes.
- */
 /** The caller's decoded source when it is the version at `path`, else the source read and decoded now (or null: streamed). */
 async function decodedSource(ctx: RenditionContextInternal, path: string, q: RenditionQuery): Promise<LoadedSource | Resampled> {
   const given = ctx.decoded;
@@ -96,6 +90,12 @@ async function decodedSource(ctx: RenditionContextInternal, path: string, q: Ren
   return decodeSource(read, ctx.limits, ctx.clock);
 }
 
+/**
+ * The pixel-holding stages (read, decode, plan, resample), under one admission permit:
+ * overlapped where they can be (streamed.ts), else one after the other. The
+ * decoded source lives only in this frame, so once it returns nothing references the source's
+ * pixels and the permit can go to the next render while this one encodes.
+ */
 async function resampleSource(ctx: RenditionContextInternal, path: string, q: RenditionQuery): Promise<Resampled> {
   const source = await decodedSource(ctx, path, q);
   if ('raster' in source) return source;
