@@ -11,29 +11,13 @@ export interface RenderOptions {
   /** Render only output rows [start, end); the result is then end - start rows high. */
   rows?: [number, number];
   /**
-   * For a source whose rows are still arriving (a decoder writing them in order): called with
-   * a row's index before that row of `src.data` is read, and returns once the row is there.
-   * Rows are asked in non-decreasing order, each at most once per pass, and only those the
-   * render needs (a band skips the rows above it). With alpha, the last row is asked first,
-   * since the opacity check reads every row. Without it the whole of `src.data` must be filled.
-   */
-  awaitRow?: (y: number) => void;
-  /**
    * Where each source row is, instead of `src.data` (whose length is then not checked, and
    * may be 0): for rows read from elsewhere as they are needed, such as a file a decoder is
-   * still writing. Asked in non-decreasing order, each row at most once, only those needed;
-   * a span need stay valid only until the next call. Sources with alpha are refused with it,
-   * since their opacity check would read every row first.
+   * still writing. Asked in non-decreasing order, each row at most once, only those needed (a
+   * band skips the rows above it); a span need stay valid only until the next call. Sources
+   * with alpha are refused with it, since their opacity check would read every row first.
    */
   rowAt?: RowAt;
-}
-
-/** Where the render finds its source rows: rowAt, or the raster's samples once awaitRow says they arrived. */
-function locator(src: PixelRaster, opts: RenderOptions): RowAt {
-  if (opts.rowAt) return opts.rowAt;
-  const own = ownRows(src);
-  const wait = opts.awaitRow;
-  return wait ? (y) => (wait(y), own(y)) : own;
 }
 
 function isOpaque(data: Uint8Array | Uint16Array, channels: number, max: number): boolean {
@@ -122,9 +106,8 @@ export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions =
   const max = deep ? 65535 : 255;
   const hasAlpha = channels === 2 || channels === 4;
   if (hasAlpha && opts.rowAt) throw new RangeError('rowAt serves sources without alpha');
-  if (hasAlpha && src.height > 0) opts.awaitRow?.(src.height - 1);
   const codec = rowCodec(deep, channels, plan.light === 'linear', hasAlpha && !isOpaque(data, channels, max));
-  const rowAt = locator(src, opts);
+  const rowAt = opts.rowAt ?? ownRows(src);
   const dstW = plan.targetWidth;
   const out = deep ? new Uint16Array(dstW * (r1 - r0) * channels) : new Uint8Array(dstW * (r1 - r0) * channels);
   const ty = planTable(plan, 'y');
