@@ -20,8 +20,8 @@ describe('MemoryTier', () => {
     await m.set('k3', entry(1000, 3));
     expect(m.bytes).toBeLessThanOrEqual(one * 3);
     expect(await m.get('k1')).toBeUndefined(); // LRU order: common practice (lru-cache docs)
-    expect(await m.get('k0')).toBeDefined();
-    expect(await m.get('k3')).toBeDefined();
+    expect((await m.get('k0'))?.body[0]).toBe(0);
+    expect((await m.get('k3'))?.body[0]).toBe(3);
   });
 
   it('does not keep an entry larger than the whole budget', async () => {

@@ -115,7 +115,7 @@ describe.skipIf(!redisBinary)('RedisFlight across two replicas', () => {
     const pa = a.flight.run('r5', a.work('r5', async () => { await gate.promise; return made('x'); }));
     await leading;
     const token = await raw.get('lock-test:lock:r5');
-    expect(token).toBeTruthy();
+    expect(token).toMatch(/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/); // randomUUID
     await raw.set('lock-test:lock:r5', 'intruder', 'PX', 30_000); // lock lost and re-taken
     gate.resolve();
     await pa;

@@ -17,7 +17,7 @@ describe('TieredCache', () => {
     const cache = new TieredCache([l1, l2]);
     await l2.set('k', entry(10));
     expect((await cache.get('k'))?.tier).toBe('memory');
-    expect(await l1.get('k')).toBeDefined(); // promoted
+    expect((await l1.get('k'))?.etag).toBe('"e-10-1"'); // promoted
     expect(await cache.get('nope')).toBeUndefined();
   });
 
@@ -27,8 +27,8 @@ describe('TieredCache', () => {
     const stored: number[] = [];
     await new TieredCache([l1, l2], undefined, (_tier, bytes) => stored.push(bytes)).set('k', entry(10));
     expect(stored).toEqual([10, 10]);
-    expect(await l1.get('k')).toBeDefined();
-    expect(await l2.get('k')).toBeDefined();
+    expect((await l1.get('k'))?.body.length).toBe(10);
+    expect((await l2.get('k'))?.body.length).toBe(10);
   });
 
   it('reports a failing tier and carries on as a miss', async () => {

@@ -17,7 +17,7 @@ describe('operational endpoints', () => {
     const res = await t.app.inject({ url: '/healthz' });
     expect(res.statusCode).toBe(200);
     expect(res.json()).toEqual({ status: 'ok' });
-    expect(res.headers['x-request-id']).toBeTruthy();
+    expect(res.headers['x-request-id']).toMatch(/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/); // none sent: a fresh UUID
   });
 
   it('/readyz reports its checks', async () => {
@@ -76,14 +76,14 @@ describe('operational endpoints', () => {
     const op = doc.paths['/v1/renditions/{source}'].get;
     const params = Object.fromEntries(op.parameters.map((p: { name: string }) => [p.name, p]));
     for (const name of ['source', 'width', 'height', 'density', 'fit', 'position', 'format', 'quality', 'background', 'kernel', 'prefilter', 'light', 'signature']) {
-      expect(params[name], name).toBeDefined();
+      expect(params[name]?.in, name).toBe(name === 'source' ? 'path' : 'query');
     }
     // Limits come from config, enums from the core's kernel table.
     expect(params.width.schema).toMatchObject({ type: 'integer', minimum: 1, maximum: t.config.limits.maxDimension });
     expect(params.fit.schema.enum).toEqual(['contain', 'cover', 'fill', 'scale-down']);
     expect(params.kernel.schema.enum).toContain('lanczos3');
-    expect(op.responses['400'].content['application/problem+json']).toBeDefined();
-    for (const path of ['/v1/sources', '/healthz', '/readyz', '/metrics', '/docs/errors']) expect(doc.paths[path], path).toBeDefined();
+    expect(op.responses['400'].content['application/problem+json'].schema).toEqual({ $ref: '#/components/schemas/Problem' });
+    for (const path of ['/v1/sources', '/healthz', '/readyz', '/metrics', '/docs/errors']) expect(Object.keys(doc.paths[path] ?? {}), path).toContain('get');
     expect(doc.components.schemas.Problem.properties.code.enum).toContain('ERR_PARAM_UNKNOWN');
   });
 

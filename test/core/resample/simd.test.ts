@@ -23,7 +23,7 @@ afterAll(() => setSimdEnabled(true));
 
 describe('SIMD kernels against the scalar loops (the reference)', () => {
   it('are available on this engine (Node 20 has WebAssembly SIMD)', () => {
-    expect(simdKernels()).not.toBeNull();
+    expect(typeof simdKernels()?.across).toBe('function');
   });
 
   const cases: Array<[Channels, boolean, number, number, string]> = [
