@@ -146,7 +146,7 @@ export type Limits = Config['limits'];
 type Json = Record<string, unknown>;
 
 /** Where each environment variable lands in the configuration. */
-const envMap: Record<string, { path: string[]; parse: (v: string) => unknown }> = {
+export const envMap: Record<string, { path: string[]; parse: (v: string) => unknown }> = {
   HOST: { path: ['server', 'host'], parse: (v) => v },
   PORT: { path: ['server', 'port'], parse: (v) => (/^\d+$/.test(v) ? Number(v) : v) },
   FOLDWISE_SOURCE_DIR: { path: ['origin', 'sourceDir'], parse: (v) => v },
