@@ -1,13 +1,37 @@
-import { defineConfig } from 'vitest/config';
+import { configDefaults, defineConfig } from 'vitest/config';
+
+/**
+ * The unit project: the core and the modules that run in the test's own thread. A file belongs
+ * here only if it builds no app (no Fastify), starts no worker thread, child process or
+ * listening socket, and needs neither Redis nor a browser. Everything else, and any new file
+ * not listed here, runs in the service project; `npm test` runs both.
+ */
+const unit = [
+  'test/core/**/*.test.ts',
+  'test/config.test.ts',
+  'test/cache/{breaker,disk,memory,pack,single-flight,tiered}.test.ts',
+  'test/demo/demo.test.ts',
+  'test/docs/readme.test.ts',
+  'test/ingest/{jobs,ladder,store,warnings}.test.ts',
+  'test/inspect/zoom.test.ts',
+  'test/media/{decode,decode-layouts,decode-refusals,encode,negotiate,spool-parity}.test.ts',
+  'test/origins/{address-guard,folder}.test.ts',
+  'test/render/{admission,identity,key,spool-rows,timings}.test.ts',
+  'test/security/signing.test.ts',
+];
 
 export default defineConfig({
   test: {
-    include: ['test/**/*.test.ts'],
+    // Inherited by both projects (extends: true): environment and timeouts.
     environment: 'node',
     testTimeout: 60_000,
     hookTimeout: 60_000,
-    // Two cores on CI: more parallel files only fight over them.
+    // Two cores on CI: more parallel files only fight over them (a run-wide setting).
     maxWorkers: 2,
     reporters: ['default'],
+    projects: [
+      { extends: true, test: { name: 'unit', include: unit } },
+      { extends: true, test: { name: 'service', include: ['test/**/*.test.ts'], exclude: [...configDefaults.exclude, ...unit] } },
+    ],
   },
 });
