@@ -10,7 +10,6 @@ const unit = [
   'test/core/**/*.test.ts',
   'test/config.test.ts',
   'test/cache/{breaker,disk,memory,pack,single-flight,tiered}.test.ts',
-  'test/demo/demo.test.ts',
   'test/docs/readme.test.ts',
   'test/ingest/{jobs,ladder,store,warnings}.test.ts',
   'test/inspect/zoom.test.ts',
