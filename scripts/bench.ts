@@ -126,7 +126,7 @@ if (!flags['service-only']) {
   console.log('  target: 12 MP -> 800 px streamed <= 1.30x; next column: the same run divided by sharp decoding into the spool file alone');
   console.log('decode then resample = sharp decode to raw in memory, then our resample (in this thread, or staged in shared memory for the pool), then the encode;');
   console.log('  the path for sources with alpha and for the first rendition of a source whose spectrum prefilter=auto needs');
-  console.log('service JPEG encoder = src/media/encode.ts (progressive, sRGB profile attached), what a rendition request returns');
+  console.log('service JPEG encoder = src/media/encode.ts (baseline, Huffman tables fitted to the picture, sRGB profile attached), what a rendition request returns');
   const simd = simdKernels();
   console.log(simd
     ? `working memory of the resample (SIMD arena, largest job): ${(simd.memory.buffer.byteLength / 2 ** 20).toFixed(1)} MiB against ${(4000 * 3000 * 3 / 2 ** 20).toFixed(1)} MiB of decoded 12 MP pixels`
