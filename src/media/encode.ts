@@ -70,10 +70,11 @@ export async function encodeImage(raster: PixelRaster, opts: EncodeOptions): Pro
       if (alpha) img = img.flatten({ background: { r: background.r, g: background.g, b: background.b } });
       // 4:4:4 at high quality keeps fine coloured threads; 4:2:0 below (common practice).
       // Baseline with Huffman tables fitted to the picture, the libjpeg quantisation tables and
-      // no trellis, chosen with `npx tsx scripts/encode-jpeg.ts` (800 px demo renditions,
-      // bytes at equal SSIM): against progressive it took 0.56-0.58x the CPU for 0.8-1.6 %
-      // fewer bytes; trellis or progressive with optimised scans saved 2-10 % more bytes for
-      // 2.4-6x the CPU, and the standard tables cost 3-12 % more bytes.
+      // no trellis, chosen with `npx tsx scripts/encode-jpeg.ts` (four 800 px demo renditions,
+      // bytes at equal SSIM): against progressive it took 0.56-0.60x the encoder CPU, for 1.6 %
+      // fewer to 3.7 % more bytes. Progressive with optimised scans saved 1.5-4 % for 2-3x the
+      // CPU, trellis quantisation at most 4 % for about 3x; the standard Huffman tables cost
+      // 3-12 % more bytes than fitted ones. A miss pays the encoder in full, so the cheap one.
       return img
         .withIccProfile('srgb')
         .jpeg({ quality, progressive: false, optimiseCoding: true, chromaSubsampling: quality! >= 90 ? '4:4:4' : '4:2:0' })
