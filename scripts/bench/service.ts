@@ -27,9 +27,10 @@ const pictures: Array<[string, number, number, number]> = [
 ];
 
 interface Server { url: string; stop(): Promise<void> }
+interface Started { match: RegExpExecArray; stop(): Promise<void> }
 
-/** Starts `args` (node flags and script) and resolves once stdout shows `ready`. */
-async function startServer(args: string[], env: Record<string, string>, ready: RegExp): Promise<Server & { match: RegExpExecArray }> {
+/** Starts `node <args>` and resolves, with the match, once its stdout matches `ready`. */
+async function startServer(args: string[], env: Record<string, string>, ready: RegExp): Promise<Started> {
   const child = spawn(process.execPath, args, { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'inherit'] });
   const match = await new Promise<RegExpExecArray>((resolve, reject) => {
     let out = '';
@@ -47,7 +48,7 @@ async function startServer(args: string[], env: Record<string, string>, ready: R
     child.kill('SIGTERM');
     await exited;
   };
-  return { url: '', stop, match };
+  return { match, stop };
 }
 
 /** The service as `npm start` runs it, on a port it picks, with a fresh cache folder. */
@@ -73,7 +74,7 @@ async function timedGet(url: string): Promise<number> {
 
 const rendition = (name: string, width: number) => `/v1/renditions/${name}?width=${width}&format=jpeg`;
 
-/** The table's rows: label, the picture whose decode is the reference, and the per-run ratios. */
+/** Runs the through-HTTP measurements `runs` times and returns their tables as text. */
 export async function serviceBenchTable(runs: number, seconds: number): Promise<string> {
   const sourceDir = mkdtempSync(join(tmpdir(), 'foldwise-bench-sources-'));
   for (const [name, w, h, seed] of pictures) writeFileSync(join(sourceDir, name), await benchJpeg(w, h, seed));
