@@ -11,10 +11,12 @@
 FROM node:20-bookworm-slim AS build
 WORKDIR /app
 COPY package.json package-lock.json ./
-RUN npm ci --no-audit --no-fund
+# --ignore-scripts: the project's `prepare` (the CLI bundle) needs src/, which is not here yet,
+# and the image's CLI runs tsc's dist/ anyway; esbuild's own install script then runs alone.
+RUN npm ci --no-audit --no-fund --ignore-scripts && npm rebuild esbuild
 COPY tsconfig.json tsconfig.build.json ./
 COPY src ./src
-RUN npm run build && npm prune --omit=dev --no-audit --no-fund
+RUN npm run build && npm prune --omit=dev --no-audit --no-fund --ignore-scripts
 
 FROM node:20-bookworm-slim AS runtime
 ENV NODE_ENV=production \

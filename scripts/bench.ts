@@ -2,6 +2,7 @@
  * `npm run bench`: the rendition pipeline's cost as ratios against the reference library's
  * decode-only time of the same JPEG, all measured in this run (medians).
  */
+import { parseArgs } from 'node:util';
 import sharp from 'sharp';
 import { makePlan, renderRaster } from '../src/core/index.js';
 import type { PixelRaster } from '../src/core/types.js';
@@ -14,6 +15,17 @@ import { timeRuns, type Timing } from './bench/timing.js';
 import { probeSpooledDecode } from '../src/media/spool-decode.js';
 
 const RUNS = Number(process.env.BENCH_RUNS ?? 7);
+// The through-HTTP section (scripts/bench/service.ts): `npm run bench -- --service-runs 5
+// --service-seconds 10`; `--service-only` skips the in-process sections.
+const { values: flags } = parseArgs({
+  options: {
+    'service-runs': { type: 'string', default: '5' },
+    'service-seconds': { type: 'string', default: '10' },
+    'service-only': { type: 'boolean', default: false },
+  },
+});
+const serviceRuns = Math.min(20, Math.max(1, Number(flags['service-runs'])));
+const serviceSeconds = Math.min(30, Math.max(1, Number(flags['service-seconds'])));
 
 /** Median wall and process CPU time of RUNS calls after a warm-up (scripts/bench/timing.ts). */
 const median = (fn: () => Promise<unknown>): Promise<Timing> => timeRuns(RUNS, fn);
@@ -73,53 +85,60 @@ const jobs: Array<[string, number, number, number, number]> = [
   ['upscale 400 -> 1200 px', 400, 300, 1200, 900],
 ];
 
-console.log(`median of ${RUNS} runs; ratios are against sharp's decode-only time of the same JPEG;`);
-console.log('wall-time ratio first, CPU-time ratio (all threads of the process) in brackets\n');
-const table: string[][] = [];
-for (const [label, sw, sh, tw, th] of jobs) {
-  const jpeg = await benchJpeg(sw, sh, 42);
-  const decode = await median(() => decodeRaw(jpeg));
-  const raw = await decodeRaw(jpeg);
-  const resample = await median(async () => ourResample(raw, tw, th));
-  const pipeline = await median(() => ourPipeline(jpeg, tw, th, 'in-process'));
-  const pipeline2 = await median(() => ourPipeline(jpeg, tw, th, 'pool'));
-  const service = await median(() => ourPipeline(jpeg, tw, th, 'pool', 'service'));
-  const streamed = await median(() => streamedPipeline(jpeg, tw, th));
-  const streamedService = await median(() => streamedPipeline(jpeg, tw, th, 'service'));
-  const spooled = await median(() => spoolDecode(jpeg));
-  const sharpDefault = await median(() => sharp(jpeg).resize(tw, th).jpeg({ quality: 82 }).toBuffer());
-  const sharpLinear = await median(() => sharp(jpeg).pipelineColourspace('scrgb').resize(tw, th).toColourspace('srgb').jpeg({ quality: 82 }).toBuffer());
-  // Wall-time ratio (the target), and in brackets the CPU-time ratio, which a busy machine
-  // disturbs less (CPU time adds up every thread, so it does not show the 2-thread speed-up).
-  const r = (t: Timing) => `${(t.wall / decode.wall).toFixed(2)}x (cpu ${(t.cpu / decode.cpu).toFixed(2)}x)`;
-  table.push([
-    label, `${decode.wall.toFixed(1)} ms (cpu ${decode.cpu.toFixed(1)} ms)`, r(streamed),
-    `${(streamed.wall / spooled.wall).toFixed(2)}x (decode-only there ${(spooled.wall / decode.wall).toFixed(2)}x)`, r(streamedService),
-    r(pipeline), r(pipeline2), r(service), r(resample), r(sharpDefault), r(sharpLinear),
-  ]);
-}
-const head = [
-  'job', 'sharp decode-only', 'foldwise pipeline, streamed (target)', 'same, vs sharp decode-only into a spool file', 'same, service JPEG encoder',
-  'decode then resample, 1 thread', 'decode then resample, pool', 'same, service JPEG encoder', 'ours: resample only, 1 thread',
-  'sharp default resize', 'sharp linear-light resize',
-];
-const widths = head.map((h, i) => Math.max(h.length, ...table.map((t) => t[i].length)));
-const line = (c: string[]) => `| ${c.map((x, i) => x.padEnd(widths[i])).join(' | ')} |`;
-console.log(line(head));
-console.log(`|${widths.map((w) => '-'.repeat(w + 2)).join('|')}|`);
-for (const t of table) console.log(line(t));
-console.log('\nstreamed = what a rendition request runs (src/render/streamed.ts): sharp decodes into a spool file row by row while the');
-console.log('  service pool (src/render/pool.ts, 2 worker threads) resamples the rows already there, then sharp encodes a baseline JPEG (quality 82);');
-console.log('  target: 12 MP -> 800 px streamed <= 1.30x; next column: the same run divided by sharp decoding into the spool file alone');
-console.log('decode then resample = sharp decode to raw in memory, then our resample (in this thread, or staged in shared memory for the pool), then the encode;');
-console.log('  the path for sources with alpha and for the first rendition of a source whose spectrum prefilter=auto needs');
-console.log('service JPEG encoder = src/media/encode.ts (progressive, sRGB profile attached), what a rendition request returns');
-const simd = simdKernels();
-console.log(simd
-  ? `working memory of the resample (SIMD arena, largest job): ${(simd.memory.buffer.byteLength / 2 ** 20).toFixed(1)} MiB against ${(4000 * 3000 * 3 / 2 ** 20).toFixed(1)} MiB of decoded 12 MP pixels`
-  : 'SIMD kernels unavailable: scalar loops measured');
-await pool.close();
+if (!flags['service-only']) {
+  console.log(`median of ${RUNS} runs; ratios are against sharp's decode-only time of the same JPEG;`);
+  console.log('wall-time ratio first, CPU-time ratio (all threads of the process) in brackets\n');
+  const table: string[][] = [];
+  for (const [label, sw, sh, tw, th] of jobs) {
+    const jpeg = await benchJpeg(sw, sh, 42);
+    const decode = await median(() => decodeRaw(jpeg));
+    const raw = await decodeRaw(jpeg);
+    const resample = await median(async () => ourResample(raw, tw, th));
+    const pipeline = await median(() => ourPipeline(jpeg, tw, th, 'in-process'));
+    const pipeline2 = await median(() => ourPipeline(jpeg, tw, th, 'pool'));
+    const service = await median(() => ourPipeline(jpeg, tw, th, 'pool', 'service'));
+    const streamed = await median(() => streamedPipeline(jpeg, tw, th));
+    const streamedService = await median(() => streamedPipeline(jpeg, tw, th, 'service'));
+    const spooled = await median(() => spoolDecode(jpeg));
+    const sharpDefault = await median(() => sharp(jpeg).resize(tw, th).jpeg({ quality: 82 }).toBuffer());
+    const sharpLinear = await median(() => sharp(jpeg).pipelineColourspace('scrgb').resize(tw, th).toColourspace('srgb').jpeg({ quality: 82 }).toBuffer());
+    // Wall-time ratio (the target), and in brackets the CPU-time ratio, which a busy machine
+    // disturbs less (CPU time adds up every thread, so it does not show the 2-thread speed-up).
+    const r = (t: Timing) => `${(t.wall / decode.wall).toFixed(2)}x (cpu ${(t.cpu / decode.cpu).toFixed(2)}x)`;
+    table.push([
+      label, `${decode.wall.toFixed(1)} ms (cpu ${decode.cpu.toFixed(1)} ms)`, r(streamed),
+      `${(streamed.wall / spooled.wall).toFixed(2)}x (decode-only there ${(spooled.wall / decode.wall).toFixed(2)}x)`, r(streamedService),
+      r(pipeline), r(pipeline2), r(service), r(resample), r(sharpDefault), r(sharpLinear),
+    ]);
+  }
+  const head = [
+    'job', 'sharp decode-only', 'foldwise pipeline, streamed (target)', 'same, vs sharp decode-only into a spool file', 'same, service JPEG encoder',
+    'decode then resample, 1 thread', 'decode then resample, pool', 'same, service JPEG encoder', 'ours: resample only, 1 thread',
+    'sharp default resize', 'sharp linear-light resize',
+  ];
+  const widths = head.map((h, i) => Math.max(h.length, ...table.map((t) => t[i].length)));
+  const line = (c: string[]) => `| ${c.map((x, i) => x.padEnd(widths[i])).join(' | ')} |`;
+  console.log(line(head));
+  console.log(`|${widths.map((w) => '-'.repeat(w + 2)).join('|')}|`);
+  for (const t of table) console.log(line(t));
+  console.log('\nstreamed = what a rendition request runs (src/render/streamed.ts): sharp decodes into a spool file row by row while the');
+  console.log('  service pool (src/render/pool.ts, 2 worker threads) resamples the rows already there, then sharp encodes a baseline JPEG (quality 82);');
+  console.log('  target: 12 MP -> 800 px streamed <= 1.30x; next column: the same run divided by sharp decoding into the spool file alone');
+  console.log('decode then resample = sharp decode to raw in memory, then our resample (in this thread, or staged in shared memory for the pool), then the encode;');
+  console.log('  the path for sources with alpha and for the first rendition of a source whose spectrum prefilter=auto needs');
+  console.log('service JPEG encoder = src/media/encode.ts (baseline, Huffman tables fitted to the picture, sRGB profile attached), what a rendition request returns');
+  const simd = simdKernels();
+  console.log(simd
+    ? `working memory of the resample (SIMD arena, largest job): ${(simd.memory.buffer.byteLength / 2 ** 20).toFixed(1)} MiB against ${(4000 * 3000 * 3 / 2 ** 20).toFixed(1)} MiB of decoded 12 MP pixels`
+    : 'SIMD kernels unavailable: scalar loops measured');
+  await pool.close();
 
-// The alias-risk analysis of the same kind of source, as a ratio to the same decode (scripts/bench-risk.ts).
-const { riskBenchTable } = await import('./bench-risk.js');
-console.log(`\n${await riskBenchTable(RUNS)}`);
+  // The alias-risk analysis of the same kind of source, as a ratio to the same decode (scripts/bench-risk.ts).
+  const { riskBenchTable } = await import('./bench-risk.js');
+  console.log(`\n${await riskBenchTable(RUNS)}`);
+} else {
+  await pool.close();
+}
+
+const { serviceBenchTable } = await import('./bench/service.js');
+console.log(`\n${await serviceBenchTable(serviceRuns, serviceSeconds)}`);

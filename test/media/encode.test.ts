@@ -24,6 +24,31 @@ function gradient(width: number, height: number): PixelRaster {
   return { data, width, height, channels: 3 };
 }
 
+/**
+ * The marker codes of a JPEG stream up to the scan, and the 16 code-length counts of its DC
+ * luminance Huffman table (class 0, id 0), from the segment layout of ITU-T T.81 §B.1.1.4/B.2.4.2.
+ */
+function jpegSegments(jpeg: Buffer): { markers: number[]; dcLuminanceCounts: number[] } {
+  const markers: number[] = [];
+  let dcLuminanceCounts: number[] = [];
+  for (let at = 2; at + 4 <= jpeg.length; ) {
+    const marker = jpeg[at + 1];
+    const length = jpeg.readUInt16BE(at + 2);
+    markers.push(marker);
+    if (marker === 0xda) break; // start of scan: entropy-coded data follows
+    if (marker === 0xc4) {
+      // One DHT segment may hold several tables: Tc/Th byte, 16 counts, then the values.
+      for (let t = at + 4; t < at + 2 + length; ) {
+        const counts = Array.from(jpeg.subarray(t + 1, t + 17));
+        if (jpeg[t] === 0x00) dcLuminanceCounts = counts;
+        t += 17 + counts.reduce((a, b) => a + b, 0);
+      }
+    }
+    at += 2 + length;
+  }
+  return { markers, dcLuminanceCounts };
+}
+
 /** The sRGB profile sharp attaches, as the reference for "tagged sRGB". */
 async function sharpSrgbProfile(): Promise<Buffer> {
   const tagged = await sharp(new Uint8Array(3), { raw: { width: 1, height: 1, channels: 3 } }).withIccProfile('srgb').jpeg().toBuffer();
@@ -156,6 +181,20 @@ describe('encodeImage', () => {
       const low = await encodeImage(raster, { format, quality: 10, background: '#fff' });
       const high = await encodeImage(raster, { format, quality: 95, background: '#fff' });
       expect(low.length).toBeLessThan(high.length);
+    }
+  });
+
+  it('writes baseline JPEG with Huffman tables fitted to the picture, 4:2:0 below quality 90 and 4:4:4 from 90', async () => {
+    const raster = gradient(64, 48);
+    for (const [quality, subsampling] of [[82, '4:2:0'], [89, '4:2:0'], [90, '4:4:4']] as const) {
+      const jpeg = await encodeImage(raster, { format: 'jpeg', quality, background: '#fff' });
+      const { markers, dcLuminanceCounts } = jpegSegments(jpeg);
+      // ITU-T T.81 Table B.1: SOF0 (0xC0) is baseline DCT, SOF2 (0xC2) progressive.
+      expect(markers.filter((m) => m >= 0xc0 && m <= 0xcf && m !== 0xc4 && m !== 0xc8 && m !== 0xcc)).toEqual([0xc0]);
+      // T.81 Annex K.3, Table K.3: the typical luminance DC table has these code-length counts
+      // (from memory); optimised coding writes the picture's own, which for this ramp differ.
+      expect(dcLuminanceCounts).not.toEqual([0, 1, 5, 1, 1, 1, 1, 1, 1, 0, 0, 0, 0, 0, 0, 0]);
+      expect((await sharp(jpeg).metadata()).chromaSubsampling).toBe(subsampling);
     }
   });
 

@@ -1,0 +1,142 @@
+/**
+ * `npm run bench`, through HTTP: the service started as `npm start` starts it (a child process,
+ * tsx src/server.ts, 127.0.0.1, a fresh temporary cache folder every run), timed as a user
+ * meets it, each time as a ratio to sharp's decode-only time of the same bytes measured in the
+ * same run; medians over runs. Then renders per second at 4 and 16 connections (every request
+ * a new width, so a render, not a cache hit) against sharp's linear-light resize in a bare
+ * Fastify route (scripts/bench/sharp-route.ts) on the same pictures, in the same run.
+ * Loopback only, bounded in requests and seconds.
+ */
+import { spawn } from 'node:child_process';
+import { once } from 'node:events';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { cannon } from '../../load/lib/cannon.js';
+import { quantile } from '../../load/lib/stats.js';
+import { benchJpeg } from './texture.js';
+import { decodeRaw } from './decode.js';
+import { timeRuns } from './timing.js';
+
+const root = fileURLToPath(new URL('../../', import.meta.url));
+// [name, width, height, seed]: two new 4 MP pictures, 6.4 MP, 14.7 MP (deterministic textures).
+const pictures: Array<[string, number, number, number]> = [
+  ['first-4mp.jpg', 2304, 1728, 11], ['new-4mp.jpg', 2304, 1728, 12],
+  ['new-6mp.jpg', 3200, 2000, 13], ['new-15mp.jpg', 4432, 3324, 14],
+];
+
+interface Server { url: string; stop(): Promise<void> }
+interface Started { match: RegExpExecArray; stop(): Promise<void> }
+
+/** Starts `node <args>` and resolves, with the match, once its stdout matches `ready`. */
+async function startServer(args: string[], env: Record<string, string>, ready: RegExp): Promise<Started> {
+  const child = spawn(process.execPath, args, { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'inherit'] });
+  const match = await new Promise<RegExpExecArray>((resolve, reject) => {
+    let out = '';
+    child.stdout!.on('data', (d: Buffer) => {
+      if (out.length < 1 << 16) out += d.toString();
+      const m = ready.exec(out);
+      if (m) resolve(m);
+    });
+    child.once('exit', (code) => reject(new Error(`${args.join(' ')} exited (${code}) before it was ready:\n${out}`)));
+  });
+  child.stdout!.resume();
+  const stop = async () => {
+    if (child.exitCode !== null || child.signalCode !== null) return;
+    const exited = once(child, 'exit');
+    child.kill('SIGTERM');
+    await exited;
+  };
+  return { match, stop };
+}
+
+/** The service as `npm start` runs it, on a port it picks, with a fresh cache folder. */
+async function startService(sourceDir: string): Promise<Server> {
+  const dir = mkdtempSync(join(tmpdir(), 'foldwise-bench-'));
+  const config = join(dir, 'config.json');
+  // Load shedding on event-loop delay is off: on a busy shared machine a start-up stall of
+  // over a second sheds the very first request, and this measures render cost, not shedding.
+  const settings = { origin: { sourceDir, generateDemo: false }, cache: { dir: join(dir, 'cache') }, server: { port: 0 }, pressure: { maxEventLoopDelayMs: 0 } };
+  writeFileSync(config, JSON.stringify(settings));
+  const s = await startServer(['--import', 'tsx', 'src/server.ts'], { FOLDWISE_CONFIG: config, HOST: '127.0.0.1' }, /"msg":"Server listening at http:\/\/127\.0\.0\.1:(\d+)"[\s\S]*foldwise ready/);
+  return { url: `http://127.0.0.1:${s.match[1]}`, stop: async () => { await s.stop(); rmSync(dir, { recursive: true, force: true }); } };
+}
+
+/** Wall time of one GET, body read to the end, in ms; fails on anything but 200. */
+async function timedGet(url: string): Promise<number> {
+  const t = performance.now();
+  const res = await fetch(url);
+  const body = await res.arrayBuffer();
+  if (res.status !== 200) throw new Error(`${url} answered ${res.status}: ${Buffer.from(body).toString().slice(0, 300)}`);
+  return performance.now() - t;
+}
+
+const rendition = (name: string, width: number) => `/v1/renditions/${name}?width=${width}&format=jpeg`;
+
+/** Runs the through-HTTP measurements `runs` times and returns their tables as text. */
+export async function serviceBenchTable(runs: number, seconds: number): Promise<string> {
+  const sourceDir = mkdtempSync(join(tmpdir(), 'foldwise-bench-sources-'));
+  for (const [name, w, h, seed] of pictures) writeFileSync(join(sourceDir, name), await benchJpeg(w, h, seed));
+  const bytes = Object.fromEntries(pictures.map(([name]) => [name, readFileSync(join(sourceDir, name))]));
+  const mp = (name: string) => { const p = pictures.find((q) => q[0] === name)!; return `${((p[1] * p[2]) / 1e6).toFixed(1)} MP`; };
+  const rows = new Map<string, { ratios: number[]; ms: number[] }>();
+  const add = (label: string, ms: number, decodeMs: number) => {
+    const row = rows.get(label) ?? { ratios: [], ms: [] };
+    row.ratios.push(ms / decodeMs);
+    row.ms.push(ms);
+    rows.set(label, row);
+  };
+  for (let run = 0; run < runs; run++) {
+    // sharp's decode-only time of each picture, in this run (median of 3 after a warm-up).
+    const decode: Record<string, number> = {};
+    for (const [name] of pictures) decode[name] = (await timeRuns(3, () => decodeRaw(bytes[name]))).wall;
+    const service = await startService(sourceDir);
+    try {
+      add(`first request after start (${mp('first-4mp.jpg')} -> 800 px)`, await timedGet(service.url + rendition('first-4mp.jpg', 800)), decode['first-4mp.jpg']);
+      for (const name of ['new-4mp.jpg', 'new-6mp.jpg', 'new-15mp.jpg']) {
+        add(`first rendition of a new ${mp(name)} picture -> 800 px`, await timedGet(service.url + rendition(name, 800)), decode[name]);
+      }
+      for (const name of ['new-6mp.jpg', 'new-15mp.jpg']) {
+        for (const width of [640, 1024]) {
+          add(`further width of the ${mp(name)} picture -> ${width} px`, await timedGet(service.url + rendition(name, width)), decode[name]);
+        }
+      }
+    } finally {
+      await service.stop();
+    }
+  }
+  const lines = [
+    `through HTTP (npm start's server, fresh cache each run): median of ${runs} runs; ratio to sharp's decode-only time of the same bytes`,
+    '| request | ratio (median) | ratios per run | ms (median) |',
+    '|---|---|---|---|',
+    ...[...rows].map(([label, r]) => `| ${label} | ${quantile(r.ratios, 0.5).toFixed(2)}x | ${r.ratios.map((x) => x.toFixed(2)).join(' ')} | ${quantile(r.ms, 0.5).toFixed(0)} |`),
+  ];
+  lines.push('', await throughput(sourceDir, seconds));
+  rmSync(sourceDir, { recursive: true, force: true });
+  return lines.join('\n');
+}
+
+/** Renders per second, every request a new width of the 4 and 6.4 MP pictures, ours against sharp's. */
+async function throughput(sourceDir: string, seconds: number): Promise<string> {
+  const names = ['new-4mp.jpg', 'new-6mp.jpg', 'first-4mp.jpg'];
+  const service = await startService(sourceDir);
+  const bare = await startServer(['--import', 'tsx', 'scripts/bench/sharp-route.ts', sourceDir], {}, /listening (\d+)/);
+  const sharpUrl = `http://127.0.0.1:${bare.match[1]}`;
+  const lines = [`renders per second, ${seconds} s per run, every request a new width (600-1199 px) of the ${names.length} 4-6.4 MP pictures, JPEG`,
+    '| connections | foldwise renders/s | sharp linear-light renders/s | ratio | foldwise non-2xx |', '|---|---|---|---|---|'];
+  try {
+    for (const name of names) await timedGet(service.url + rendition(name, 800)); // analysed once, as a site's pictures are
+    let n = 0;
+    const next = (prefix: (name: string, w: number) => string) => () => prefix(names[n % names.length], 600 + (Math.floor(n++ / names.length) % 600));
+    for (const connections of [4, 16]) {
+      const ours = await cannon({ url: service.url, connections, duration: seconds, nextPath: next(rendition), timeoutSeconds: 60 });
+      const ref = await cannon({ url: sharpUrl, connections, duration: seconds, nextPath: next((name, w) => `/sharp/${name}?width=${w}`), timeoutSeconds: 60 });
+      const ok = (r: typeof ours) => r.ok2xx / seconds;
+      lines.push(`| ${connections} | ${ok(ours).toFixed(2)} | ${ok(ref).toFixed(2)} | ${(ok(ours) / ok(ref)).toFixed(2)}x | ${ours.completed - ours.ok2xx} |`);
+    }
+  } finally {
+    await Promise.all([service.stop(), bare.stop()]);
+  }
+  return lines.join('\n');
+}
