@@ -10,6 +10,7 @@ import type { Origin } from './origins/types.js';
 import cachePlugin from './plugins/cache.js';
 import contextPlugin from './plugins/context.js';
 import ingestPlugin from './plugins/ingest.js';
+import { clientErrorHandler } from './plugins/client-errors.js';
 import errorsPlugin, { sendProblem, toFoldwiseError } from './plugins/errors.js';
 import metricsPlugin from './plugins/metrics.js';
 import openApiPlugin from './plugins/openapi.js';
@@ -69,6 +70,8 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     connectionTimeout: config.server.idleTimeoutMs,
     // URLs the router cannot decode (bad percent-encoding) get problem details too.
     frameworkErrors: (error, request, reply) => sendProblem(request, reply, toFoldwiseError(error)),
+    // Requests Node's parser refuses (bad Content-Length, oversize headers) too.
+    clientErrorHandler,
   });
   // Callback style (no promise per response): this runs on every answer, cache hits included.
   app.addHook('onSend', (request, reply, payload, done) => {

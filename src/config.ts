@@ -40,6 +40,8 @@ export const configSchema = z.strictObject({
       headersTimeoutMs: positiveInt,
       bodyTimeoutMs: positiveInt,
       maxRedirects: z.number().int().min(0).max(10),
+      /** Requests to one upstream host at once; more wait in line up to bodyTimeoutMs. */
+      perHostConcurrency: positiveInt,
     }),
   }),
   limits: z.strictObject({

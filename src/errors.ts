@@ -42,6 +42,10 @@ export const errorCodes = {
   ERR_INGEST_JOBS_FULL: { status: 503, title: 'Too many ingest jobs in progress; retry later' },
   ERR_INGEST_JOB_NOT_FOUND: { status: 404, title: 'No such ingest job' },
   ERR_SERVICE_STOPPING: { status: 503, title: 'Service is shutting down; retry later' },
+  ERR_REQUEST_MALFORMED: { status: 400, title: 'The request is not well-formed HTTP' },
+  ERR_REQUEST_HEADERS_TOO_LARGE: { status: 431, title: 'Request headers too large' },
+  ERR_REQUEST_LENGTH_MISMATCH: { status: 400, title: 'Request body length does not match Content-Length' },
+  ERR_REQUEST_TIMEOUT: { status: 408, title: 'The request was not received in time' },
 } as const satisfies Record<string, { status: number; title: string }>;
 
 export type ErrorCode = keyof typeof errorCodes;

@@ -1,47 +1,40 @@
 import { createHash, randomBytes } from 'node:crypto';
-import { mkdir, readdir, readFile, rename, rm, stat, unlink, writeFile } from 'node:fs/promises';
+import { mkdir, readdir, readFile, rm, stat, unlink } from 'node:fs/promises';
 import { join } from 'node:path';
 import { LRUCache } from 'lru-cache';
-import type { CacheEntry, CacheTier } from './types.js';
+import { decodeDiskEntry, encodeDiskEntry } from './disk-entry.js';
+import { sweepStaleTemp, writeDurably } from './durable.js';
+import type { CacheEntry, CacheTier, TierHealth } from './types.js';
 
-const MAGIC = Buffer.from('FWC1');
 const SUFFIX = '.fwc';
 
-interface Meta {
-  contentType: string;
-  etag: string;
-  headers: Record<string, string>;
-  createdAt: number;
-}
+/** Error codes of a file system that has no room left (write(2): ENOSPC, EDQUOT). */
+const FULL = new Set(['ENOSPC', 'EDQUOT']);
 
-/** File layout: "FWC1", uint32 BE meta length, meta JSON, body. */
-function encode(entry: CacheEntry): Buffer {
-  const meta: Meta = { contentType: entry.contentType, etag: entry.etag, headers: entry.headers, createdAt: entry.createdAt };
-  const json = Buffer.from(JSON.stringify(meta));
-  const len = Buffer.alloc(4);
-  len.writeUInt32BE(json.length);
-  return Buffer.concat([MAGIC, len, json, entry.body]);
-}
+/** What the tier reports: a damaged entry it dropped, a write refused for want of space. */
+export type DiskEvent =
+  | { kind: 'corrupt'; key: string; detail: string }
+  | { kind: 'full'; error: unknown };
 
-function decode(file: Buffer): CacheEntry | undefined {
-  if (file.length < 8 || !file.subarray(0, 4).equals(MAGIC)) return undefined;
-  const len = file.readUInt32BE(4);
-  if (8 + len > file.length) return undefined;
-  const meta = JSON.parse(file.subarray(8, 8 + len).toString('utf8')) as Meta;
-  return { ...meta, body: file.subarray(8 + len) };
+export interface DiskTierOptions {
+  /** How an entry reaches the disk; replaceable to test a full disk. */
+  write?: typeof writeDurably;
 }
 
 /**
- * The embedded shared tier: one file per entry under a folder, written atomically (temporary
- * file, then rename) so a reader never sees half an entry, and bounded in bytes by an LRU index
+ * The embedded shared tier: one file per entry under a folder, bounded in bytes by an LRU index
  * that deletes the least recently used files. Survives restarts; shared by replicas on one host.
+ * Each entry is written crash-safe (durable.ts) and carries its length and content hash
+ * (disk-entry.ts), checked on every read: a damaged file is deleted and reads as a miss.
  */
 export class DiskTier implements CacheTier {
   readonly name = 'disk';
   private readonly index: LRUCache<string, number>;
   private readonly tmp: string;
+  private full: string | undefined;
+  private readonly listeners: ((event: DiskEvent) => void)[] = [];
 
-  private constructor(private readonly dir: string, maxBytes: number) {
+  private constructor(private readonly dir: string, maxBytes: number, private readonly options: DiskTierOptions) {
     // One temporary folder per instance: replicas sharing the folder never touch each other's.
     this.tmp = join(dir, 'tmp', `${process.pid}-${randomBytes(4).toString('hex')}`);
     this.index = new LRUCache<string, number>({
@@ -54,11 +47,16 @@ export class DiskTier implements CacheTier {
     });
   }
 
-  /** Opens (creating) the folder and indexes the entries already there, oldest first. */
-  static async open(dir: string, maxBytes: number): Promise<DiskTier> {
+  /**
+   * Opens (creating) the folder, sweeps temporary folders that crashed writers left, and
+   * indexes the entries already there, oldest first. Rejects when the folder cannot be created
+   * or written (the caller then runs without the tier).
+   */
+  static async open(dir: string, maxBytes: number, options: DiskTierOptions = {}): Promise<DiskTier> {
     if (!(maxBytes > 0)) throw new RangeError('DiskTier needs maxBytes > 0');
-    const tier = new DiskTier(dir, maxBytes);
+    const tier = new DiskTier(dir, maxBytes, options);
     await mkdir(tier.tmp, { recursive: true });
+    await sweepStaleTemp(join(dir, 'tmp'), tier.tmp);
     const found: { key: string; size: number; mtime: number }[] = [];
     for (const sub of await readdir(dir)) {
       if (sub === 'tmp' || !/^[0-9a-f]{2}$/.test(sub)) continue;
@@ -76,6 +74,20 @@ export class DiskTier implements CacheTier {
   /** Bytes currently on disk (as indexed). */
   get bytes(): number {
     return this.index.calculatedSize;
+  }
+
+  /** Degraded while the last write found the disk full (cleared by the next write that fits). */
+  health(): TierHealth {
+    return this.full ? { ok: false, detail: `disk full: ${this.full}` } : { ok: true, detail: 'writable' };
+  }
+
+  /** Calls `listener` on each event (metrics, logs). */
+  listen(listener: (event: DiskEvent) => void): void {
+    this.listeners.push(listener);
+  }
+
+  private emit(event: DiskEvent): void {
+    for (const l of this.listeners) l(event);
   }
 
   /** Keys become file names: hex keys as they are, anything else hashed. */
@@ -96,33 +108,37 @@ export class DiskTier implements CacheTier {
       this.index.delete(fk);
       return undefined;
     }
-    let entry: CacheEntry | undefined;
-    try {
-      entry = decode(file);
-    } catch {
-      entry = undefined;
-    }
-    if (!entry) {
-      this.index.delete(fk); // unreadable: drop it rather than serve it
+    const read = decodeDiskEntry(file);
+    if (!read.ok) {
+      // Never served: deleted (the next miss renders and stores it again), counted if damaged.
+      if (this.index.has(fk)) this.index.delete(fk);
+      else await unlink(this.path(fk)).catch(() => undefined);
+      if (read.reason === 'corrupt') this.emit({ kind: 'corrupt', key: fk, detail: read.detail });
       return undefined;
     }
     if (!this.index.has(fk)) this.index.set(fk, file.length);
     else this.index.get(fk); // refresh recency
-    return entry;
+    return read.entry;
   }
 
   async set(key: string, entry: CacheEntry): Promise<void> {
     const fk = this.fileKey(key);
-    const data = encode(entry);
+    const data = encodeDiskEntry(entry);
     const tmp = join(this.tmp, `${fk}.${randomBytes(6).toString('hex')}`);
-    await mkdir(join(this.dir, fk.slice(0, 2)), { recursive: true });
-    await writeFile(tmp, data);
+    const write = this.options.write ?? writeDurably;
     try {
-      await rename(tmp, this.path(fk));
+      await mkdir(join(this.dir, fk.slice(0, 2)), { recursive: true });
+      // Recreated if a start elsewhere swept it while this instance was idle.
+      await mkdir(this.tmp, { recursive: true });
+      await write(tmp, this.path(fk), data);
     } catch (e) {
-      await unlink(tmp).catch(() => undefined);
+      if (FULL.has((e as NodeJS.ErrnoException).code ?? '')) {
+        this.full = (e as Error).message;
+        this.emit({ kind: 'full', error: e });
+      }
       throw e;
     }
+    this.full = undefined;
     this.index.set(fk, data.length);
   }
 

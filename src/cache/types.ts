@@ -17,4 +17,12 @@ export interface CacheTier {
   set(key: string, entry: CacheEntry): Promise<void>;
   delete?(key: string): Promise<void>;
   close?(): Promise<void>;
+  /** Whether the tier works as it should, where it can tell. */
+  health?(): TierHealth;
+}
+
+/** Whether a tier works as it should; a tier that is not ok degrades readiness, never fails it. */
+export interface TierHealth {
+  ok: boolean;
+  detail: string;
 }

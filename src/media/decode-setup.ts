@@ -6,6 +6,7 @@
 import sharp, { type Metadata, type Sharp, type SharpOptions } from 'sharp';
 import { FoldwiseError } from '../errors.js';
 import { sourceFormats } from './formats.js';
+import { hasAcceptedSignature } from './signature.js';
 
 export interface DecodeLimits {
   /** Most pixels (width x height of one frame) a source may have. */
@@ -49,16 +50,18 @@ export interface Prepared {
 export async function prepare(bytes: Buffer, limits: DecodeLimits): Promise<Prepared> {
   if (bytes.length === 0) throw new FoldwiseError('ERR_SOURCE_UNSUPPORTED', 'The source is empty.');
   const options: SharpOptions = {
-    // 'error' refuses truncated and damaged pixel data; sharp's stricter default 'warning'
-    // would also refuse the many camera files that carry harmless warnings (common practice).
-    failOn: 'error',
+    // 'warning', sharp's default: 'error' and 'truncated' let libjpeg's "Corrupt JPEG data:
+    // premature end of data segment" pass, so a JPEG with damaged scan data or a frame header
+    // larger than its data decoded as grey and was cached (measured with sharp 0.35; see
+    // test/media/decode-damage.test.ts). A file libvips only warns about is refused too.
+    failOn: 'warning',
     limitInputPixels: Math.max(1, Math.floor(limits.maxPixels)),
     autoOrient: true,
     pages: 1,
     page: 0,
   };
   const meta = await sharp(bytes, options).metadata().catch((e: unknown) => {
-    throw classify(e);
+    throw classify(e, bytes);
   });
   const format = checkFormat(meta);
   const [width, height] = checkLimits(meta, limits);
@@ -123,10 +126,14 @@ function checkLimits(meta: Metadata, limits: DecodeLimits): [number, number] {
   return [width, height];
 }
 
-/** Maps sharp's failures onto our codes; sharp's error travels as the cause. */
-export function classify(e: unknown): FoldwiseError {
+/**
+ * Maps sharp's failures onto our codes; sharp's error travels as the cause. Bytes that carry
+ * the signature of an accepted format but that libvips does not recognise (a TIFF cut before
+ * its directory) are corrupt, not unsupported.
+ */
+export function classify(e: unknown, bytes?: Buffer): FoldwiseError {
   const message = e instanceof Error ? e.message : String(e);
-  if (/unsupported image format/i.test(message)) {
+  if (/unsupported image format/i.test(message) && !(bytes && hasAcceptedSignature(bytes))) {
     return new FoldwiseError('ERR_SOURCE_UNSUPPORTED', 'The source is not an image format we read.', { cause: e });
   }
   if (/pixel limit/i.test(message)) {

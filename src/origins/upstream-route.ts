@@ -22,6 +22,8 @@ export function upstreamFromConfig(config: Config): Origin | undefined {
     timeouts: { connectMs: u.connectTimeoutMs, headersMs: u.headersTimeoutMs, bodyMs: u.bodyTimeoutMs },
     maxBytes: config.limits.maxSourceBytes,
     maxRedirects: u.maxRedirects,
+    perHostConcurrency: u.perHostConcurrency,
+    identityTtlMs: config.cache.identityTtlMs,
   });
 }
 

@@ -19,20 +19,33 @@ export function problemType(code: ErrorCode): string {
   return `/docs/errors#${code}`;
 }
 
-/** Fastify's own 4xx errors, mapped onto our codes by their status. */
+/** Fastify's own errors by their code (content-type parsing: FST_ERR_CTP_*), onto ours. */
+const fastifyErrorCodes: Record<string, ErrorCode> = {
+  FST_ERR_CTP_INVALID_MEDIA_TYPE: 'ERR_REQUEST_MEDIA_TYPE',
+  FST_ERR_CTP_INVALID_TYPE: 'ERR_REQUEST_MEDIA_TYPE',
+  FST_ERR_CTP_EMPTY_TYPE: 'ERR_REQUEST_MEDIA_TYPE',
+  FST_ERR_CTP_BODY_TOO_LARGE: 'ERR_REQUEST_TOO_LARGE',
+  FST_ERR_CTP_INVALID_CONTENT_LENGTH: 'ERR_REQUEST_LENGTH_MISMATCH',
+  FST_ERR_CTP_EMPTY_JSON_BODY: 'ERR_REQUEST_INVALID',
+  FST_ERR_CTP_INVALID_JSON_BODY: 'ERR_REQUEST_INVALID',
+};
+
+/** The rest of Fastify's 4xx errors, mapped onto our codes by their status. */
 const fastifyStatusCodes: Record<number, ErrorCode> = {
   400: 'ERR_REQUEST_INVALID',
   404: 'ERR_NOT_FOUND',
   405: 'ERR_METHOD_NOT_ALLOWED',
+  408: 'ERR_REQUEST_TIMEOUT',
   413: 'ERR_REQUEST_TOO_LARGE',
   415: 'ERR_REQUEST_MEDIA_TYPE',
+  431: 'ERR_REQUEST_HEADERS_TOO_LARGE',
 };
 
 /** Turns anything thrown into a FoldwiseError; unknown errors become ERR_INTERNAL (cause kept). */
 export function toFoldwiseError(error: unknown): FoldwiseError {
   if (isFoldwiseError(error)) return error;
   const fe = error as Partial<FastifyError>;
-  const code = fe.statusCode ? fastifyStatusCodes[fe.statusCode] : undefined;
+  const code = (fe.code ? fastifyErrorCodes[fe.code] : undefined) ?? (fe.statusCode ? fastifyStatusCodes[fe.statusCode] : undefined);
   if (code) return new FoldwiseError(code, fe.message, { cause: error });
   return new FoldwiseError('ERR_INTERNAL', undefined, { cause: error });
 }

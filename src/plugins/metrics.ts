@@ -11,6 +11,8 @@ export interface Metrics {
   cacheLookups: Counter<'result'>;
   cacheStoredBytes: Counter<'tier'>;
   cacheErrors: Counter<'tier' | 'op'>;
+  cacheCorrupt: Counter<'tier'>;
+  cacheFull: Counter<'tier'>;
 }
 
 declare module 'fastify' {
@@ -64,6 +66,18 @@ export function createMetrics(): Metrics {
       name: 'foldwise_cache_errors_total',
       help: 'Cache tier failures (treated as misses).',
       labelNames: ['tier', 'op'],
+      registers,
+    }),
+    cacheCorrupt: new Counter({
+      name: 'foldwise_cache_corrupt_entries_total',
+      help: 'Cache entries found damaged on read (wrong length or content hash): deleted, read as misses, rendered again.',
+      labelNames: ['tier'],
+      registers,
+    }),
+    cacheFull: new Counter({
+      name: 'foldwise_cache_full_writes_total',
+      help: 'Cache writes refused for want of space (ENOSPC, EDQUOT); the request still gets its rendition.',
+      labelNames: ['tier'],
       registers,
     }),
   };

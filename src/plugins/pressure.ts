@@ -23,7 +23,7 @@ declare module 'fastify' {
 
 // Liveness and scraping must keep answering under load, or an orchestrator would restart a
 // replica for being busy and the metrics would go dark exactly when they matter.
-const exempt = new Set(['/healthz', '/metrics']);
+const exempt = new Set(['/healthz', '/metrics', '/readyz']); // /readyz: a busy replica still serves hits
 
 const units: Record<string, (v: number) => string> = {
   // Infinity: the loop was blocked for a whole sample, so no delay could be measured in it.

@@ -6,17 +6,25 @@ import { jsonBody, problemResponses } from '../schemas/openapi.js';
 
 const healthSchema = z.object({ status: z.literal('ok') });
 const readySchema = z.object({
-  /** degraded: ready, but the shared Redis tier is unreachable (serving from memory and rendering). */
+  /** degraded: ready, but a cache tier is down (Redis unreachable, the disk cache off or full): serving from memory and rendering. */
   status: z.enum(['ready', 'degraded', 'not-ready']),
   checks: z.record(z.string(), z.object({ ok: z.boolean(), detail: z.string() })),
 });
 
 /**
- * /healthz: the process is alive and serving (for restarts). /readyz: it can take rendition
- * traffic now (for load balancers): the source folder is reachable and the render pool has a
- * free slot. Not ready is a 503 problem, so balancers and people read the same answer.
+ * /healthz: the process is alive and serving (for restarts). /readyz: this replica can serve
+ * rendition traffic, hits included (for load balancers): 503 only while it stops or when its
+ * source folder is gone. Busy render slots do not make it unready: a replica in a miss flood
+ * still serves every hit, and pulling all busy replicas at once would turn load into an outage
+ * (misses past the bound get their own 503 with Retry-After). A degraded shared tier (Redis
+ * down, the disk cache off or full) answers 200 "degraded" with the reason.
  */
 export default async function healthRoutes(app: FastifyInstance): Promise<void> {
+  let stopping = false;
+  app.addHook('preClose', async () => {
+    stopping = true;
+  });
+
   app.get(
     '/healthz',
     { config: { openapi: { summary: 'Liveness', tags: ['operations'], responses: { '200': jsonBody('Alive', healthSchema) } } } },
@@ -30,7 +38,7 @@ export default async function healthRoutes(app: FastifyInstance): Promise<void> 
         openapi: {
           summary: 'Readiness',
           tags: ['operations'],
-          responses: { '200': jsonBody('Ready for traffic', readySchema), ...problemResponses(503) },
+          responses: { '200': jsonBody('Ready for traffic (or degraded: serving, with a tier down)', readySchema), ...problemResponses(503) },
         },
       },
     },
@@ -38,25 +46,26 @@ export default async function healthRoutes(app: FastifyInstance): Promise<void> 
       const pool = app.renderPool;
       const dir = app.config.origin.sourceDir;
       const originOk = await access(dir).then(() => true, () => false);
-      const checks = {
+      const checks: Record<string, { ok: boolean; detail: string }> = {
         origin: { ok: originOk, detail: originOk ? 'source folder reachable' : 'source folder missing' },
-        pool: {
-          ok: pool.inFlight < pool.bound,
-          detail: `${pool.inFlight} of ${pool.bound} render slots in use`,
-        },
+        stopping: { ok: !stopping, detail: stopping ? 'shutting down' : 'running' },
       };
       const failed = Object.entries(checks).filter(([, c]) => !c.ok);
       if (failed.length > 0) {
         throw new FoldwiseError('ERR_NOT_READY', failed.map(([name, c]) => `${name}: ${c.detail}`).join('; '));
       }
-      // A Redis outage degrades (no shared cache, no cross-replica single-flight) but never
-      // makes a replica unready: taking every replica out together would turn it into an outage.
+      // Informational: slots in use never fail readiness.
+      checks.pool = { ok: true, detail: `${pool.inFlight} of ${pool.bound} render slots in use` };
+      // Degraded tiers (no shared cache, no cross-replica single-flight, no disk) never make a
+      // replica unready: taking every replica out together would turn it into an outage.
+      for (const [tier, health] of Object.entries(app.renditionCache.health())) checks[`cache-${tier}`] = health;
       const shared = app.sharedRedis?.health();
-      const degraded = shared !== undefined && (shared.status !== 'up' || shared.breaker !== 'closed');
-      const all = shared
-        ? { ...checks, redis: { ok: !degraded, detail: `connection ${shared.status}, circuit ${shared.breaker}` } }
-        : checks;
-      return reply.header('cache-control', 'no-store').send({ status: degraded ? 'degraded' : 'ready', checks: all });
+      if (shared) {
+        const ok = shared.status === 'up' && shared.breaker === 'closed';
+        checks.redis = { ok, detail: `connection ${shared.status}, circuit ${shared.breaker}` };
+      }
+      const degraded = Object.values(checks).some((c) => !c.ok);
+      return reply.header('cache-control', 'no-store').send({ status: degraded ? 'degraded' : 'ready', checks });
     },
   );
 }

@@ -37,6 +37,9 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
   app.addContentTypeParser(/^image\/[a-z0-9.+-]+$/i, (request: FastifyRequest, payload: IncomingMessage) =>
     readUpload(payload, request.headers['content-length'], limit),
   );
+  // Fastify's built-in text/plain parser would read up to its body limit and answer 413; a text
+  // upload is refused as the wrong type (415) before any of its body is read.
+  app.removeContentTypeParser('text/plain');
   app.addContentTypeParser('*', async (request: FastifyRequest) => {
     throw mediaTypeError(request);
   });

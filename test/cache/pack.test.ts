@@ -86,4 +86,17 @@ describe('encodeEntry / decodeEntry', () => {
     expect(decodeEntry(packValue({ v: 1, body: 'text' }))).toBeUndefined();
     expect(decodeEntry(packValue({ ...entry, v: 99 }))).toBeUndefined();
   });
+
+  it('reads an entry of version 1 (no length, no hash) as a miss', () => {
+    expect(decodeEntry(packValue({ ...entry, v: 1 }))).toBeUndefined();
+  });
+
+  it('reads an entry whose body was cut short or altered as a miss (length and SHA-256 checked)', () => {
+    const bytes = encodeEntry({ ...entry, body: Buffer.alloc(64, 7) });
+    expect(decodeEntry(bytes)?.body.length).toBe(64);
+    const altered = Buffer.from(bytes);
+    altered[altered.length - 1 - 8] ^= 0x01; // a byte of the body (binary segments end the buffer, padded to 8)
+    expect(decodeEntry(altered)).toBeUndefined();
+    expect(decodeEntry(bytes.subarray(0, bytes.length - 16))).toBeUndefined();
+  });
 });

@@ -36,6 +36,11 @@ const routes: Record<string, Route> = {
     if (req.method === 'HEAD') return void res.writeHead(405).end();
     res.end(payload);
   },
+  '/bare.png': (req, res) => {
+    // No ETag, no Last-Modified: the bytes are the only identity.
+    res.writeHead(200, { 'content-type': 'image/png', 'content-length': payload.length });
+    res.end(req.method === 'HEAD' ? undefined : payload);
+  },
   '/missing.png': (_req, res) => void res.writeHead(404).end('no'),
   '/broken.png': (_req, res) => void res.writeHead(500).end('upstream trouble'),
   '/hang.png': () => undefined,

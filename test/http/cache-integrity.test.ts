@@ -1,0 +1,98 @@
+import { readdir, stat, truncate, writeFile } from 'node:fs/promises';
+import { join } from 'node:path';
+import sharp from 'sharp';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { DiskTier } from '../../src/cache/disk.js';
+import { writeDurably } from '../../src/cache/durable.js';
+import { build, type TestApp } from '../helpers/build.js';
+import { writePng } from '../helpers/images.js';
+
+const cacheOf = (res: { headers: Record<string, unknown> }) => /cache;desc="([^"]+)"/.exec(String(res.headers['server-timing']))?.[1];
+
+async function entryFiles(dir: string): Promise<string[]> {
+  const subs = (await readdir(dir)).filter((s) => s !== 'tmp');
+  return (await Promise.all(subs.map(async (s) => (await readdir(join(dir, s))).map((f) => join(dir, s, f))))).flat();
+}
+
+async function counter(t: TestApp, name: 'cacheCorrupt' | 'cacheFull'): Promise<number> {
+  return (await t.app.metrics[name].get()).values.reduce((sum, v) => sum + v.value, 0);
+}
+
+const url = '/v1/renditions/swatch.png?width=16&format=png';
+
+describe('disk cache entries are checked on every read', () => {
+  let t: TestApp;
+  beforeAll(async () => {
+    // No memory tier: every lookup reads the disk file.
+    t = await build({ config: { cache: { memoryBytes: 0 } } });
+    await writePng(t.sourceDir, 'swatch.png', 64, 48, 3, (x, y) => [x * 4, y * 5, 128]);
+  });
+  afterAll(() => t.close());
+
+  it('an entry truncated to half is not served: re-rendered (200 miss, the same bytes), counted in /metrics', async () => {
+    const first = await t.app.inject({ url });
+    expect(first.statusCode).toBe(200);
+    expect(cacheOf(await t.app.inject({ url }))).toBe('hit-disk');
+    const [file] = await entryFiles(t.cacheDir);
+    await truncate(file, Math.floor((await stat(file)).size / 2));
+
+    const again = await t.app.inject({ url });
+    expect(again.statusCode).toBe(200);
+    expect(cacheOf(again)).toBe('miss');
+    expect(again.rawPayload.equals(first.rawPayload)).toBe(true);
+    expect((await sharp(again.rawPayload).metadata()).width).toBe(16);
+    expect(await counter(t, 'cacheCorrupt')).toBe(1);
+    const metrics = (await t.app.inject({ url: '/metrics' })).body;
+    expect(metrics).toMatch(/^foldwise_cache_corrupt_entries_total\{tier="disk"\} 1$/m);
+    // Stored again whole: the next read is a disk hit.
+    expect(cacheOf(await t.app.inject({ url }))).toBe('hit-disk');
+  });
+});
+
+describe('an unusable or full cache folder degrades readiness and never stops serving', () => {
+  it('a cache folder that cannot be created: the app starts, disk tier off, /readyz 200 degraded with the reason', async () => {
+    const probe = await build();
+    const blocker = join(probe.sourceDir, 'plain-file');
+    await writeFile(blocker, 'a file where the cache folder should go');
+    const t = await build({ config: { cache: { dir: join(blocker, 'cache') } } });
+    try {
+      await writePng(t.sourceDir, 'swatch.png', 32, 32, 3, () => [10, 20, 30]);
+      const ready = await t.app.inject({ url: '/readyz' });
+      expect(ready.statusCode).toBe(200);
+      expect(ready.json().status).toBe('degraded');
+      expect(ready.json().checks['cache-disk']).toEqual({ ok: false, detail: expect.stringMatching(/^off: .*plain-file\/cache cannot be used \(ENOTDIR\)$/) });
+      expect(t.app.renditionCache.cache.tiers.map((tier) => tier.name)).toEqual(['memory']);
+      expect((await t.app.inject({ url })).statusCode).toBe(200);
+    } finally {
+      await t.close();
+      await probe.close();
+    }
+  });
+
+  it('a full disk: the rendition is served, the refusal counted, /readyz 200 degraded until a write fits again', async () => {
+    const probe = await build();
+    let full = true;
+    const disk = await DiskTier.open(join(probe.cacheDir, 'shared'), 1 << 20, {
+      write: async (tmp, target, data) =>
+        full ? Promise.reject(Object.assign(new Error('ENOSPC: no space left on device, write'), { code: 'ENOSPC' })) : writeDurably(tmp, target, data),
+    });
+    const t = await build({ sharedTier: disk });
+    try {
+      await writePng(t.sourceDir, 'swatch.png', 32, 32, 3, () => [10, 20, 30]);
+      expect((await t.app.inject({ url: '/readyz' })).json().status).toBe('ready');
+      const res = await t.app.inject({ url });
+      expect(res.statusCode).toBe(200);
+      expect((await sharp(res.rawPayload).metadata()).width).toBe(16);
+      expect(await counter(t, 'cacheFull')).toBe(1);
+      const ready = await t.app.inject({ url: '/readyz' });
+      expect(ready.statusCode).toBe(200);
+      expect(ready.json()).toMatchObject({ status: 'degraded', checks: { 'cache-disk': { ok: false, detail: expect.stringMatching(/disk full/) } } });
+      full = false;
+      expect((await t.app.inject({ url: url.replace('width=16', 'width=8') })).statusCode).toBe(200);
+      expect((await t.app.inject({ url: '/readyz' })).json().status).toBe('ready');
+    } finally {
+      await t.close();
+      await probe.close();
+    }
+  });
+});

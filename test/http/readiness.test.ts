@@ -1,0 +1,86 @@
+import { EventEmitter } from 'node:events';
+import { mkdtemp, rm } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { createFolderOrigin } from '../../src/origins/folder.js';
+import { build, type TestApp } from '../helpers/build.js';
+import { eventCount, gatedOrigin } from '../helpers/gated-origin.js';
+import { writePng } from '../helpers/images.js';
+
+const cacheOf = (res: { headers: Record<string, unknown> }) => /cache;desc="([^"]+)"/.exec(String(res.headers['server-timing']))?.[1];
+
+// Readiness answers "can this replica serve", hits included; a miss flood that fills every
+// render slot must not take it out of the balancer (seen: /readyz 503 in 18 of 28 samples
+// while hits were 200 in 28 of 28).
+describe('/readyz during a miss flood', () => {
+  let dir: string;
+  let t: TestApp;
+  let gated: ReturnType<typeof gatedOrigin>;
+
+  beforeAll(async () => {
+    dir = await mkdtemp(join(tmpdir(), 'fw-ready-'));
+    for (let i = 0; i < 6; i++) await writePng(dir, `s${i}.png`, 32, 32, 3, (x, y) => [x * 8, y * 8, i * 40]);
+    gated = gatedOrigin(createFolderOrigin(dir));
+    // One worker and one waiting render: two misses fill every slot.
+    t = await build({ sourceDir: dir, origin: gated.origin, config: { pool: { threads: 1, maxQueue: 1 } } });
+  });
+  afterAll(async () => {
+    gated.release();
+    await t.close();
+    await rm(dir, { recursive: true, force: true });
+  });
+
+  it('stays 200 while every render slot is taken, and hits keep being served', async () => {
+    gated.release();
+    const hitUrl = '/v1/renditions/s0.png?width=16&format=png';
+    expect((await t.app.inject({ url: hitUrl })).statusCode).toBe(200);
+    gated.reset();
+
+    // The flood fills every slot: three of five are refused at once (one renders, one waits in
+    // line), or, where origin reads come before admission, all five hold their reads.
+    const answered = new EventEmitter();
+    const flood = Array.from({ length: 5 }, (_, i) =>
+      t.app.inject({ url: `/v1/renditions/s${i + 1}.png?width=16&format=png` }).then((r) => {
+        answered.emit('answer');
+        return r;
+      }),
+    );
+    await Promise.race([eventCount(answered, 'answer', 3), eventCount(gated.events, 'read', 5)]);
+
+    const ready = await t.app.inject({ url: '/readyz' });
+    expect(ready.statusCode).toBe(200);
+    expect(ready.json()).toMatchObject({ status: 'ready', checks: { pool: { ok: true, detail: expect.stringMatching(/ of 2 render slots in use$/) } } });
+    const hit = await t.app.inject({ url: hitUrl });
+    expect(hit.statusCode).toBe(200);
+    expect(cacheOf(hit)).toBe('hit-memory');
+
+    gated.release();
+    for (const r of await Promise.all(flood)) {
+      expect([200, 503]).toContain(r.statusCode);
+      if (r.statusCode === 503) expect(r.json().code).toBe('ERR_OVERLOADED');
+    }
+  });
+});
+
+describe('/readyz under load shedding', () => {
+  it('is not shed (the replica still serves hits), while other routes are', async () => {
+    // A heap limit of one byte: every sample is over it, so shedding is on from the first sample.
+    const t = await build({ config: { pressure: { maxHeapUsedBytes: 1, sampleIntervalMs: 5 } } });
+    try {
+      let shed = await t.app.inject({ url: '/v1/sources' });
+      // Bounded wait for under-pressure's first sample (it starts at zero).
+      for (let i = 0; i < 500 && shed.statusCode !== 503; i++) {
+        await new Promise<void>((resolve) => setImmediate(resolve));
+        shed = await t.app.inject({ url: '/v1/sources' });
+      }
+      expect(shed.statusCode).toBe(503);
+      expect(shed.json().code).toBe('ERR_OVERLOADED');
+      const ready = await t.app.inject({ url: '/readyz' });
+      expect(ready.statusCode).toBe(200);
+      expect(ready.json().status).toBe('ready');
+    } finally {
+      await t.close();
+    }
+  });
+});
