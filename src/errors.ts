@@ -42,6 +42,9 @@ export const errorCodes = {
   ERR_INGEST_JOBS_FULL: { status: 503, title: 'Too many ingest jobs in progress; retry later' },
   ERR_INGEST_JOB_NOT_FOUND: { status: 404, title: 'No such ingest job' },
   ERR_SERVICE_STOPPING: { status: 503, title: 'Service is shutting down; retry later' },
+  ERR_INGEST_UNBOUND: { status: 403, title: 'A signed ingest URL must name what it ingests (digest or source)' },
+  ERR_INGEST_DIGEST_MISMATCH: { status: 403, title: 'The upload is not the one the signed URL names' },
+  ERR_INGEST_SOURCE_MISMATCH: { status: 403, title: 'The source is not the one the signed URL names' },
 } as const satisfies Record<string, { status: number; title: string }>;
 
 export type ErrorCode = keyof typeof errorCodes;
