@@ -45,6 +45,7 @@ export const errorCodes = {
   ERR_INGEST_UNBOUND: { status: 403, title: 'A signed ingest URL must name what it ingests (digest or source)' },
   ERR_INGEST_DIGEST_MISMATCH: { status: 403, title: 'The upload is not the one the signed URL names' },
   ERR_INGEST_SOURCE_MISMATCH: { status: 403, title: 'The source is not the one the signed URL names' },
+  ERR_INGEST_ABANDONED: { status: 503, title: 'The ingest job could not finish before the service stopped' },
 } as const satisfies Record<string, { status: number; title: string }>;
 
 export type ErrorCode = keyof typeof errorCodes;

@@ -77,6 +77,7 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
     if (!prefersAsync(request.headers.prefer) || ingest.isDone(work.key)) {
       return reply.send(await ingest.run(work).value);
     }
+    if (!ingest.jobs.accepting) throw new FoldwiseError('ERR_SERVICE_STOPPING', 'the service is stopping and takes no new ingest jobs');
     const job = ingest.jobs.start((started) => ingest.run(work, started).value, jobError);
     if (!job) {
       throw new FoldwiseError('ERR_INGEST_JOBS_FULL', `${config.ingest.maxJobs} ingest jobs are unfinished`, {
