@@ -79,17 +79,22 @@ function fmtSecs(s: number): string {
   return Number.isFinite(s) ? `${s.toFixed(1)} s` : `> ${recoveryCap} s`;
 }
 const pass = (ok: boolean) => (ok ? 'yes' : 'NO');
+const tableRows = rows.map((r) => {
+  const ok = r.peak <= PEAK_TARGET && !r.capped && r.recovery <= RECOVERY_TARGET && r.noStatus === 0 && r.corrupt === 0 &&
+    (r.hitShare === undefined || r.hitShare >= 0.99);
+  return [
+    r.id, `${mib(r.peak).toFixed(0)}${r.capped ? ' (cap)' : ''}`, r.statuses,
+    r.hitShare === undefined ? '-' : `${(100 * r.hitShare).toFixed(1)} %`, r.noStatus, r.corrupt,
+    Number.isFinite(r.recovery) ? r.recovery.toFixed(1) : `> ${recoveryCap}`, pass(ok),
+  ];
+});
+const header = ['scenario', 'peak RSS+spool MiB', 'statuses', 'hits 200 in flood', 'no status', 'corrupt served', 'recovery s', 'targets met'];
 printTable(
   `hostile load (flood ${floodSeconds} s, client timeout ${clientTimeoutMs / 1000} s, recovery cap ${recoveryCap} s)`,
-  ['scenario', 'peak RSS+spool MiB', 'statuses', 'hits 200 in flood', 'no status', 'corrupt served', 'recovery s', 'targets met'],
-  rows.map((r) => {
-    const ok = r.peak <= PEAK_TARGET && !r.capped && r.recovery <= RECOVERY_TARGET && r.noStatus === 0 && r.corrupt === 0 &&
-      (r.hitShare === undefined || r.hitShare >= 0.99);
-    return [
-      r.id, `${mib(r.peak).toFixed(0)}${r.capped ? ' (cap)' : ''}`, r.statuses,
-      r.hitShare === undefined ? '-' : `${(100 * r.hitShare).toFixed(1)} %`, r.noStatus, r.corrupt,
-      Number.isFinite(r.recovery) ? r.recovery.toFixed(1) : `> ${recoveryCap}`, pass(ok),
-    ];
-  }),
+  header,
+  tableRows,
 );
 console.log('targets: peak RSS+spool <= 1536 MiB; recovery <= 10 s; >= 99 % hits served in the flood; 0 without status; 0 corrupt served');
+// The same table in Markdown, for the README's Reliability section.
+console.log(`\n| ${header.join(' | ')} |\n|${header.map(() => '---').join('|')}|`);
+for (const r of tableRows) console.log(`| ${r.map((c) => String(c).replace(/\|/g, '/')).join(' | ')} |`);
