@@ -17,7 +17,7 @@ import openApiPlugin from './plugins/openapi.js';
 import pressurePlugin from './plugins/pressure.js';
 import redisPlugin, { redisSettings } from './plugins/redis.js';
 import renderPlugin from './plugins/render.js';
-import signingPlugin from './plugins/signing.js';
+import signingPlugin, { signingRequired } from './plugins/signing.js';
 import spectraPlugin from './plugins/spectra.js';
 import workerPoolPlugin from './plugins/worker-pool.js';
 import docsRoutes from './routes/docs.js';
@@ -99,7 +99,7 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   await app.register(signingPlugin, {
     keys: config.signing.keys,
     // Required by default whenever a key is set; required without a key stops the start.
-    required: config.signing.required ?? config.signing.keys.length > 0,
+    required: signingRequired(config.signing),
     prefixes: ['/v1/renditions/', '/v1/alias-risk/'],
     signedMaxAgeSeconds: config.http.signedMaxAgeSeconds,
   });

@@ -46,6 +46,10 @@ export const errorCodes = {
   ERR_REQUEST_HEADERS_TOO_LARGE: { status: 431, title: 'Request headers too large' },
   ERR_REQUEST_LENGTH_MISMATCH: { status: 400, title: 'Request body length does not match Content-Length' },
   ERR_REQUEST_TIMEOUT: { status: 408, title: 'The request was not received in time' },
+  ERR_INGEST_UNBOUND: { status: 403, title: 'A signed ingest URL must name what it ingests (digest or source)' },
+  ERR_INGEST_DIGEST_MISMATCH: { status: 403, title: 'The upload is not the one the signed URL names' },
+  ERR_INGEST_SOURCE_MISMATCH: { status: 403, title: 'The source is not the one the signed URL names' },
+  ERR_INGEST_ABANDONED: { status: 503, title: 'The ingest job could not finish before the service stopped' },
 } as const satisfies Record<string, { status: number; title: string }>;
 
 export type ErrorCode = keyof typeof errorCodes;

@@ -19,8 +19,8 @@ export interface ShutdownHandle {
  * Graceful shutdown for the process shell. On the first signal: stop accepting connections
  * (Fastify's close: the listener closes, idle keep-alive sockets are dropped, requests that
  * arrive on busy sockets get 503), let in-flight requests finish, then run the plugins' onClose
- * hooks (worker pool, Redis). If that takes longer than the deadline, exit 1 anyway. A second
- * signal exits at once.
+ * hooks (accepted async ingest jobs drain first, then the worker pool, Redis). If that takes
+ * longer than the deadline, exit 1 anyway. A second signal exits at once.
  */
 export function installShutdown(app: FastifyInstance, options: ShutdownOptions): ShutdownHandle {
   const signals = options.signals ?? ['SIGTERM', 'SIGINT'];

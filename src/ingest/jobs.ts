@@ -4,6 +4,8 @@
  * Bounded: when full, the oldest finished job is forgotten; when every slot holds unfinished
  * work, `start` refuses (the caller answers 503) rather than letting the table grow. Each job
  * emits `settled` on the table when it ends, so waiters and tests synchronise on an event.
+ * At shutdown, `drain` stops new jobs and waits for the unfinished ones up to a deadline; a
+ * job still unfinished then is marked failed with a stable code, never dropped silently.
  */
 import { EventEmitter } from 'node:events';
 import { randomUUID } from 'node:crypto';
@@ -22,6 +24,8 @@ export interface JobView<T> {
 
 export class JobTable<T> extends EventEmitter {
   private readonly jobs = new Map<string, JobView<T>>();
+  /** False once draining began: `start` refuses every new job. */
+  accepting = true;
 
   constructor(private readonly capacity: number) {
     super();
@@ -45,7 +49,7 @@ export class JobTable<T> extends EventEmitter {
     work: (started: () => void) => Promise<T>,
     describe: (e: unknown) => { code: string; detail: string },
   ): JobView<T> | undefined {
-    if (this.jobs.size >= this.capacity && !this.evictOneFinished()) return undefined;
+    if (!this.accepting || (this.jobs.size >= this.capacity && !this.evictOneFinished())) return undefined;
     const job: JobView<T> = { id: randomUUID(), state: 'queued', createdAt: new Date().toISOString() };
     this.jobs.set(job.id, job);
     const started = (): void => {
@@ -74,7 +78,26 @@ export class JobTable<T> extends EventEmitter {
     });
   }
 
+  /**
+   * Stops accepting jobs and waits until every unfinished one settles or `deadlineMs` passes.
+   * Jobs unfinished at the deadline are marked failed with `abandoned` (a later result of
+   * their work is ignored) and returned, so the caller can log them.
+   */
+  async drain(deadlineMs: number, abandoned: { code: string; detail: string }): Promise<JobView<T>[]> {
+    this.accepting = false;
+    const unfinished = () => [...this.jobs.values()].filter((j) => j.state === 'queued' || j.state === 'running');
+    let timer: NodeJS.Timeout | undefined;
+    const deadline = new Promise<void>((resolve) => (timer = setTimeout(resolve, Math.max(0, deadlineMs))));
+    await Promise.race([Promise.all(unfinished().map((j) => this.settled(j.id))), deadline]);
+    clearTimeout(timer);
+    const left = unfinished();
+    for (const job of left) this.finish(job, { state: 'failed', error: abandoned });
+    return left;
+  }
+
   private finish(job: JobView<T>, patch: Partial<JobView<T>>): void {
+    // A job marked failed at a drain deadline keeps that state when its work ends later.
+    if (job.state === 'done' || job.state === 'failed') return;
     Object.assign(job, patch, { finishedAt: new Date().toISOString() });
     this.emit('settled', job.id);
   }

@@ -99,12 +99,13 @@ export class IngestService extends EventEmitter {
    * before any 202, with the rendition path's own limits) and stored under their content key;
    * the decoded pixels are not kept, so waiting work holds bytes on disk, not rasters.
    */
-  async fromUpload(bytes: Buffer, options: IngestOptions): Promise<IngestWork> {
+  async fromUpload(bytes: Buffer, options: IngestOptions, known?: string): Promise<IngestWork> {
     if (!this.config.ingest.writable) {
       throw new FoldwiseError('ERR_INGEST_READ_ONLY', 'uploads are switched off: the folder origin is read-only (ingest.writable)');
     }
     if (bytes.length === 0) throw new FoldwiseError('ERR_INGEST_EMPTY', 'the upload has no bytes');
-    const digest = digestOf(bytes);
+    // `known`: the digest the caller already computed of these very bytes (the signing check).
+    const digest = known ?? digestOf(bytes);
     const key = `upload:${digest}|${this.optionsKey(options)}`;
     const stored = this.isDone(key) ? undefined : await this.store(bytes, digest);
     return { key, compute: async () => this.buildFrom(stored ?? (await this.store(bytes, digest)), options) };

@@ -13,6 +13,7 @@ declare module 'fastify' {
 /**
  * Creates the ingest service once, on the app's render context and configuration, and counts
  * its work in the app's metrics registry: renditions by cache outcome, analyses, and jobs.
+ * At shutdown it drains the accepted async jobs (drainOnClose).
  */
 async function ingestPlugin(app: FastifyInstance): Promise<void> {
   const ingest = new IngestService(app.config, app.renderContext, app.spectra);
@@ -35,6 +36,34 @@ async function ingestPlugin(app: FastifyInstance): Promise<void> {
   ingest.on('rendition', (e: RenditionEvent) => renditions.inc({ cache: e.cache.startsWith('hit') ? 'hit' : 'miss' }));
   ingest.on('analysed', () => analyses.inc());
   app.decorate('ingest', ingest);
+  drainOnClose(app, ingest);
+}
+
+/**
+ * Shutdown: from the moment the app starts closing (preClose) no new async job is accepted;
+ * before the worker pool and cache tiers close (this plugin's onClose runs before theirs, as
+ * it is registered after them) the accepted jobs get the rest of the shutdown deadline to
+ * finish, less a margin for closing the rest. A job still unfinished is marked failed
+ * (ERR_INGEST_ABANDONED) and logged with its id, never dropped silently.
+ */
+function drainOnClose(app: FastifyInstance, ingest: IngestService): void {
+  const { deadlineMs } = app.config.shutdown;
+  const budget = deadlineMs - Math.min(1000, deadlineMs / 10);
+  let closingSince = 0;
+  app.addHook('preClose', async () => {
+    closingSince = performance.now();
+    ingest.jobs.accepting = false;
+  });
+  app.addHook('onClose', async () => {
+    const left = budget - (performance.now() - (closingSince || performance.now()));
+    const abandoned = await ingest.jobs.drain(left, {
+      code: 'ERR_INGEST_ABANDONED',
+      detail: 'the service stopped before this job finished; send the upload again',
+    });
+    if (abandoned.length > 0) {
+      app.log.error({ jobs: abandoned.map((j) => j.id), code: 'ERR_INGEST_ABANDONED' }, 'ingest jobs unfinished at the shutdown deadline, marked failed');
+    }
+  });
 }
 
 export default fp(ingestPlugin, {

@@ -26,6 +26,14 @@ declare module 'fastify' {
   }
 }
 
+/**
+ * The one rule for whether unsigned requests are refused: `signing.required` when set, else
+ * required whenever a key is configured.
+ */
+export function signingRequired(signing: { keys: readonly string[]; required?: boolean }): boolean {
+  return signing.required ?? signing.keys.length > 0;
+}
+
 function splitUrl(url: string): { path: string; query: URLSearchParams } {
   const q = url.indexOf('?');
   return q < 0 ? { path: url, query: new URLSearchParams() } : { path: url.slice(0, q), query: new URLSearchParams(url.slice(q + 1)) };

@@ -7,7 +7,8 @@ import { toFoldwiseError } from '../plugins/errors.js';
 import { ingestQuerySchema, ingestSourceBody, jobSchema, manifestSchema } from '../schemas/ingest.js';
 import { jsonBody, problemResponses, queryParameters } from '../schemas/openapi.js';
 import { parseQuery } from '../schemas/query.js';
-import { checkSignedUrl } from '../plugins/signing.js';
+import { checkSignedUrl, signingRequired } from '../plugins/signing.js';
+import { checkSource, checkUpload, requireBinding } from '../ingest/binding.js';
 
 export const ingestPath = '/v1/ingest';
 export const jobsPrefix = '/v1/ingest/jobs/';
@@ -44,24 +45,32 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
     throw mediaTypeError(request);
   });
 
-  // Signing, when on, covers the upload hook too (path and query; the body is not signed), and
-  // is checked before the body is read, so an unsigned upload costs one HMAC.
+  // Signing, when on, covers the upload hook too: the path and every query parameter. The body
+  // is not signed, so a signed URL must name it (digest or source, see ingest/binding.ts); both
+  // are checked before the body is read, so an unsigned or unbound upload costs one HMAC.
   const keys = config.signing.keys;
-  const signingRequired = config.signing.required ?? keys.length > 0;
+  const required = signingRequired(config.signing);
+  const signedRequests = new WeakSet<FastifyRequest>();
   app.addHook('onRequest', async (request) => {
     if (keys.length === 0 || request.method !== 'POST') return;
-    checkSignedUrl(request.url, keys, signingRequired, 'Uploads need a signed URL (parameter "signature"); see foldwise sign.');
+    if (!checkSignedUrl(request.url, keys, required, 'Uploads need a signed URL (parameter "signature"); see foldwise sign.')) return;
+    signedRequests.add(request);
+    const raw = request.query as Record<string, unknown>;
+    requireBinding({ digest: raw.digest as string | undefined, source: raw.source as string | undefined });
   });
 
   async function workOf(request: FastifyRequest): Promise<IngestWork> {
     const q = parseQuery(query, request.query as Record<string, unknown>);
     const options = { widths: q.widths, formats: q.formats };
+    const binding = { digest: q.digest, source: q.source };
+    if (signedRequests.has(request)) requireBinding(binding);
     const body: unknown = request.body;
-    if (Buffer.isBuffer(body)) return ingest.fromUpload(body, options);
+    if (Buffer.isBuffer(body)) return ingest.fromUpload(body, options, checkUpload(body, binding));
     if (body === undefined || body === null) throw new FoldwiseError('ERR_INGEST_EMPTY', 'the request has no body: send image bytes or JSON naming a source');
     if (!/^application\/json\b/i.test(request.headers['content-type'] ?? '')) throw mediaTypeError(request);
     const parsed = ingestSourceBody.safeParse(body);
     if (!parsed.success) throw new FoldwiseError('ERR_REQUEST_INVALID', `JSON body: ${parsed.error.issues[0].message}`);
+    checkSource(parsed.data.source, binding);
     return ingest.fromSource(parsed.data.source, options);
   }
 
@@ -71,6 +80,7 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
     if (!prefersAsync(request.headers.prefer) || ingest.isDone(work.key)) {
       return reply.send(await ingest.run(work).value);
     }
+    if (!ingest.jobs.accepting) throw new FoldwiseError('ERR_SERVICE_STOPPING', 'the service is stopping and takes no new ingest jobs');
     const job = ingest.jobs.start((started) => ingest.run(work, started).value, jobError);
     if (!job) {
       throw new FoldwiseError('ERR_INGEST_JOBS_FULL', `${config.ingest.maxJobs} ingest jobs are unfinished`, {
@@ -91,7 +101,7 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
         openapi: {
           summary: 'Ingest a picture: rendition ladder, srcset, alias-risk warnings, pre-rendered cache',
           description:
-            'Body: image bytes (image/*, at most limits.maxUploadBytes) stored under a content-addressed key, or JSON {"source": "path/in/origin"}. With "Prefer: respond-async" the answer is 202 and Location names the job.',
+            'Body: image bytes (image/*, at most limits.maxUploadBytes) stored under a content-addressed key, or JSON {"source": "path/in/origin"}. With "Prefer: respond-async" the answer is 202 and Location names the job. With signing on, the signed query must name the body: digest (SHA-256 hex of the upload) or source (equal to the JSON body\'s source).',
           tags: ['ingest'],
           parameters: [
             // Comma lists: OpenAPI style form with explode false.

@@ -4,6 +4,7 @@ import { FoldwiseError } from '../errors.js';
 import { jsonBody, problemResponses } from '../schemas/openapi.js';
 import { renditionsPrefix } from './renditions.js';
 import { signUrl } from '../security/signing.js';
+import { checkSignedUrl } from '../plugins/signing.js';
 
 const listingSchema = z.object({
   sources: z.array(
@@ -13,7 +14,10 @@ const listingSchema = z.object({
       modified: z.string().meta({ description: 'ISO 8601' }),
       rendition: z
         .string()
-        .meta({ description: 'An example rendition URL (480 CSS px wide), signed when signing keys are set.' }),
+        .meta({
+          description:
+            'An example rendition URL (480 CSS px wide). With signing on it is signed only when the listing request itself is signed; otherwise it is the unsigned URL, for the key holder to sign.',
+        }),
     }),
   ),
 });
@@ -24,11 +28,12 @@ const encodePath = (p: string) => p.split('/').map(encodeURIComponent).join('/')
 /** GET /v1/sources: the folder origin's images; switched off by config (origin.listing). */
 export default async function sourcesRoutes(app: FastifyInstance): Promise<void> {
   const enabled = app.config.origin.listing;
-  // With keys set, the examples are signed with the first (signing) key, so they work as given.
-  const signingKey = app.config.signing.keys[0];
-  const example = (path: string) => {
+  // With keys set, the examples are signed with the first (signing) key, but only for a signed
+  // listing request: the public listing would otherwise hand out a working URL for every source.
+  const keys = app.config.signing.keys;
+  const example = (path: string, sign: boolean) => {
     const url = `${renditionsPrefix}${encodePath(path)}`;
-    return signingKey ? signUrl(url, { width: '480' }, signingKey) : `${url}?width=480`;
+    return sign ? signUrl(url, { width: '480' }, keys[0]) : `${url}?width=480`;
   };
   app.get(
     '/v1/sources',
@@ -37,16 +42,18 @@ export default async function sourcesRoutes(app: FastifyInstance): Promise<void>
         openapi: {
           summary: 'List the sources of the folder origin',
           tags: ['sources'],
-          responses: { '200': jsonBody('Sources', listingSchema), ...problemResponses(404) },
+          responses: { '200': jsonBody('Sources', listingSchema), ...problemResponses(403, 404) },
         },
       },
     },
-    async (_req, reply) => {
+    async (request, reply) => {
       const list = app.origin.list?.bind(app.origin);
       if (!enabled || !list) throw new FoldwiseError('ERR_ORIGIN_DISABLED', 'listing sources is switched off');
+      // A wrong signature is refused; a missing one lists unsigned examples (never required here).
+      const signed = keys.length > 0 && checkSignedUrl(request.url, keys, false, '');
       const entries = await list();
       return reply.header('cache-control', 'no-cache').send({
-        sources: entries.map((e) => ({ ...e, rendition: example(e.path) })),
+        sources: entries.map((e) => ({ ...e, rendition: example(e.path, signed) })),
       });
     },
   );

@@ -31,6 +31,17 @@ export function ingestQuerySchema(maxDimension: number) {
     formats: commaList('formats', z.enum(ingestFormats, 'formats: each must be webp, avif, jpeg or png'), ingestFormats.length)
       .optional()
       .meta({ description: 'Comma list of formats; default ingest.formats (webp,jpeg).' }),
+    digest: z
+      .string()
+      .regex(/^[0-9a-f]{64}$/, 'digest must be the SHA-256 of the upload as 64 lowercase hex characters')
+      .optional()
+      .meta({ description: 'SHA-256 (hex) of the uploaded bytes; a signed upload URL needs it, and the body must match.' }),
+    source: z
+      .string()
+      .min(1, 'source must name a path in the origin')
+      .max(1024)
+      .optional()
+      .meta({ description: 'The source a signed URL may ingest; the JSON body must name the same one.' }),
     // The very signature parameter of the rendition query (one definition of its syntax).
     signature: renditionQueryShape({ maxDimension, kernelNames: [] }).signature,
   });

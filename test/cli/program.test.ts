@@ -33,4 +33,30 @@ describe('foldwise (the command line)', () => {
     expect(off.code).toBe(1);
     expect(off.stderr).toContain('signing is off');
   });
+
+  it('signs an ingest URL bound to a file (its SHA-256) or to a named source', async () => {
+    const { verifySignature } = await import('../../src/security/signing.js');
+    const { createHash } = await import('node:crypto');
+    const { mkdtemp, writeFile } = await import('node:fs/promises');
+    const { tmpdir } = await import('node:os');
+    const key = 'loom-key-0123456789abcdef';
+    const file = `${await mkdtemp(`${tmpdir()}/foldwise-sign-`)}/swatch.bin`;
+    const bytes = Buffer.from('any bytes stand in for an upload here');
+    await writeFile(file, bytes);
+    const env = { FOLDWISE_SIGNING_KEY: key };
+    const upload = await runCli(['sign', '/v1/ingest?widths=320', '--upload', file], { env });
+    expect(upload.code).toBe(0);
+    const url = new URL(upload.stdout.trim(), 'http://localhost');
+    // SHA-256 by node:crypto (FIPS 180-4), computed here rather than by the CLI's helper.
+    expect(url.searchParams.get('digest')).toBe(createHash('sha256').update(bytes).digest('hex'));
+    expect(verifySignature(url.pathname, url.searchParams, [key])).toBe('valid');
+    const source = await runCli(['sign', '/v1/ingest', '--source', 'fabrics/twill.jpg'], { env });
+    const named = new URL(source.stdout.trim(), 'http://localhost');
+    expect(named.searchParams.get('source')).toBe('fabrics/twill.jpg');
+    expect(verifySignature(named.pathname, named.searchParams, [key])).toBe('valid');
+    const both = await runCli(['sign', '/v1/ingest', '--source', 'a.png', '--upload', file], { env });
+    expect([both.code, both.stderr.includes('not both')]).toEqual([2, true]);
+    const help = await runCli(['sign', '--help']);
+    expect(help.stdout).toContain('--upload <file>');
+  });
 });

@@ -103,15 +103,24 @@ describe('operational endpoints', () => {
     expect((await t.app.inject({ url: woven.rendition.replace('480', '8') })).statusCode).toBe(200);
   });
 
-  it('/v1/sources signs its example links when signing is on, so they render as given', async () => {
-    const signed = await build({ sourceDir: t.sourceDir, config: { signing: { keys: ['ops-test-key-0123456789'] } } });
+  it('/v1/sources signs its example links only for a signed listing request when signing is on', async () => {
+    const key = 'ops-test-key-0123456789';
+    const signed = await build({ sourceDir: t.sourceDir, config: { signing: { keys: [key] } } });
     try {
-      const { sources } = (await signed.app.inject({ url: '/v1/sources' })).json();
-      const swatch = sources.find((s: { path: string }) => s.path === 'swatch.png');
-      expect(swatch.rendition).toMatch(/^\/v1\/renditions\/swatch\.png\?width=480&signature=[\w-]{43}$/);
-      expect((await signed.app.inject({ url: swatch.rendition })).statusCode).toBe(200);
-      // The unsigned form is refused, which is what makes the signed example necessary.
-      expect((await signed.app.inject({ url: '/v1/renditions/swatch.png?width=480' })).statusCode).toBe(403);
+      const { signUrl } = await import('../../src/security/signing.js');
+      const swatchOf = async (url: string) =>
+        (await signed.app.inject({ url })).json().sources.find((s: { path: string }) => s.path === 'swatch.png');
+      // Public listing: the unsigned URL, which the service refuses, so nothing usable is handed out.
+      const open = await swatchOf('/v1/sources');
+      expect(open.rendition).toBe('/v1/renditions/swatch.png?width=480');
+      expect((await signed.app.inject({ url: open.rendition })).json().code).toBe('ERR_SIGNATURE_REQUIRED');
+      // The key holder's signed listing: signed examples that render as given.
+      const listing = signUrl('/v1/sources', {}, key);
+      const mine = await swatchOf(listing);
+      expect(mine.rendition).toMatch(/^\/v1\/renditions\/swatch\.png\?width=480&signature=[\w-]{43}$/);
+      expect((await signed.app.inject({ url: mine.rendition })).statusCode).toBe(200);
+      const forged = await signed.app.inject({ url: signUrl('/v1/sources', {}, 'another-key-0123456789') });
+      expect([forged.statusCode, forged.json().code]).toEqual([403, 'ERR_SIGNATURE_INVALID']);
     } finally {
       await signed.close();
     }
