@@ -11,6 +11,7 @@ import cachePlugin from './plugins/cache.js';
 import contextPlugin from './plugins/context.js';
 import ingestPlugin from './plugins/ingest.js';
 import { clientErrorHandler } from './plugins/client-errors.js';
+import stoppingPlugin from './plugins/stopping.js';
 import errorsPlugin, { sendProblem, toFoldwiseError } from './plugins/errors.js';
 import metricsPlugin from './plugins/metrics.js';
 import openApiPlugin from './plugins/openapi.js';
@@ -72,6 +73,8 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     frameworkErrors: (error, request, reply) => sendProblem(request, reply, toFoldwiseError(error)),
     // Requests Node's parser refuses (bad Content-Length, oversize headers) too.
     clientErrorHandler,
+    // While closing, plugins/stopping.ts answers new requests with problem details instead.
+    return503OnClosing: false,
   });
   // Callback style (no promise per response): this runs on every answer, cache hits included.
   app.addHook('onSend', (request, reply, payload, done) => {
@@ -83,6 +86,7 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     options.origin ??
     withUpstream(createFolderOrigin(config.origin.sourceDir, { maxBytes: config.limits.maxSourceBytes }), upstreamFromConfig(config));
   await app.register(errorsPlugin);
+  await app.register(stoppingPlugin, { retryAfterSeconds: config.pool.retryAfterSeconds });
   await app.register(openApiPlugin);
   await app.register(metricsPlugin);
   await app.register(contextPlugin, { config, origin });
