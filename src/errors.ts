@@ -42,6 +42,10 @@ export const errorCodes = {
   ERR_INGEST_JOBS_FULL: { status: 503, title: 'Too many ingest jobs in progress; retry later' },
   ERR_INGEST_JOB_NOT_FOUND: { status: 404, title: 'No such ingest job' },
   ERR_SERVICE_STOPPING: { status: 503, title: 'Service is shutting down; retry later' },
+  ERR_SOURCE_TOO_COSTLY: { status: 413, title: 'Rendering this source needs more memory than this replica admits' },
+  // Never sent: the client has gone. Logged as the outcome of work it abandoned (status 499, common practice).
+  ERR_REQUEST_ABANDONED: { status: 499, title: 'The client closed the request before the answer' },
+  ERR_MEMORY_STUCK: { status: 503, title: 'Memory stays above its ceiling with no work admitted; restart this replica' },
 } as const satisfies Record<string, { status: number; title: string }>;
 
 export type ErrorCode = keyof typeof errorCodes;
