@@ -267,7 +267,14 @@ export class RenderPool {
     try {
       // Every band settles before the render does, failed or not: a band still queued or running
       // would otherwise outlive the render's admission permit in piscina's bounded queue.
-      const settled = await Promise.allSettled(bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out }, { signal })));
+      // piscina's abort listener holds the task (and its source) as long as the signal lives,
+      // 20 s for a deadline: give it a signal of this call's own, unlinked when the bands end.
+      const own = new AbortController();
+      const relay = () => own.abort(signal?.reason);
+      if (signal?.aborted) relay();
+      signal?.addEventListener('abort', relay, { once: true });
+      const runs = bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out }, { signal: own.signal }));
+      const settled = await Promise.allSettled(runs).finally(() => signal?.removeEventListener('abort', relay));
       const failed = settled.find((r) => r.status === 'rejected');
       if (failed) throw failed.reason;
     } catch (e) {
