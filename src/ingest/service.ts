@@ -133,9 +133,12 @@ export class IngestService extends EventEmitter {
       identify: async () => identity,
     };
     const lease = await admitDecode(this.render.pool, bytes, this.config.limits);
-    const { decoded } = await loadSource(upload, identity.key, this.config.limits, new StageClock()).finally(() => lease.release());
+    // Only the format is kept: the raster is unreachable before the lease ends (and collected then).
+    const format = await loadSource(upload, identity.key, this.config.limits, new StageClock())
+      .then((loaded) => loaded.decoded.format)
+      .finally(() => lease.release());
     const { keyPrefix: prefix, digestChars } = this.config.ingest;
-    const sourceKey = keyFor(digest, extensionOf(decoded.format), { prefix, digestChars });
+    const sourceKey = keyFor(digest, extensionOf(format), { prefix, digestChars });
     await storeOnce(this.config.origin.sourceDir, sourceKey, bytes);
     return sourceKey;
   }
