@@ -7,17 +7,20 @@
  * For each it prints the status counts, peak RSS plus spool bytes (/dev/shm), the RSS 10 s after
  * the end against the idle RSS, and the seconds until /readyz is 200 again.
  * Targets (issue 18): peak RSS + spool <= 1.5 GiB, recovery <= 10 s.
- *   npx tsx load/memory-admission.ts
+ *   npx tsx load/memory-admission.ts [--budget-mib N]   (default: the service's own default)
  */
 import { mkdtempSync, readdirSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { setTimeout as delay } from 'node:timers/promises';
+import { parseArgs } from 'node:util';
 import sharp from 'sharp';
 import { startChild } from './lib/child.js';
 import { loadConfigFile } from './lib/config-file.js';
 import { mib, printTable } from './lib/table.js';
 
+const { values } = parseArgs({ options: { 'budget-mib': { type: 'string' } } });
+const pool = values['budget-mib'] ? { pool: { memoryBudgetBytes: Number(values['budget-mib']) * 2 ** 20 } } : {};
 const SIDE = 8192;
 const dir = mkdtempSync(join(tmpdir(), 'foldwise-mem-'));
 console.log('making four 8192x8192 16-bit RGBA PNGs (all zero but one marker) and a 2400x1600 picture...');
@@ -37,7 +40,7 @@ for (let i = 0; i < ramp.length; i++) ramp[i] = (i * 7 + (i >> 12)) & 255;
 await sharp(ramp, { raw: { width: 2400, height: 1600, channels: 3 } }).jpeg().toFile(join(dir, 'ramp.jpg'));
 console.log(`bomb PNG: ${bombs[0].length} bytes; depth ${(await sharp(bombs[0]).metadata()).depth}`);
 
-const server = await startChild('app', { FOLDWISE_CONFIG: loadConfigFile(dir) });
+const server = await startChild('app', { FOLDWISE_CONFIG: loadConfigFile(dir, pool) });
 const spoolBytes = () => {
   let sum = 0;
   for (const name of readdirSync('/dev/shm').filter((n) => n.startsWith(`foldwise-spool-${server.pid}-`))) {
