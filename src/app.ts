@@ -13,6 +13,7 @@ import ingestPlugin from './plugins/ingest.js';
 import { clientErrorHandler } from './plugins/client-errors.js';
 import stoppingPlugin from './plugins/stopping.js';
 import errorsPlugin, { sendProblem, toFoldwiseError } from './plugins/errors.js';
+import memoryWatchPlugin from './plugins/memory-watch.js';
 import metricsPlugin from './plugins/metrics.js';
 import openApiPlugin from './plugins/openapi.js';
 import pressurePlugin from './plugins/pressure.js';
@@ -97,7 +98,8 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     sharedTier: options.sharedTier ?? app.sharedRedis?.tier,
     flight: options.flight ?? app.sharedRedis?.flight,
   });
-  await app.register(workerPoolPlugin, config.pool);
+  await app.register(workerPoolPlugin, { ...config.pool, rssCeilingBytes: config.pressure.maxRssBytes });
+  await app.register(memoryWatchPlugin, config.pressure);
   await app.register(spectraPlugin);
   await app.register(renderPlugin);
   await app.register(signingPlugin, {

@@ -73,6 +73,14 @@ export const configSchema = z.strictObject({
      * else the OS temporary folder; 'off' = decode fully first, then resample.
      */
     spoolDir: z.string().min(1),
+    /**
+     * Bytes of working memory the jobs admitted at once may need (estimated from each
+     * source's header: src/render/cost.ts). null = half the container's memory limit (cgroup
+     * memory.max, else the machine's memory), at most 1 GiB (src/render/budget-default.ts).
+     */
+    memoryBudgetBytes: z.number().int().min(64 * 2 ** 20).nullable(),
+    /** Longest wait for room in the budget before 503 + Retry-After; well under the idle timeout. */
+    maxWaitMs: z.number().int().min(0).max(60_000),
   }),
   cache: z.strictObject({
     memoryBytes: z.number().int().min(0),
@@ -103,7 +111,12 @@ export const configSchema = z.strictObject({
   pressure: z.strictObject({
     maxEventLoopDelayMs: z.number().int().min(0),
     maxHeapUsedBytes: z.number().int().min(0),
+    /**
+     * Resident memory ceiling: above it new render jobs wait (while others run), and /healthz
+     * fails once it stays above for `stuckAfterMs` with no job admitted.
+     */
     maxRssBytes: z.number().int().min(0),
+    stuckAfterMs: positiveInt,
     sampleIntervalMs: positiveInt,
     retryAfterSeconds: positiveInt,
   }),

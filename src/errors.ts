@@ -50,6 +50,10 @@ export const errorCodes = {
   ERR_INGEST_DIGEST_MISMATCH: { status: 403, title: 'The upload is not the one the signed URL names' },
   ERR_INGEST_SOURCE_MISMATCH: { status: 403, title: 'The source is not the one the signed URL names' },
   ERR_INGEST_ABANDONED: { status: 503, title: 'The ingest job could not finish before the service stopped' },
+  ERR_SOURCE_TOO_COSTLY: { status: 413, title: 'Rendering this source needs more memory than this replica admits' },
+  // Never sent: the client has gone. Logged as the outcome of work it abandoned (status 499, common practice).
+  ERR_REQUEST_ABANDONED: { status: 499, title: 'The client closed the request before the answer' },
+  ERR_MEMORY_STUCK: { status: 503, title: 'Memory stays above its ceiling with no work admitted; restart this replica' },
 } as const satisfies Record<string, { status: number; title: string }>;
 
 export type ErrorCode = keyof typeof errorCodes;

@@ -2,12 +2,13 @@
  * Worker-thread entry (piscina): resamples one band of output rows with the pure core. The
  * source either lives in a SharedArrayBuffer, so two workers can render different bands of
  * one rendition without copying it twice, or is a spool file libvips is still writing, read
- * row by row here (src/render/spool-rows.ts, the one module besides the core this thread
- * imports). The output is shared memory too.
+ * row by row here (src/render/spool-rows.ts; with render/hand-back.ts the only modules
+ * besides the core this thread imports). The output is shared memory too.
  */
 import { renderRaster } from './core/index.js';
 import { simdKernels } from './core/simd/index.js';
 import type { Channels, PixelRaster, Plan } from './core/types.js';
+import { HAND_BACK_MIN_BYTES, handBack } from './render/hand-back.js';
 import { SpoolRows } from './render/spool-rows.js';
 
 // Compile and instantiate the SIMD kernels when the thread starts, not in its first render.
@@ -69,5 +70,8 @@ export default function resample(task: ResampleTask): number {
   const band = render(src, plan, rows);
   const outSamples = plan.targetWidth * plan.targetHeight * src.channels;
   view(out, src.depth, outSamples).set(band.data, rows[0] * plan.targetWidth * src.channels);
+  // This thread's handle on a large shared source would keep it mapped until the thread next
+  // collects garbage, which an idle thread may not do for minutes: collect after this task.
+  if ('buffer' in src && src.buffer.byteLength >= HAND_BACK_MIN_BYTES) handBack();
   return band.height;
 }

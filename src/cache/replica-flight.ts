@@ -22,14 +22,15 @@ export class ReplicaFlight implements Flight {
     this.local = new SingleFlight(onJoin);
   }
 
-  run<T>(key: string, work: () => Promise<T>): Promise<FlightResult<T>> {
-    return this.local.run(key, async () => {
+  run<T>(key: string, work: (signal: AbortSignal) => Promise<T>, signal?: AbortSignal): Promise<FlightResult<T>> {
+    // The local flight counts this replica's waiting callers; its signal aborts the work here.
+    return this.local.run(key, async (abandoned) => {
       const { entry } = await this.redis.run(key, {
         lookup: () => this.tier.get(key),
-        produce: () => work() as Promise<unknown> as Promise<CacheEntry>,
+        produce: () => work(abandoned) as Promise<unknown> as Promise<CacheEntry>,
         store: (e) => this.tier.set(key, e),
       });
       return entry as unknown as T;
-    });
+    }, signal);
   }
 }

@@ -10,11 +10,12 @@ import { FoldwiseError } from '../errors.js';
 import { sourceFormats } from '../media/formats.js';
 import type { Origin } from '../origins/types.js';
 import { renderRendition, type RenderContext } from '../render/service.js';
-import { type LoadedSource, loadSource } from '../render/source.js';
+import { decodeSource, type LoadedSource, loadSource, readSource } from '../render/source.js';
 import { StageClock } from '../render/timings.js';
 import type { SpectrumStore } from '../risk/spectra.js';
 import type { IngestFormat } from '../schemas/ingest.js';
 import { compileRenditionQuery } from '../schemas/rendition.js';
+import { admitDecode, admitLadder } from './admit.js';
 import { assessLadder } from './assess.js';
 import { mapBounded } from './bounded.js';
 import { Gate } from './gate.js';
@@ -132,19 +133,31 @@ export class IngestService extends EventEmitter {
       read: async () => ({ identity, bytes }),
       identify: async () => identity,
     };
-    const { decoded } = await loadSource(upload, identity.key, this.config.limits, new StageClock());
+    const lease = await admitDecode(this.render.pool, bytes, this.config.limits);
+    // Only the format is kept: the raster is unreachable before the lease ends (and collected then).
+    const format = await loadSource(upload, identity.key, this.config.limits, new StageClock())
+      .then((loaded) => loaded.decoded.format)
+      .finally(() => lease.release());
     const { keyPrefix: prefix, digestChars } = this.config.ingest;
-    const sourceKey = keyFor(digest, extensionOf(decoded.format), { prefix, digestChars });
+    const sourceKey = keyFor(digest, extensionOf(format), { prefix, digestChars });
     await storeOnce(this.config.origin.sourceDir, sourceKey, bytes);
     return sourceKey;
   }
 
   private async buildFrom(sourceKey: string, options: IngestOptions): Promise<Manifest> {
-    const source = await loadSource(this.render.origin, sourceKey, this.config.limits, new StageClock());
-    return this.build(sourceKey, source, options);
+    // Read before admission, then the whole ladder is admitted as one job (admit.ts).
+    const read = await readSource(this.render.origin, sourceKey, this.config.limits, new StageClock());
+    const formats = options.formats ?? this.config.ingest.formats;
+    const { limits, ingest } = this.config;
+    const { lease, concurrency } = await admitLadder(this.render.pool, read.bytes, limits, { ...options, formats, concurrency: ingest.concurrency });
+    try {
+      return await this.build(sourceKey, await decodeSource(read, limits, new StageClock()), options, concurrency);
+    } finally {
+      lease.release();
+    }
   }
 
-  private async build(sourceKey: string, loaded: LoadedSource, options: IngestOptions): Promise<Manifest> {
+  private async build(sourceKey: string, loaded: LoadedSource, options: IngestOptions, concurrency: number): Promise<Manifest> {
     const { identity, decoded } = loaded;
     const { raster } = decoded;
     const formats = options.formats ?? this.config.ingest.formats;
@@ -161,9 +174,10 @@ export class IngestService extends EventEmitter {
       this.config.limits,
     );
     const tasks = steps.flatMap((step) => formats.map((format) => ({ step, format })));
-    const renditions = await mapBounded(tasks, this.config.ingest.concurrency, async ({ step, format }): Promise<ManifestRendition> => {
-      // The source decoded above serves every miss of the ladder: no decode per rendition.
-      const r = await renderRendition({ ...this.render, decoded: loaded }, sourceKey, queryFor(step.width, format));
+    const renditions = await mapBounded(tasks, concurrency, async ({ step, format }): Promise<ManifestRendition> => {
+      // The source decoded above serves every miss of the ladder (no decode per rendition),
+      // within the ladder's lease.
+      const r = await renderRendition({ ...this.render, decoded: loaded, admitted: true }, sourceKey, queryFor(step.width, format));
       this.emit('rendition', { source: sourceKey, width: step.width, format, cache: r.cache, bytes: r.entry.body.length } satisfies RenditionEvent);
       return {
         url: renditionUrl(sourceKey, step.width, format, this.config.signing.keys[0]),

@@ -4,6 +4,7 @@
  * failures onto our error codes (decode.ts, spool-decode.ts).
  */
 import sharp, { type Metadata, type Sharp, type SharpOptions } from 'sharp';
+sharp.cache(false);
 import { FoldwiseError } from '../errors.js';
 import { sourceFormats } from './formats.js';
 import { hasAcceptedSignature } from './signature.js';

@@ -76,7 +76,9 @@ async function errorsPlugin(app: FastifyInstance): Promise<void> {
   app.setErrorHandler((error, request, reply) => {
     const fw = toFoldwiseError(error);
     // Unexpected failures get the stack; expected refusals (4xx, overload 503s) a short line.
-    if (fw.code === 'ERR_INTERNAL' || fw.code === 'ERR_RENDER_FAILED') {
+    // Nobody to answer: the client left, and the work it waited for was dropped or stopped.
+    if (fw.code === 'ERR_REQUEST_ABANDONED') request.log.info({ code: fw.code, outcome: 'abandoned' }, fw.message);
+    else if (fw.code === 'ERR_INTERNAL' || fw.code === 'ERR_RENDER_FAILED') {
       request.log.error({ err: fw.cause ?? fw, code: fw.code }, fw.message);
     } else if (fw.status >= 500) request.log.warn({ code: fw.code, detail: fw.message }, 'request refused');
     else request.log.info({ code: fw.code, detail: fw.message }, 'request refused');

@@ -43,7 +43,10 @@ async function pressurePlugin(app: FastifyInstance, options: PressureOptions): P
   await app.register(underPressure, {
     maxEventLoopDelay: options.maxEventLoopDelayMs,
     maxHeapUsedBytes: options.maxHeapUsedBytes,
-    maxRssBytes: options.maxRssBytes,
+    // Not RSS: a process whose memory does not come back (allocator, a thread's garbage) would
+    // refuse everything for good. Memory is bounded by admission (src/render/budget.ts), RSS
+    // stays a last-resort guard there, and /healthz fails when it cannot recover (memory-watch.ts).
+    maxRssBytes: 0,
     sampleInterval: options.sampleIntervalMs,
     retryAfter: options.retryAfterSeconds,
     // A rejected promise reaches the app's error handler, which writes the problem details.

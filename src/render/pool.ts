@@ -5,7 +5,9 @@ import { Piscina } from 'piscina';
 import type { PixelRaster, Plan } from '../core/types.js';
 import { type ErrorCode, FoldwiseError } from '../errors.js';
 import type { ResampleTask, SharedRaster, SpooledRaster } from '../worker.js';
-import { Admission } from './admission.js';
+import { type Lease, MemoryBudget, type MemoryState } from './budget.js';
+import { resolveMemoryBudget } from './budget-default.js';
+import { HAND_BACK_MIN_BYTES, handBack } from './hand-back.js';
 import { StagingBuffers } from './staging.js';
 import { SpoolWriteError } from '../media/spool-decode.js';
 import { FILE_WRONG, READ_FAILED, type SpoolShape, STOPPED, WRITING, WRITTEN } from './spool-rows.js';
@@ -14,20 +16,36 @@ import { SpoolDir } from './spool.js';
 export interface RenderPoolOptions {
   /** Worker threads; 0 = one per available core. */
   threads: number;
-  /** Renders allowed to wait beyond one per thread; null = `queuePerThread` per thread. */
+  /** Jobs allowed to wait for memory; null = `queuePerThread` per thread. */
   maxQueue: number | null;
   retryAfterSeconds: number;
+  /** The byte budget jobs are admitted against (src/render/budget.ts); null or absent = sized to the container. */
+  memoryBudgetBytes?: number | null;
+  /** Longest wait for room in the budget before 503; default 4 s. */
+  maxWaitMs?: number;
+  /** Last-resort guard: above this RSS a new job is refused (503) while others still run; 0 or absent = off. */
+  rssCeilingBytes?: number;
   /** Spool folder for decodes resampled as they arrive ('auto', a path, or 'off'); default 'off'. */
   spoolDir?: string;
 }
 
 /**
- * The default wait line, per worker thread. Waiting renders hold no pixels (the render service
- * drops a source when its permit is released), so memory is bounded by the threads rather
- * than by this line; a short line turns overload into a prompt 503 with Retry-After instead of
- * long waits and client timeouts. Check a setting with load/miss-mix.ts (peak RSS).
+ * The default wait line, per worker thread. Waiting jobs hold no pixels (their source is read,
+ * not decoded), so memory is bounded by the budget rather than by this line; a short line
+ * turns overload into a prompt 503 with Retry-After instead of long waits.
  */
 export const queuePerThread = 2;
+
+/** Jobs holding memory at once, per worker thread: one resampling while another decodes or encodes. */
+export const runningPerThread = 2;
+
+/** The pool's memory as /readyz, /metrics and tests read it. */
+export interface PoolMemory extends MemoryState {
+  /** Bytes of spool files of decodes in progress (/dev/shm), part of admittedBytes. */
+  spoolBytes: number;
+  /** Idle staging buffers kept for reuse (at most `threads` of at most 64 MiB each). */
+  stagingIdleBytes: number;
+}
 
 /** Running from TypeScript sources (tsx, vitest): workers need tsx's loader too. */
 const fromSource = import.meta.url.endsWith('.ts');
@@ -46,8 +64,8 @@ const SPLIT_MIN_PIXELS = 512 * 512;
 const STREAM_SPLIT_SHRINK = 4;
 
 // Idle source buffers kept for reuse are at most this big each (a 16 MP RGBA source); larger
-// sources get a fresh buffer (staging.ts).
-const STAGING_MAX_BYTES = 64 * 2 ** 20;
+// sources get a fresh buffer (staging.ts), handed back to the system when their job ends.
+const STAGING_MAX_BYTES = HAND_BACK_MIN_BYTES;
 
 function share(raster: PixelRaster, staging: StagingBuffers): SharedRaster {
   const depth = raster.data instanceof Uint16Array ? 16 : 8;
@@ -58,9 +76,9 @@ function share(raster: PixelRaster, staging: StagingBuffers): SharedRaster {
 
 /**
  * The CPU side of rendering: a piscina pool of worker threads running the core, behind
- * admission control (src/render/admission.ts): one render per thread holds pixels at a time,
- * `maxQueue` more wait, and past that `admit` throws ERR_OVERLOADED (503 with Retry-After)
- * instead of letting work and memory pile up without bound.
+ * admission by memory (src/render/budget.ts): a job runs once its estimated peak bytes fit
+ * the budget, `maxQueue` more wait at most `maxWaitMs`, and past that `admit` throws
+ * ERR_OVERLOADED (503 with Retry-After) instead of letting work and memory pile up.
  *
  * Every way a task can be cut short has its own answer: the render's deadline gives
  * ERR_RENDER_TIMEOUT and the pool closing (shutdown) ERR_SERVICE_STOPPING, both 503 with
@@ -70,7 +88,9 @@ function share(raster: PixelRaster, staging: StagingBuffers): SharedRaster {
 export class RenderPool {
   readonly threads: number;
   readonly retryAfterSeconds: number;
-  private readonly admission: Admission;
+  private readonly budget: MemoryBudget;
+  private spooled = 0;
+  private readonly rssCeiling: number;
   private readonly piscina: Piscina<ResampleTask, number>;
   private closing?: Promise<void>;
   private readonly staging: StagingBuffers;
@@ -80,32 +100,56 @@ export class RenderPool {
   constructor(opts: RenderPoolOptions) {
     this.threads = opts.threads > 0 ? opts.threads : availableParallelism();
     this.retryAfterSeconds = opts.retryAfterSeconds;
+    this.rssCeiling = opts.rssCeilingBytes ?? 0;
     this.staging = new StagingBuffers(this.threads, STAGING_MAX_BYTES);
     this.spool = SpoolDir.open(opts.spoolDir ?? 'off');
-    this.admission = new Admission(this.threads, opts.maxQueue ?? queuePerThread * this.threads, opts.retryAfterSeconds);
+    const maxRunning = runningPerThread * this.threads;
+    this.budget = new MemoryBudget({
+      budgetBytes: resolveMemoryBudget(opts.memoryBudgetBytes ?? null),
+      maxRunning,
+      maxWaiting: opts.maxQueue ?? queuePerThread * this.threads,
+      maxWaitMs: opts.maxWaitMs ?? 4000,
+      retryAfterSeconds: opts.retryAfterSeconds,
+    });
     this.piscina = new Piscina<ResampleTask, number>({
       filename: workerFile,
       minThreads: this.threads,
       maxThreads: this.threads,
-      // At most one render per thread reaches the pool, with two band tasks each.
-      maxQueue: Math.max(1, 2 * this.threads),
+      // At most `maxRunning` jobs reach the pool, with two band tasks each.
+      maxQueue: 2 * maxRunning,
       execArgv: fromSource ? ['--import', tsxLoader] : [],
     });
   }
 
-  /** Most renders in flight (running + waiting) before refusals start. */
+  /** Most jobs in flight (running + waiting) before refusals start. */
   get bound(): number {
-    return this.admission.bound;
+    return this.budget.bound;
   }
 
-  /** Renders admitted and not yet released, running or waiting. */
+  /** Jobs admitted and not yet released, running or waiting. */
   get inFlight(): number {
-    return this.admission.inFlight;
+    const { running, waiting } = this.budget.state;
+    return running + waiting;
   }
 
-  /** Renders waiting for a slot plus band tasks waiting for a worker thread. */
+  /** Jobs waiting for memory plus band tasks waiting for a worker thread. */
   get queueDepth(): number {
-    return this.admission.waiting + this.piscina.queueSize;
+    return this.budget.state.waiting + this.piscina.queueSize;
+  }
+
+  /** Admitted bytes against the budget, waiting jobs, spool and idle staging bytes. */
+  memory(): PoolMemory {
+    return { ...this.budget.state, spoolBytes: this.spooled, stagingIdleBytes: this.staging.idleBytes };
+  }
+
+  /** Counts a spool file of `bytes` until the returned function is called (its file removed). */
+  holdSpool(bytes: number): () => void {
+    this.spooled += bytes;
+    let held = true;
+    return () => {
+      if (held) this.spooled -= bytes;
+      held = false;
+    };
   }
 
   get utilization(): number {
@@ -118,12 +162,28 @@ export class RenderPool {
   }
 
   /**
-   * Waits for a render slot; call the returned function when done. Throws ERR_OVERLOADED past
-   * the bound, ERR_SERVICE_STOPPING once the pool is closing.
+   * Waits for `bytes` of the memory budget (cost.ts estimates them); release the lease when
+   * the job's last byte is gone (after its encode). Throws ERR_SOURCE_TOO_COSTLY (413) for a
+   * job larger than the budget, ERR_OVERLOADED past the line or the wait, the signal's reason
+   * when it aborts while waiting, ERR_SERVICE_STOPPING once the pool is closing.
    */
-  admit(): Promise<() => void> {
+  admit(bytes: number, what: string, signal?: AbortSignal): Promise<Lease> {
     if (this.closing) return Promise.reject(this.stopping());
-    return this.admission.admit();
+    // RSS only as a last resort, and only while other jobs run: their end brings it down, so
+    // this can never refuse for good (an idle replica over the ceiling is /healthz's concern).
+    if (this.rssCeiling > 0 && this.budget.state.running > 0 && process.memoryUsage.rss() > this.rssCeiling) {
+      const s = this.retryAfterSeconds;
+      return Promise.reject(
+        new FoldwiseError('ERR_OVERLOADED', `resident memory is over ${this.rssCeiling} bytes while jobs run; retry in ${s} s`, {
+          headers: { 'retry-after': String(s) },
+        }),
+      );
+    }
+    return this.budget.acquire(bytes, what, signal).then((lease) => {
+      if (bytes < HAND_BACK_MIN_BYTES) return lease;
+      // A job this big dropped large buffers: collect them now that it has ended (hand-back.ts).
+      return { bytes, release: () => (lease.release(), handBack()) };
+    });
   }
 
   /** Resamples `src` by `plan` in the pool; big outputs are split into two bands of rows. */
@@ -133,7 +193,8 @@ export class RenderPool {
     const shared = share(src, this.staging);
     const out = await this.runBands(shared, plan, signal);
     // Only after a clean finish: a task cut short may still be reading the buffer.
-    this.staging.give(shared.buffer);
+    if (shared.buffer.byteLength <= STAGING_MAX_BYTES) this.staging.give(shared.buffer);
+    else handBack();
     return out;
   }
 
@@ -206,12 +267,21 @@ export class RenderPool {
     try {
       // Every band settles before the render does, failed or not: a band still queued or running
       // would otherwise outlive the render's admission permit in piscina's bounded queue.
-      const settled = await Promise.allSettled(bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out }, { signal })));
+      // piscina's abort listener holds the task (and its source) as long as the signal lives,
+      // 20 s for a deadline: give it a signal of this call's own, unlinked when the bands end.
+      const own = new AbortController();
+      const relay = () => own.abort(signal?.reason);
+      if (signal?.aborted) relay();
+      signal?.addEventListener('abort', relay, { once: true });
+      const runs = bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out }, { signal: own.signal }));
+      const settled = await Promise.allSettled(runs).finally(() => signal?.removeEventListener('abort', relay));
       const failed = settled.find((r) => r.status === 'rejected');
       if (failed) throw failed.reason;
     } catch (e) {
       // piscina rejects with its AbortError for our deadline, and with its own abort or
       // "Terminating worker thread" when it is closed under a task: neither is a failed render.
+      // A caller that went away aborts with its own reason (ERR_REQUEST_ABANDONED).
+      if (signal?.aborted && signal.reason instanceof FoldwiseError) throw signal.reason;
       if (signal?.aborted) throw this.refusal('ERR_RENDER_TIMEOUT', 'resampling took longer than allowed', e);
       if (this.closing) throw this.stopping(e);
       throw new FoldwiseError('ERR_RENDER_FAILED', 'resampling failed', { cause: e });

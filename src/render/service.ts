@@ -15,7 +15,8 @@ import type { IdentityMemo } from './identity.js';
 import { renditionKey, strongEtag } from './key.js';
 import { checkRequestedSize, type PlannedRendition, planRendition } from './plan.js';
 import type { RenderPool } from './pool.js';
-import { decodeSource, type LoadedSource, readSource } from './source.js';
+import { admitRendition } from './admit-job.js';
+import { decodeSource, type LoadedSource, type ReadSource, readSource } from './source.js';
 import { resampleWhileDecoding } from './streamed.js';
 import { type Stage, StageClock, type StageTiming } from './timings.js';
 
@@ -49,6 +50,13 @@ export interface RenderContext {
    * version of the path asked for.
    */
   decoded?: LoadedSource;
+  /**
+   * The caller holds a lease of the memory budget covering this render (the upload hook's
+   * ladder): the render is not admitted again.
+   */
+  admitted?: boolean;
+  /** Aborts when no one waits for the render any more (every caller gone): ERR_REQUEST_ABANDONED. */
+  signal?: AbortSignal;
 }
 
 export interface Rendition {
@@ -80,24 +88,28 @@ interface Resampled {
   deadline: AbortSignal;
 }
 
-/** The caller's decoded source when it is the version at `path`, else the source read and decoded now (or null: streamed). */
-async function decodedSource(ctx: RenditionContextInternal, path: string, q: RenditionQuery): Promise<LoadedSource | Resampled> {
+/** The caller's decoded source when it is the version asked for. */
+function givenSource(ctx: RenditionContextInternal): LoadedSource | undefined {
   const given = ctx.decoded;
-  if (given && given.identity.key === ctx.asked.key && given.identity.version === ctx.asked.version) return given;
-  const read = await readSource(ctx.origin, path, ctx.limits, ctx.clock);
+  return given && given.identity.key === ctx.asked.key && given.identity.version === ctx.asked.version ? given : undefined;
+}
+
+/** The given source, else `read` decoded now (or resampled while it decodes: streamed). */
+async function decodedSource(ctx: RenditionContextInternal, source: LoadedSource | ReadSource, q: RenditionQuery): Promise<LoadedSource | Resampled> {
+  if ('decoded' in source) return source;
+  const read = source;
   const streamed = await resampleWhileDecoding(ctx, read, q);
   if (streamed) return { ...streamed, hasAlpha: false, identity: read.identity };
   return decodeSource(read, ctx.limits, ctx.clock);
 }
 
 /**
- * The pixel-holding stages (read, decode, plan, resample), under one admission permit:
- * overlapped where they can be (streamed.ts), else one after the other. The
- * decoded source lives only in this frame, so once it returns nothing references the source's
- * pixels and the permit can go to the next render while this one encodes.
+ * The pixel-holding stages (decode, plan, resample), overlapped where they can be
+ * (streamed.ts), else one after the other. The decoded source lives only in this frame.
  */
-async function resampleSource(ctx: RenditionContextInternal, path: string, q: RenditionQuery): Promise<Resampled> {
-  const source = await decodedSource(ctx, path, q);
+async function resampleSource(ctx: RenditionContextInternal, read: LoadedSource | ReadSource, q: RenditionQuery): Promise<Resampled> {
+  const source = await decodedSource(ctx, read, q);
+  ctx.signal?.throwIfAborted();
   if ('raster' in source) return source;
   const { decoded, identity } = source;
   const src = decoded.raster;
@@ -105,7 +117,8 @@ async function resampleSource(ctx: RenditionContextInternal, path: string, q: Re
   const sigma = q.prefilter === 'auto' ? ctx.adaptiveSigma?.(src, first.plan, identity) : undefined;
   const { layout, plan } = sigma ? planRendition(src, q, ctx.limits, sigma) : first;
   const deadline = AbortSignal.timeout(ctx.limits.renderTimeoutMs);
-  const raster = await ctx.clock.time('resample', () => ctx.pool.resample(src, plan, deadline));
+  const stop = ctx.signal ? AbortSignal.any([ctx.signal, deadline]) : deadline;
+  const raster = await ctx.clock.time('resample', () => ctx.pool.resample(src, plan, stop));
   return { raster, layout, plan, hasAlpha: decoded.hasAlpha, identity, deadline };
 }
 
@@ -115,30 +128,36 @@ async function produce(
   q: RenditionQuery,
   accept: string | undefined,
 ): Promise<{ entry: CacheEntry; identity: SourceIdentity }> {
-  const release = await ctx.pool.admit();
-  let done: Resampled;
+  // The origin read comes before admission: a slow upstream holds no memory budget.
+  const given = givenSource(ctx);
+  const source = given ?? (await readSource(ctx.origin, path, ctx.limits, ctx.clock, ctx.signal));
+  ctx.signal?.throwIfAborted();
+  const lease = ctx.admitted ? undefined : await admitRendition(ctx, given ? given.decoded : source as ReadSource, q, accept);
+  // The lease is held until the encode has really ended (a deadline stops the wait, not libvips).
+  let ended: Promise<unknown> = Promise.resolve();
   try {
-    done = await resampleSource(ctx, path, q);
+    const done = await resampleSource(ctx, source, q);
+    const { raster, layout, plan, deadline } = done;
+    const format: OutputFormat = q.format === 'auto' ? negotiateFormat(accept, done.hasAlpha) : q.format;
+    const encoding = encodeImage(raster, { format, quality: q.quality, background: q.background, canvas: layout.canvas });
+    ended = encoding.catch(() => undefined);
+    const body = await ctx.clock.time('encode', () =>
+      withDeadline(encoding, deadline, () => ctx.pool.refusal('ERR_RENDER_TIMEOUT', 'encoding took longer than allowed')),
+    );
+    return { entry: entryOf(body, format, plan), identity: done.identity };
   } finally {
-    release();
+    void ended.then(() => lease?.release());
   }
-  const { raster, layout, plan, deadline } = done;
-  const format: OutputFormat = q.format === 'auto' ? negotiateFormat(accept, done.hasAlpha) : q.format;
-  const body = await ctx.clock.time('encode', () =>
-    withDeadline(
-      encodeImage(raster, { format, quality: q.quality, background: q.background, canvas: layout.canvas }),
-      deadline,
-      () => ctx.pool.refusal('ERR_RENDER_TIMEOUT', 'encoding took longer than allowed'),
-    ),
-  );
-  const entry: CacheEntry = {
+}
+
+function entryOf(body: Buffer, format: OutputFormat, plan: Plan): CacheEntry {
+  return {
     body,
     contentType: outputFormats[format].contentType,
     etag: strongEtag(body),
     headers: { 'rendition-plan': formatPlanHeader(plan) },
     createdAt: Date.now(),
   };
-  return { entry, identity: done.identity };
 }
 
 interface RenditionContextInternal extends RenderContext {
@@ -173,13 +192,14 @@ export async function renderRendition(
     return { entry: hit.entry, cache: `hit-${hit.tier}`, timings: clock.timings, key };
   }
   ctx.onLookup?.('miss');
-  const { value: entry } = await ctx.flight.run(key, async () => {
-    const { entry: made, identity: read } = await produce({ ...ctx, clock, asked: identity }, path, query, accept);
+  // The render's signal aborts once no caller waits for it any more (the flight counts them).
+  const { value: entry } = await ctx.flight.run(key, async (abandoned) => {
+    const { entry: made, identity: read } = await produce({ ...ctx, clock, asked: identity, signal: abandoned }, path, query, accept);
     // The source changed between identify and read: file the bytes under what was read.
     const storeKey = read.version === identity.version ? key : renditionKey(read, canonical, fmt);
     if (storeKey !== key) ctx.identities?.forget(path);
     await clock.time('cache', () => ctx.cache.set(storeKey, made));
     return made;
-  });
+  }, ctx.signal);
   return { entry, cache: 'miss', timings: clock.timings, key };
 }

@@ -20,6 +20,8 @@ export interface StreamContext {
   pool: RenderPool;
   limits: Limits;
   clock: StageClock;
+  /** Aborts when no one waits for the render any more. */
+  signal?: AbortSignal;
   adaptiveSigma?: unknown;
   knownAdaptiveSigma?: (plan: Plan, identity: SourceIdentity) => { sigma: { x: number; y: number } | undefined } | null;
 }
@@ -65,10 +67,13 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
   const planned = streamPlan(ctx, probe, q, source.identity);
   if (!planned) return null;
   const deadline = AbortSignal.timeout(ctx.limits.decodeTimeoutMs + ctx.limits.renderTimeoutMs);
+  const stop = ctx.signal ? AbortSignal.any([ctx.signal, deadline]) : deadline;
   const file = spool.path();
+  // The file's bytes count in /dev/shm until it is removed (and libvips is done with it).
+  const unhold = ctx.pool.holdSpool(probe.width * probe.height * probe.channels * (probe.depth / 8));
   const written = probe.write(file);
   try {
-    const raster = await ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, written, planned.plan, deadline));
+    const raster = await ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, written, planned.plan, stop));
     return { ...planned, raster, deadline };
   } catch (e) {
     if (e instanceof SpoolWriteError) return null;
@@ -79,6 +84,6 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
     // libvips may make or write the file after this (a deadline settled `written` first, or its
     // job was still waiting for a pool thread): once it is done, remove the file again, or it
     // would hold memory in /dev/shm until the pool closes.
-    probe.idle().then(() => spool.remove(file)).catch(() => undefined);
+    probe.idle().then(() => spool.remove(file)).catch(() => undefined).finally(unhold);
   }
 }

@@ -3,7 +3,9 @@ import { formatPlanHeader, kernelNames } from '../core/index.js';
 import { strongEtag } from '../render/key.js';
 import { checkRequestedSize } from '../render/plan.js';
 import { renderRendition } from '../render/service.js';
-import { loadSource } from '../render/source.js';
+import { readHeader } from '../media/header.js';
+import { decodeCost } from '../render/cost.js';
+import { decodeLimits, decodeSource, readSource } from '../render/source.js';
 import { serverTiming, StageClock } from '../render/timings.js';
 import { decodeRgb, encodePng, riskMap, spectrumPicture } from '../risk-pictures/index.js';
 import { planResponseOf } from '../risk/adaptive.js';
@@ -39,15 +41,18 @@ export default async function aliasRiskRoutes(app: FastifyInstance): Promise<voi
     const identity = await clock.time('origin', () => ctx.identities?.identify(path) ?? ctx.origin.identify(path));
     let analyseMs = 0;
     const { spectrum, from } = await spectra.get(identity, async (analyse) => {
-      const release = await ctx.pool.admit();
+      // Read before admission; admitted for the decode and as much again for the analysis (an allowance).
+      const read = await readSource(ctx.origin, path, ctx.limits, clock);
+      const header = await readHeader(read.bytes, decodeLimits(ctx.limits));
+      const lease = await ctx.pool.admit(2 * decodeCost(header), `analysing a ${header.width}x${header.height} source`);
       try {
-        const { decoded } = await loadSource(ctx.origin, path, ctx.limits, clock);
+        const { decoded } = await decodeSource(read, ctx.limits, clock);
         const start = performance.now();
         const s = analyse(decoded.raster);
         analyseMs = performance.now() - start;
         return s;
       } finally {
-        release();
+        lease.release();
       }
     });
     const start = performance.now();

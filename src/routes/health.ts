@@ -27,8 +27,13 @@ export default async function healthRoutes(app: FastifyInstance): Promise<void> 
 
   app.get(
     '/healthz',
-    { config: { openapi: { summary: 'Liveness', tags: ['operations'], responses: { '200': jsonBody('Alive', healthSchema) } } } },
-    async (_req, reply) => reply.header('cache-control', 'no-store').send({ status: 'ok' }),
+    { config: { openapi: { summary: 'Liveness', tags: ['operations'], responses: { '200': jsonBody('Alive', healthSchema), ...problemResponses(503) } } } },
+    async (_req, reply) => {
+      // Memory that cannot come back down is the one failure a restart cures.
+      const stuck = app.memoryStuck();
+      if (stuck) throw new FoldwiseError('ERR_MEMORY_STUCK', stuck);
+      return reply.header('cache-control', 'no-store').send({ status: 'ok' });
+    },
   );
 
   app.get(

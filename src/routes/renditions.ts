@@ -4,6 +4,7 @@ import { renderRendition } from '../render/service.js';
 import { serverTiming } from '../render/timings.js';
 import { problemResponses, queryParameters } from '../schemas/openapi.js';
 import { compileRenditionQuery } from '../schemas/rendition.js';
+import { abandonSignal } from './abandon.js';
 import { matchesIfNoneMatch } from './conditional.js';
 import { renditionRequestReader } from './rendition-request.js';
 
@@ -22,7 +23,8 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
 
   async function handler(request: FastifyRequest, reply: FastifyReply) {
     const { path, query: q, canonical } = requests.read(request.url, request.query as Record<string, unknown>);
-    const r = await renderRendition(renderContext, path, q, request.headers.accept, canonical);
+    const signal = abandonSignal(reply);
+    const r = await renderRendition({ ...renderContext, signal }, path, q, request.headers.accept, canonical);
     reply
       .header('etag', r.entry.etag)
       // For validly signed URLs the signing plugin (src/plugins/signing.ts), which checked the

@@ -1,9 +1,9 @@
 /**
- * A client that disconnects mid-render, over a real socket on 127.0.0.1. The render is
- * shared work (single-flight; other callers may be waiting on it), so it is not cancelled:
- * it must finish into the cache, release its render slot and leave no flight behind.
- * Synchronised on events (the task reaching the pool, the server seeing the socket close),
- * never on sleeps.
+ * A client that disconnects mid-render, over a real socket on 127.0.0.1. The render is shared
+ * work (single-flight): it is stopped at its next stage boundary when no one waits for it any
+ * more, and finishes into the cache while another caller still waits. Either way it releases
+ * its memory and leaves no flight behind. Synchronised on events (the task reaching the pool,
+ * the server seeing the socket close), never on sleeps.
  */
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
@@ -27,36 +27,66 @@ beforeAll(async () => {
 afterAll(() => t.close());
 
 describe('a client disconnects mid-render', () => {
-  it('the render completes into the cache; no slot or flight is leaked', async () => {
+  /** Holds the next resample task at the pool's door until `release` is called. */
+  function holdNextTask() {
     let started!: () => void;
     const reachedPool = new Promise<void>((r) => (started = r));
     let release!: () => void;
     const gate = new Promise<void>((r) => (release = r));
-    // Hold the resample task at the pool's door until the client has gone.
     tapNextRun(t.app.renderPool, async (original, task, options) => {
       started();
       await gate;
       return original(task, options);
     });
+    return { reachedPool, release };
+  }
 
-    const url = '/v1/renditions/flat.png?width=24&format=png';
+  function connect(url: string) {
     const req = http.request({ host: '127.0.0.1', port, path: url, agent: false });
     req.on('error', () => undefined); // the abort below surfaces here; expected
     req.end();
-    await reachedPool;
+    return req;
+  }
+
+  it('alone, its render is aborted: nothing is cached, the memory and the flight are released', async () => {
+    const held = holdNextTask();
+    const url = '/v1/renditions/flat.png?width=24&format=png';
+    const req = connect(url);
+    await held.reachedPool;
     const closedBefore = serverClosedSockets;
     req.destroy();
     await until(() => serverClosedSockets > closedBefore);
-    expect(t.app.renderPool.inFlight).toBe(1);
-
-    release();
+    held.release();
     const flight = t.app.renditionCache.flight as SingleFlight;
-    await until(() => t.app.renderPool.inFlight === 0 && flight.size === 0);
+    await until(() => t.app.renderPool.memory().admittedBytes === 0 && flight.size === 0);
+    expect(t.app.renderPool.inFlight).toBe(0);
 
     const again = await t.app.inject({ url });
     expect(again.statusCode).toBe(200);
-    expect(again.headers['server-timing']).toMatch(/hit/);
+    // Aborted, so rendered anew: the first render was not finished into the cache.
+    expect(again.headers['server-timing']).toMatch(/miss/);
     expect(at(await pixels(again.rawPayload), 2, 2)).toEqual([60, 120, 180]);
+  });
+
+  it('while another caller waits, the render completes into the cache for it', async () => {
+    const held = holdNextTask();
+    const url = '/v1/renditions/flat.png?width=20&format=png';
+    const flight = t.app.renditionCache.flight as SingleFlight;
+    const leaving = connect(url);
+    await held.reachedPool;
+    const joined = new Promise<void>((r) => t.app.renditionCache.events.once('join', () => r()));
+    const staying = t.app.inject({ url });
+    await joined;
+    const closedBefore = serverClosedSockets;
+    leaving.destroy();
+    await until(() => serverClosedSockets > closedBefore);
+    held.release();
+    const res = await staying;
+    expect(res.statusCode).toBe(200);
+    expect(at(await pixels(res.rawPayload), 2, 2)).toEqual([60, 120, 180]);
+    await until(() => t.app.renderPool.memory().admittedBytes === 0 && flight.size === 0);
+    const again = await t.app.inject({ url });
+    expect(again.headers['server-timing']).toMatch(/hit/);
   });
 
   it('keeps serving other clients afterwards', async () => {

@@ -1,0 +1,119 @@
+/**
+ * Admission by memory through HTTP (issue 18's cases): a source too costly for the budget is
+ * refused with 413 and its numbers, one that fits is served without the admitted bytes ever
+ * passing the budget, a job that cannot get room in time gets 503 with Retry-After, and a
+ * client that leaves while its job waits frees its place. Jobs are held at the pool's door
+ * (pool-tap.ts) and the tests wait on the pool's counters, never on sleeps.
+ */
+import http from 'node:http';
+import type { AddressInfo } from 'node:net';
+import { writeFile } from 'node:fs/promises';
+import { join } from 'node:path';
+import sharp from 'sharp';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { build, type TestApp } from '../helpers/build.js';
+import { tapNextRun, until } from '../faults/pool-tap.js';
+
+const MiB = 2 ** 20;
+const BUDGET = 128 * MiB;
+
+/** A 16-bit RGBA PNG of zeros, `side` square: tiny on disk, `side`^2 x 8 bytes decoded. */
+async function zeros16(side: number): Promise<Buffer> {
+  return sharp({ create: { width: side, height: side, channels: 4, background: { r: 0, g: 0, b: 0, alpha: 0 } } })
+    .toColourspace('rgb16')
+    .png({ compressionLevel: 9 })
+    .toBuffer();
+}
+
+let t: TestApp;
+let port = 0;
+beforeAll(async () => {
+  t = await build({ config: { pool: { memoryBudgetBytes: BUDGET, maxWaitMs: 60_000 } } });
+  await writeFile(join(t.sourceDir, 'bomb.png'), await zeros16(8192));
+  await writeFile(join(t.sourceDir, 'small.png'), await zeros16(2048));
+  await t.app.listen({ port: 0, host: '127.0.0.1' });
+  port = (t.app.server.address() as AddressInfo).port;
+});
+afterAll(() => t.close());
+
+function holdNextTask() {
+  let started!: () => void;
+  const reachedPool = new Promise<void>((r) => (started = r));
+  let release!: () => void;
+  const gate = new Promise<void>((r) => (release = r));
+  tapNextRun(t.app.renderPool, async (original, task, options) => {
+    started();
+    await gate;
+    return original(task, options);
+  });
+  return { reachedPool, release };
+}
+
+describe('admission by memory', () => {
+  it('an 8192x8192 16-bit RGBA PNG over the budget: 413 ERR_SOURCE_TOO_COSTLY with the numbers, nothing admitted', async () => {
+    const res = await t.app.inject({ url: '/v1/renditions/bomb.png?width=320&format=png' });
+    expect(res.statusCode).toBe(413);
+    const body = res.json() as { code: string; detail: string };
+    expect(body.code).toBe('ERR_SOURCE_TOO_COSTLY');
+    expect(body.detail).toContain('8192x8192 16-bit 4-channel');
+    expect(body.detail).toContain(`(${BUDGET} bytes)`);
+    expect(t.app.renderPool.memory().peakAdmittedBytes).toBe(0);
+  });
+
+  it('a source that fits is served; the admitted bytes never pass the budget and return to 0', async () => {
+    const res = await t.app.inject({ url: '/v1/renditions/small.png?width=320&format=png' });
+    expect(res.statusCode).toBe(200);
+    const meta = await sharp(res.rawPayload).metadata();
+    expect([meta.width, meta.height, meta.depth]).toEqual([320, 320, 'ushort']);
+    await until(() => t.app.renderPool.memory().admittedBytes === 0);
+    const m = t.app.renderPool.memory();
+    expect(m.peakAdmittedBytes).toBeGreaterThan(2048 * 2048 * 8);
+    expect(m.peakAdmittedBytes).toBeLessThanOrEqual(BUDGET);
+    // The staging pool keeps at most one idle buffer per thread.
+    expect(m.stagingIdleBytes).toBeLessThanOrEqual(64 * MiB * t.app.renderPool.threads);
+  });
+
+  it('a client that leaves while its job waits for memory frees its place in line', async () => {
+    const held = holdNextTask();
+    const first = t.app.inject({ url: '/v1/renditions/small.png?width=300&format=png' });
+    await held.reachedPool;
+    const req = http.request({ host: '127.0.0.1', port, path: '/v1/renditions/small.png?width=310&format=png', agent: false });
+    req.on('error', () => undefined);
+    req.end();
+    await until(() => t.app.renderPool.memory().waiting === 1);
+    req.destroy();
+    await until(() => t.app.renderPool.memory().waiting === 0);
+    held.release();
+    expect((await first).statusCode).toBe(200);
+    await until(() => t.app.renderPool.memory().admittedBytes === 0);
+    expect(t.app.renderPool.inFlight).toBe(0);
+  });
+});
+
+describe('a bounded wait', () => {
+  it('a job that cannot get room within maxWaitMs gets 503 ERR_OVERLOADED with Retry-After', async () => {
+    const quick = await build({ sourceDir: t.sourceDir, config: { pool: { memoryBudgetBytes: BUDGET, maxWaitMs: 0 } } });
+    try {
+      let started!: () => void;
+      const reachedPool = new Promise<void>((r) => (started = r));
+      let release!: () => void;
+      const gate = new Promise<void>((r) => (release = r));
+      tapNextRun(quick.app.renderPool, async (original, task, options) => {
+        started();
+        await gate;
+        return original(task, options);
+      });
+      const first = quick.app.inject({ url: '/v1/renditions/small.png?width=200&format=png' });
+      await reachedPool;
+      const second = await quick.app.inject({ url: '/v1/renditions/small.png?width=210&format=png' });
+      expect(second.statusCode).toBe(503);
+      expect(second.json()).toMatchObject({ code: 'ERR_OVERLOADED' });
+      expect(second.headers['retry-after']).toBe(String(quick.config.pool.retryAfterSeconds));
+      release();
+      expect((await first).statusCode).toBe(200);
+      await until(() => quick.app.renderPool.memory().admittedBytes === 0);
+    } finally {
+      await quick.close();
+    }
+  });
+});
