@@ -59,8 +59,10 @@ export default async function healthRoutes(app: FastifyInstance): Promise<void> 
       if (failed.length > 0) {
         throw new FoldwiseError('ERR_NOT_READY', failed.map(([name, c]) => `${name}: ${c.detail}`).join('; '));
       }
-      // Informational: slots in use never fail readiness.
-      checks.pool = { ok: true, detail: `${pool.inFlight} of ${pool.bound} render slots in use` };
+      // Informational: a full budget never fails readiness (hits are still served).
+      const m = pool.memory();
+      const mib = (b: number) => (b / 2 ** 20).toFixed(0);
+      checks.pool = { ok: true, detail: `${mib(m.admittedBytes)} of ${mib(m.budgetBytes)} MiB admitted; ${m.running} jobs running, ${m.waiting} waiting` };
       // Degraded tiers (no shared cache, no cross-replica single-flight, no disk) never make a
       // replica unready: taking every replica out together would turn it into an outage.
       for (const [tier, health] of Object.entries(app.renditionCache.health())) checks[`cache-${tier}`] = health;

@@ -17,18 +17,24 @@ async function appWith(limits: Partial<PressureOptions>) {
 }
 
 describe('pressure plugin (load shedding)', () => {
-  it('past the RSS limit answers 503, Retry-After and problem+json ERR_OVERLOADED', async () => {
-    const app = await appWith({ maxRssBytes: 1 }); // any live process is above 1 byte
-    await vi.waitFor(() => expect(app.isUnderPressure()).toBe(true)); // first sample taken
-    const res = await app.inject('/v1/work');
+  it('never sheds on RSS alone: memory is bounded by admission, and RSS that does not come back must not lock the replica out', async () => {
+    // A one-byte RSS limit and a one-byte heap limit on two apps: only the heap one sheds.
+    const rss = await appWith({ maxRssBytes: 1, maxHeapUsedBytes: 0 });
+    const heap = await appWith({ maxHeapUsedBytes: 1 });
+    await vi.waitFor(() => expect(heap.isUnderPressure()).toBe(true)); // a sample was taken
+    expect(rss.isUnderPressure()).toBe(false);
+    const served = await rss.inject('/v1/work');
+    expect(served.statusCode).toBe(200);
+    const res = await heap.inject('/v1/work');
     expect(res.statusCode).toBe(503);
     expect(res.headers['retry-after']).toBe('3');
     expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
     const body = res.json();
     expect(body).toMatchObject({ status: 503, code: 'ERR_OVERLOADED' });
-    expect(body.detail).toMatch(/resident memory/);
+    expect(body.detail).toMatch(/heap/);
     expect(body.stack).toBeUndefined();
-    await app.close();
+    await rss.close();
+    await heap.close();
   });
 
   it('keeps liveness answering while shedding', async () => {
