@@ -83,6 +83,17 @@ describe('GET /v1/alias-risk/{source}', () => {
     expect(none.viewing.degreesPerPixel).toBeCloseTo(0.02131, 4);
   });
 
+  it('documents the per-pattern fields in the OpenAPI document', async () => {
+    const doc = (await get('/docs')).json();
+    const schema = doc.paths['/v1/alias-risk/{source}'].get.responses['200'].content['application/json'].schema;
+    const pattern = schema.properties.patterns.items.properties;
+    for (const name of ['kind', 'frequency', 'apparent', 'cyclesPerDegree', 'contrast', 'threshold', 'margin', 'description']) {
+      expect(pattern[name], name).toBeDefined();
+    }
+    expect(pattern.kind.enum).toEqual(['fold', 'beat', 'clean']);
+    expect(schema.properties.viewing.description).toMatch(/0\.0213 degrees/);
+  });
+
   it('analyses a source once for many widths and views', async () => {
     await get('/v1/alias-risk/corner.png?width=100');
     const before = t.app.spectra.analyses;
