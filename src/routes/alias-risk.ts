@@ -11,7 +11,8 @@ import { decodeRgb, encodePng, riskMap, spectrumPicture } from '../risk-pictures
 import { planResponseOf } from '../risk/adaptive.js';
 import { assessRendition, riskBody } from '../risk/report.js';
 import { compileAliasRiskQuery } from '../schemas/alias-risk.js';
-import { problemResponses, queryParameters } from '../schemas/openapi.js';
+import { jsonBody, problemResponses, queryParameters } from '../schemas/openapi.js';
+import { riskReportSchema } from '../schemas/risk-report.js';
 import { compileRenditionQuery } from '../schemas/rendition.js';
 import { matchesIfNoneMatch } from './conditional.js';
 import { sourcePathOf } from './path.js';
@@ -94,7 +95,7 @@ export default async function aliasRiskRoutes(app: FastifyInstance): Promise<voi
         openapi: {
           summary: 'The alias risk of a rendition, before it is rendered',
           description:
-            'Takes the rendition parameters of /v1/renditions/{source} plus view. Answers, for the rendition that the same query would produce: source and target size, scale and new Nyquist frequency per axis, the plan, the folded fractions with no prefilter and with the planned filter, a score 0..1 and a level, the strongest peaks beyond the new Nyquist with the frequency each aliases to, a per-region grid and a recommended sigma. view=map and view=spectrum answer PNG pictures.',
+            'Takes the rendition parameters of /v1/renditions/{source} plus view. Answers, for the rendition that the same query would produce: source and target size, scale and new Nyquist frequency per axis, the plan, every false pattern a viewer could see (fold or beat, its apparent frequency, contrast, CSF threshold and margin in threshold units), a level, advice with its cost, the folded fractions, the strongest peaks beyond the new Nyquist with the frequency each aliases to, a per-region grid and a recommended sigma. view=map and view=spectrum answer PNG pictures.',
           tags: ['alias-risk'],
           parameters: [
             { name: 'source', in: 'path', required: true, description: 'Path under the origin root.', schema: { type: 'string' } },
@@ -103,7 +104,10 @@ export default async function aliasRiskRoutes(app: FastifyInstance): Promise<voi
           responses: {
             '200': {
               description: 'The report (JSON) or picture (PNG). Headers: ETag, Cache-Control, Server-Timing, Rendition-Plan.',
-              content: { 'application/json': {}, 'image/png': {} },
+              content: {
+                'application/json': (jsonBody('', riskReportSchema) as { content: Record<string, unknown> }).content['application/json'],
+                'image/png': {},
+              },
             },
             '304': { description: 'Not modified (If-None-Match matched the ETag).' },
             ...problemResponses(400, 403, 404, 413, 415, 422, 500, 503),

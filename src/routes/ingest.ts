@@ -61,7 +61,9 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
 
   async function workOf(request: FastifyRequest): Promise<IngestWork> {
     const q = parseQuery(query, request.query as Record<string, unknown>);
-    const options = { widths: q.widths, formats: q.formats };
+    const rendition: Record<string, string> = {};
+    for (const name of ['prefilter', 'kernel', 'light'] as const) if (q[name] !== undefined) rendition[name] = q[name];
+    const options = { widths: q.widths, formats: q.formats, rendition };
     const binding = { digest: q.digest, source: q.source };
     if (signedRequests.has(request)) requireBinding(binding);
     const body: unknown = request.body;

@@ -115,3 +115,33 @@ export function spearman(a: number[], b: number[]): number {
   }
   return sab / Math.sqrt(saa * sbb);
 }
+
+/**
+ * The band-limited reference (bandLimited) read `d` pixels further along both axes: each
+ * component multiplied by exp(2 pi i k d / n) (the shift theorem), so an output pixel centred
+ * between source pixels has its exact ideal value.
+ */
+export function shiftedBandLimited(lin: Float64Array, n: number, nx: number, ny: number, d: number): Float64Array {
+  const z = new Float64Array(2 * n * n);
+  for (let i = 0; i < n * n; i++) z[2 * i] = lin[i];
+  fft2dReference(z, n);
+  for (let v = 0; v < n; v++) {
+    const kv = v < n / 2 ? v : v - n;
+    for (let u = 0; u < n; u++) {
+      const ku = u < n / 2 ? u : u - n;
+      const i = 2 * (v * n + u);
+      if (Math.abs(ku / n) > nx + 1e-12 || Math.abs(kv / n) > ny + 1e-12 || Math.abs(ku) === n / 2 || Math.abs(kv) === n / 2) {
+        z[i] = z[i + 1] = 0;
+        continue;
+      }
+      const p = (2 * Math.PI * (ku + kv) * d) / n;
+      const re = z[i] * Math.cos(p) - z[i + 1] * Math.sin(p);
+      z[i + 1] = z[i] * Math.sin(p) + z[i + 1] * Math.cos(p);
+      z[i] = re;
+    }
+  }
+  fft2dReference(z, n, true);
+  const out = new Float64Array(n * n);
+  for (let i = 0; i < n * n; i++) out[i] = z[2 * i];
+  return out;
+}
