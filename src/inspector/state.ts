@@ -3,6 +3,7 @@
  * made from it. The page URL carries only what differs from the defaults, so a shared link
  * stays short and reads like the request it shows.
  */
+import { legacyLook, pointSampling } from './copies.js';
 
 export interface InspectState {
   source: string;
@@ -39,12 +40,6 @@ const defaults: InspectState = {
 export const startSource = 'fabrics/pinstripe.png';
 export const startWidth = '320';
 
-/**
- * The legacy look: what common resizers produce (encoded values averaged, Lanczos-3, nothing
- * removed first); and point sampling, one source pixel per output pixel.
- */
-export const legacyLook = { light: 'encoded', kernel: 'lanczos3', prefilter: 'none' } as const;
-export const pointSampling = { kernel: 'nearest', prefilter: 'none' } as const;
 
 export function fromParams(params: URLSearchParams): InspectState {
   const state = { ...defaults };

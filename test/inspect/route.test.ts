@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { kernelNames } from '../../src/core/index.js';
-import { legacyLook, pointSampling } from '../../src/inspector/state.js';
+import { legacyLook, pointSampling } from '../../src/inspector/copies.js';
 import { build, type TestApp } from '../helpers/build.js';
 
 describe('GET /inspect and its assets', () => {
