@@ -16,8 +16,9 @@ export interface Report {
   scale: Pair;
   nyquist: Pair;
   level: Level;
-  patterns: Pattern[];
-  viewing: { degreesPerPixel: number; density: number };
+  /** Absent only from a service older than the visibility model; the page then shows none. */
+  patterns?: Pattern[];
+  viewing?: { degreesPerPixel: number; density: number };
   advice?: { cost: string; [key: string]: unknown }[];
   reason: string;
   plan: { header: string };
@@ -46,7 +47,7 @@ export const levelWords: Record<Level, string> = {
 
 /** The most visible pattern that is not a clean pass, if any. */
 const worst = (report: Report) =>
-  report.patterns.filter((p) => p.kind !== 'clean').reduce<Pattern | undefined>((a, p) => (!a || p.margin > a.margin ? p : a), undefined);
+  (report.patterns ?? []).filter((p) => p.kind !== 'clean').reduce<Pattern | undefined>((a, p) => (!a || p.margin > a.margin ? p : a), undefined);
 
 function sayCopy(name: string, report: Report): string {
   const top = worst(report);
@@ -129,10 +130,12 @@ export function renderNumbers(r: Reports): void {
   term(list, 'Shrink factor', both(report.scale, (v) => `${fixed(v, 2)}×`), 'scale');
   term(list, 'Finest pattern the new grid holds (new Nyquist)',
     `${both(report.nyquist, (v) => fixed(v))} cycles per source px: one stripe pair every ${both(report.nyquist, period)} source px`, 'nyquist');
-  const { degreesPerPixel: dpp, density } = report.viewing;
-  term(list, 'Seen from', `arm's length, one output px = ${fixed(dpp, 4)}° (CSS reference pixel${density !== 1 ? `, density ${density}` : ''})`, 'viewing');
+  if (report.viewing) {
+    const { degreesPerPixel: dpp, density } = report.viewing;
+    term(list, 'Seen from', `arm's length, one output px = ${fixed(dpp, 4)}° (CSS reference pixel${density !== 1 ? `, density ${density}` : ''})`, 'viewing');
+  }
   term(list, 'In the analysis\'s words', report.reason, 'reason');
-  renderPatterns(report.patterns);
+  renderPatterns(report.patterns ?? []);
 }
 
 /** Empties the verdict, figures and patterns, so nothing from an earlier request remains. */

@@ -21,8 +21,14 @@ export interface ZoomWindow {
 /** Side of the enlarged window in output pixels, and the canvas size it is drawn to. */
 export const windowSide = 48;
 const canvasSide = 288;
-/** Window positions are tried every `step` pixels, and flush with the right and bottom edges. */
+/** Window positions are tried every `step` pixels, kept `inset` px off the picture's edges. */
 const step = 4;
+/**
+ * Kernels treat the picture's borders differently (each extends the edge its own way), so the
+ * copies always differ a little there; a window that starts at the border would show that,
+ * not the patterns. Pictures too small for the inset are searched edge to edge.
+ */
+const inset = 8;
 
 /** Grey level of interleaved 8-bit RGBA (Rec. 709 luma weights on the codes, common practice). */
 export function greyOf(rgba: ArrayLike<number>, pixels: number): Float64Array {
@@ -45,9 +51,10 @@ function summed(values: (i: number) => number, w: number, h: number): Float64Arr
 }
 
 function positions(extent: number, side: number): number[] {
+  const margin = extent >= side + 2 * inset ? inset : 0;
   const list: number[] = [];
-  for (let p = 0; p + side < extent; p += step) list.push(p);
-  list.push(extent - side);
+  for (let p = margin; p + side < extent - margin; p += step) list.push(p);
+  list.push(extent - margin - side);
   return list;
 }
 

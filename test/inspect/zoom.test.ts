@@ -18,11 +18,12 @@ describe('the window where the two copies differ most', () => {
     const win = differingWindow(legacy, foldwise, 200, 160);
     expect(win.width).toBe(48);
     expect(win.height).toBe(48);
-    // The 48 px window holds the whole 40 px patch: x in 112..120, y in 32..40 (step 4).
+    // The 48 px window holds the whole 40 px patch: x in 112..120, y in 32..40 (8 + steps of 4).
     expect(win.x).toBeGreaterThanOrEqual(112);
     expect(win.x).toBeLessThanOrEqual(120);
     expect(win.y).toBeGreaterThanOrEqual(32);
     expect(win.y).toBeLessThanOrEqual(40);
+    expect((win.x - 8) % 4).toBe(0);
     // Stripes of +-30 over 40 x 40 of 48 x 48 pixels: variance 900 x 1600/2304 = 625, spread 25.
     expect(win.spread).toBeCloseTo(25, 6);
   });
@@ -32,12 +33,22 @@ describe('the window where the two copies differ most', () => {
     const b = picture(64, 64, (x, y) => ((x * 7 + y * 3) % 256) + 12);
     const win = differingWindow(a, b, 64, 64);
     expect(win.spread).toBeCloseTo(0, 9);
-    expect(win).toMatchObject({ x: 0, y: 0, width: 48, height: 48 });
+    expect(win).toMatchObject({ x: 8, y: 8, width: 48, height: 48 });
   });
 
-  it('reaches the right and bottom edges and fits pictures smaller than the window', () => {
+  it('keeps 8 px off the edges, where kernels differ by their edge handling alone', () => {
+    // A difference in the last pixel only is never inside a window: every window ties at
+    // spread 0 and the first, 8 px in from the top left, is taken.
     const edge = picture(101, 77, (x, y) => (x === 100 && y === 76 ? 255 : 0));
-    expect(differingWindow(edge, picture(101, 77, () => 0), 101, 77)).toMatchObject({ x: 53, y: 29 });
+    expect(differingWindow(edge, picture(101, 77, () => 0), 101, 77)).toMatchObject({ x: 8, y: 8, spread: 0 });
+    // One pixel 9 px in from the right and bottom edges is inside the last window, x 101 - 8 - 48.
+    const inner = picture(101, 77, (x, y) => (x === 91 && y === 67 ? 255 : 0));
+    expect(differingWindow(inner, picture(101, 77, () => 0), 101, 77)).toMatchObject({ x: 45, y: 21 });
+  });
+
+  it('reaches the edges of pictures too small for the inset, and fits those smaller than the window', () => {
+    const edge = picture(60, 50, (x, y) => (x === 59 && y === 49 ? 255 : 0));
+    expect(differingWindow(edge, picture(60, 50, () => 0), 60, 50)).toMatchObject({ x: 12, y: 2 });
     const tiny = differingWindow(picture(30, 36, () => 1), picture(30, 36, () => 0), 30, 36);
     expect(tiny).toMatchObject({ x: 0, y: 0, width: 30, height: 36 });
   });
