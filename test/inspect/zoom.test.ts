@@ -41,8 +41,8 @@ describe('the window where the two copies differ most', () => {
     // spread 0 and the first, 8 px in from the top left, is taken.
     const edge = picture(101, 77, (x, y) => (x === 100 && y === 76 ? 255 : 0));
     expect(differingWindow(edge, picture(101, 77, () => 0), 101, 77)).toMatchObject({ x: 8, y: 8, spread: 0 });
-    // One pixel 9 px in from the right and bottom edges is inside the last window, x 101 - 8 - 48.
-    const inner = picture(101, 77, (x, y) => (x === 91 && y === 67 ? 255 : 0));
+    // A pixel 8 px in from the right and bottom edges is inside the last window only, x 101 - 8 - 48.
+    const inner = picture(101, 77, (x, y) => (x === 92 && y === 68 ? 255 : 0));
     expect(differingWindow(inner, picture(101, 77, () => 0), 101, 77)).toMatchObject({ x: 45, y: 21 });
   });
 
