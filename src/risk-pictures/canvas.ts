@@ -52,7 +52,7 @@ export function label(img: RgbImage, text: string, x: number, y: number, colour:
 }
 
 /** Writes `text` with a one-pixel `halo` around every stroke, legible on any background. */
-export function haloLabel(img: RgbImage, text: string, x: number, y: number, colour: Rgb, halo: Rgb): void {
-  for (const [dx, dy] of [[-1, 0], [1, 0], [0, -1], [0, 1], [-1, -1], [1, 1], [-1, 1], [1, -1]]) label(img, text, x + dx, y + dy, halo);
-  label(img, text, x, y, colour);
+export function haloLabel(img: RgbImage, text: string, x: number, y: number, colour: Rgb, halo: Rgb, scale = 1): void {
+  for (const [dx, dy] of [[-1, 0], [1, 0], [0, -1], [0, 1], [-1, -1], [1, 1], [-1, 1], [1, -1]]) label(img, text, x + dx, y + dy, halo, scale);
+  label(img, text, x, y, colour, scale);
 }

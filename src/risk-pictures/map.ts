@@ -14,8 +14,10 @@ export const UNTINTED_BELOW = 0.25;
 /** The ramp spans 1/4 to 8 threshold units on a log scale (five doublings), 1.0 at 0.4. */
 const LOG2_LOW = -2;
 const LOG2_HIGH = 3;
-const LEGEND_HEIGHT = 58;
-const MIN_WIDTH = 480;
+const LEGEND_HEIGHT = 96;
+const MIN_WIDTH = 584;
+/** Legend text in font cells of 2 x 2 px (14 px capitals). */
+const S = 2;
 
 /** Position of a margin on the ramp, 0..1 (log scale). */
 export const rampPosition = (margin: number) =>
@@ -40,18 +42,19 @@ function greyBackdrop(img: RgbImage): void {
 
 function legend(img: RgbImage, y0: number): void {
   const x0 = 12;
-  const width = Math.min(img.width - 24, 456);
-  label(img, 'HOW VISIBLE, IN THRESHOLD UNITS (1 = JUST VISIBLE)', x0, y0 + 6, INK);
-  const barY = y0 + 18;
+  const width = Math.min(img.width - 24, 560);
+  label(img, 'VISIBILITY, THRESHOLD UNITS (1 = JUST VISIBLE)', x0, y0 + 6, INK, S);
+  const barY = y0 + 26;
   for (let x = 0; x < width; x++) tintRect(img, x0 + x, barY, x0 + x + 1, barY + 12, marginColour(x / (width - 1)), 1);
   strokeRect(img, x0 - 1, barY - 1, x0 + width, barY + 12, INK);
   for (let e = LOG2_LOW; e <= LOG2_HIGH; e++) {
     const x = x0 + Math.round(((e - LOG2_LOW) / (LOG2_HIGH - LOG2_LOW)) * (width - 1));
     const text = e === LOG2_LOW ? '1/4' : e === LOG2_HIGH ? '8+' : String(2 ** e).replace('0.', '.');
     tintRect(img, x, barY + 12, x + 1, barY + (e === 0 ? 20 : 16), INK, 1);
-    label(img, text, Math.max(x0, Math.min(x - Math.floor(textWidth(text, 1) / 2), x0 + width - textWidth(text, 1))), barY + 22, INK);
+    const left = Math.max(x0, Math.min(x - Math.floor(textWidth(text, S) / 2), x0 + width - textWidth(text, S)));
+    label(img, text, left, barY + 22, INK, S);
   }
-  label(img, 'NO TINT: UNDER 1/4, NOTHING A VIEWER WILL SEE', x0, barY + 32, INK);
+  label(img, 'NO TINT: UNDER 1/4, NOTHING TO SEE', x0, barY + 44, INK, S);
 }
 
 /**
@@ -79,7 +82,7 @@ export function riskMap(
       const y1 = Math.round(((r + 1) * h) / rows);
       tintRect(img, x0, y0, x1, y1, marginColour(rampPosition(margin)), alphaOf(margin));
       strokeRect(img, x0, y0, x1 - 1, y1 - 1, [70, 70, 70], 0);
-      if (margin >= UNTINTED_BELOW && x1 - x0 > 30 && y1 - y0 > 12) haloLabel(img, marginText(margin), x0 + 4, y0 + 4, PAPER, INK);
+      if (margin >= UNTINTED_BELOW && x1 - x0 > 56 && y1 - y0 > 22) haloLabel(img, marginText(margin), x0 + 5, y0 + 5, PAPER, INK, S);
     }
   }
   const whole = crop.x <= 0 && crop.y <= 0 && crop.width >= source.width && crop.height >= source.height;

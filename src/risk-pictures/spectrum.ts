@@ -18,6 +18,8 @@ const LEFT = 64;
 const TOP = 30;
 const BOTTOM = 48;
 const RIGHT = 120;
+/** Labels in font cells of 2 x 2 px (14 px capitals): legible where the page shows the picture smaller. */
+const S = 2;
 const TICKS = [-0.5, -0.25, 0, 0.25, 0.5];
 
 /** First frequency (source cycles/px, up to 0.5) where |H| falls to 1/2; undefined if it never does. */
@@ -40,13 +42,13 @@ function axes(img: RgbImage, side: number, at: (f: number) => number): void {
     const p = at(f);
     const text = tickText(f);
     tintRect(img, LEFT + p, TOP + side, LEFT + p + 1, TOP + side + 5, INK, 1);
-    label(img, text, LEFT + p - Math.floor(textWidth(text, 1) / 2), TOP + side + 8, INK);
+    label(img, text, Math.min(LEFT + side + 8 - textWidth(text, S), LEFT + p - Math.floor(textWidth(text, S) / 2)), TOP + side + 8, INK, S);
     tintRect(img, LEFT - 5, TOP + p, LEFT, TOP + p + 1, INK, 1);
-    label(img, text, LEFT - 8 - textWidth(text, 1), TOP + p - 3, INK);
+    label(img, text, LEFT - 8 - textWidth(text, S), Math.min(TOP + side - 7 * S, Math.max(TOP - 4, TOP + p - 7)), INK, S);
   }
-  const xTitle = 'FX, CYCLES PER SOURCE PX (RIGHT)';
-  label(img, xTitle, LEFT + Math.floor((side - textWidth(xTitle, 1)) / 2), TOP + side + 24, INK);
-  label(img, 'FY, CYCLES PER SOURCE PX (DOWN)', LEFT - 40, 8, INK);
+  const xTitle = 'FX, CYCLES PER SOURCE PX';
+  label(img, xTitle, LEFT + Math.floor((side - textWidth(xTitle, S)) / 2), TOP + side + 28, INK, S);
+  label(img, 'FY (DOWN), CYCLES PER SOURCE PX', 8, 6, INK, S);
 }
 
 function colourBar(img: RgbImage, side: number): void {
@@ -56,10 +58,10 @@ function colourBar(img: RgbImage, side: number): void {
   for (let db = 0; db <= RANGE_DB; db += 10) {
     const y = TOP + Math.round((db / RANGE_DB) * (side - 1));
     tintRect(img, x0 + 16, y, x0 + 21, y + 1, INK, 1);
-    label(img, db === 0 ? '0 DB' : `-${db}`, x0 + 24, y - 3, INK);
+    label(img, db === 0 ? '0 DB' : `-${db}`, x0 + 24, Math.min(TOP + side - 7 * S, Math.max(TOP - 4, y - 7)), INK, S);
   }
-  label(img, 'BELOW', x0 + 24, TOP + side + 8, INK);
-  label(img, 'PEAK', x0 + 24, TOP + side + 18, INK);
+  label(img, 'BELOW', x0 - 8, TOP + side + 8, INK, S);
+  label(img, 'PEAK', x0 - 8, TOP + side + 28, INK, S);
 }
 
 /** The spectrum picture of one source for one plan. */
@@ -95,12 +97,12 @@ export function spectrumPicture(spec: SourceSpectrum, report: Pick<RiskReport, '
   if (nx < 0.5 || ny < 0.5) {
     const corner = box(nx, ny, NYQUIST_LINE, 0);
     const text = `NEW NYQUIST ${nx === ny ? nx.toFixed(3) : `${nx.toFixed(3)} / ${ny.toFixed(3)}`}`;
-    const x = Math.max(LEFT + 2, Math.min(corner.x0, LEFT + side - textWidth(text, 1) - 2));
-    haloLabel(img, text, x, Math.max(TOP + 2, corner.y0 - 11), NYQUIST_LINE, INK);
+    const x = Math.max(LEFT + 2, Math.min(corner.x0, LEFT + side - textWidth(text, S) - 2));
+    haloLabel(img, text, x, Math.max(TOP + 2, corner.y0 - 7 * S - 4), NYQUIST_LINE, INK, S);
   } else {
-    haloLabel(img, 'NO NEW NYQUIST: NOTHING FOLDS', LEFT + 4, TOP + 4, NYQUIST_LINE, INK);
+    haloLabel(img, 'NO NEW NYQUIST: NOTHING FOLDS', LEFT + 4, TOP + 4, NYQUIST_LINE, INK, S);
   }
-  if (cx !== undefined || cy !== undefined) haloLabel(img, 'DASHED: FILTER HALF GAIN', LEFT + 4, TOP + side - 12, CUTOFF_LINE, INK);
+  if (cx !== undefined || cy !== undefined) haloLabel(img, 'DASHED: FILTER HALF GAIN', LEFT + 4, TOP + side - 7 * S - 4, CUTOFF_LINE, INK, S);
   axes(img, side, at);
   colourBar(img, side);
   return img;

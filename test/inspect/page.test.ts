@@ -83,9 +83,9 @@ describe.skipIf(browserSkipReason)('the inspector page in chromium', () => {
     expect(first.spectrum).toMatchObject({ width: 64 + 512 + 120, height: 30 + 512 + 48 });
     expect(await inkIn(page, 'spectrum-img', { x0: 64, y0: 30 + 512 + 2, x1: 64 + 512, y1: 30 + 512 + 48 })).toBeGreaterThan(200);
     expect(await inkIn(page, 'spectrum-img', { x0: 0, y0: 30, x1: 60, y1: 30 + 512 })).toBeGreaterThan(100);
-    // The map: a 640 px preview (640 x 768 for 2000 x 2400) and a 58 px legend under it.
-    expect(first.map).toMatchObject({ width: 640, height: 768 + 58 });
-    expect(await inkIn(page, 'map-img', { x0: 0, y0: 768, x1: 480, y1: 768 + 58 })).toBeGreaterThan(200);
+    // The map: a 640 px preview (640 x 768 for 2000 x 2400) and a 96 px legend under it.
+    expect(first.map).toMatchObject({ width: 640, height: 768 + 96 });
+    expect(await inkIn(page, 'map-img', { x0: 0, y0: 768, x1: 480, y1: 768 + 96 })).toBeGreaterThan(200);
   });
 
   it('changes the width with the keyboard alone and updates pictures, numbers and URL', async () => {

@@ -87,7 +87,7 @@ describe('view=map', () => {
   it('adds a legend strip below the picture, on the same ramp', () => {
     expect(img.height).toBeGreaterThan(100 + 40);
     expect(img.width).toBeGreaterThanOrEqual(400);
-    // The bar starts at x 12, 18 px below the picture: the palest colour of the ramp.
-    expect(pixel(img, 12, 100 + 22)).toEqual(marginColour(0));
+    // The bar starts at x 12, 26 px below the picture: the palest colour of the ramp.
+    expect(pixel(img, 12, 100 + 30)).toEqual(marginColour(0));
   });
 });
