@@ -7,7 +7,7 @@
 import { getImage, getJson, hideImage, showImage, ServiceProblem, type FetchedImage } from './api.js';
 import { clearCrops, showCrops, type Copy } from './crops.js';
 import { clearNumbers, renderNumbers, renderPlan, type Report } from './report-view.js';
-import { apiUrls, fromParams, pageSearch, readForm, startSource, startWidth, writeForm, type ApiUrls, type InspectState } from './state.js';
+import { apiUrls, fields, fromParams, pageSearch, readForm, startSource, startWidth, writeForm, type ApiUrls, type InspectState } from './state.js';
 
 const byId = <T extends HTMLElement>(id: string): T => document.getElementById(id) as T;
 
@@ -101,7 +101,13 @@ async function run(state: InspectState, history: 'push' | 'replace' | 'keep'): P
     renderPlan(plannedImage.status === 'fulfilled' ? plannedImage.value.plan : null);
     const copiesShown = shownCopies.every((_, i) => images[i].status === 'fulfilled' && shown[i].status === 'fulfilled');
     const value = <T>(r: PromiseSettledResult<T>) => (r.status === 'fulfilled' ? r.value : undefined);
-    if (planned.status === 'fulfilled') renderNumbers({ planned: planned.value, legacy: value(legacy), points: value(points) });
+    const linkFor = (change: string) => {
+      const params = new URLSearchParams(change);
+      const names = [...params.keys()];
+      if (names.length === 0 || !names.every((n) => fields.includes(n as (typeof fields)[number]))) return undefined;
+      return pageSearch({ ...state, ...Object.fromEntries(params) });
+    };
+    if (planned.status === 'fulfilled') renderNumbers({ planned: planned.value, legacy: value(legacy), points: value(points) }, linkFor);
     else clearNumbers();
     if (copiesShown) showCrops(state.source, shownCopies);
     else clearCrops('The enlarged crops need the copies side by side.');

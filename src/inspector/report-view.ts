@@ -19,7 +19,8 @@ export interface Report {
   /** Absent only from a service older than the visibility model; the page then shows none. */
   patterns?: Pattern[];
   viewing?: { degreesPerPixel: number; density: number };
-  advice?: { cost: string; [key: string]: unknown }[];
+  /** What a change of the query would remove, and what it costs the picture. */
+  advice?: { change: string; effect: string; cost: string }[];
   reason: string;
   plan: { header: string };
 }
@@ -105,22 +106,33 @@ function renderPatterns(patterns: Pattern[]): void {
   body.replaceChildren(...rows);
 }
 
-function renderAdvice(report: Report): void {
+/** A page link that applies a query change (`prefilter=auto`), or undefined when it cannot. */
+export type LinkFor = (change: string) => string | undefined;
+
+function renderAdvice(report: Report, linkFor: LinkFor): void {
   const items = (report.advice ?? []).map((a) => {
-    const words = [a.text, a.summary, a.message].find((t): t is string => typeof t === 'string' && t !== '');
-    return Object.assign(document.createElement('li'), { textContent: words ? `${words} ${a.cost}` : a.cost });
+    const li = document.createElement('li');
+    if (a.change) {
+      const code = Object.assign(document.createElement('code'), { textContent: a.change });
+      const href = linkFor(a.change);
+      const link = href ? Object.assign(document.createElement('a'), { href }) : undefined;
+      link?.append(code);
+      li.append(link ?? code, ': ');
+    }
+    li.append(`${a.effect}. Cost: ${a.cost}`.replace(/\.\./g, '.'));
+    return li;
   });
   byId('advice').replaceChildren(...items);
 }
 
 /** Fills the verdict, the advice, the figures and the pattern table from the reports. */
-export function renderNumbers(r: Reports): void {
+export function renderNumbers(r: Reports, linkFor: LinkFor): void {
   const report = r.planned;
   badge('legacy-level', r.legacy?.level);
   badge('planned-level', report.level);
   badge('points-level', r.points?.level);
   byId('verdict-text').textContent = verdict(r);
-  renderAdvice(report);
+  renderAdvice(report, linkFor);
   const list = byId('numbers');
   list.replaceChildren();
   term(list, 'Legacy look', r.legacy ? `${r.legacy.level}: ${levelWords[r.legacy.level]}` : 'no report', 'legacy-level');
