@@ -52,7 +52,17 @@ export interface PlanRequest {
    * Content-adaptive extra blur chosen by the alias-risk analysis (source pixels, per axis).
    * Only honoured when prefilter is 'auto'.
    */
-  adaptiveSigma?: { x: number; y: number };
+  adaptiveSigma?: AdaptiveFilter;
+}
+
+/**
+ * What prefilter=auto adds: extra Gaussian sigma (source px, per axis; 0 in the visibility
+ * plan) and, per axis, a factor on the kernel's own cut-off (1 = unchanged, 0.6..1).
+ */
+export interface AdaptiveFilter {
+  x: number;
+  y: number;
+  cutoff?: { x: number; y: number };
 }
 
 /** One axis of a plan. */
@@ -71,6 +81,11 @@ export interface AxisPlan {
   sigmaFrom?: 'kernel' | 'content' | 'asked' | 'none';
   /** Number of reduce-by-2 pyramid stages before the final exact resample. */
   pyramidLevels: number;
+  /**
+   * Factor on the stretched kernel's own cut-off (prefilter=auto lowers it where a false
+   * pattern would show: the kernel is stretched by scale / cutoff). Absent or 1: unchanged.
+   */
+  cutoff?: number;
 }
 
 export interface Plan {

@@ -1,7 +1,8 @@
 /**
  * The alias risk of every width of a ladder, from one spectrum analysis of the source: the
  * spectrum is estimated once, then each width's plan is checked against it (cheap), and the
- * report is turned into what the warnings need (where, moiré or jaggies, what avoids it).
+ * report is turned into what the warnings need (where, what a viewer sees, what avoids it and
+ * at what cost), in the visibility model's words.
  */
 import type { Limits } from '../config.js';
 import { CEIL_DB, FLOOR_DB, type RiskReport, type SourceSpectrum } from '../core/risk/index.js';
@@ -43,12 +44,16 @@ function isPeriodic(report: RiskReport): boolean {
 
 /** What a warning needs to know about one width, from its risk report. */
 export function widthRisk(width: number, report: RiskReport): WidthRisk {
+  const top = report.patterns.find((p) => p.kind !== 'clean');
   return {
     width,
     level: report.level,
     score: report.score,
     grid: linearGrid(report.grid),
-    periodic: isPeriodic(report),
+    periodic: top ? top.source === 'line' : isPeriodic(report),
+    pattern: top?.description,
+    advice: report.advice[0],
+    left: report.level === 'low' ? undefined : report.reason.split('; ').find((p) => p.startsWith('prefilter=auto ') || p.startsWith('the rendition does not shrink')),
     remedySigma: report.level === 'low' ? undefined : Math.max(report.recommendedSigma.x, report.recommendedSigma.y),
   };
 }

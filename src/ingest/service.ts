@@ -31,6 +31,8 @@ export interface IngestOptions {
   widths?: readonly number[];
   /** Formats to render; default config.ingest.formats. */
   formats?: readonly IngestFormat[];
+  /** Rendition parameters for every rung (prefilter, kernel, light), as a rendition URL spells them. */
+  rendition?: Readonly<Record<string, string>>;
 }
 
 /** Prepared ingest work: `key` identifies the manifest; `compute` builds it. */
@@ -100,6 +102,7 @@ export class IngestService extends EventEmitter {
    * the decoded pixels are not kept, so waiting work holds bytes on disk, not rasters.
    */
   async fromUpload(bytes: Buffer, options: IngestOptions): Promise<IngestWork> {
+    this.checkRendition(options);
     if (!this.config.ingest.writable) {
       throw new FoldwiseError('ERR_INGEST_READ_ONLY', 'uploads are switched off: the folder origin is read-only (ingest.writable)');
     }
@@ -112,6 +115,7 @@ export class IngestService extends EventEmitter {
 
   /** A source already in the origin: identified now (404 here), read and decoded by `compute`. */
   async fromSource(path: string, options: IngestOptions): Promise<IngestWork> {
+    this.checkRendition(options);
     const identity = await this.render.origin.identify(path);
     return {
       key: `source:${identity.key}@${identity.version}|${this.optionsKey(options)}`,
@@ -120,7 +124,13 @@ export class IngestService extends EventEmitter {
   }
 
   private optionsKey(options: IngestOptions): string {
-    return `${options.widths?.join(',') ?? 'ladder'}|${(options.formats ?? this.config.ingest.formats).join(',')}`;
+    const extra = new URLSearchParams(options.rendition ?? {}).toString();
+    return `${options.widths?.join(',') ?? 'ladder'}|${(options.formats ?? this.config.ingest.formats).join(',')}|${extra}`;
+  }
+
+  /** Refuses, before any work, rendition parameters the rendition route would refuse (same codes). */
+  checkRendition(options: IngestOptions): void {
+    this.query.parse({ width: '1', ...options.rendition });
   }
 
   /** Validates the bytes with the rendition path's own loader (same limits) and stores them. */
@@ -148,7 +158,8 @@ export class IngestService extends EventEmitter {
     const { raster } = decoded;
     const formats = options.formats ?? this.config.ingest.formats;
     const widths = ladderFor(raster.width, options.widths);
-    const queryFor = (width: number, format: IngestFormat) => this.query.parse({ width: String(width), format });
+    const extra = options.rendition ?? {};
+    const queryFor = (width: number, format: IngestFormat) => this.query.parse({ width: String(width), format, ...extra });
     // The render path's spectrum store: analysed once per source version, and the renders'
     // content-adaptive prefilter below finds it there by identity.
     const before = this.spectra.analyses;
@@ -165,7 +176,7 @@ export class IngestService extends EventEmitter {
       const r = await renderRendition({ ...this.render, decoded: loaded }, sourceKey, queryFor(step.width, format));
       this.emit('rendition', { source: sourceKey, width: step.width, format, cache: r.cache, bytes: r.entry.body.length } satisfies RenditionEvent);
       return {
-        url: renditionUrl(sourceKey, step.width, format, this.config.signing.keys[0]),
+        url: renditionUrl(sourceKey, step.width, format, this.config.signing.keys[0], extra),
         width: step.width,
         height: step.height,
         format,

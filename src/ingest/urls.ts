@@ -10,8 +10,15 @@ function encodeKey(key: string): string {
   return key.split('/').map(encodeURIComponent).join('/');
 }
 
-export function renditionUrl(sourceKey: string, width: number, format: string, signingKey?: string): string {
+/** `extra`: the rendition parameters the upload asked for (prefilter, kernel, light), in that order. */
+export function renditionUrl(
+  sourceKey: string,
+  width: number,
+  format: string,
+  signingKey?: string,
+  extra: Readonly<Record<string, string>> = {},
+): string {
   const path = `${renditionsPrefix}${encodeKey(sourceKey)}`;
-  const query = { width: String(width), format };
-  return signingKey ? signUrl(path, query, signingKey) : `${path}?width=${width}&format=${format}`;
+  const query: Record<string, string> = { width: String(width), format, ...extra };
+  return signingKey ? signUrl(path, query, signingKey) : `${path}?${new URLSearchParams(query)}`;
 }

@@ -12,37 +12,42 @@ export interface WidthRisk {
   level: RiskLevel;
   score: number;
   grid: RiskGrid;
-  /** True when the folding energy is a periodic pattern (stripes, weaves), not broadband detail. */
+  /** True when the strongest false pattern is a spectral line (stripes, weaves), not broadband detail. */
   periodic: boolean;
-  /** A prefilter sigma (source px) that brings this width down to low risk, when one is known. */
+  /** The strongest false pattern in plain words (the alias-risk report's description). */
+  pattern?: string;
+  /** The report's first advice: the query change, what it does, and what it costs. */
+  advice?: { change: string; effect: string; cost: string };
+  /** Why prefilter=auto left it in place, when it did (the report's words). */
+  left?: string;
+  /** Older callers: a prefilter sigma (source px) that brings the folded energy under -40 dB. */
   remedySigma?: number;
 }
 
-function symptom(periodic: boolean): string {
-  // Periodic energy above the new Nyquist folds to a false low frequency (moiré); broadband
-  // energy folds to jagged edges and shimmer (Shannon 1949; common practice for the words).
-  return periodic ? 'moiré (fine periodic pattern)' : 'jagged edges and sparkle (fine detail)';
+function symptom(r: WidthRisk): string {
+  if (r.pattern) return r.pattern;
+  // Periodic energy folds to a false low frequency; broadband to jagged edges (Shannon 1949).
+  return r.periodic ? 'shows false bands (fine periodic pattern)' : 'shows jagged edges and sparkle (fine detail)';
 }
 
-/** Rounded up to a tenth, so the suggested value is at least the recommended blur. */
-function sigmaText(sigma: number): string {
-  return (Math.ceil(sigma * 10) / 10).toFixed(1);
-}
-
-/** One sentence per width that is not low risk, smallest width first. */
+/**
+ * One sentence per width with a false pattern a viewer would see, smallest width first, in
+ * the alias-risk report's words (the same visibility model). The remedy never changes the
+ * width: a thumbnail stays a thumbnail.
+ */
 export function writeWarnings(risks: readonly WidthRisk[]): string[] {
   const sorted = [...risks].sort((a, b) => a.width - b.width);
   const out: string[] = [];
-  for (const [i, r] of sorted.entries()) {
+  for (const r of sorted) {
     if (r.level === 'low') continue;
     const where = describeRegion(r.grid) ?? 'the whole picture';
-    const verb = r.level === 'high' ? 'will show' : 'may show';
-    const safer = sorted.slice(i + 1).find((s) => s.level === 'low');
-    const sigma = r.remedySigma !== undefined && r.remedySigma > 0 ? `prefilter=${sigmaText(r.remedySigma)}` : undefined;
-    const fixes = [safer ? `${safer.width} px` : undefined, sigma]
-      .filter((f): f is string => f !== undefined);
-    const remedy = fixes.length > 0 ? `; ${fixes.join(' or ')} avoids it` : '';
-    out.push(`at ${r.width} px ${where} ${verb} ${symptom(r.periodic)}${remedy}`);
+    const verb = r.level === 'high' ? 'will show' : 'may show, on close inspection,';
+    const remedy = r.advice
+      ? `; ${r.advice.change} ${r.advice.effect}: ${r.advice.cost}`
+      : r.left
+        ? `; ${r.left}`
+        : '';
+    out.push(`at ${r.width} px ${where} ${verb} a pattern that ${symptom(r)}${remedy}`);
   }
   return out;
 }

@@ -6,7 +6,7 @@ import type { SourceIdentity } from '../origins/types.js';
  * Bump when anything changes the bytes of a rendition for the same request (core filters,
  * codec settings): old cache entries then stop matching instead of being served stale.
  */
-export const pipelineVersion = 'fw-pipeline-3';
+export const pipelineVersion = 'fw-pipeline-4';
 
 // Hits ask for the same few keys over and over; hashing is most of a hit's key cost. The memo
 // maps the exact hashed text to its digest (so it cannot answer for different inputs) and is

@@ -1,7 +1,7 @@
 import type { Limits } from '../config.js';
 import { layoutRendition, type RenditionLayout } from '../core/geometry.js';
 import { makePlan } from '../core/index.js';
-import type { Plan } from '../core/types.js';
+import type { AdaptiveFilter, Plan } from '../core/types.js';
 import { FoldwiseError } from '../errors.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 
@@ -49,7 +49,7 @@ export function planRendition(
   source: { width: number; height: number },
   q: RenditionQuery,
   limits: Limits,
-  adaptiveSigma?: { x: number; y: number },
+  adaptiveSigma?: AdaptiveFilter,
 ): PlannedRendition {
   const layout = layoutRendition(source, {
     width: q.width,

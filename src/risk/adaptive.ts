@@ -1,11 +1,12 @@
 /**
- * The content-adaptive prefilter of the render path: prefilter=auto asks the alias-risk model
- * for extra sigma on sources whose planned rendition would still alias visibly
- * (src/core/risk: adaptiveSigma), using the cached spectrum of that source version.
+ * The content-adaptive filter of the render path: prefilter=auto asks the visibility model for
+ * per-axis cut-off factors on sources whose planned rendition would show a false pattern
+ * (src/core/risk: adaptiveFilter), using the cached spectrum of that source version. The hooks
+ * keep the render context's `{ x, y }` shape (extra sigma, 0 here) and carry the cut-offs in it.
  */
 import { planResponse } from '../core/index.js';
-import { adaptiveSigma } from '../core/risk/index.js';
-import type { PixelRaster, Plan } from '../core/types.js';
+import { adaptiveFilter } from '../core/risk/index.js';
+import type { AdaptiveFilter, PixelRaster, Plan } from '../core/types.js';
 import type { SourceIdentity } from '../origins/types.js';
 import type { SpectrumStore } from './spectra.js';
 
@@ -17,9 +18,9 @@ export const planResponseOf = (plan: Plan) => (axis: 'x' | 'y', f: number) => pl
  * cannot fold anything, so it never costs an analysis.
  */
 export function adaptiveHook(store: SpectrumStore) {
-  return (raster: PixelRaster, plan: Plan, identity?: SourceIdentity): { x: number; y: number } | undefined =>
+  return (raster: PixelRaster, plan: Plan, identity?: SourceIdentity): AdaptiveFilter | undefined =>
     plan.x.scale > 1 || plan.y.scale > 1
-      ? adaptiveSigma(store.ofRaster(raster, identity), plan, planResponseOf(plan))
+      ? adaptiveFilter(store.ofRaster(raster, identity), plan, planResponseOf(plan))
       : undefined;
 }
 
@@ -29,9 +30,9 @@ export function adaptiveHook(store: SpectrumStore) {
  * the source is decoded; null when that spectrum is not at hand (the pixels are needed first).
  */
 export function knownAdaptiveHook(store: SpectrumStore) {
-  return (plan: Plan, identity: SourceIdentity): { sigma: { x: number; y: number } | undefined } | null => {
+  return (plan: Plan, identity: SourceIdentity): { sigma: AdaptiveFilter | undefined } | null => {
     if (!(plan.x.scale > 1 || plan.y.scale > 1)) return { sigma: undefined };
     const spectrum = store.known(identity);
-    return spectrum ? { sigma: adaptiveSigma(spectrum, plan, planResponseOf(plan)) } : null;
+    return spectrum ? { sigma: adaptiveFilter(spectrum, plan, planResponseOf(plan)) } : null;
   };
 }

@@ -6,8 +6,8 @@
 import type { Limits } from '../config.js';
 import type { RenditionLayout } from '../core/geometry.js';
 import { formatPlanHeader } from '../core/index.js';
-import { adaptiveSigma, assessRisk, type RiskReport, type SourceSpectrum } from '../core/risk/index.js';
-import type { Plan } from '../core/types.js';
+import { adaptiveFilter, assessRisk, type RiskReport, type SourceSpectrum } from '../core/risk/index.js';
+import type { AdaptiveFilter, Plan } from '../core/types.js';
 import { planRendition } from '../render/plan.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import { planResponseOf } from './adaptive.js';
@@ -15,8 +15,8 @@ import { planResponseOf } from './adaptive.js';
 export interface AssessedRendition {
   layout: RenditionLayout;
   plan: Plan;
-  /** Extra sigma prefilter=auto adds for this source (source px), if any. */
-  adaptive?: { x: number; y: number };
+  /** What prefilter=auto changed for this source (per-axis cut-off factors), if anything. */
+  adaptive?: AdaptiveFilter;
   report: RiskReport;
 }
 
@@ -24,9 +24,9 @@ export interface AssessedRendition {
 export function assessRendition(spectrum: SourceSpectrum, q: RenditionQuery, limits: Limits): AssessedRendition {
   const source = { width: spectrum.width, height: spectrum.height };
   const first = planRendition(source, q, limits);
-  const adaptive = q.prefilter === 'auto' ? adaptiveSigma(spectrum, first.plan, planResponseOf(first.plan)) : undefined;
+  const adaptive = q.prefilter === 'auto' ? adaptiveFilter(spectrum, first.plan, planResponseOf(first.plan)) : undefined;
   const { layout, plan } = adaptive ? planRendition(source, q, limits, adaptive) : first;
-  return { layout, plan, adaptive, report: assessRisk(spectrum, plan, planResponseOf(plan)) };
+  return { layout, plan, adaptive, report: assessRisk(spectrum, plan, planResponseOf(plan), q.density) };
 }
 
 /** The JSON body of GET /v1/alias-risk/{source}. */
@@ -44,12 +44,18 @@ export function riskBody(path: string, spectrum: SourceSpectrum, a: AssessedRend
       x: plan.x,
       y: plan.y,
       light: plan.light,
-      adaptiveSigma: a.adaptive ?? null,
+      adaptiveSigma: a.adaptive ? { x: a.adaptive.x, y: a.adaptive.y } : null,
+      adaptiveCutoff: a.adaptive?.cutoff ?? null,
       reason: plan.reason,
     },
     folded: report.folded,
     score: report.score,
     level: report.level,
+    margin: report.margin,
+    viewing: report.viewing,
+    cutoff: report.cutoff,
+    patterns: report.patterns,
+    advice: report.advice,
     peaks: report.peaks,
     grid: report.grid,
     recommendedSigma: report.recommendedSigma,

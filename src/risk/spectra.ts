@@ -9,7 +9,7 @@ import type { PixelRaster } from '../core/types.js';
 import type { SourceIdentity } from '../origins/types.js';
 
 /** Bump when the analysis changes (tiles, window, units): stored spectra then stop matching. */
-export const spectrumVersion = 'fw-spectrum-2';
+export const spectrumVersion = 'fw-spectrum-3';
 
 /** The part of a shared tier the store uses (RedisTier has it). */
 export interface SharedValues {

@@ -52,7 +52,9 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
 
   async function workOf(request: FastifyRequest): Promise<IngestWork> {
     const q = parseQuery(query, request.query as Record<string, unknown>);
-    const options = { widths: q.widths, formats: q.formats };
+    const rendition: Record<string, string> = {};
+    for (const name of ['prefilter', 'kernel', 'light'] as const) if (q[name] !== undefined) rendition[name] = q[name];
+    const options = { widths: q.widths, formats: q.formats, rendition };
     const body: unknown = request.body;
     if (Buffer.isBuffer(body)) return ingest.fromUpload(body, options);
     if (body === undefined || body === null) throw new FoldwiseError('ERR_INGEST_EMPTY', 'the request has no body: send image bytes or JSON naming a source');

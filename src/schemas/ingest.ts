@@ -31,6 +31,11 @@ export function ingestQuerySchema(maxDimension: number) {
     formats: commaList('formats', z.enum(ingestFormats, 'formats: each must be webp, avif, jpeg or png'), ingestFormats.length)
       .optional()
       .meta({ description: 'Comma list of formats; default ingest.formats (webp,jpeg).' }),
+    // The rendition parameters an upload may set for every rung; checked by the rendition
+    // query itself (the same codes as GET /v1/renditions), so only their text is bounded here.
+    prefilter: z.string().max(32).optional().meta({ description: 'As for a rendition: auto (default), none, or a Gaussian sigma in source px.' }),
+    kernel: z.string().max(32).optional().meta({ description: 'As for a rendition: auto (default) or a kernel name.' }),
+    light: z.string().max(32).optional().meta({ description: 'As for a rendition: linear (default) or encoded.' }),
     // The very signature parameter of the rendition query (one definition of its syntax).
     signature: renditionQueryShape({ maxDimension, kernelNames: [] }).signature,
   });

@@ -61,16 +61,26 @@ describe('GET /v1/alias-risk/{source}', () => {
     expect(res.json().folded.planned).toBeCloseTo(core.folded.planned, 12);
   });
 
-  it('raises sigma for prefilter=auto on a high-risk source, in the report and in the rendition', async () => {
+  // 0.275 cycles/px at s = 2 is 0.55 cycles per output px, 1.1x the new Nyquist: it folds.
+  it('lowers the cut-off for prefilter=auto on a source with a visible fold, in the report and in the rendition', async () => {
     const report = (await get('/v1/alias-risk/near.png?width=256')).json();
-    expect(report.plan.adaptiveSigma.x).toBeGreaterThan(0);
-    expect(report.plan.reason).toMatch(/raised by content/);
-    const sigma = report.plan.x.sigma.toFixed(2);
+    expect(report.plan.adaptiveCutoff.x).toBeLessThan(1);
+    expect(report.plan.adaptiveCutoff.y).toBe(1);
+    expect(report.plan.reason).toMatch(/cut-off lowered by content/);
+    expect(report.level).toBe('low');
+    const cx = report.plan.adaptiveCutoff.x.toFixed(2);
     const rendition = await get('/v1/renditions/near.png?width=256&format=png');
     expect(rendition.statusCode).toBe(200);
-    expect(rendition.headers['rendition-plan']).toContain(`sigma=${sigma},${sigma}`);
+    expect(rendition.headers['rendition-plan']).toContain(`cutoff=${cx},1.00`);
     const fixed = await get('/v1/renditions/near.png?width=256&format=png&prefilter=none');
-    expect(fixed.headers['rendition-plan']).toContain('sigma=0.00,0.00');
+    expect(fixed.headers['rendition-plan']).toContain('cutoff=1.00,1.00');
+    const none = (await get('/v1/alias-risk/near.png?width=256&prefilter=none')).json();
+    expect(none.level).toBe('high');
+    expect(none.patterns[0].kind).toBe('fold');
+    expect(none.patterns[0].margin).toBeGreaterThan(3);
+    expect(none.advice[0].change).toBe('prefilter=auto');
+    expect(none.advice[0].cost).toMatch(/show cleanly from \d+ px wide/);
+    expect(none.viewing.degreesPerPixel).toBeCloseTo(0.02131, 4);
   });
 
   it('analyses a source once for many widths and views', async () => {

@@ -33,11 +33,16 @@ describe('writeWarnings', () => {
     { ...base, width: 640, level: 'low', score: 0.01 },
   ];
 
-  it('names width, region, symptom and the nearest safe width', () => {
-    expect(writeWarnings(ladder)).toEqual([
-      'at 160 px the upper-left region will show moiré (fine periodic pattern); 480 px or prefilter=2.2 avoids it',
-      'at 320 px the upper-left region will show moiré (fine periodic pattern); 480 px or prefilter=2.2 avoids it',
+  // Never a larger width as the remedy: a thumbnail stays a thumbnail (the advice's cost says
+  // from which width the pattern shows cleanly, as a fact).
+  it('names width, region, what a viewer sees, and the advice with its cost', () => {
+    const advice = { change: 'prefilter=auto', effect: 'removes the false bands', cost: 'the stripes become an even navy; they show cleanly from 640 px wide' };
+    const seen = { pattern: 'folds into coarse bands 9.0 px apart (plainly visible)', advice };
+    expect(writeWarnings(ladder.map((r) => ({ ...r, ...seen })))).toEqual([
+      'at 160 px the upper-left region will show a pattern that folds into coarse bands 9.0 px apart (plainly visible); prefilter=auto removes the false bands: the stripes become an even navy; they show cleanly from 640 px wide',
+      'at 320 px the upper-left region will show a pattern that folds into coarse bands 9.0 px apart (plainly visible); prefilter=auto removes the false bands: the stripes become an even navy; they show cleanly from 640 px wide',
     ]);
+    for (const w of writeWarnings(ladder)) expect(w).not.toMatch(/480 px/);
   });
 
   it('is silent when every width is low risk', () => {
@@ -46,6 +51,6 @@ describe('writeWarnings', () => {
 
   it('words broadband risk and moderate levels differently, and omits remedies it cannot offer', () => {
     const [w] = writeWarnings([{ ...base, width: 800, level: 'moderate', score: 0.4, periodic: false, remedySigma: undefined }]);
-    expect(w).toBe('at 800 px the upper-left region may show jagged edges and sparkle (fine detail)');
+    expect(w).toBe('at 800 px the upper-left region may show, on close inspection, a pattern that shows jagged edges and sparkle (fine detail)');
   });
 });

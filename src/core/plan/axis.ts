@@ -19,6 +19,7 @@ export function planAxis(
   target: number,
   req: PlanRequest,
   adaptive: number,
+  adaptiveCutoff = 1,
 ): { axis: AxisPlan; why: string } {
   const scale = extent / target;
   const kernel = req.kernel === 'auto' ? autoKernel(scale) : req.kernel;
@@ -31,5 +32,11 @@ export function planAxis(
   const sigma = pre.sigma;
   const pyramidLevels = pyramidLevelsFor(k, scale);
   if (pyramidLevels > 0) words.push(`${pyramidLevels} pyramid level(s)`);
-  return { axis: { scale, kernel, sigma, sigmaFrom: pre.from, pyramidLevels }, why: words.join(', ') };
+  const axis: AxisPlan = { scale, kernel, sigma, sigmaFrom: pre.from, pyramidLevels };
+  // prefilter=auto's lowered cut-off applies to a stretched kernel on a shrinking axis only.
+  if (req.prefilter === 'auto' && k.stretch && scale > 1 && adaptiveCutoff > 0 && adaptiveCutoff < 1) {
+    axis.cutoff = adaptiveCutoff;
+    words.push(`cut-off lowered by content to ${adaptiveCutoff.toFixed(2)}x`);
+  }
+  return { axis, why: words.join(', ') };
 }

@@ -6,7 +6,9 @@ function pair(a: string, b: string): string {
 
 /**
  * Value of the `Rendition-Plan` response header, e.g.
- * `scale=5.000,5.000; kernel=bandlimit; sigma=1.75,1.75; prefilter=content; pyramid=1,1; light=linear`.
+ * `scale=5.000,5.000; kernel=bandlimit; sigma=0.00,0.00; prefilter=kernel; pyramid=1,1; cutoff=1.00,0.76; light=linear`.
+ * `cutoff` is the factor on each axis's kernel cut-off (prefilter=auto lowers it where a false
+ * pattern would show; 1.00 = the kernel's own).
  * Kernel names and the sigma's origin (`prefilter`: kernel, content, asked, none) collapse to
  * one when both axes agree; `prefilter=content` says the alias-risk analysis raised sigma.
  */
@@ -18,6 +20,7 @@ export function formatPlanHeader(plan: Plan): string {
     `sigma=${x.sigma.toFixed(2)},${y.sigma.toFixed(2)}`,
     `prefilter=${pair(x.sigmaFrom ?? 'kernel', y.sigmaFrom ?? 'kernel')}`,
     `pyramid=${x.pyramidLevels},${y.pyramidLevels}`,
+    `cutoff=${(x.cutoff ?? 1).toFixed(2)},${(y.cutoff ?? 1).toFixed(2)}`,
     `light=${plan.light}`,
   ].join('; ');
 }

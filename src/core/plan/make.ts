@@ -10,8 +10,9 @@ export function makePlan(req: PlanRequest): Plan {
   const crop = validateRequest(req);
   const ax = req.adaptiveSigma?.x ?? 0;
   const ay = req.adaptiveSigma?.y ?? 0;
-  const x = planAxis(crop.width, req.targetWidth, req, req.prefilter === 'auto' ? ax : 0);
-  const y = planAxis(crop.height, req.targetHeight, req, req.prefilter === 'auto' ? ay : 0);
+  const cut = req.adaptiveSigma?.cutoff;
+  const x = planAxis(crop.width, req.targetWidth, req, req.prefilter === 'auto' ? ax : 0, cut?.x);
+  const y = planAxis(crop.height, req.targetHeight, req, req.prefilter === 'auto' ? ay : 0, cut?.y);
   const light = req.light === 'encoded' ? 'encoded values (asked)' : 'linear light';
   const reason =
     x.why === y.why ? `both axes: ${x.why}; ${light}` : `x: ${x.why}; y: ${y.why}; ${light}`;

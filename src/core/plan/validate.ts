@@ -42,6 +42,8 @@ export function validateRequest(req: PlanRequest): CropRect {
   if (req.adaptiveSigma) {
     finiteAtLeast('adaptiveSigma.x', req.adaptiveSigma.x, 0);
     finiteAtLeast('adaptiveSigma.y', req.adaptiveSigma.y, 0);
+    const c = req.adaptiveSigma.cutoff;
+    if (c && !(c.x > 0 && c.x <= 1 && c.y > 0 && c.y <= 1)) throw new RangeError('adaptive cut-off factors must lie in (0, 1]');
   }
   return validCrop(req);
 }

@@ -21,7 +21,8 @@ const cache = new Map<string, WeightTable>();
  * i 2^levels). Without a pyramid the filter is the kernel stretched by the factor, fused with
  * the Gaussian prefilter; after a pyramid it is designed so that the whole chain has that same
  * response (compensate.ts). Cached per
- * (sizes, crop, kernel, sigma, levels); the cache holds at most 64 tables.
+ * (sizes, crop, kernel, sigma, levels, cut-off); the cache holds at most 64 tables. A cut-off
+ * factor c < 1 (prefilter=auto) stretches the kernel by 1/c more: its response becomes H(f / c).
  */
 export function finalTable(
   srcLen: number,
@@ -30,7 +31,8 @@ export function finalTable(
   dstLen: number,
   ax: AxisPlan,
 ): WeightTable {
-  const key = `${srcLen}|${crop0}|${cropLen}|${dstLen}|${ax.kernel}|${ax.sigma}|${ax.pyramidLevels}`;
+  const cut = ax.cutoff !== undefined && ax.cutoff > 0 && ax.cutoff < 1 ? ax.cutoff : 1;
+  const key = `${srcLen}|${crop0}|${cropLen}|${dstLen}|${ax.kernel}|${ax.sigma}|${ax.pyramidLevels}|${cut}`;
   const hit = cache.get(key);
   if (hit) {
     cache.delete(key);
@@ -42,10 +44,10 @@ export function finalTable(
   const scale = cropLen / dstLen;
   const unit = 2 ** ax.pyramidLevels;
   const step = scale / unit;
-  const stretch = kernel.stretch && step > 1 ? step : 1;
+  const stretch = kernel.stretch && step > 1 ? step / cut : 1;
   const filter =
     ax.pyramidLevels > 0
-      ? compensatedFilter(kernel, scale, ax.sigma, ax.pyramidLevels)
+      ? compensatedFilter(kernel, scale / cut, ax.sigma, ax.pyramidLevels)
       : stretchedFilter(kernel, stretch, ax.sigma);
   const origin = (crop0 + 0.5 * scale - 0.5) / unit;
   const table = buildWeights(levelLength(srcLen, ax.pyramidLevels), dstLen, origin, step, filter);

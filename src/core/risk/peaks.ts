@@ -38,6 +38,13 @@ export interface PeakInput {
   nyquist: { x: number; y: number };
   hx: AxisResponse;
   hy: AxisResponse;
+  /**
+   * Peaks inside `inner` times the Nyquist rectangle are skipped (default 1: only what lies
+   * beyond the new Nyquist); the visibility model asks for 0.5 to see beats and clean lines too.
+   */
+  inner?: number;
+  /** Most peaks returned (default MAX_PEAKS). */
+  max?: number;
 }
 
 /** Log-parabolic sub-bin offset of a peak from its two neighbours (common practice). */
@@ -49,9 +56,11 @@ function refine(left: number, centre: number, right: number): number {
   return d < 0 ? Math.max(-0.5, Math.min(0.5, (0.5 * (a - c)) / d)) : 0;
 }
 
-/** The strongest peaks beyond the Nyquist rectangle, strongest first. */
+/** The strongest peaks beyond (inner times) the Nyquist rectangle, strongest first. */
 export function findPeaks(input: PeakInput): RiskPeak[] {
-  const { power, size: n, total, scale, nyquist } = input;
+  const { power, size: n, total, scale } = input;
+  const inner = input.inner ?? 1;
+  const nyquist = { x: inner * input.nyquist.x, y: inner * input.nyquist.y };
   if (!(total > 0) || n < 8) return [];
   const at = (i: number, j: number) => power[((j + n) % n) * n + ((i + n) % n)];
   const ring: number[] = [];
@@ -102,5 +111,5 @@ export function findPeaks(input: PeakInput): RiskPeak[] {
     }
   }
   found.sort((a, b) => b.power - a.power);
-  return found.slice(0, MAX_PEAKS);
+  return found.slice(0, input.max ?? MAX_PEAKS);
 }

@@ -21,6 +21,8 @@ export interface SourceSpectrum {
    * non-DC energy is the mean within-tile energy (sum of `power` / tileSize^2) plus this.
    */
   coarse: number;
+  /** Mean linear luminance over the tiles (optional: spectra stored before it was kept lack it). */
+  mean?: number;
   /** Per-region spectra for the risk grid, each `bins` x `bins` cells; a cell sums binSize^2 full cells. */
   grid: { columns: number; rows: number; bins: number; binSize: number; power: Float32Array };
 }

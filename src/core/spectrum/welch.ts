@@ -123,6 +123,7 @@ export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
     tileSize: t,
     tiles: count,
     power: out,
+    mean: count > 0 ? meanSum / count : 0,
     coarse: count > 0 ? Math.max(0, meanSquares / count - (meanSum / count) ** 2) : 0,
     grid: { columns: layout.columns, rows: layout.rows, bins, binSize: BIN, power: grid },
   };

@@ -71,7 +71,7 @@ describe('formatPlanHeader', () => {
   it('states scale, kernel, sigma, pyramid levels and light in our own format', () => {
     const p = makePlan({ ...base, kernel: 'lanczos3', prefilter: 1.125 });
     expect(formatPlanHeader(p)).toBe(
-      'scale=4.000,4.000; kernel=lanczos3; sigma=1.13,1.13; prefilter=asked; pyramid=0,0; light=linear',
+      'scale=4.000,4.000; kernel=lanczos3; sigma=1.13,1.13; prefilter=asked; pyramid=0,0; cutoff=1.00,1.00; light=linear',
     );
   });
   it('says where sigma came from: the kernel alone, the content analysis, or nowhere', () => {
