@@ -1,12 +1,13 @@
 /**
  * view=map: a grey preview of the source with each region of the risk grid tinted by how
- * visible its false patterns would be, in threshold units (1.0 = just visible), on the
+ * visible its false patterns would be, in threshold units (1.0 = just visible; margins.ts), on the
  * "madder" ramp; the value written in every tinted region; a legend strip below in the same
  * units; the crop outlined when the rendition shows only part of the source.
  */
 import type { CropRect } from '../core/types.js';
 import { textWidth } from '../font/index.js';
 import { blankImage, haloLabel, label, strokeRect, tintRect, type RgbImage } from './canvas.js';
+import { regionMargins, type MarginSource } from './margins.js';
 import { CROP_LINE, INK, marginColour, PAPER } from './palette.js';
 
 /** Regions below this margin are left untinted: four times under threshold, nothing to see. */
@@ -57,18 +58,24 @@ function legend(img: RgbImage, y0: number): void {
   label(img, 'NO TINT: UNDER 1/4, NOTHING TO SEE', x0, barY + 44, INK, S);
 }
 
+/** The map of a report: its per-region margins (margins.ts) drawn by `marginMap`. */
+export function riskMap(preview: RgbImage, report: MarginSource, source: { width: number; height: number }, crop: CropRect): RgbImage {
+  const { columns, rows } = report.grid;
+  return marginMap(preview, { columns, rows, cells: regionMargins(report) }, source, crop);
+}
+
 /**
- * Draws the margins of `report.grid` (threshold units per region, row-major) over `preview`, a
- * picture of the whole source (any size, same aspect), and a legend below it. Returns a new
- * picture; `preview` is turned grey in place.
+ * Draws `margins` (threshold units per region, row-major) over `preview`, a picture of the
+ * whole source (any size, same aspect), and a legend below it. Returns a new picture;
+ * `preview` is turned grey in place.
  */
-export function riskMap(
+export function marginMap(
   preview: RgbImage,
-  report: { grid: { columns: number; rows: number; cells: ArrayLike<number> } },
+  margins: { columns: number; rows: number; cells: ArrayLike<number> },
   source: { width: number; height: number },
   crop: CropRect,
 ): RgbImage {
-  const { columns, rows, cells } = report.grid;
+  const { columns, rows, cells } = margins;
   const { width: w, height: h } = preview;
   greyBackdrop(preview);
   const img = blankImage(Math.max(w, MIN_WIDTH), h + LEGEND_HEIGHT, PAPER);

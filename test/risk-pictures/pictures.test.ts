@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import type { SourceSpectrum } from '../../src/core/risk/index.js';
-import { riskMap, spectrumPicture } from '../../src/risk-pictures/index.js';
+import { spectrumPicture } from '../../src/risk-pictures/index.js';
+import { marginMap } from '../../src/risk-pictures/map.js';
+import { regionMargins } from '../../src/risk-pictures/margins.js';
 import { blankImage, type RgbImage } from '../../src/risk-pictures/canvas.js';
 import { toOklab } from '../../src/risk-pictures/oklab.js';
 import { LOOM_ANCHORS, MADDER_ANCHORS, marginColour, powerColour } from '../../src/risk-pictures/palette.js';
@@ -71,7 +73,7 @@ describe('view=spectrum', () => {
 describe('view=map', () => {
   const preview = blankImage(400, 100, [200, 200, 200]);
   const grid = { columns: 4, rows: 1, cells: [0.1, 0.5, 1, 4] };
-  const img = riskMap(preview, { grid }, { width: 400, height: 100 }, { x: 0, y: 0, width: 400, height: 100 });
+  const img = marginMap(preview, grid, { width: 400, height: 100 }, { x: 0, y: 0, width: 400, height: 100 });
 
   it('leaves a region under 1/4 threshold untinted and tints more visible regions darker', () => {
     const [r, g, b] = pixel(img, 50, 60);
@@ -89,5 +91,21 @@ describe('view=map', () => {
     expect(img.width).toBeGreaterThanOrEqual(400);
     // The bar starts at x 12, 26 px below the picture: the palest colour of the ramp.
     expect(pixel(img, 12, 100 + 30)).toEqual(marginColour(0));
+  });
+});
+
+describe('margins per region', () => {
+  const grid = (cells: number[]) => ({ columns: cells.length, rows: 1, cells });
+  it('shares a fold out by the square root of where its energy sits', () => {
+    // Scores 0.25 and 0.75 are -40 and -20 dB (FLOOR -50, CEIL -10): energies 1e-4 and 1e-2,
+    // mean 0.00505; contrast goes as sqrt(energy): 2 x sqrt(1e-4 / 0.00505) and 2 x sqrt(1e-2 / 0.00505).
+    const m = regionMargins({ grid: grid([0.25, 0.75]), margin: 2, patterns: [{ kind: 'fold', margin: 2 }] });
+    expect(m[0]).toBeCloseTo(2 * Math.sqrt(1e-4 / 0.00505), 6);
+    expect(m[1]).toBeCloseTo(2 * Math.sqrt(1e-2 / 0.00505), 6);
+  });
+
+  it('gives every region the picture margin for a beat, and nothing when nothing false shows', () => {
+    expect(regionMargins({ grid: grid([0, 0.5, 1]), margin: 1.5, patterns: [{ kind: 'beat', margin: 1.5 }] })).toEqual([1.5, 1.5, 1.5]);
+    expect(regionMargins({ grid: grid([0.5, 0.5]), margin: 0, patterns: [{ kind: 'clean', margin: 3 }] })).toEqual([0, 0]);
   });
 });
