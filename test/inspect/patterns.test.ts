@@ -11,6 +11,13 @@ describe('pattern names, by what a pattern does in the copy', () => {
     expect(patternName(pattern('fold', { fx: -0.05, fy: 0 }))).toBe('folds into coarse bands every 20.0 output px');
   });
 
+  it('calls a fold to a fine frequency false fine stripes, and the broadband fold grain', () => {
+    // Apparent 0.453 cycles per output px: stripes 2.2 px apart are not coarse bands.
+    expect(patternName(pattern('fold', { fx: 0.453, fy: 0 }))).toBe('folds into false fine stripes every 2.2 output px');
+    const grain = { ...pattern('fold', { fx: 0.453, fy: 0 }), source: 'broadband' as const };
+    expect(patternName(grain)).toBe('folds fine detail into grain and jagged edges');
+  });
+
   it('does not call a fold to zero frequency bands or moiré: it only shifts the tone', () => {
     const name = patternName(pattern('fold', { fx: 0, fy: 0 }));
     expect(name).toBe('folds into an even tone shift (no bands)');

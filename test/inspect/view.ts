@@ -93,8 +93,8 @@ const collect = `(() => {
     plan: document.getElementById('plan-header').textContent,
     peakRows: document.querySelectorAll('#peaks tbody tr').length,
     zoom: { width: zoom.width, height: zoom.height },
-    alts: [...document.querySelectorAll('img')].map((e) => e.alt)
-      .concat([...document.querySelectorAll('canvas')].map((e) => e.getAttribute('aria-label'))),
+    alts: [...document.querySelectorAll('img')].filter((e) => !e.closest('[hidden]')).map((e) => e.alt)
+      .concat([...document.querySelectorAll('canvas')].filter((e) => !e.closest('[hidden]')).map((e) => e.getAttribute('aria-label'))),
   };
 })()`;
 
