@@ -91,8 +91,8 @@ function renderPatterns(patterns: Pattern[]): void {
       `${period(p.frequency.fx)} / ${period(p.frequency.fy)}`,
       `${signed(p.apparent.fx)} / ${signed(p.apparent.fy)}`,
       fixed(p.cyclesPerDegree, 1),
-      `${fixed(p.contrast * 100, 2)} %`,
-      fixed(p.margin, 2),
+      p.contrast * 100 >= 0.005 ? `${fixed(p.contrast * 100, 2)} %` : '< 0.01 %',
+      p.margin >= 0.005 ? fixed(p.margin, 2) : '< 0.01',
     ]);
     row.title = p.description;
     row.dataset.kind = p.kind;
