@@ -40,7 +40,7 @@ function every(p: Pattern): string {
 export function patternName(p: Pattern): string {
   if (p.kind === 'clean') return 'passes cleanly';
   const flat = Math.hypot(p.apparent.fx, p.apparent.fy) < FLAT;
-  if (p.kind === 'beat') return flat ? 'beats too slowly to see a period' : `beats: swells and fades every ${every(p)} output px`;
+  if (p.kind === 'beat') return flat ? 'beats too slowly to see a period' : `beats, swelling and fading every ${every(p)} output px`;
   if (p.source === 'broadband') return 'folds fine detail into grain and jagged edges';
   if (flat) return 'folds into an even tone shift (no bands)';
   const coarse = 1 / Math.hypot(p.apparent.fx, p.apparent.fy) >= COARSE_PERIOD;

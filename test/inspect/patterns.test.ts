@@ -26,7 +26,7 @@ describe('pattern names, by what a pattern does in the copy', () => {
 
   it('names beats with the period of their swell, 1 / (1 - 2f) for f = 0.473 (19 px)', () => {
     // A grating at 0.473 cycles per output px beats at 1 - 2 x 0.473 = 0.054: every 18.5 px.
-    expect(patternName(pattern('beat', { fx: 1 - 2 * 0.473, fy: 0 }))).toBe('beats: swells and fades every 18.5 output px');
+    expect(patternName(pattern('beat', { fx: 1 - 2 * 0.473, fy: 0 }))).toBe('beats, swelling and fading every 18.5 output px');
   });
 
   it('says that a clean pattern passes cleanly', () => {
