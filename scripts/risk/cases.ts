@@ -64,3 +64,55 @@ export async function enlargedPng(r: PixelRaster, k: number): Promise<Buffer> {
     .png()
     .toBuffer();
 }
+
+/** Where Debian's python3-skimage keeps its photographs (CHECKS.md, "Open data"). */
+export const SKIMAGE_DATA = '/usr/lib/python3/dist-packages/skimage/data';
+/** Natural photographs (not periodic textiles) of that set. */
+export const PHOTOS = ['astronaut.png', 'coffee.png', 'chelsea.png', 'rocket.jpg', 'motorcycle_left.png', 'grass.png', 'gravel.png'];
+
+/** A photograph of the set as an 8-bit raster, or undefined when the package is absent. */
+export async function photoSource(name: string): Promise<Source | undefined> {
+  try {
+    const { data, info } = await sharp(`${SKIMAGE_DATA}/${name}`).removeAlpha().raw().toBuffer({ resolveWithObject: true });
+    const raster: PixelRaster = { width: info.width, height: info.height, channels: info.channels, data: new Uint8Array(data) };
+    return { path: name, raster, spectrum: analyzeSpectrum(raster) };
+  } catch {
+    return undefined;
+  }
+}
+
+/**
+ * Energy of a rendition's luminance between lo and hi times its Nyquist frequency (the
+ * rendition's own Welch spectrum, max-norm band), for comparing two renditions of one source.
+ */
+export function bandEnergy(r: PixelRaster, lo: number, hi: number): number {
+  const s = analyzeSpectrum(r);
+  const n = s.tileSize;
+  let e = 0;
+  for (let j = 0; j < n; j++) {
+    for (let i = 0; i < n; i++) {
+      const f = Math.max(Math.abs(i - n / 2), Math.abs(j - n / 2)) / n;
+      if (f >= lo * 0.5 && f <= hi * 0.5) e += s.power[j * n + i];
+    }
+  }
+  return e;
+}
+
+export interface DemoRow {
+  path: string;
+  width: number;
+  ours: RiskReport;
+  legacy: RiskReport;
+}
+
+/** Every demo picture at every width, with the defaults and the legacy look. */
+export function demoRows(): DemoRow[] {
+  const rows: DemoRow[] = [];
+  for (const path of demoPaths()) {
+    const src = demoSource(path);
+    for (const width of WIDTHS) {
+      rows.push({ path, width, ours: assess(src, planFor(src, width, 'default')), legacy: assess(src, planFor(src, width, 'legacy')) });
+    }
+  }
+  return rows;
+}

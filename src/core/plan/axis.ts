@@ -36,6 +36,7 @@ export function planAxis(
   // prefilter=auto's lowered cut-off applies to a stretched kernel on a shrinking axis only.
   if (req.prefilter === 'auto' && k.stretch && scale > 1 && adaptiveCutoff > 0 && adaptiveCutoff < 1) {
     axis.cutoff = adaptiveCutoff;
+    axis.sigmaFrom = 'content';
     words.push(`cut-off lowered by content to ${adaptiveCutoff.toFixed(2)}x`);
   }
   return { axis, why: words.join(', ') };

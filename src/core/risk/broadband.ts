@@ -35,6 +35,7 @@ export function foldCells(
   viewing: Viewing,
   mean: number,
   lines: ReadonlyArray<{ fx: number; fy: number }> = [],
+  own = false,
 ): FoldCells {
   const n = spec.tileSize;
   const fx: number[] = [];
@@ -49,13 +50,15 @@ export function foldCells(
     const y = (j - n / 2) / n;
     for (let i = 0; i < n; i++) {
       const x = (i - n / 2) / n;
-      if (Math.abs(x) <= nx && Math.abs(y) <= ny) continue;
+      const inside = Math.abs(x) <= nx && Math.abs(y) <= ny;
+      // `own`: the rendition's own detail between half and the whole new Nyquist (the masker).
+      if (own ? !inside || Math.max(Math.abs(x) / nx, Math.abs(y) / ny) < 0.5 : inside) continue;
       // The lines' own lobes (3 x 3 cells, both conjugates) are counted as line patterns.
       if (lines.some((l) => near(l.fx, l.fy, x, y, n) || near(-l.fx, -l.fy, x, y, n))) continue;
       const p = spec.power[j * n + i];
       if (!(p > NEGLIGIBLE * peak)) continue;
-      const ax = scale.x * x - Math.round(scale.x * x);
-      const ay = scale.y * y - Math.round(scale.y * y);
+      const ax = own ? scale.x * x : scale.x * x - Math.round(scale.x * x);
+      const ay = own ? scale.y * y : scale.y * y - Math.round(scale.y * y);
       fx.push(x);
       fy.push(y);
       weight.push((2 * p) / (n * n * mean * mean));

@@ -17,6 +17,11 @@ export const CUT_MIN = 0.6;
 /** Aim under the visible margin so the result does not sit on the boundary. */
 const AIM = 0.8 * VISIBLE_MARGIN;
 const STEP = 0.01;
+/**
+ * The broadband fold (grain, edges: no false bands) is acted on once visible through the
+ * rendition's own detail (see.ts: masking).
+ */
+export const BROADBAND_ACT = VISIBLE_MARGIN;
 
 /** The plan's response of one axis sampled from 0 to 0.5 cycles per source pixel. */
 export function sampledGain(response: (f: number) => number, nyquist: number, tileSize: number): Gain {
@@ -70,7 +75,7 @@ export function autoCutoff(scene: Scene, hx: Gain, hy: Gain): AutoCutoff {
         const f = Math.abs(axis === 'x' ? p.frequency.fx : p.frequency.fy);
         const want = (h(f / c[axis]) * AIM) / p.margin;
         next[axis] = Math.min(next[axis], lowerUntil(h, f, want, c[axis]));
-      } else {
+      } else if (seen.margin >= BROADBAND_ACT && p.margin >= BROADBAND_ACT) {
         // The broadband fold: step down the axes on which its strongest cell lies beyond Nyquist.
         const beyond = { x: Math.abs(scene.scale.x * p.frequency.fx) > 0.5, y: Math.abs(scene.scale.y * p.frequency.fy) > 0.5 };
         for (const axis of ['x', 'y'] as const) {

@@ -19,6 +19,8 @@ export interface Scene {
   mean: number;
   lines: Array<{ fx: number; fy: number; amplitude: number }>;
   cells: FoldCells;
+  /** The rendition's own detail between 0.5x and 1x the new Nyquist: it masks the broadband fold. */
+  own: FoldCells;
   /**
    * Amplitude factor of a cover crop: sqrt of how much more (or less) the cropped part folds
    * than the whole source (crop.ts); 1 for the whole source.
@@ -40,12 +42,24 @@ export function sceneOf(spec: SourceSpectrum, scale: { x: number; y: number }, v
   const lines = linesOf({ spec, scale, hx: one, hy: one, viewing }, total);
   const a = Math.sqrt(Math.max(0, crop));
   const cropped = lines.map((l) => ({ ...l, amplitude: l.amplitude * a }));
-  return { spec, scale, viewing, mean, lines: cropped, cells: foldCells(spec, scale, viewing, mean / a, lines), crop };
+  return { spec, scale, viewing, mean, lines: cropped, cells: foldCells(spec, scale, viewing, mean / a, lines), own: foldCells(spec, scale, viewing, mean / a, [], true), crop };
+}
+
+/**
+ * Contrast masking: a pattern on a textured background needs more contrast to be seen; the
+ * threshold rises as (masker margin)^0.7 once the masker is above its own threshold (Legge &
+ * Foley 1980, "Contrast masking in human vision", JOSA 70(12); exponent from memory). Applied
+ * to the broadband fold, which lands among the rendition's own fine detail.
+ */
+export function masking(maskerMargin: number): number {
+  return maskerMargin > 1 ? maskerMargin ** 0.7 : 1;
 }
 
 /** The broadband fold as one pattern (undefined when nothing beyond the new Nyquist passes). */
 function broadband(scene: Scene, hx: Gain, hy: Gain): VisiblePattern | undefined {
-  const { contrast, margin, top } = foldMargin(scene.cells, hx, hy);
+  const { contrast, margin: bare, top } = foldMargin(scene.cells, hx, hy);
+  const masker = foldMargin(scene.own, hx, hy).margin;
+  const margin = bare / masking(masker);
   if (!(contrast > 0) || top < 0) return undefined;
   const fx = scene.cells.fx[top];
   const fy = scene.cells.fy[top];
