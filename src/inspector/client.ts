@@ -1,13 +1,13 @@
 /**
  * The inspector page's script (compiled for the browser by the /inspect route with esbuild).
- * One run: read the form, put it in the page URL, fetch the report and the four pictures in
+ * One run: read the form, put it in the page URL, fetch the reports and the pictures in
  * parallel, show them, then draw the enlarged crops and the numbers. A newer run aborts an
  * older one, so quick changes never show a mix of two requests.
  */
 import { getImage, getJson, hideImage, showImage, ServiceProblem, type FetchedImage } from './api.js';
-import { clearCrops, showCrops } from './crops.js';
-import { clearNumbers, recommendedPrefilter, renderNumbers, renderPlan, type Report } from './report-view.js';
-import { apiUrls, fromParams, pageSearch, readForm, startWidth, writeForm, type ApiUrls, type InspectState } from './state.js';
+import { clearCrops, showCrops, type Copy } from './crops.js';
+import { clearNumbers, renderNumbers, renderPlan, type Report } from './report-view.js';
+import { apiUrls, fields, fromParams, pageSearch, readForm, startSource, startWidth, writeForm, type ApiUrls, type InspectState } from './state.js';
 
 const byId = <T extends HTMLElement>(id: string): T => document.getElementById(id) as T;
 
@@ -17,12 +17,22 @@ const results = byId<HTMLDivElement>('results');
 let runs = 0;
 let inFlight: AbortController | undefined;
 
-/** The four pictures of a run: where each is shown, where it comes from, how it is named. */
-const pictures: { img: string; url: keyof ApiUrls; what: string; alt: (s: InspectState) => string }[] = [
-  { img: 'naive-img', url: 'naive', what: 'The careless copy', alt: (s) => `Careless copy of ${s.source}, ${s.width} pixels wide` },
-  { img: 'planned-img', url: 'planned', what: 'The foldwise copy', alt: (s) => `foldwise copy of ${s.source}, ${s.width} pixels wide` },
-  { img: 'map-img', url: 'map', what: 'The risk map', alt: (s) => `Risk map over ${s.source} for a copy ${s.width} pixels wide` },
-  { img: 'spectrum-img', url: 'spectrum', what: 'The spectrum', alt: (s) => `Spectrum of ${s.source} with the limit of the new pixel grid drawn on it` },
+interface Picture {
+  img: string;
+  url: keyof ApiUrls;
+  what: string;
+  alt: (s: InspectState) => string;
+}
+
+/** The pictures of a run: where each is shown, where it comes from, how it is named. */
+const copies: Record<Copy, Picture> = {
+  legacy: { img: 'legacy-img', url: 'legacy', what: 'The legacy look', alt: (s) => `Legacy look of ${s.source}, ${s.width} pixels wide` },
+  planned: { img: 'planned-img', url: 'planned', what: 'The foldwise copy', alt: (s) => `foldwise copy of ${s.source}, ${s.width} pixels wide` },
+  points: { img: 'points-img', url: 'points', what: 'The point-sampled copy', alt: (s) => `Point-sampled copy of ${s.source}, ${s.width} pixels wide` },
+};
+const analyses: Picture[] = [
+  { img: 'map-img', url: 'map', what: 'The risk map', alt: (s) => `Map of where false patterns would show over ${s.source} for a copy ${s.width} pixels wide, in threshold units` },
+  { img: 'spectrum-img', url: 'spectrum', what: 'The spectrum', alt: (s) => `Spectrum of ${s.source} in cycles per source pixel, with the new Nyquist drawn on it` },
 ];
 
 function say(text: string, isError = false): void {
@@ -51,12 +61,6 @@ function fillSourceList(paths: string[]): void {
   list.replaceChildren(...paths.map((path) => Object.assign(document.createElement('option'), { value: path })));
 }
 
-/** A link to this view with the recommended prefilter, when the planned copy is not yet safe. */
-function offerBlur(sigma: string | undefined, state: InspectState): void {
-  byId('try').hidden = sigma === undefined || state.prefilter === sigma;
-  if (sigma !== undefined) byId<HTMLAnchorElement>('try-link').href = pageSearch({ ...state, prefilter: sigma });
-}
-
 async function run(state: InspectState, history: 'push' | 'replace' | 'keep'): Promise<void> {
   const mine = ++runs;
   inFlight?.abort();
@@ -64,11 +68,18 @@ async function run(state: InspectState, history: 'push' | 'replace' | 'keep'): P
   inFlight = controller;
   if (history !== 'keep') window.history[`${history}State`](null, '', pageSearch(state));
   results.setAttribute('aria-busy', 'true');
-  say(`Making both copies of ${state.source} at ${state.width} px wide…`);
+  say(`Making the copies of ${state.source} at ${state.width} px wide…`);
+  const shownCopies: Copy[] = state.points === 'shown' ? ['legacy', 'planned', 'points'] : ['legacy', 'planned'];
+  for (const id of ['points-panel', 'points-zoom-panel']) byId(id).hidden = state.points !== 'shown';
+  if (state.points !== 'shown') hideImage(byId<HTMLImageElement>('points-img'));
+  const pictures = [...shownCopies.map((c) => copies[c]), ...analyses];
   try {
     const urls = apiUrls(state);
-    const [report, ...images] = await Promise.allSettled([
-      getJson<Report>(urls.report, 'The risk report', controller.signal),
+    const reportOf = (url: keyof ApiUrls, what: string) => getJson<Report>(urls[url], what, controller.signal);
+    const [planned, legacy, points, ...images] = await Promise.allSettled([
+      reportOf('report', 'The risk report'),
+      reportOf('legacyReport', 'The report of the legacy look'),
+      state.points === 'shown' ? reportOf('pointsReport', 'The report of point sampling') : Promise.resolve(undefined),
       ...pictures.map((p) => getImage(urls[p.url], p.what, controller.signal)),
     ]);
     const fetched = images.flatMap((r) => (r.status === 'fulfilled' ? [r.value] : []));
@@ -85,17 +96,22 @@ async function run(state: InspectState, history: 'push' | 'replace' | 'keep'): P
       }),
     );
     if (mine !== runs) return;
-    byId<HTMLAnchorElement>('naive-link').href = urls.naive;
-    byId<HTMLAnchorElement>('planned-link').href = urls.planned;
-    const planned = images[1] as PromiseSettledResult<FetchedImage>;
-    renderPlan(planned.status === 'fulfilled' ? planned.value.plan : null);
-    const copiesShown = [0, 1].every((i) => images[i].status === 'fulfilled' && shown[i].status === 'fulfilled');
-    if (report.status === 'fulfilled') renderNumbers(report.value);
+    for (const copy of shownCopies) byId<HTMLAnchorElement>(`${copy}-link`).href = urls[copies[copy].url];
+    const plannedImage = images[1] as PromiseSettledResult<FetchedImage>;
+    renderPlan(plannedImage.status === 'fulfilled' ? plannedImage.value.plan : null);
+    const copiesShown = shownCopies.every((_, i) => images[i].status === 'fulfilled' && shown[i].status === 'fulfilled');
+    const value = <T>(r: PromiseSettledResult<T>) => (r.status === 'fulfilled' ? r.value : undefined);
+    const linkFor = (change: string) => {
+      const params = new URLSearchParams(change);
+      const names = [...params.keys()];
+      if (names.length === 0 || !names.every((n) => fields.includes(n as (typeof fields)[number]))) return undefined;
+      return pageSearch({ ...state, ...Object.fromEntries(params) });
+    };
+    if (planned.status === 'fulfilled') renderNumbers({ planned: planned.value, legacy: value(legacy), points: value(points) }, linkFor);
     else clearNumbers();
-    offerBlur(report.status === 'fulfilled' ? recommendedPrefilter(report.value) : undefined, state);
-    if (report.status === 'fulfilled' && copiesShown) showCrops(report.value, state.source);
-    else clearCrops('The enlarged crops need both copies and the report.');
-    const failures = [report, ...images, ...shown].flatMap((r) => (r.status === 'rejected' ? [r.reason] : []));
+    if (copiesShown) showCrops(state.source, shownCopies);
+    else clearCrops('The enlarged crops need the copies side by side.');
+    const failures = [planned, legacy, points, ...images, ...shown].flatMap((r) => (r.status === 'rejected' ? [r.reason] : []));
     results.dataset.shown = pageSearch(state);
     if (failures.length > 0) say(describeFailures(failures), true);
     else say(`Showing ${state.source} at ${state.height ? `${state.width}×${state.height} px` : `${state.width} px wide`}.`);
@@ -131,7 +147,7 @@ async function start(): Promise<void> {
   const state = fromParams(new URLSearchParams(window.location.search));
   const sources = await listSources().catch(() => [] as string[]);
   fillSourceList(sources);
-  if (!state.source && sources.length > 0) state.source = sources[0];
+  if (!state.source && sources.length > 0) state.source = sources.includes(startSource) ? startSource : sources[0];
   if (!state.width) state.width = startWidth;
   writeForm(form, state);
   if (state.source) await run(state, 'replace');

@@ -1,102 +1,72 @@
 /**
- * The report's numbers in words: the one-sentence verdict, the list of figures, the table of
- * peaks and the Rendition-Plan header. Every figure keeps its unit; each is also said in
- * pixels ("repeats every 2.2 px") for readers who do not think in cycles per pixel.
+ * The report's numbers in words: the one-sentence verdict, the advice, the list of figures,
+ * the table of patterns and the Rendition-Plan header. Every figure keeps its unit; patterns
+ * are also said in pixels ("repeats every 13.2 px") for readers who do not count cycles.
  */
-import { levelOf, scoreOf } from '../core/risk/score.js';
-import { describeRegion } from '../ingest/regions.js';
-import type { Geometry, Grid } from './zoom.js';
+import { patternName, type Pattern } from './patterns.js';
 
 type Level = 'low' | 'moderate' | 'high';
 type Pair = { x: number; y: number };
 
-/** The fields of GET /v1/alias-risk/{source} that the page shows (see src/core/risk). */
+/** The fields of GET /v1/alias-risk/{source} that the page shows (see src/risk/report.ts). */
 export interface Report {
   source: { width: number; height: number };
   target: { width: number; height: number };
-  /** The output image when `contain` puts the picture on bars; null otherwise. */
   canvas: { width: number; height: number; left: number; top: number } | null;
   scale: Pair;
   nyquist: Pair;
-  folded: { unfiltered: number; planned: number };
-  score: number;
   level: Level;
-  peaks: { fx: number; fy: number; power: number; kind: string; aliasTo: { fx: number; fy: number }; passed: number }[];
-  grid: Grid;
-  recommendedSigma: Pair;
+  /** Absent only from a service older than the visibility model; the page then shows none. */
+  patterns?: Pattern[];
+  viewing?: { degreesPerPixel: number; density: number };
+  /** What a change of the query would remove, and what it costs the picture. */
+  advice?: { change: string; effect: string; cost: string }[];
   reason: string;
-  plan: { crop: Geometry['crop']; header: string };
+  plan: { header: string };
+}
+
+/** The reports of the copies on the page; `points` only when point sampling is shown. */
+export interface Reports {
+  legacy?: Report;
+  planned: Report;
+  points?: Report;
 }
 
 const byId = (id: string): HTMLElement => document.getElementById(id) as HTMLElement;
-/** A share of energy as a percentage and in decibels (10 log10), the unit the levels use. */
-function share(f: number): string {
-  if (!(f > 0)) return '0 %';
-  // Below -60 dB (one part in a million) nothing of it can show in 8-bit output.
-  if (f < 1e-6) return '< 0.0001 % (< -60 dB)';
-  const percent = f * 100;
-  const text = percent >= 10 ? percent.toFixed(0) : percent >= 1 ? percent.toFixed(1) : percent.toPrecision(2);
-  const db = 10 * Math.log10(f);
-  return `${text} % (${Math.abs(db) < 0.05 ? '0.0' : db.toFixed(1)} dB)`;
-}
 const fixed = (v: number, d = 3) => v.toFixed(d);
+const signed = (v: number, d = 3) => (v > 0 ? '+' : v < 0 ? '−' : '') + Math.abs(v).toFixed(d);
 /** Source or output pixels per cycle; a dash where the pattern does not vary along that axis. */
-const period = (f: number) => (f >= 1e-3 ? fixed(1 / f, 1) : '—');
+const period = (f: number) => (Math.abs(f) >= 1e-3 ? fixed(1 / Math.abs(f), 1) : '—');
 const both = (p: Pair, show: (v: number) => string) => (p.x === p.y ? show(p.x) : `${show(p.x)} / ${show(p.y)}`);
-const xy = (fx: number, fy: number, show: (v: number) => string) => `${show(Math.abs(fx))} / ${show(Math.abs(fy))}`;
 
-/** Where the rendition's pixels come from in the source, for mapping grid cells onto it. */
-export function geometryOf(report: Report): Geometry {
-  return {
-    sourceWidth: report.source.width,
-    sourceHeight: report.source.height,
-    crop: report.plan.crop,
-    targetWidth: report.target.width,
-    targetHeight: report.target.height,
-    offset: report.canvas ? { x: report.canvas.left, y: report.canvas.top } : undefined,
-  };
-}
-
-/** The careless copy's level: the same thresholds applied to the unfiltered folded fraction. */
-const carelessLevel = (report: Report): Level => levelOf(report.folded.unfiltered);
-
-const looks: Record<Level, string> = {
-  high: 'will shimmer',
-  moderate: 'may show faint false patterns',
-  low: 'is safe',
+/** The levels in words, as the report defines them. */
+export const levelWords: Record<Level, string> = {
+  low: 'nothing a viewer will see',
+  moderate: 'faint false patterns, visible on close inspection',
+  high: 'plainly visible false patterns',
 };
 
-function verdict(report: Report): string {
-  const careless = carelessLevel(report);
-  const folded = share(report.folded.unfiltered);
-  const kept = share(report.folded.planned);
-  // A sharp spectral line folds into one false frequency (moiré); broadband energy folds into
-  // noise-like jaggies (the peak kinds of src/core/risk/peaks.ts).
-  const into = report.peaks[0]?.kind === 'periodic' ? 'false coarse bands (moiré)' : 'jagged steps and sparkle';
-  const first =
-    careless === 'low'
-      ? `Neither copy is at risk at this size: only ${folded} of the detail energy would fold back even in the careless copy.`
-      : `The careless copy ${looks[careless]}: ${folded} of the picture's detail energy folds into ${into}.`;
-  if (careless === 'low') return first;
-  if (report.level === 'low') {
-    return `${first} The foldwise copy is safe: it blurs that detail away first and leaves ${kept}.`;
-  }
-  const where = describeRegion(report.grid);
-  const sigma = recommendedPrefilter(report);
-  const place = !where ? '' : where.startsWith('the ') ? `, mostly in ${where}` : `, over ${where}`;
-  return `${first} Even the foldwise copy ${looks[report.level]} (${kept} folds back${place}); a blur of sigma ${sigma} source px (prefilter=${sigma}) would make it safe.`;
+/** The most visible pattern that is not a clean pass, if any. */
+const worst = (report: Report) =>
+  (report.patterns ?? []).filter((p) => p.kind !== 'clean').reduce<Pattern | undefined>((a, p) => (!a || p.margin > a.margin ? p : a), undefined);
+
+function sayCopy(name: string, report: Report): string {
+  const top = worst(report);
+  const what = `${name} shows ${levelWords[report.level]}`;
+  if (!top || report.level === 'low') return `${what}.`;
+  return `${what}: the strongest pattern ${patternName(top)}, at ${fixed(top.margin, 1)} times the threshold of visibility.`;
 }
 
-/** The prefilter value that brings the planned copy to low, or undefined when it already is. */
-export function recommendedPrefilter(report: Report): string | undefined {
-  if (report.level === 'low') return undefined;
-  return Math.max(report.recommendedSigma.x, report.recommendedSigma.y).toFixed(2);
+function verdict(r: Reports): string {
+  const parts = [r.legacy ? sayCopy('The legacy look', r.legacy) : 'The legacy look has no report.', sayCopy('The foldwise copy', r.planned)];
+  if (r.points) parts.push(sayCopy('Point sampling', r.points));
+  return parts.join(' ');
 }
 
-function badge(id: string, level: Level): void {
+function badge(id: string, level: Level | undefined): void {
   const element = byId(id);
-  element.textContent = `${level} risk`;
-  element.className = `badge ${level}`;
+  element.textContent = level ? `${level}: ${level === 'low' ? 'nothing to see' : level === 'moderate' ? 'faint' : 'plainly visible'}` : '';
+  element.className = `badge ${level ?? ''}`;
 }
 
 function term(list: HTMLElement, name: string, value: string, key: string): void {
@@ -112,53 +82,79 @@ function cellsOf(texts: string[]): HTMLTableRowElement {
   return tr;
 }
 
-function renderPeaks(peaks: Report['peaks']): void {
+function renderPatterns(patterns: Pattern[]): void {
   const body = byId('peaks').querySelector('tbody') as HTMLTableSectionElement;
-  const rows = peaks.map((peak) =>
-    cellsOf([
-      xy(peak.fx, peak.fy, (v) => fixed(v)),
-      xy(peak.fx, peak.fy, period),
-      xy(peak.aliasTo.fx, peak.aliasTo.fy, (v) => fixed(v)),
-      xy(peak.aliasTo.fx, peak.aliasTo.fy, period),
-      peak.kind === 'periodic' ? 'stripes or weave: moiré' : 'fine grain: sparkle, jagged edges',
-      share(peak.power),
-      share(peak.passed),
-    ]),
-  );
+  const rows = patterns.map((p) => {
+    const row = cellsOf([
+      patternName(p),
+      `${signed(p.frequency.fx)} / ${signed(p.frequency.fy)}`,
+      `${period(p.frequency.fx)} / ${period(p.frequency.fy)}`,
+      `${signed(p.apparent.fx)} / ${signed(p.apparent.fy)}`,
+      fixed(p.cyclesPerDegree, 1),
+      p.contrast * 100 >= 0.005 ? `${fixed(p.contrast * 100, 2)} %` : '< 0.01 %',
+      p.margin >= 0.005 ? fixed(p.margin, 2) : '< 0.01',
+    ]);
+    row.title = p.description;
+    row.dataset.kind = p.kind;
+    return row;
+  });
   if (rows.length === 0) {
-    const td = Object.assign(document.createElement('td'), { textContent: 'No strong fine pattern beyond the new grid.', colSpan: 7 });
+    const td = Object.assign(document.createElement('td'), { textContent: 'No strong pattern near or beyond the new pixel grid.', colSpan: 7 });
     rows.push(document.createElement('tr'));
     rows[0].append(td);
   }
   body.replaceChildren(...rows);
 }
 
-/** Fills the verdict, the figures and the peak table from one report. */
-export function renderNumbers(report: Report): void {
-  const careless = carelessLevel(report);
-  badge('naive-level', careless);
+/** A page link that applies a query change (`prefilter=auto`), or undefined when it cannot. */
+export type LinkFor = (change: string) => string | undefined;
+
+function renderAdvice(report: Report, linkFor: LinkFor): void {
+  const items = (report.advice ?? []).map((a) => {
+    const li = document.createElement('li');
+    if (a.change) {
+      const code = Object.assign(document.createElement('code'), { textContent: a.change });
+      const href = linkFor(a.change);
+      const link = href ? Object.assign(document.createElement('a'), { href }) : undefined;
+      link?.append(code);
+      li.append(link ?? code, ': ');
+    }
+    li.append(`${a.effect}. Cost: ${a.cost}`.replace(/\.\./g, '.'));
+    return li;
+  });
+  byId('advice').replaceChildren(...items);
+}
+
+/** Fills the verdict, the advice, the figures and the pattern table from the reports. */
+export function renderNumbers(r: Reports, linkFor: LinkFor): void {
+  const report = r.planned;
+  badge('legacy-level', r.legacy?.level);
   badge('planned-level', report.level);
-  byId('verdict-text').textContent = verdict(report);
+  badge('points-level', r.points?.level);
+  byId('verdict-text').textContent = verdict(r);
+  renderAdvice(report, linkFor);
   const list = byId('numbers');
   list.replaceChildren();
-  term(list, 'Risk of the careless copy', `${careless} (score ${fixed(scoreOf(report.folded.unfiltered), 2)} of 1)`, 'careless-score');
-  term(list, 'Risk of the foldwise copy', `${report.level} (score ${fixed(report.score, 2)} of 1)`, 'score');
+  term(list, 'Legacy look', r.legacy ? `${r.legacy.level}: ${levelWords[r.legacy.level]}` : 'no report', 'legacy-level');
+  term(list, 'foldwise copy', `${report.level}: ${levelWords[report.level]}`, 'level');
   const bars = report.canvas ? ` on a ${report.canvas.width}×${report.canvas.height} canvas` : '';
   term(list, 'Size', `${report.source.width}×${report.source.height} → ${report.target.width}×${report.target.height} px${bars}`, 'size');
   term(list, 'Shrink factor', both(report.scale, (v) => `${fixed(v, 2)}×`), 'scale');
   term(list, 'Finest pattern the new grid holds (new Nyquist)',
-    `${both(report.nyquist, (v) => fixed(v))} cycles per source pixel: one stripe pair every ${both(report.nyquist, period)} source px`, 'nyquist');
-  term(list, 'Detail energy that folds back, careless copy', share(report.folded.unfiltered), 'folded-unfiltered');
-  term(list, 'Detail energy that folds back, foldwise copy', share(report.folded.planned), 'folded-planned');
-  term(list, 'Blur that brings the risk to low (recommended sigma)', `${both(report.recommendedSigma, (v) => fixed(v, 2))} source px`, 'sigma');
+    `${both(report.nyquist, (v) => fixed(v))} cycles per source px: one stripe pair every ${both(report.nyquist, period)} source px`, 'nyquist');
+  if (report.viewing) {
+    const { degreesPerPixel: dpp, density } = report.viewing;
+    term(list, 'Seen from', `arm's length, one output px = ${fixed(dpp, 4)}° (CSS reference pixel${density !== 1 ? `, density ${density}` : ''})`, 'viewing');
+  }
   term(list, 'In the analysis\'s words', report.reason, 'reason');
-  renderPeaks(report.peaks);
+  renderPatterns(report.patterns ?? []);
 }
 
-/** Empties the verdict, figures and peaks, so nothing from an earlier request remains. */
+/** Empties the verdict, figures and patterns, so nothing from an earlier request remains. */
 export function clearNumbers(): void {
-  for (const id of ['naive-level', 'planned-level']) byId(id).textContent = '';
+  for (const id of ['legacy-level', 'planned-level', 'points-level']) badge(id, undefined);
   byId('verdict-text').textContent = 'No report for this request.';
+  byId('advice').replaceChildren();
   byId('numbers').replaceChildren();
   byId('peaks').querySelector('tbody')?.replaceChildren();
 }

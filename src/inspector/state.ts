@@ -3,6 +3,7 @@
  * made from it. The page URL carries only what differs from the defaults, so a shared link
  * stays short and reads like the request it shows.
  */
+import { legacyLook, pointSampling } from './copies.js';
 
 export interface InspectState {
   source: string;
@@ -12,10 +13,12 @@ export interface InspectState {
   kernel: string;
   prefilter: string;
   light: string;
+  /** 'shown' when point sampling is shown as a third copy; a page parameter only. */
+  points: string;
 }
 
 /** Field names in form order; each is also a page URL parameter and a form control's name. */
-export const fields = ['source', 'width', 'height', 'fit', 'kernel', 'prefilter', 'light'] as const;
+export const fields = ['source', 'width', 'height', 'fit', 'kernel', 'prefilter', 'light', 'points'] as const;
 
 /** Values the service assumes when a parameter is absent; they are left out of URLs. */
 const defaults: InspectState = {
@@ -26,10 +29,17 @@ const defaults: InspectState = {
   kernel: 'auto',
   prefilter: 'auto',
   light: 'linear',
+  points: '',
 };
 
-/** The first width shown when the URL names none. */
+/**
+ * What a bare /inspect opens on: the demo's pinstripe shirting at 320 px, where the stripes
+ * (2.1 output px apart, just under the new Nyquist) are where the legacy look and the
+ * foldwise copy differ most plainly. Any other first picture if the folder lacks it.
+ */
+export const startSource = 'fabrics/pinstripe.png';
 export const startWidth = '320';
+
 
 export function fromParams(params: URLSearchParams): InspectState {
   const state = { ...defaults };
@@ -65,9 +75,8 @@ export function readForm(form: HTMLFormElement): InspectState {
 export function writeForm(form: HTMLFormElement, state: InspectState): void {
   for (const name of fields) {
     const control = form.elements.namedItem(name);
-    if (control instanceof HTMLInputElement || control instanceof HTMLSelectElement) {
-      control.value = state[name];
-    }
+    if (control instanceof HTMLInputElement && control.type === 'checkbox') control.checked = state[name] === control.value;
+    else if (control instanceof HTMLInputElement || control instanceof HTMLSelectElement) control.value = state[name];
   }
 }
 
@@ -77,7 +86,7 @@ function sourcePath(source: string): string {
 }
 
 function apiQuery(state: InspectState, extra: Record<string, string>): string {
-  const params = new URLSearchParams(changed({ ...state, source: '' }));
+  const params = new URLSearchParams(changed({ ...state, source: '', points: '' }));
   for (const [name, value] of Object.entries(extra)) params.set(name, value);
   return params.toString();
 }
@@ -89,11 +98,15 @@ function apiQuery(state: InspectState, extra: Record<string, string>): string {
  */
 export function apiUrls(state: InspectState) {
   const path = sourcePath(state.source);
-  const naive = { ...state, kernel: 'nearest', prefilter: 'none' };
+  const legacy = { ...state, ...legacyLook };
+  const points = { ...state, ...pointSampling };
   return {
-    naive: `v1/renditions/${path}?${apiQuery(naive, { format: 'png' })}`,
+    legacy: `v1/renditions/${path}?${apiQuery(legacy, { format: 'png' })}`,
     planned: `v1/renditions/${path}?${apiQuery(state, { format: 'png' })}`,
+    points: `v1/renditions/${path}?${apiQuery(points, { format: 'png' })}`,
     report: `v1/alias-risk/${path}?${apiQuery(state, {})}`,
+    legacyReport: `v1/alias-risk/${path}?${apiQuery(legacy, {})}`,
+    pointsReport: `v1/alias-risk/${path}?${apiQuery(points, {})}`,
     map: `v1/alias-risk/${path}?${apiQuery(state, { view: 'map' })}`,
     spectrum: `v1/alias-risk/${path}?${apiQuery(state, { view: 'spectrum' })}`,
   };

@@ -1,4 +1,5 @@
 /** A plain 8-bit RGB picture and the few drawing operations the risk pictures need. */
+import { inkText } from '../font/index.js';
 
 export interface RgbImage {
   data: Uint8Array;
@@ -43,4 +44,15 @@ export function strokeRect(img: RgbImage, x0: number, y0: number, x1: number, y1
       blend(img, x1, y, colour, 1);
     }
   }
+}
+
+/** Writes `text` in the shared bitmap font, top-left corner at (x, y), each font cell `scale` px. */
+export function label(img: RgbImage, text: string, x: number, y: number, colour: Rgb, scale = 1): void {
+  inkText(text, x, y, scale, (px, py) => blend(img, px, py, colour, 1));
+}
+
+/** Writes `text` with a one-pixel `halo` around every stroke, legible on any background. */
+export function haloLabel(img: RgbImage, text: string, x: number, y: number, colour: Rgb, halo: Rgb, scale = 1): void {
+  for (const [dx, dy] of [[-1, 0], [1, 0], [0, -1], [0, 1], [-1, -1], [1, 1], [-1, 1], [1, -1]]) label(img, text, x + dx, y + dy, halo, scale);
+  label(img, text, x, y, colour, scale);
 }

@@ -4,6 +4,7 @@ import { readFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
+import { findKernel, kernelNames } from '../core/kernels/index.js';
 import { FoldwiseError } from '../errors.js';
 import { matchesIfNoneMatch } from './conditional.js';
 
@@ -66,6 +67,26 @@ async function readAsset(dir: string, name: string, type: string): Promise<Asset
   return asset(await readFile(join(dir, name)), type);
 }
 
+const escapeHtml = (text: string) =>
+  text.replace(/[&<>"]/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;' })[c] ?? c);
+
+/**
+ * The Kernel menu, from the core's kernel table (the one registry the `kernel` parameter
+ * accepts), so a kernel added there appears here without a second list to keep.
+ */
+export function kernelOptions(): string {
+  const options = kernelNames.map((name) => {
+    const about = findKernel(name)?.source;
+    return `<option value="${escapeHtml(name)}">${escapeHtml(about ? `${name}: ${about}` : name)}</option>`;
+  });
+  return ['<option value="auto">auto: bandlimit when shrinking, an interpolator when enlarging</option>', ...options].join('\n          ');
+}
+
+async function readPage(dir: string): Promise<Asset> {
+  const html = (await readFile(join(dir, 'page.html'), 'utf8')).replace('<!-- kernel options -->', kernelOptions());
+  return asset(Buffer.from(html), 'text/html; charset=utf-8');
+}
+
 /** Runs `load` once and keeps its result; a failure is forgotten so the next call retries. */
 function memo(load: () => Promise<Asset>): () => Promise<Asset> {
   let pending: Promise<Asset> | undefined;
@@ -89,13 +110,13 @@ function send(request: FastifyRequest, reply: FastifyReply, file: Asset) {
 }
 
 /**
- * GET /inspect: the page that shows the naive and the planned rendition side by side with the
- * alias-risk report; GET /inspect/assets/{style.css,client.js,icon.svg}: its stylesheet, script and icon.
+ * GET /inspect: the page that shows the legacy look, the planned rendition and optionally point
+ * sampling side by side with the alias-risk report; GET /inspect/assets/{style.css,client.js,icon.svg}: its stylesheet, script and icon.
  * Files are read and compiled on first request and kept in memory for the process lifetime.
  */
 export default async function inspectRoutes(app: FastifyInstance): Promise<void> {
   const dir = inspectorDir();
-  const page = memo(() => readAsset(dir, 'page.html', 'text/html; charset=utf-8'));
+  const page = memo(() => readPage(dir));
   const assets: Record<string, () => Promise<Asset>> = {
     'style.css': memo(() => readAsset(dir, 'style.css', 'text/css; charset=utf-8')),
     'client.js': memo(() => compileClient(dir)),
@@ -103,7 +124,7 @@ export default async function inspectRoutes(app: FastifyInstance): Promise<void>
   };
 
   const openapi = {
-    summary: 'The inspector page: naive and planned renditions side by side, with the alias-risk report',
+    summary: 'The inspector page: the legacy look and the foldwise rendition side by side, with the alias-risk report',
     tags: ['inspector'],
     responses: { '200': { description: 'An HTML page', content: { 'text/html': {} } } },
   };

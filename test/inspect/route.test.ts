@@ -1,4 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { kernelNames } from '../../src/core/index.js';
+import { legacyLook, pointSampling } from '../../src/inspector/copies.js';
 import { build, type TestApp } from '../helpers/build.js';
 
 describe('GET /inspect and its assets', () => {
@@ -41,6 +43,21 @@ describe('GET /inspect and its assets', () => {
     // RFC 9110, section 13.1.2: If-None-Match may list several entity tags.
     const listed = await t.app.inject({ url: '/inspect/assets/client.js', headers: { 'if-none-match': `"other", ${etag}` } });
     expect(listed.statusCode).toBe(304);
+  });
+
+  it('lists every kernel of the core table in the Kernel menu, and auto first', async () => {
+    const res = await t.app.inject({ url: '/inspect' });
+    const select = /<select id="kernel"[^>]*>([\s\S]*?)<\/select>/.exec(res.body)?.[1] ?? '';
+    const values = [...select.matchAll(/<option value="([^"]+)"/g)].map((m) => m[1]);
+    expect(values).toEqual(['auto', ...kernelNames]);
+    expect(values).toContain('bandlimit');
+    expect(res.body).toContain('Prefilter sigma (source px)');
+    expect(res.body).not.toMatch(/blur radius/i);
+  });
+
+  it('asks for the legacy look and point sampling with kernels the service accepts', () => {
+    expect(kernelNames).toContain(legacyLook.kernel);
+    expect(kernelNames).toContain(pointSampling.kernel);
   });
 
   it('answers HEAD for the page without a body', async () => {

@@ -10,14 +10,21 @@ export interface ImageView {
 /** What the inspector shows once a run has finished. */
 export interface View {
   search: string;
-  naive: ImageView;
+  legacy: ImageView;
   planned: ImageView;
+  points: ImageView & { hidden: boolean };
   map: ImageView;
   spectrum: ImageView;
   /** The figures of the numbers list, by their data-key. */
   numbers: Record<string, string>;
-  /** The level badges of the two copies. */
-  levels: { naive: string; planned: string };
+  /** The level badges of the copies. */
+  levels: { legacy: string; planned: string; points: string };
+  /** The Kernel menu's option values. */
+  kernels: string[];
+  /** The pattern table's first column ("folds into coarse bands ..."). */
+  patternNames: string[];
+  /** The page's explanation of the lighter tone. */
+  lighter: string;
   verdict: string;
   plan: string;
   peakRows: number;
@@ -65,24 +72,29 @@ const collect = `(() => {
   };
   const numbers = {};
   for (const dd of document.querySelectorAll('#numbers dd')) numbers[dd.dataset.key] = dd.textContent;
-  const zoom = document.getElementById('naive-zoom');
+  const zoom = document.getElementById('legacy-zoom');
   return {
     search: location.search,
-    naive: image('naive-img'),
+    legacy: image('legacy-img'),
     planned: image('planned-img'),
+    points: { ...image('points-img'), hidden: document.getElementById('points-panel').hidden },
     map: image('map-img'),
     spectrum: image('spectrum-img'),
     numbers,
     levels: {
-      naive: document.getElementById('naive-level').textContent,
+      legacy: document.getElementById('legacy-level').textContent,
       planned: document.getElementById('planned-level').textContent,
+      points: document.getElementById('points-level').textContent,
     },
+    kernels: [...document.querySelectorAll('#kernel option')].map((o) => o.value),
+    patternNames: [...document.querySelectorAll('#peaks tbody tr')].map((tr) => tr.cells[0].textContent),
+    lighter: document.getElementById('lighter').textContent,
     verdict: document.getElementById('verdict-text').textContent,
     plan: document.getElementById('plan-header').textContent,
     peakRows: document.querySelectorAll('#peaks tbody tr').length,
     zoom: { width: zoom.width, height: zoom.height },
-    alts: [...document.querySelectorAll('img')].map((e) => e.alt)
-      .concat([...document.querySelectorAll('canvas')].map((e) => e.getAttribute('aria-label'))),
+    alts: [...document.querySelectorAll('img')].filter((e) => !e.closest('[hidden]')).map((e) => e.alt)
+      .concat([...document.querySelectorAll('canvas')].filter((e) => !e.closest('[hidden]')).map((e) => e.getAttribute('aria-label'))),
   };
 })()`;
 
@@ -100,7 +112,7 @@ export async function shown(page: Page): Promise<View> {
  * Standard deviation of the grey level (Rec. 709 luma weights on the 8-bit codes) of each
  * enlarged crop: how much false contrast each copy holds in the riskiest region.
  */
-export function cropSpread(page: Page): Promise<{ naive: number; planned: number }> {
+export function cropSpread(page: Page): Promise<{ legacy: number; planned: number }> {
   return page.evaluate(`(() => {
     const spread = (id) => {
       const canvas = document.getElementById(id);
@@ -112,7 +124,27 @@ export function cropSpread(page: Page): Promise<{ naive: number; planned: number
       }
       return Math.sqrt(Math.max(0, sum2 / n - (sum / n) ** 2));
     };
-    return { naive: spread('naive-zoom'), planned: spread('planned-zoom') };
+    return { legacy: spread('legacy-zoom'), planned: spread('planned-zoom') };
+  })()`);
+}
+
+/**
+ * Dark pixels (grey level under 80) of a shown picture inside rows y0..y1 and columns x0..x1:
+ * the labels and lines drawn into the map and spectrum PNGs.
+ */
+export function inkIn(page: Page, id: string, box: { x0: number; y0: number; x1: number; y1: number }): Promise<number> {
+  return page.evaluate(`(() => {
+    const img = document.getElementById(${JSON.stringify(id)});
+    const canvas = document.createElement('canvas');
+    canvas.width = img.naturalWidth;
+    canvas.height = img.naturalHeight;
+    const context = canvas.getContext('2d');
+    context.drawImage(img, 0, 0);
+    const b = ${JSON.stringify(box)};
+    const { data } = context.getImageData(b.x0, b.y0, b.x1 - b.x0, b.y1 - b.y0);
+    let dark = 0;
+    for (let i = 0; i < data.length; i += 4) if (0.2126 * data[i] + 0.7152 * data[i + 1] + 0.0722 * data[i + 2] < 80) dark++;
+    return dark;
   })()`);
 }
 
