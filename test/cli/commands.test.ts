@@ -76,7 +76,8 @@ describe('foldwise risk', () => {
     expect(Math.abs(peak.aliasTo.fx - 0.2)).toBeLessThan(4 / 64);
     expect(view.folded.unfiltered).toBeGreaterThan(0.5);
     const meta = await sharp(map).metadata();
-    expect([meta.format, meta.width, meta.height]).toEqual(['png', 200, 100]);
+    // A 200x100 preview, widened to the legend's 584 px, with the 96 px legend beneath it.
+    expect([meta.format, meta.width, meta.height]).toEqual(['png', 584, 100 + 96]);
 
     const usage = await runCli(['risk', src], { env });
     expect([usage.code, usage.stderr]).toEqual([2, expect.stringContaining('give --width, --height, or both')]);
