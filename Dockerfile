@@ -8,7 +8,7 @@
 #   docker run --rm -p 8080:8080 --shm-size=512m -v "$PWD/pictures:/data/images:ro" \
 #     -v "$PWD/foldwise.json:/etc/foldwise.json:ro" -e FOLDWISE_CONFIG=/etc/foldwise.json foldwise
 
-FROM node:20-bookworm-slim AS build
+FROM node:24-bookworm-slim AS build
 WORKDIR /app
 COPY package.json package-lock.json ./
 # --ignore-scripts: the project's `prepare` (the CLI bundle) needs src/, which is not here yet,
@@ -18,7 +18,7 @@ COPY tsconfig.json tsconfig.build.json ./
 COPY src ./src
 RUN npm run build && npm prune --omit=dev --no-audit --no-fund --ignore-scripts
 
-FROM node:20-bookworm-slim AS runtime
+FROM node:24-bookworm-slim AS runtime
 ENV NODE_ENV=production \
     HOST=0.0.0.0 \
     PORT=8080 \
@@ -37,7 +37,7 @@ RUN mkdir -p /data/images /data/cache && chown -R node:node /data
 USER node
 EXPOSE 8080
 VOLUME ["/data/cache"]
-# Liveness through the service's own /healthz; Node 20 has fetch, so no curl in the image.
+# Liveness through the service's own /healthz; Node has fetch, so no curl in the image.
 HEALTHCHECK --interval=30s --timeout=3s --start-period=60s --retries=3 \
   CMD ["node", "-e", "fetch('http://127.0.0.1:'+(process.env.PORT||8080)+'/healthz').then(r=>process.exit(r.ok?0:1),()=>process.exit(1))"]
 CMD ["node", "dist/server.js"]
