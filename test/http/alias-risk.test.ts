@@ -107,10 +107,12 @@ describe('GET /v1/alias-risk/{source}', () => {
     expect(res.statusCode).toBe(200);
     expect(res.headers['content-type']).toBe('image/png');
     const { at, info } = await pixels(res.rawPayload);
-    expect(info.width).toBe(512);
-    // 128-cell spectrum shown 4x: fx = 0.25 lies at (64 + 0.25 * 128 + 0.5) * 4 = 386.
-    expect(at(386, 256)).toEqual([255, 255, 255]);
-    expect(at(130, 256)).toEqual([255, 255, 255]); // fx = -0.25: (64 - 32 + 0.5) * 4
+    // The 512 px plot sits 64 px from the left (frequency labels) and 30 px from the top, with
+    // 120 px on the right for the colour bar: 64 + 512 + 120.
+    expect(info.width).toBe(696);
+    // 128-cell spectrum shown 4x: fx = 0.25 lies at (64 + 0.25 * 128 + 0.5) * 4 = 386 in the plot.
+    expect(at(64 + 386, 30 + 256)).toEqual([255, 255, 255]);
+    expect(at(64 + 130, 30 + 256)).toEqual([255, 255, 255]); // fx = -0.25: (64 - 32 + 0.5) * 4
   });
 
   it('maps the risk where the pattern is', async () => {
@@ -118,11 +120,12 @@ describe('GET /v1/alias-risk/{source}', () => {
     expect(res.statusCode).toBe(200);
     const { at, info } = await pixels(res.rawPayload);
     expect(info.width).toBe(640);
-    expect(info.height).toBe(320);
-    const [r1, g1] = at(40, 40); // top-left region: the grating
-    const [r2, g2] = at(600, 280); // bottom-right: flat grey
-    expect(r1).toBeGreaterThan(g1); // vermillion-ish (Okabe & Ito)
-    expect(g2).toBeGreaterThan(r2); // bluish green
+    expect(info.height).toBe(320 + 96); // the map, then its legend in threshold units
+    const [r1, g1, b1] = at(40, 40); // top-left region: the grating, tinted by its margin
+    const [r2, g2, b2] = at(600, 280); // bottom-right: flat, below a quarter of threshold: grey
+    expect(r1 - b1).toBeGreaterThan(30); // the madder ramp runs from ochre to dark red
+    expect(r1).toBeGreaterThan(g1);
+    expect(Math.max(Math.abs(r2 - g2), Math.abs(g2 - b2))).toBeLessThanOrEqual(2);
   });
 
   it('answers 304 to its own ETag', async () => {
