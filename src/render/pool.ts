@@ -117,6 +117,10 @@ export class RenderPool {
       maxThreads: this.threads,
       // At most `maxRunning` jobs reach the pool, with two band tasks each.
       maxQueue: 2 * maxRunning,
+      // piscina's default has an idle thread block in Atomics.wait, still holding its last
+      // task: the collection a large source's task schedules (worker.ts) never ran, and one
+      // mapping the size of that source stayed for good. Message events let it run.
+      atomics: 'disabled',
       execArgv: fromSource ? ['--import', tsxLoader] : [],
     });
   }
