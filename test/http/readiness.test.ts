@@ -114,4 +114,20 @@ describe('/readyz under load shedding', () => {
       await rm(own, { recursive: true, force: true });
     }
   });
+
+  it('a sample shorter than the event-loop limit that saw no tick does not shed (issue 18: b, e, f)', async () => {
+    // 5 ms samples against under-pressure's 10 ms ticks: many samples see none. That proves a
+    // pause of one sample, not an event-loop delay over 1000 ms.
+    const t = await build({ config: { pressure: { maxEventLoopDelayMs: 1000, sampleIntervalMs: 5 } } });
+    try {
+      const codes = new Set<number>();
+      for (let i = 0; i < 200; i++) {
+        codes.add((await t.app.inject({ url: '/v1/sources' })).statusCode);
+        await new Promise<void>((resolve) => setTimeout(resolve, 1));
+      }
+      expect([...codes]).toEqual([200]);
+    } finally {
+      await t.close();
+    }
+  });
 });
