@@ -71,7 +71,8 @@ export default function resample(task: ResampleTask): number {
   const outSamples = plan.targetWidth * plan.targetHeight * src.channels;
   view(out, src.depth, outSamples).set(band.data, rows[0] * plan.targetWidth * src.channels);
   // This thread's handle on a large shared source would keep it mapped until the thread next
-  // collects garbage, which an idle thread may not do for minutes: collect after this task.
+  // collects garbage, which an idle thread may not do for minutes: collect after this task
+  // (once piscina has let go of it; pool.ts keeps its threads off Atomics.wait for that).
   if ('buffer' in src && src.buffer.byteLength >= HAND_BACK_MIN_BYTES) handBack();
   return band.height;
 }

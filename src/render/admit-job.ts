@@ -5,7 +5,7 @@ import { readHeader, type SourceHeader } from '../media/header.js';
 import { negotiateFormat } from '../media/negotiate.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import type { Lease } from './budget.js';
-import { outputCost, renditionCost, stagingCost } from './cost.js';
+import { decodeCost, outputCost, renditionCost, stagingCost } from './cost.js';
 import { planRendition } from './plan.js';
 import type { RenderPool } from './pool.js';
 import { decodeLimits, type ReadSource } from './source.js';
@@ -54,9 +54,11 @@ export async function admitRendition(
     const h = await ctx.clock.time('decode', () => readHeader(source.bytes, decodeLimits(ctx.limits)));
     const streamed = ctx.pool.spool !== null && !h.hasAlpha && h.width * h.height >= STREAM_MIN_PIXELS;
     const bytes = renditionCost(h, outputPixels(h, q, ctx.limits), formatFor(q, accept, h.hasAlpha), streamed);
-    return ctx.pool.admit(bytes, `a ${h.width}x${h.height} ${8 * h.bytesPerSample}-bit ${h.channels}-channel source`, ctx.signal);
+    // Streamed, the source is in a spool file, not in this process's buffers.
+    const held = streamed ? 0 : decodeCost(h) + stagingCost(h);
+    return ctx.pool.admit(bytes, `a ${h.width}x${h.height} ${8 * h.bytesPerSample}-bit ${h.channels}-channel source`, ctx.signal, held);
   }
   const h = headerOf(source.raster, source.hasAlpha);
   const bytes = stagingCost(h) + outputCost(h, outputPixels(h, q, ctx.limits), formatFor(q, accept, h.hasAlpha));
-  return ctx.pool.admit(bytes, `a rendition of a ${h.width}x${h.height} source`, ctx.signal);
+  return ctx.pool.admit(bytes, `a rendition of a ${h.width}x${h.height} source`, ctx.signal, stagingCost(h));
 }

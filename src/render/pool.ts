@@ -117,6 +117,10 @@ export class RenderPool {
       maxThreads: this.threads,
       // At most `maxRunning` jobs reach the pool, with two band tasks each.
       maxQueue: 2 * maxRunning,
+      // piscina's default has an idle thread block in Atomics.wait, still holding its last
+      // task: the collection a large source's task schedules (worker.ts) never ran, and one
+      // mapping the size of that source stayed for good. Message events let it run.
+      atomics: 'disabled',
       execArgv: fromSource ? ['--import', tsxLoader] : [],
     });
   }
@@ -162,12 +166,13 @@ export class RenderPool {
   }
 
   /**
-   * Waits for `bytes` of the memory budget (cost.ts estimates them); release the lease when
+   * Waits for `bytes` of the memory budget (cost.ts estimates them; `heldBytes` of them in
+   * garbage-collected buffers, by default all); release the lease when
    * the job's last byte is gone (after its encode). Throws ERR_SOURCE_TOO_COSTLY (413) for a
    * job larger than the budget, ERR_OVERLOADED past the line or the wait, the signal's reason
    * when it aborts while waiting, ERR_SERVICE_STOPPING once the pool is closing.
    */
-  admit(bytes: number, what: string, signal?: AbortSignal): Promise<Lease> {
+  admit(bytes: number, what: string, signal?: AbortSignal, heldBytes = bytes): Promise<Lease> {
     if (this.closing) return Promise.reject(this.stopping());
     // RSS only as a last resort, and only while other jobs run: their end brings it down, so
     // this can never refuse for good (an idle replica over the ceiling is /healthz's concern).
@@ -180,8 +185,10 @@ export class RenderPool {
       );
     }
     return this.budget.acquire(bytes, what, signal).then((lease) => {
-      if (bytes < HAND_BACK_MIN_BYTES) return lease;
-      // A job this big dropped large buffers: collect them now that it has ended (hand-back.ts).
+      if (heldBytes < HAND_BACK_MIN_BYTES) return lease;
+      // A job whose buffers in this process (`heldBytes` of `bytes`; an encoder's working set is
+      // not) were this big dropped them: collect them now that it has ended (hand-back.ts). A
+      // full collection stops the event loop, so only then.
       return { bytes, release: () => (lease.release(), handBack()) };
     });
   }

@@ -57,6 +57,8 @@ export interface RenderContext {
   admitted?: boolean;
   /** Aborts when no one waits for the render any more (every caller gone): ERR_REQUEST_ABANDONED. */
   signal?: AbortSignal;
+  /** The refusal a miss gets while the process sheds load (hits are still served), else null. */
+  shedding?: Error | null;
 }
 
 export interface Rendition {
@@ -192,6 +194,7 @@ export async function renderRendition(
     return { entry: hit.entry, cache: `hit-${hit.tier}`, timings: clock.timings, key };
   }
   ctx.onLookup?.('miss');
+  if (ctx.shedding) throw ctx.shedding;
   // The render's signal aborts once no caller waits for it any more (the flight counts them).
   const { value: entry } = await ctx.flight.run(key, async (abandoned) => {
     const { entry: made, identity: read } = await produce({ ...ctx, clock, asked: identity, signal: abandoned }, path, query, accept);

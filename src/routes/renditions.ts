@@ -24,7 +24,7 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
   async function handler(request: FastifyRequest, reply: FastifyReply) {
     const { path, query: q, canonical } = requests.read(request.url, request.query as Record<string, unknown>);
     const signal = abandonSignal(reply);
-    const r = await renderRendition({ ...renderContext, signal }, path, q, request.headers.accept, canonical);
+    const r = await renderRendition({ ...renderContext, signal, shedding: request.shedding }, path, q, request.headers.accept, canonical);
     reply
       .header('etag', r.entry.etag)
       // For validly signed URLs the signing plugin (src/plugins/signing.ts), which checked the

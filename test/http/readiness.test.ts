@@ -83,4 +83,51 @@ describe('/readyz under load shedding', () => {
       await t.close();
     }
   });
+
+  it('still serves rendition hits; a rendition miss gets the 503 (issue 18: >= 99 % of hits during a flood)', async () => {
+    // The hit comes from the disk tier of a first service that rendered it without pressure.
+    const own = await mkdtemp(join(tmpdir(), 'foldwise-shed-'));
+    const cache = { cache: { dir: join(own, 'cache') } };
+    const first = await build({ sourceDir: own, config: cache });
+    await writePng(own, 'weave.png', 64, 48, 3, (x, y) => [(x * 16) & 255, (y * 16) & 255, ((x ^ y) * 8) & 255]);
+    const made = await first.app.inject({ url: '/v1/renditions/weave.png?width=32&format=png' });
+    expect(made.statusCode).toBe(200);
+    await first.close();
+    const t = await build({ sourceDir: own, config: { ...cache, pressure: { maxHeapUsedBytes: 1, sampleIntervalMs: 5 } } });
+    try {
+      let shed = await t.app.inject({ url: '/v1/sources' });
+      for (let i = 0; i < 500 && shed.statusCode !== 503; i++) {
+        await new Promise<void>((resolve) => setImmediate(resolve));
+        shed = await t.app.inject({ url: '/v1/sources' });
+      }
+      expect(shed.statusCode).toBe(503);
+      const hit = await t.app.inject({ url: '/v1/renditions/weave.png?width=32&format=png' });
+      expect(hit.statusCode).toBe(200);
+      expect(cacheOf(hit)).toBe('hit-disk');
+      expect(hit.rawPayload.equals(made.rawPayload)).toBe(true);
+      const miss = await t.app.inject({ url: '/v1/renditions/weave.png?width=31&format=png' });
+      expect(miss.statusCode).toBe(503);
+      expect(miss.json().code).toBe('ERR_OVERLOADED');
+      expect(miss.headers['retry-after']).toBe(String(t.config.pressure.retryAfterSeconds));
+    } finally {
+      await t.close();
+      await rm(own, { recursive: true, force: true });
+    }
+  });
+
+  it('a sample shorter than the event-loop limit that saw no tick does not shed (issue 18: b, e, f)', async () => {
+    // 5 ms samples against under-pressure's 10 ms ticks: many samples see none. That proves a
+    // pause of one sample, not an event-loop delay over 1000 ms.
+    const t = await build({ config: { pressure: { maxEventLoopDelayMs: 1000, sampleIntervalMs: 5 } } });
+    try {
+      const codes = new Set<number>();
+      for (let i = 0; i < 200; i++) {
+        codes.add((await t.app.inject({ url: '/v1/sources' })).statusCode);
+        await new Promise<void>((resolve) => setTimeout(resolve, 1));
+      }
+      expect([...codes]).toEqual([200]);
+    } finally {
+      await t.close();
+    }
+  });
 });

@@ -3,6 +3,7 @@ import { makePlan, renderRaster } from '../../src/core/index.js';
 import type { PixelRaster } from '../../src/core/types.js';
 import { RenderPool } from '../../src/render/pool.js';
 import { StagingBuffers } from '../../src/render/staging.js';
+import { until } from '../faults/pool-tap.js';
 
 const MiB = 2 ** 20;
 
@@ -47,6 +48,26 @@ describe('RenderPool with reused source buffers', () => {
         const got = await pool.resample(src, plan);
         expect(Buffer.from(got.data as Uint8Array).equals(Buffer.from(renderRaster(src, plan).data as Uint8Array))).toBe(true);
       }
+    } finally {
+      await pool.close();
+    }
+  });
+});
+
+describe('RenderPool with a source over the reuse limit (64 MiB)', () => {
+  it('unmaps its buffer once the render ends: no worker thread keeps it (issue 18)', async () => {
+    const pool = new RenderPool({ threads: 2, maxQueue: 0, retryAfterSeconds: 1 });
+    try {
+      // 4800x4800 RGB, 66 MiB: a fresh buffer of its own, not kept (staging.ts).
+      const src = { data: new Uint8Array(4800 * 4800 * 3).fill(90), width: 4800, height: 4800, channels: 3 } as const;
+      const plan = makePlan({ sourceWidth: 4800, sourceHeight: 4800, targetWidth: 64, targetHeight: 64, kernel: 'auto', prefilter: 'auto', light: 'linear' });
+      const before = process.memoryUsage().arrayBuffers;
+      const got = await pool.resample(src, plan);
+      expect(got.data[0]).toBe(90);
+      // The worker collects after its task (worker.ts), this thread after the render (hand-back.ts).
+      await until(() => process.memoryUsage().arrayBuffers < before + 16 * MiB, 2_000_000);
+      expect(process.memoryUsage().arrayBuffers).toBeLessThan(before + 16 * MiB);
+      expect(pool.memory().stagingIdleBytes).toBe(0);
     } finally {
       await pool.close();
     }
