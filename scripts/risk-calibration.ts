@@ -4,8 +4,11 @@
  *    (encoded light, Lanczos-3, no prefilter) is rated worse (larger margin) than the default.
  * 2. Natural photographs (python3-skimage): band energy 0.5x..0.9x Nyquist kept by prefilter=auto
  *    against prefilter=none.
+ * 3. Gratings and step shrunk 4x (scripts/risk/figures.ts): kept amplitude near Nyquist and the
+ *    worst-phase overshoot, beside the legacy look and the reference library's resizes.
  */
 import { bandEnergy, demoRows, photoSource, PHOTOS, planFor, render } from './risk/cases.js';
+import { figuresTable } from './risk/figures.js';
 
 const rows = demoRows();
 const pad = (s: string, n: number) => s.padEnd(n);
@@ -43,3 +46,5 @@ for (const name of PHOTOS) {
   }
   console.log(`  ${pad(name, 20)} ${kept.join(', ')}`);
 }
+
+console.log(`\n${await figuresTable()}`);

@@ -40,6 +40,16 @@ export function step(w: number, h: number, edge: number, low: number, high: numb
   return { raster: grey(w, h, at), at };
 }
 
+/**
+ * A vertical step from linear `low` to `high` at a fractional position `edge` (source x; pixel x
+ * covers [x - 1/2, x + 1/2]): the pixel the edge crosses holds the area mix, so edges between
+ * pixel boundaries sample every sub-pixel phase of the output grid.
+ */
+export function stepAt(w: number, h: number, edge: number, low: number, high: number): Pattern {
+  const at = (x: number) => low + (high - low) * Math.min(1, Math.max(0, x + 0.5 - edge));
+  return { raster: grey(w, h, at), at };
+}
+
 /** 1-pixel black and white vertical stripes (CHECKS.md: halved in linear light -> 188). */
 export function stripes(w: number, h: number): Pattern {
   const at = (x: number) => (Math.round(x) % 2 ? 1 : 0);

@@ -1,6 +1,7 @@
 /**
  * The readable form of one alias-risk report for `foldwise risk`: aligned label/value lines,
- * the peaks as a small table, and the region grid as digits 0..9 (a text heat map).
+ * the false patterns a viewer could see and the peaks as small tables, the advice with its
+ * cost, and the per-region margins as digits 0..9 (a text heat map in threshold units).
  */
 import type { RiskReport } from '../core/risk/index.js';
 
@@ -24,12 +25,26 @@ export function riskTable(v: RiskView): string {
   const out = [
     line('source', `${v.file}  ${v.source.width} x ${v.source.height}`),
     line('target', `${v.target.width} x ${v.target.height}  (scale ${pair(r.scale.x, r.scale.y, 3)})`),
-    line('level', `${r.level}  (score ${r.score.toFixed(2)})`),
+    line('level', `${r.level}  (strongest false pattern ${r.margin.toFixed(2)}x its visibility threshold; 1 = just visible)`),
+    line('viewing', `density ${r.viewing.density}, ${r.viewing.degreesPerPixel.toFixed(4)} degrees per pixel`),
+    line('cutoff', `${pair(r.cutoff.x, r.cutoff.y, 2)} of the kernel's own`),
+  ];
+  const shown = r.patterns.filter((p) => p.kind !== 'clean' || p.margin > 0);
+  if (shown.length > 0) {
+    out.push('patterns', `  ${'kind'.padEnd(6)} ${'at (cycles/px)'.padEnd(16)} ${'seen at (/out px)'.padEnd(18)} ${'contrast'.padEnd(9)} ${'margin'.padEnd(7)} what it does`);
+    for (const p of shown) {
+      const at = `${f3(p.frequency.fx)}, ${f3(p.frequency.fy)}`;
+      const seen = `${f3(p.apparent.fx)}, ${f3(p.apparent.fy)}`;
+      out.push(`  ${p.kind.padEnd(6)} ${at.padEnd(16)} ${seen.padEnd(18)} ${pct(p.contrast).padEnd(9)} ${p.margin.toFixed(2).padEnd(7)} ${p.description}`);
+    }
+  }
+  for (const a of r.advice) out.push(line('advice', `${a.change ? `${a.change} ` : ''}${a.effect}; ${a.cost}`));
+  out.push(
     line('folded', `${pct(r.folded.unfiltered)} of the detail energy with no prefilter, ${pct(r.folded.planned)} with the planned filter`),
     line('nyquist', `${pair(r.nyquist.x, r.nyquist.y, 3)} cycles per source pixel`),
-    line('sigma', `${pair(r.recommendedSigma.x, r.recommendedSigma.y, 2)} px recommended`),
+    line('sigma', `${pair(r.recommendedSigma.x, r.recommendedSigma.y, 2)} px (a Gaussian that would bring the folded energy under -40 dB)`),
     line('plan', v.plan),
-  ];
+  );
   if (r.peaks.length > 0) {
     out.push('peaks', `  ${'kind'.padEnd(10)} ${'at (cycles/px)'.padEnd(16)} ${'share'.padEnd(8)} ${'passed'.padEnd(8)} folds to (cycles/output px)`);
     for (const p of r.peaks) {
@@ -38,10 +53,10 @@ export function riskTable(v: RiskView): string {
       out.push(`  ${p.kind.padEnd(10)} ${at.padEnd(16)} ${pct(p.power).padEnd(8)} ${pct(p.passed).padEnd(8)} ${to}`);
     }
   }
-  out.push(`regions    risk per region, 0 (none) to 9 (high), top row first`);
-  const { columns, rows, cells } = r.grid;
+  out.push(`regions    visibility per region in threshold units, 0 (under 1: nothing to see) to 9 (9 or more), top row first`);
+  const { columns, rows, margins } = r.grid;
   for (let y = 0; y < rows; y++) {
-    const row = cells.slice(y * columns, (y + 1) * columns).map((c) => String(Math.min(9, Math.round(c * 9))));
+    const row = margins.slice(y * columns, (y + 1) * columns).map((m) => String(Math.min(9, Math.max(0, Math.floor(m)))));
     out.push(`  ${row.join(' ')}`);
   }
   out.push(line('reason', r.reason));

@@ -5,7 +5,7 @@
  * at what cost), in the visibility model's words.
  */
 import type { Limits } from '../config.js';
-import { CEIL_DB, FLOOR_DB, type RiskReport, type SourceSpectrum } from '../core/risk/index.js';
+import type { RiskReport, SourceSpectrum } from '../core/risk/index.js';
 import type { Plan } from '../core/types.js';
 import { assessRendition } from '../risk/report.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
@@ -20,15 +20,13 @@ export interface LadderStep extends WidthRisk {
 }
 
 /**
- * The region grid on a linear energy scale, for naming where the moiré is: the report's cell
- * scores are folded energy (against the source's mean) in dB mapped onto 0..1 between FLOOR_DB
- * and CEIL_DB (core/risk/score.ts), so 10^(dB / 10) undoes the mapping. "Hot" then means at
- * least half the strongest region's folded energy, not half its decibels. Scaled to 0..1.
+ * The region grid for naming where the false pattern shows: the model's per-region margins in
+ * threshold units (core/risk/grid.ts), scaled to 0..1 by the strongest region, so "hot" means
+ * at least half as visible as the worst region.
  */
-function linearGrid(grid: RiskReport['grid']): RiskGrid {
-  const energy = grid.cells.map((score) => (score > 0 ? 10 ** ((FLOOR_DB + score * (CEIL_DB - FLOOR_DB)) / 10) : 0));
-  const max = Math.max(0, ...energy);
-  return { columns: grid.columns, rows: grid.rows, cells: max > 0 ? energy.map((e) => e / max) : energy };
+function marginGrid(grid: RiskReport['grid']): RiskGrid {
+  const max = Math.max(0, ...grid.margins);
+  return { columns: grid.columns, rows: grid.rows, cells: max > 0 ? grid.margins.map((m) => Math.max(0, m) / max) : grid.margins.map(() => 0) };
 }
 
 /**
@@ -49,7 +47,7 @@ export function widthRisk(width: number, report: RiskReport): WidthRisk {
     width,
     level: report.level,
     score: report.score,
-    grid: linearGrid(report.grid),
+    grid: marginGrid(report.grid),
     periodic: top ? top.source === 'line' : isPeriodic(report),
     pattern: top?.description,
     advice: report.advice[0],

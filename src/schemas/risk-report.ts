@@ -42,7 +42,7 @@ export const riskReportSchema = z
       .meta({ description: 'What to change, what it does, and what it costs the picture; never a different width.' }),
     folded: z.object({ unfiltered: z.number(), planned: z.number() }).meta({ description: 'Share of the non-DC energy that folds back, with no prefilter and with the planned filter.' }),
     peaks: z.array(z.object({}).loose()).meta({ description: 'Strongest spectral peaks beyond the new Nyquist: fx, fy, power, kind, aliasTo, passed.' }),
-    grid: z.object({}).loose().meta({ description: 'Per-region folded energy: columns, rows, cells, folded.' }),
+    grid: z.object({}).loose().meta({ description: 'Per region (columns x rows, row-major): margins, the visibility of the false patterns there in threshold units (1.0 = just visible; the map); cells and folded, the folded energy (score 0..1 and share of the region energy).' }),
     recommendedSigma: pair('Gaussian sigma (source px) that brings the folded energy under -40 dB; softens everything.'),
     reason: z.string(),
   })

@@ -95,17 +95,8 @@ describe('view=map', () => {
 });
 
 describe('margins per region', () => {
-  const grid = (cells: number[]) => ({ columns: cells.length, rows: 1, cells });
-  it('shares a fold out by the square root of where its energy sits', () => {
-    // Scores 0.25 and 0.75 are -40 and -20 dB (FLOOR -50, CEIL -10): energies 1e-4 and 1e-2,
-    // mean 0.00505; contrast goes as sqrt(energy): 2 x sqrt(1e-4 / 0.00505) and 2 x sqrt(1e-2 / 0.00505).
-    const m = regionMargins({ grid: grid([0.25, 0.75]), margin: 2, patterns: [{ kind: 'fold', margin: 2 }] });
-    expect(m[0]).toBeCloseTo(2 * Math.sqrt(1e-4 / 0.00505), 6);
-    expect(m[1]).toBeCloseTo(2 * Math.sqrt(1e-2 / 0.00505), 6);
-  });
-
-  it('gives every region the picture margin for a beat, and nothing when nothing false shows', () => {
-    expect(regionMargins({ grid: grid([0, 0.5, 1]), margin: 1.5, patterns: [{ kind: 'beat', margin: 1.5 }] })).toEqual([1.5, 1.5, 1.5]);
-    expect(regionMargins({ grid: grid([0.5, 0.5]), margin: 0, patterns: [{ kind: 'clean', margin: 3 }] })).toEqual([0, 0]);
+  it('draws the model\'s own per-region margins (core/risk/grid.ts), negatives as none', () => {
+    expect(regionMargins({ grid: { columns: 3, rows: 1, margins: [0.2, 1.5, -0] } })).toEqual([0.2, 1.5, 0]);
+    expect(regionMargins({ grid: { columns: 2, rows: 1, margins: [-1, 4] } })).toEqual([0, 4]);
   });
 });

@@ -6,12 +6,15 @@ import { pyramidChainResponse } from '../pyramid.js';
 /** Output pixels sampled when averaging a table's response over its phases. */
 const PHASES = 33;
 
+const phasesOf = new WeakMap<WeightTable, Int32Array>();
+
 /**
- * Mean magnitude over sampled output pixels of sum_k w_k exp(-2 pi i f (j_k - c)), f in cycles
- * per input pixel of the table. Output pixels whose taps reach the border are skipped when
- * there are interior ones (clamped taps are not the filter's shape).
+ * The output pixels a table's response is averaged over: up to PHASES, spread evenly over the
+ * interior ones (taps clear of the border) when there are any. Computed once per table.
  */
-export function tableResponse(t: WeightTable, f: number): number {
+function phases(t: WeightTable): Int32Array {
+  const hit = phasesOf.get(t);
+  if (hit) return hit;
   const interior: number[] = [];
   for (let o = 0; o < t.dstLen; o++) {
     const s = t.start[o];
@@ -19,20 +22,42 @@ export function tableResponse(t: WeightTable, f: number): number {
   }
   const pool = interior.length > 0 ? interior : Array.from({ length: t.dstLen }, (_, o) => o);
   const n = Math.min(PHASES, pool.length);
+  const out = Int32Array.from({ length: n }, (_, i) => pool[Math.floor(((i + 0.5) * pool.length) / n)]);
+  phasesOf.set(t, out);
+  return out;
+}
+
+/**
+ * Mean magnitude over sampled output pixels of sum_k w_k exp(-2 pi i f (j_k - c)), f in cycles
+ * per input pixel of the table. Output pixels whose taps reach the border are skipped when
+ * there are interior ones (clamped taps are not the filter's shape). The phase of tap k is the
+ * first tap's turned k times by exp(-2 pi i f): two cosines per output pixel, not two per tap.
+ */
+export function tableResponse(t: WeightTable, f: number): number {
+  const picked = phases(t);
+  const n = picked.length;
+  const dc = Math.cos(-2 * Math.PI * f);
+  const ds = Math.sin(-2 * Math.PI * f);
   let total = 0;
   for (let i = 0; i < n; i++) {
-    const o = pool[Math.floor(((i + 0.5) * pool.length) / n)];
+    const o = picked[i];
+    const p = -2 * Math.PI * f * (t.start[o] - t.centre[o]);
+    let c = Math.cos(p);
+    let s = Math.sin(p);
     let re = 0;
     let im = 0;
+    const base = o * t.taps;
     for (let k = 0; k < t.taps; k++) {
-      const w = t.weights[o * t.taps + k];
-      const p = -2 * Math.PI * f * (t.start[o] + k - t.centre[o]);
-      re += w * Math.cos(p);
-      im += w * Math.sin(p);
+      const w = t.weights[base + k];
+      re += w * c;
+      im += w * s;
+      const c2 = c * dc - s * ds;
+      s = c * ds + s * dc;
+      c = c2;
     }
     total += Math.hypot(re, im);
   }
-  return total / n;
+  return n > 0 ? total / n : 0;
 }
 
 /**

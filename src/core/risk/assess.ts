@@ -138,7 +138,7 @@ export function assessRisk(spec: SourceSpectrum, plan: Plan, response: PlanRespo
     cutoff: { x: plan.x.cutoff ?? 1, y: plan.y.cutoff ?? 1 },
     advice: plan.x.scale > 1 || plan.y.scale > 1 ? adviceFor(plan, visible, auto, capped) : [],
     peaks,
-    grid: regionRisk(setup),
+    grid: regionRisk(setup, seen.patterns),
     recommendedSigma: { x: Math.hypot(plan.x.sigma, extra.x), y: Math.hypot(plan.y.sigma, extra.y) },
     reason: parts.join('; '),
   };

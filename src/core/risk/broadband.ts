@@ -28,7 +28,24 @@ const near = (ax: number, ay: number, x: number, y: number, n: number) =>
 /** Cells below this share of the strongest are left out (they cannot change the sum). */
 const NEGLIGIBLE = 1e-9;
 
-/** The cells of `spec` beyond the new Nyquist, ready for foldMargin. */
+/** Cells (i, j) of an n x n grid within 1.5 cells of a line or its conjugate: each line's own lobe. */
+function lineMask(lines: ReadonlyArray<{ fx: number; fy: number }>, n: number): Uint8Array | undefined {
+  if (lines.length === 0) return undefined;
+  const mask = new Uint8Array(n * n);
+  for (let j = 0; j < n; j++) {
+    const y = (j - n / 2) / n;
+    for (let i = 0; i < n; i++) {
+      const x = (i - n / 2) / n;
+      if (lines.some((l) => near(l.fx, l.fy, x, y, n) || near(-l.fx, -l.fy, x, y, n))) mask[j * n + i] = 1;
+    }
+  }
+  return mask;
+}
+
+/**
+ * The cells of `spec` beyond the new Nyquist, ready for foldMargin. The squared sensitivity
+ * depends on |folded fx| and |folded fy| only, so it is computed once per mirror-image quartet.
+ */
 export function foldCells(
   spec: SourceSpectrum,
   scale: { x: number; y: number },
@@ -38,38 +55,47 @@ export function foldCells(
   own = false,
 ): FoldCells {
   const n = spec.tileSize;
-  const fx: number[] = [];
-  const fy: number[] = [];
-  const weight: number[] = [];
-  const sens: number[] = [];
+  const power = spec.power;
+  const fx = new Float64Array(n * n);
+  const fy = new Float64Array(n * n);
+  const weight = new Float64Array(n * n);
+  const sens = new Float64Array(n * n);
   let peak = 0;
-  for (let i = 0; i < spec.power.length; i++) peak = Math.max(peak, spec.power[i]);
+  for (let i = 0; i < power.length; i++) if (power[i] > peak) peak = power[i];
   const nx = 0.5 / scale.x;
   const ny = 0.5 / scale.y;
+  const h = (n >> 1) + 1;
+  const memo = new Float64Array(h * h).fill(-1);
+  const mask = lineMask(lines, n);
+  const unit = 2 / (n * n * mean * mean);
+  let count = 0;
   for (let j = 0; j < n; j++) {
     const y = (j - n / 2) / n;
+    const ay = own ? scale.y * y : scale.y * y - Math.round(scale.y * y);
     for (let i = 0; i < n; i++) {
       const x = (i - n / 2) / n;
       const inside = Math.abs(x) <= nx && Math.abs(y) <= ny;
       // `own`: the rendition's own detail between half and the whole new Nyquist (the masker).
       if (own ? !inside || Math.max(Math.abs(x) / nx, Math.abs(y) / ny) < 0.5 : inside) continue;
       // The lines' own lobes (3 x 3 cells, both conjugates) are counted as line patterns.
-      if (lines.some((l) => near(l.fx, l.fy, x, y, n) || near(-l.fx, -l.fy, x, y, n))) continue;
-      const p = spec.power[j * n + i];
+      if (mask && mask[j * n + i]) continue;
+      const p = power[j * n + i];
       if (!(p > NEGLIGIBLE * peak)) continue;
       const ax = own ? scale.x * x : scale.x * x - Math.round(scale.x * x);
-      const ay = own ? scale.y * y : scale.y * y - Math.round(scale.y * y);
-      fx.push(x);
-      fy.push(y);
-      weight.push((2 * p) / (n * n * mean * mean));
-      sens.push(contrastThreshold(cyclesPerDegree(Math.hypot(ax, ay), viewing)) ** -2);
+      const q = Math.abs(j - n / 2) * h + Math.abs(i - n / 2);
+      if (memo[q] < 0) memo[q] = contrastThreshold(cyclesPerDegree(Math.hypot(ax, ay), viewing)) ** -2;
+      fx[count] = x;
+      fy[count] = y;
+      weight[count] = p * unit;
+      sens[count] = memo[q];
+      count++;
     }
   }
   return {
-    fx: Float64Array.from(fx),
-    fy: Float64Array.from(fy),
-    weight: Float64Array.from(weight),
-    sensitivity2: Float64Array.from(sens),
+    fx: fx.slice(0, count),
+    fy: fy.slice(0, count),
+    weight: weight.slice(0, count),
+    sensitivity2: sens.slice(0, count),
     scale,
     viewing,
   };

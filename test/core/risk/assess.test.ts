@@ -133,6 +133,23 @@ describe('region grid', () => {
     expect(cells[columns * rows - 1]).toBe(0);
     expect(Math.max(...cells.slice(columns * 4))).toBe(0);
   });
+
+  it('gives the region with the grating its margin in threshold units, and the flat ones none', () => {
+    const w = 1024;
+    const h = 1024;
+    const g = grating(0.4, 0.5);
+    const spec = analyzeSpectrum(greyRaster(w, h, (x, y) => (x < 256 && y < 256 ? g(x, y) : 0.5)));
+    const r = assessRisk(spec, planOf(w, h, 3), none);
+    const { columns, rows, margins } = r.grid;
+    expect(margins.length).toBe(columns * rows);
+    // The fold of a grating covering one region in k: that region holds k times the regions'
+    // mean energy of the line, so it shows the pattern at sqrt(k) times the picture's margin.
+    const k = margins.filter((m) => m > 0).length;
+    expect(k).toBeGreaterThanOrEqual(1);
+    expect(margins[0]).toBeGreaterThan(r.margin);
+    expect(margins[0]).toBeLessThanOrEqual(r.margin * Math.sqrt(columns * rows) * 1.001);
+    expect(margins[columns * rows - 1]).toBeLessThan(0.01 * margins[0]);
+  });
 });
 
 describe('cropped renditions', () => {
