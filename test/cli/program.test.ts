@@ -8,6 +8,7 @@ describe('foldwise (the command line)', () => {
     expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/^Usage: foldwise/);
     for (const name of ['serve', 'render', 'risk', 'warm', 'sign']) expect(r.stdout).toContain(`\n  ${name} `);
+    expect(r.stdout).toContain('Exit codes: 0 done, 1 the work failed');
   });
 
   it('answers an unknown command and a bad argument with exit 2 and a clear message', async () => {
