@@ -101,7 +101,7 @@ describe('foldwise warm', () => {
   it('pre-renders a folder into the cache with a progress bar, then finds it all cached', async () => {
     const first = await runCli(['warm', join(dir, 'shop'), '--widths', '30,60', '--formats', 'webp'], { env });
     expect(first.code).toBe(0);
-    expect(first.stderr).toMatch(/warm \|[=]+\| 2\/2 files \| 4 renditions/);
+    expect(first.stderr).toMatch(/warm \|[=]+\| 2\/2 files \| 4 renditions \| ETA \d+s \|/);
     expect(first.stdout).toMatch(/^ {2}files {4}2$/m);
     expect(first.stdout).toMatch(/^ {2}done {5}4 renditions rendered$/m);
     expect(first.stdout).toMatch(/^ {2}skipped {2}0 already cached$/m);
