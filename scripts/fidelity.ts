@@ -18,7 +18,7 @@ const resizers: Array<[string, Resizer]> = [
   ['sharp linear light', sharpLinear],
   ['foldwise + Lowe-rule Gaussian', ours({}, (s) => Math.sqrt(Math.max(0, (s / 2) ** 2 - 0.25)))],
   ['foldwise + scikit-image-rule Gaussian', ours({}, (s) => Math.max(0, (s - 1) / 2))],
-  ['foldwise, kernel=lanczos3', ours({ kernel: 'lanczos3' })],
+  ['foldwise, kernel=lanczos-3', ours({ kernel: 'lanczos-3' })],
 ];
 
 async function run(r: Resizer, src: PixelRaster, w: number, h: number): Promise<Output> {

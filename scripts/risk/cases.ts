@@ -37,7 +37,7 @@ const responseOf = (plan: Plan) => (axis: 'x' | 'y', f: number) => planResponse(
 export function planFor(src: Source, width: number, look: Look | Partial<PlanRequest>): Plan {
   const height = Math.max(1, Math.round((src.raster.height * width) / src.raster.width));
   const opts: Partial<PlanRequest> =
-    look === 'legacy' ? { light: 'encoded', kernel: 'lanczos3', prefilter: 'none' } : look === 'default' ? {} : look;
+    look === 'legacy' ? { light: 'encoded', kernel: 'lanczos-3', prefilter: 'none' } : look === 'default' ? {} : look;
   const req: PlanRequest = {
     sourceWidth: src.raster.width, sourceHeight: src.raster.height, targetWidth: width, targetHeight: height,
     kernel: 'auto', prefilter: 'auto', light: 'linear', ...opts,

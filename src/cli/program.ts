@@ -12,6 +12,7 @@ export function createProgram(): Command {
     .description('Image renditions made correctly: render, analyse alias risk, pre-warm, serve.')
     .version(version)
     .showHelpAfterError('(add --help for usage)')
+    .addHelpText('after', '\nExit codes: 0 done, 1 the work failed (the message names the error code), 2 a wrong command line.')
     .exitOverride()
     .configureOutput({ outputError: (text, write) => write(`foldwise: ${text.replace(/^error: /, '')}`) });
   registerCommands(program);

@@ -3,6 +3,6 @@ export type * from './types.js';
 export { makePlan, formatPlanHeader } from './plan/index.js';
 export { renderRaster, type RenderOptions } from './render.js';
 export { planResponse } from './resample/index.js';
-export { kernelNames } from './kernels/index.js';
+export { kernelNames, renamedKernels } from './kernels/index.js';
 export { srgbToLinear8, srgbToLinear16, linearToSrgb8, linearToSrgb16 } from './color/index.js';
 export * from './risk/index.js';

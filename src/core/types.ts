@@ -23,14 +23,14 @@ export interface CropRect {
 }
 
 export type KernelName =
-  | 'lanczos2'
-  | 'lanczos3'
+  | 'lanczos-2'
+  | 'lanczos-3'
   | 'catmull-rom'
-  | 'mitchell'
+  | 'mitchell-netravali'
   | 'gaussian'
   | 'triangle'
   | 'box'
-  | 'nearest'
+  | 'nearest-neighbour'
   | (string & {}); // designed kernels of the core's own table
 
 export type KernelChoice = 'auto' | KernelName;

@@ -5,5 +5,5 @@
  * The legacy look: what common resizers produce (encoded values averaged, Lanczos-3, nothing
  * removed first). Point sampling: one source pixel per output pixel, nothing averaged.
  */
-export const legacyLook = { light: 'encoded', kernel: 'lanczos3', prefilter: 'none' } as const;
-export const pointSampling = { kernel: 'nearest', prefilter: 'none' } as const;
+export const legacyLook = { light: 'encoded', kernel: 'lanczos-3', prefilter: 'none' } as const;
+export const pointSampling = { kernel: 'nearest-neighbour', prefilter: 'none' } as const;

@@ -72,7 +72,7 @@ function qualityOf(format: OutputFormat, ranges: Range[]): number | undefined {
 }
 
 /**
- * The output format for `format=auto`: the best the client accepts, by q-value, then by our
+ * The output format when `format` is absent: the best the client accepts, by q-value, then by our
  * preference (avif, webp, jpeg; png where alpha needs it).
  */
 export function negotiateFormat(

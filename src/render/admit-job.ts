@@ -26,9 +26,9 @@ export function headerOf(raster: PixelRaster, hasAlpha: boolean): SourceHeader {
   return { width: raster.width, height: raster.height, channels: raster.channels, bytesPerSample, hasAlpha, format: 'raw' };
 }
 
-/** The output format a query will be encoded in, for the estimate (auto: what Accept picks). */
+/** The output format a query will be encoded in, for the estimate (no format: what Accept picks). */
 function formatFor(q: RenditionQuery, accept: string | undefined, hasAlpha: boolean): OutputFormat {
-  return q.format === 'auto' ? negotiateFormat(accept, hasAlpha) : q.format;
+  return q.format === undefined ? negotiateFormat(accept, hasAlpha) : q.format;
 }
 
 /** Output pixels of the query on this source (the canvas when there is one). */

@@ -9,7 +9,7 @@ const choices = new LRUCache<string, string>({
   sizeCalculation: (value, accept) => 2 * (accept.length + value.length) + 64,
 });
 
-/** What format=auto may give for this Accept header: the choice for opaque and for alpha images. */
+/** What an absent format may give for this Accept header: the choice for opaque and for alpha images. */
 function acceptChoices(accept: string | undefined): string {
   if (accept === undefined) return `${negotiateFormat(undefined, false)}/${negotiateFormat(undefined, true)}`;
   let known = choices.get(accept);
@@ -25,5 +25,5 @@ function acceptChoices(accept: string | undefined): string {
  * allows (so two Accept headers that negotiate alike share one cache entry).
  */
 export function formatKey(q: Pick<RenditionQuery, 'format'>, accept: string | undefined): string {
-  return q.format === 'auto' ? `auto:${acceptChoices(accept)}` : q.format;
+  return q.format === undefined ? `negotiated:${acceptChoices(accept)}` : q.format;
 }

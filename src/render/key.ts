@@ -7,7 +7,8 @@ import type { SourceIdentity } from '../origins/types.js';
  * codec settings): old cache entries then stop matching instead of being served stale.
  */
 // 5: the baseline JPEG encoder and the content cut-off, which two branches each called 4.
-export const pipelineVersion = 'fw-pipeline-5';
+// 6: fit defaults to contain (was cover), so a URL with both sides and no fit gets new bytes.
+export const pipelineVersion = 'fw-pipeline-6';
 
 // Hits ask for the same few keys over and over; hashing is most of a hit's key cost. The memo
 // maps the exact hashed text to its digest (so it cannot answer for different inputs) and is
@@ -19,7 +20,7 @@ const digests = new LRUCache<string, string>({
 
 /**
  * The cache key of a rendition: the source's identity (key and version), the canonical query,
- * the format (or, for format=auto, what Accept allows), and the pipeline version; SHA-256 hex.
+ * the format (or, when format is absent, what Accept allows), and the pipeline version; SHA-256 hex.
  */
 export function renditionKey(identity: SourceIdentity, canonical: string, formatKey: string): string {
   const text = JSON.stringify([pipelineVersion, identity.key, identity.version, canonical, formatKey]);

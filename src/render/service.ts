@@ -140,7 +140,7 @@ async function produce(
   try {
     const done = await resampleSource(ctx, source, q);
     const { raster, layout, plan, deadline } = done;
-    const format: OutputFormat = q.format === 'auto' ? negotiateFormat(accept, done.hasAlpha) : q.format;
+    const format: OutputFormat = q.format === undefined ? negotiateFormat(accept, done.hasAlpha) : q.format;
     const encoding = encodeImage(raster, { format, quality: q.quality, background: q.background, canvas: layout.canvas });
     ended = encoding.catch(() => undefined);
     const body = await ctx.clock.time('encode', () =>
@@ -171,7 +171,7 @@ interface RenditionContextInternal extends RenderContext {
 /**
  * One rendition of `path` for `query`: from the cache when any tier has it, else rendered once
  * however many callers ask at the same time (single-flight), then stored in every tier.
- * `accept` is the request's Accept header (used when format=auto); `canonical` is
+ * `accept` is the request's Accept header (used when format is absent); `canonical` is
  * canonicalQuery(query), for callers that already have it.
  *
  * @throws FoldwiseError for every refusal (not found, limits, overload, decode failures).

@@ -31,7 +31,7 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
       // signature before parsing, replaces this with a year and immutable.
       .header('cache-control', plainCache)
       .header('server-timing', serverTiming(r.cache, r.timings));
-    if (q.format === 'auto') reply.header('vary', 'Accept');
+    if (q.format === undefined) reply.header('vary', 'Accept');
     for (const [k, v] of Object.entries(r.entry.headers)) reply.header(k, v);
     if (matchesIfNoneMatch(request.headers['if-none-match'], r.entry.etag)) return reply.code(304).send();
     return reply.type(r.entry.contentType).header('content-length', r.entry.body.length).send(r.entry.body);
@@ -52,7 +52,7 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
           ],
           responses: {
             '200': {
-              description: 'The rendition. Headers: ETag, Cache-Control, Vary (format=auto), Server-Timing, Rendition-Plan.',
+              description: 'The rendition. Headers: ETag, Cache-Control, Vary (format absent), Server-Timing, Rendition-Plan.',
               content: { 'image/avif': {}, 'image/webp': {}, 'image/jpeg': {}, 'image/png': {} },
             },
             '304': { description: 'Not modified (If-None-Match matched the ETag).' },

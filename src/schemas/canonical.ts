@@ -17,20 +17,26 @@ function percent(f: number): string {
  * busted with spellings. This form is for the cache key only: signatures do not use it, they
  * cover the URL's own parameters re-encoded strictly (`canonicalSigningQuery` in
  * src/security/signing.ts), so `width=0480` and `width=480` need different signatures.
+ * Parameters that cannot change the rendition are left out too: with one side given, `fit`
+ * matters only as scale-down (it caps enlargement) and `position` not at all; `fill` ignores
+ * `position`.
  */
 export function canonicalQuery(q: RenditionQuery): string {
+  const oneSide = q.width === undefined || q.height === undefined;
+  const fit = oneSide && q.fit !== 'scale-down' ? 'contain' : q.fit;
+  const position = oneSide || fit === 'fill' ? '50% 50%' : `${percent(q.position.x)} ${percent(q.position.y)}`;
   const pairs: [string, string][] = [];
   const add = (name: string, value: string | undefined, dflt?: string) => {
     if (value !== undefined && value !== dflt) pairs.push([name, value]);
   };
   add('background', q.background, '#ffffff');
   add('density', num(q.density), '1');
-  add('fit', q.fit, 'cover');
-  add('format', q.format, 'auto');
+  add('fit', fit, 'contain');
+  add('format', q.format);
   add('height', q.height === undefined ? undefined : String(q.height));
   add('kernel', q.kernel, 'auto');
   add('light', q.light, 'linear');
-  add('position', `${percent(q.position.x)} ${percent(q.position.y)}`, '50% 50%');
+  add('position', position, '50% 50%');
   add('prefilter', typeof q.prefilter === 'number' ? num(q.prefilter) : q.prefilter, 'auto');
   add('quality', q.quality === undefined ? undefined : String(q.quality));
   add('width', q.width === undefined ? undefined : String(q.width));

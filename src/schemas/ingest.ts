@@ -2,7 +2,7 @@ import { z } from 'zod';
 import { digits } from './query.js';
 import { renditionQueryShape } from './rendition.js';
 
-/** Formats a manifest may list; `auto` has no place in a manifest (the URLs must be fixed). */
+/** Formats a manifest may list; never a negotiated one (the URLs must be fixed). */
 export const ingestFormats = ['webp', 'avif', 'jpeg', 'png'] as const;
 export type IngestFormat = (typeof ingestFormats)[number];
 

@@ -1,13 +1,29 @@
 import { z } from 'zod';
 import { parsePosition } from '../core/geometry.js';
+import { renamedKernels } from '../core/kernels/index.js';
 import { FoldwiseError } from '../errors.js';
 import { decimal, digits, parseQuery, type RawQuery } from './query.js';
 
 export const fitModes = ['contain', 'cover', 'fill', 'scale-down'] as const;
-export const outputFormats = ['auto', 'jpeg', 'png', 'webp', 'avif'] as const;
+export const outputFormats = ['jpeg', 'png', 'webp', 'avif'] as const;
 export const lightModes = ['linear', 'encoded'] as const;
 export type Fit = (typeof fitModes)[number];
 export type OutputFormatChoice = (typeof outputFormats)[number];
+
+/** Old spellings of enum values, per parameter, and what a 400 says about each (names the new one). */
+const renamed: Record<string, Readonly<Record<string, string>>> = {
+  kernel: Object.fromEntries(Object.entries(renamedKernels).map(([old, now]) => [old, `is now spelled "${now}"`])),
+  format: { auto: 'is no longer a value: leave format out and it is negotiated on Accept' },
+};
+
+/** The error of an enum parameter: what replaced an old spelling, else the accepted values. */
+function enumError(name: string, values: readonly string[]) {
+  return (issue: { input?: unknown }) => {
+    const input = String(issue.input);
+    const phrase = Object.hasOwn(renamed[name] ?? {}, input) ? renamed[name][input] : undefined;
+    return phrase ? `${name} "${input}" ${phrase}` : `${name} must be one of ${values.join(', ')}`;
+  };
+}
 
 const hex = /^#?([0-9a-f]{3}|[0-9a-f]{6})$/i;
 
@@ -36,9 +52,9 @@ export function renditionQueryShape(o: RenditionQueryOptions) {
       .default(1)
       .meta({ description: 'Pixel density (as in srcset); multiplies width and height.' }),
     fit: z
-      .enum(fitModes, { error: `fit must be one of ${fitModes.join(', ')}` })
-      .default('cover')
-      .meta({ description: 'CSS object-fit. With one side given the other follows the aspect ratio.' }),
+      .enum(fitModes, { error: enumError('fit', fitModes) })
+      .default('contain')
+      .meta({ description: 'CSS object-fit when both sides are given (default contain: nothing cropped, nothing distorted). With one side given the other follows the aspect ratio.' }),
     position: z
       .string()
       .max(64)
@@ -51,9 +67,9 @@ export function renditionQueryShape(o: RenditionQueryOptions) {
       .default({ x: 0.5, y: 0.5 })
       .meta({ description: 'CSS object-position for cover and contain: keywords or percentages. Default "50% 50%".' }),
     format: z
-      .enum(outputFormats, { error: `format must be one of ${outputFormats.join(', ')}` })
-      .default('auto')
-      .meta({ description: 'Output format; auto negotiates on Accept and sends Vary: Accept.' }),
+      .enum(outputFormats, { error: enumError('format', outputFormats) })
+      .optional()
+      .meta({ description: 'Output format. Left out, it is negotiated on Accept and the answer sends Vary: Accept.' }),
     quality: digits('quality', 1, 100).optional().meta({ description: 'Encoder quality; default per format.' }),
     background: z
       .string()
@@ -62,7 +78,7 @@ export function renditionQueryShape(o: RenditionQueryOptions) {
       .default('#ffffff')
       .meta({ description: 'Colour of contain bars and of alpha flattened into JPEG.' }),
     kernel: z
-      .enum(kernels, { error: `kernel must be one of ${kernels.join(', ')}` })
+      .enum(kernels, { error: enumError('kernel', kernels) })
       .default('auto')
       .meta({ description: 'Reconstruction kernel; auto picks one for the scale factor.' }),
     prefilter: z

@@ -71,7 +71,7 @@ describe('encodeEntry / decodeEntry', () => {
     body: Buffer.from([0xff, 0xd8, 0x00, 0x0a, 0x0d, 0xff, 0xd9]),
     contentType: 'image/jpeg',
     etag: '"fw1-abc"',
-    headers: { 'Rendition-Plan': 'scale=4;kernel=lanczos3' },
+    headers: { 'Rendition-Plan': 'scale=4;kernel=lanczos-3' },
     createdAt: 1_700_000_000_000,
   };
 

@@ -40,12 +40,26 @@ describe('foldwise render', () => {
     expect([meta.format, meta.width, meta.height]).toEqual(['webp', 50, 25]);
   });
 
+  it('takes every rendition parameter as a flag: fit, position, density, background, light', async () => {
+    const out = join(dir, 'stripe-box.png');
+    const args = ['--width', '50', '--height', '50', '--density', '2', '--fit', 'contain', '--position', 'center top'];
+    const r = await runCli(['render', join(dir, 'shop', 'fabrics', 'stripe.png'), ...args, '--background', '102030', '--light', 'encoded', '-o', out], { env });
+    expect([r.code, r.stderr]).toEqual([0, '']);
+    expect(r.stdout).toMatch(/light=encoded/);
+    const { data, info } = await sharp(out).toColourspace('srgb').removeAlpha().raw().toBuffer({ resolveWithObject: true });
+    expect([info.width, info.height]).toEqual([100, 100]); // density 2 doubles the 50 x 50 box
+    // The 2:1 picture sits at the top (position), the bar below has the background colour.
+    const at = (x: number, y: number) => [...data.subarray((y * 100 + x) * 3, (y * 100 + x) * 3 + 3)];
+    expect(at(50, 90)).toEqual([16, 32, 48]);
+    expect(at(50, 20)).not.toEqual([16, 32, 48]);
+  });
+
   it('refuses a bad command line with exit 2 and a missing file with exit 1', async () => {
     const src = join(dir, 'shop', 'label.png');
     const noSize = await runCli(['render', src, '-o', join(dir, 'x.png')], { env });
     expect([noSize.code, noSize.stderr]).toEqual([2, expect.stringContaining('give --width, --height, or both')]);
     const zero = await runCli(['render', src, '--width', '0', '-o', join(dir, 'x.png')], { env });
-    expect([zero.code, zero.stderr]).toEqual([2, expect.stringContaining("option '--width <px>' argument '0' is invalid")]);
+    expect([zero.code, zero.stderr]).toEqual([2, expect.stringContaining('width must be an integer from 1 to')]);
     const badPrefilter = await runCli(['render', src, '--width', '10', '--prefilter', 'lots', '-o', join(dir, 'x.png')], { env });
     expect([badPrefilter.code, badPrefilter.stderr]).toEqual([2, expect.stringContaining('prefilter')]);
     const missing = await runCli(['render', join(dir, 'nope.png'), '--width', '10', '-o', join(dir, 'x.png')], { env });
@@ -88,7 +102,7 @@ describe('foldwise warm', () => {
   it('pre-renders a folder into the cache with a progress bar, then finds it all cached', async () => {
     const first = await runCli(['warm', join(dir, 'shop'), '--widths', '30,60', '--formats', 'webp'], { env });
     expect(first.code).toBe(0);
-    expect(first.stderr).toMatch(/warm \|[=]+\| 2\/2 files \| 4 renditions/);
+    expect(first.stderr).toMatch(/warm \|[=]+\| 2\/2 files \| 4 renditions \| ETA \d+s \|/);
     expect(first.stdout).toMatch(/^ {2}files {4}2$/m);
     expect(first.stdout).toMatch(/^ {2}done {5}4 renditions rendered$/m);
     expect(first.stdout).toMatch(/^ {2}skipped {2}0 already cached$/m);

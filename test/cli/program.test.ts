@@ -8,6 +8,7 @@ describe('foldwise (the command line)', () => {
     expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/^Usage: foldwise/);
     for (const name of ['serve', 'render', 'risk', 'warm', 'sign']) expect(r.stdout).toContain(`\n  ${name} `);
+    expect(r.stdout).toContain('Exit codes: 0 done, 1 the work failed');
   });
 
   it('answers an unknown command and a bad argument with exit 2 and a clear message', async () => {
@@ -16,7 +17,37 @@ describe('foldwise (the command line)', () => {
     expect(unknown.stderr).toContain("unknown command 'weave'");
     const bad = await runCli(['sign', 'no-slash']);
     expect(bad.code).toBe(2);
-    expect(bad.stderr).toContain('must start with "/"');
+    expect(bad.stderr).toContain('give a full http(s) URL or a path starting with "/"');
+  });
+
+  // The one zod shape names the HTTP parameters; render and risk must offer each as a flag of
+  // the same name (signature aside: the CLI calls the app in-process, unsigned).
+  it('render and risk take exactly the HTTP rendition parameters as flags', async () => {
+    const { createProgram } = await import('../../src/cli/program.js');
+    const { renditionQueryShape } = await import('../../src/schemas/rendition.js');
+    const { notFlags } = await import('../../src/cli/rendition-flags.js');
+    const params = Object.keys(renditionQueryShape({ maxDimension: 100, kernelNames: [] })).filter((n) => !notFlags.includes(n));
+    expect(notFlags).toEqual(['signature']);
+    const own: Record<string, string[]> = { render: ['output'], risk: ['json', 'map'] };
+    for (const name of ['render', 'risk']) {
+      const command = createProgram().commands.find((c) => c.name() === name)!;
+      const flags = command.options.map((o) => o.attributeName()).filter((n) => !own[name].includes(n));
+      expect(new Set(flags), name).toEqual(new Set(params));
+    }
+    expect(params).toEqual(expect.arrayContaining(['light', 'position', 'density', 'background', 'format', 'quality']));
+  });
+
+  it('signs a full URL as copied from the browser, keeping its origin', async () => {
+    const { verifySignature } = await import('../../src/security/signing.js');
+    const key = 'loom-key-0123456789abcdef';
+    const r = await runCli(['sign', 'http://127.0.0.1:8080/v1/renditions/fabric/twill.png?width=320'], { env: { FOLDWISE_SIGNING_KEY: key } });
+    expect(r.code).toBe(0);
+    const url = new URL(r.stdout.trim());
+    expect(url.origin).toBe('http://127.0.0.1:8080');
+    expect(url.searchParams.get('width')).toBe('320');
+    expect(verifySignature(url.pathname, url.searchParams, [key])).toBe('valid');
+    const help = await runCli(['sign', '--help']);
+    expect(help.stdout).toContain('at least 16');
   });
 
   it('signs a path the way the service verifies it, and fails with exit 1 when signing is off', async () => {

@@ -2,6 +2,7 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { envMap } from '../../src/config.js';
 import { errorCodes } from '../../src/errors.js';
+import { kernelNames, renamedKernels } from '../../src/core/kernels/index.js';
 
 // The README is the user's reference: every stable error code and every environment variable
 // the service reads must be listed there, or a client cannot match on it.
@@ -36,5 +37,15 @@ describe('README', () => {
 
   it('documents FOLDWISE_CONFIG, which loadConfig reads before the map', () => {
     expect(envRow('FOLDWISE_CONFIG')).toContain('`config/default.json`');
+  });
+
+  // The kernel row and the old-spelling table come from the core's one kernel table.
+  it('lists every kernel of the table, and every old spelling with its new name', () => {
+    const row = envRow('kernel') ?? '';
+    for (const name of kernelNames) expect(row, name).toContain(`\`${name}\``);
+    for (const [old, now] of Object.entries(renamedKernels)) {
+      expect(readme).toContain(`| \`kernel=${old}\` | \`kernel=${now}\` |`);
+    }
+    expect(readme).toContain('| `format=auto` | leave `format` out |');
   });
 });

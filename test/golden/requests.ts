@@ -27,7 +27,7 @@ const sources = [
   'products/scarf.png',
 ] as const;
 const three = ['fabrics/pinstripe.png', 'shop/brick-front.jpg', 'products/scarf.png'] as const;
-const kernels = ['auto', 'bandlimit', 'lanczos3', 'lanczos2', 'catmull-rom', 'mitchell', 'gaussian', 'triangle', 'box', 'nearest'];
+const kernels = ['auto', 'bandlimit', 'lanczos-3', 'lanczos-2', 'catmull-rom', 'mitchell-netravali', 'gaussian', 'triangle', 'box', 'nearest-neighbour'];
 
 function get(url: string, extra: Partial<GoldenRequest> = {}): GoldenRequest {
   return { name: `GET ${url}`, method: 'GET', url, ...extra };
@@ -40,6 +40,7 @@ function renditions(): GoldenRequest[] {
     for (const width of [96, 320]) for (const format of ['png', 'jpeg', 'webp']) out.push(get(r(s, `width=${width}&format=${format}`)));
     out.push(get(r(s, 'width=96&format=avif')));
     for (const fit of ['contain', 'cover', 'fill', 'scale-down']) out.push(get(r(s, `width=200&height=200&fit=${fit}&format=png`)));
+    out.push(get(r(s, 'width=200&height=200&format=png'))); // the default fit (contain)
     out.push(get(r(s, 'width=4000&fit=scale-down&format=jpeg')));
     for (const kernel of kernels) out.push(get(r(s, `width=150&kernel=${kernel}&format=png`)));
     out.push(get(r(s, 'width=150&light=encoded&format=png')));
@@ -71,7 +72,7 @@ function aliasRisk(): GoldenRequest[] {
   const out: GoldenRequest[] = [];
   for (const s of sources) for (const width of [200, 640]) out.push(get(`/v1/alias-risk/${s}?width=${width}`));
   for (const s of three) for (const view of ['map', 'spectrum']) out.push(get(`/v1/alias-risk/${s}?width=240&view=${view}`));
-  out.push(get('/v1/alias-risk/fabrics/herringbone.jpg?width=300&prefilter=none&kernel=lanczos3'));
+  out.push(get('/v1/alias-risk/fabrics/herringbone.jpg?width=300&prefilter=none&kernel=lanczos-3'));
   return out;
 }
 
@@ -84,6 +85,12 @@ function errors(): GoldenRequest[] {
     `${base}?fit=stretch`,
     `${base}?format=gif`,
     `${base}?kernel=sinc`,
+    // Earlier spellings: a 400 naming the new one.
+    `${base}?width=100&kernel=lanczos3`,
+    `${base}?width=100&kernel=lanczos2`,
+    `${base}?width=100&kernel=mitchell`,
+    `${base}?width=100&kernel=nearest`,
+    `${base}?width=100&format=auto`,
     `${base}?position=middle`,
     `${base}?background=red`,
     `${base}?prefilter=99`,

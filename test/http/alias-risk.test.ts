@@ -33,7 +33,7 @@ describe('GET /v1/alias-risk/{source}', () => {
   const get = (url: string, headers: Record<string, string> = {}) => t.app.inject({ method: 'GET', url, headers });
 
   it('reports a naive decimation of a 0.3 cycles/px grating by 2 as high, aliasing to 0.4', async () => {
-    const res = await get('/v1/alias-risk/grating.png?width=256&prefilter=none&kernel=nearest');
+    const res = await get('/v1/alias-risk/grating.png?width=256&prefilter=none&kernel=nearest-neighbour');
     expect(res.statusCode).toBe(200);
     expect(res.headers['content-type']).toMatch(/^application\/json/);
     const body = res.json();
@@ -116,7 +116,7 @@ describe('GET /v1/alias-risk/{source}', () => {
   });
 
   it('maps the risk where the pattern is', async () => {
-    const res = await get('/v1/alias-risk/corner.png?width=256&view=map&prefilter=none&kernel=nearest');
+    const res = await get('/v1/alias-risk/corner.png?width=256&view=map&prefilter=none&kernel=nearest-neighbour');
     expect(res.statusCode).toBe(200);
     const { at, info } = await pixels(res.rawPayload);
     expect(info.width).toBe(640);

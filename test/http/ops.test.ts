@@ -81,7 +81,7 @@ describe('operational endpoints', () => {
     // Limits come from config, enums from the core's kernel table.
     expect(params.width.schema).toMatchObject({ type: 'integer', minimum: 1, maximum: t.config.limits.maxDimension });
     expect(params.fit.schema.enum).toEqual(['contain', 'cover', 'fill', 'scale-down']);
-    expect(params.kernel.schema.enum).toContain('lanczos3');
+    expect(params.kernel.schema.enum).toContain('lanczos-3');
     expect(op.responses['400'].content['application/problem+json'].schema).toEqual({ $ref: '#/components/schemas/Problem' });
     for (const path of ['/v1/sources', '/healthz', '/readyz', '/metrics', '/docs/errors']) expect(Object.keys(doc.paths[path] ?? {}), path).toContain('get');
     expect(doc.components.schemas.Problem.properties.code.enum).toContain('ERR_PARAM_UNKNOWN');

@@ -50,14 +50,14 @@ const codeOf = (f: () => unknown): string | undefined => {
 describe('renditionRequestReader', () => {
   it('a repeated URL is parsed once and reads the same as the first time', () => {
     const { reader, state } = countingReader();
-    const url = `${renditionsPrefix}fabrics/twill%20weave.jpg?width=0480&position=left%20top`;
+    const url = `${renditionsPrefix}fabrics/twill%20weave.jpg?width=0480&height=320&fit=cover&position=left%20top`;
     const first = reader.read(url, rawOf(url));
     const again = reader.read(url, rawOf(url));
     expect(state.parses).toBe(1);
     expect(again).toEqual(first);
     expect(first.path).toBe('fabrics/twill weave.jpg');
     // The canonical form drops defaults and normalises spellings (DESIGN.md: one key per meaning).
-    expect(first.canonical).toBe('position=0%25%200%25&width=480');
+    expect(first.canonical).toBe('fit=cover&height=320&position=0%25%200%25&width=480');
     expect(first.query.width).toBe(480);
   });
 
@@ -134,7 +134,7 @@ describe('GET /v1/renditions with the memo in front', () => {
     }
   });
 
-  it('format=auto still follows each request\'s Accept on one remembered URL', async () => {
+  it('an absent format still follows each request\'s Accept on one remembered URL', async () => {
     await writePng(t.sourceDir, 'auto.png', 16, 16, 3, () => [200, 100, 50]);
     const url = '/v1/renditions/auto.png?width=8';
     const webp = await t.app.inject({ url, headers: { accept: 'image/webp,*/*' } });

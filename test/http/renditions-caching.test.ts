@@ -33,6 +33,13 @@ describe('GET /v1/renditions: HTTP caching, negotiation and the cache tiers', ()
   it('spellings of one query share a cache entry (canonical query)', async () => {
     await get('width=21&format=png');
     expect(cacheOf(await get('format=png&width=021&density=1&fit=cover&position=center'))).toBe('hit-memory');
+    await get('width=21&height=9&format=png');
+    expect(cacheOf(await get('height=9&width=21&fit=contain&position=center&format=png'))).toBe('hit-memory');
+    await get('width=21&height=9&fit=fill&format=png');
+    expect(cacheOf(await get('width=21&height=9&fit=fill&position=left%20top&format=png'))).toBe('hit-memory');
+    // Different meanings keep apart: cover is not the default, scale-down caps with one side.
+    expect(cacheOf(await get('width=21&height=9&fit=cover&format=png'))).toBe('miss');
+    expect(cacheOf(await get('width=21&fit=scale-down&format=png'))).toBe('miss');
   });
 
   it('strong ETag, long-lived Cache-Control, Content-Length', async () => {
@@ -75,7 +82,7 @@ describe('GET /v1/renditions: HTTP caching, negotiation and the cache tiers', ()
     ['image/png,image/jpeg;q=0.9', 'cutout.png', 'image/png'],
     ['*/*', 'cutout.png', 'image/png'],
     ['image/webp,*/*', 'cutout.png', 'image/webp'],
-  ])('format=auto with Accept "%s" on %s -> %s, Vary: Accept', async (accept, name, type) => {
+  ])('no format, Accept "%s" on %s -> %s, Vary: Accept', async (accept, name, type) => {
     const headers: Record<string, string> = accept ? { accept } : {};
     const res = await get('width=10', headers, name);
     expect(res.statusCode).toBe(200);

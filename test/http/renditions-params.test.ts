@@ -70,8 +70,8 @@ describe('GET /v1/renditions: format, quality, background, kernel, prefilter, li
     const blurred = await get('zone.png', 'width=32&format=png&kernel=box&prefilter=2');
     expect(blurred.headers['rendition-plan']).toMatch(/sigma=2\.00,2\.00/);
     expect(blurred.rawPayload.equals(box.rawPayload)).toBe(false);
-    const nearest = await get('zone.png', 'width=32&format=png&kernel=nearest');
-    expect(nearest.headers['rendition-plan']).toMatch(/kernel=nearest/);
+    const nearest = await get('zone.png', 'width=32&format=png&kernel=nearest-neighbour');
+    expect(nearest.headers['rendition-plan']).toMatch(/kernel=nearest-neighbour/);
     expect(nearest.headers['rendition-plan']).toMatch(/light=linear/);
     const enc = await get('zone.png', 'width=32&format=png&light=encoded');
     expect(enc.headers['rendition-plan']).toMatch(/light=encoded/);
@@ -112,5 +112,29 @@ describe('GET /v1/renditions: format, quality, background, kernel, prefilter, li
     expect(right[2]).toBeGreaterThan(240); // transparent side shows the blue background
     expect(right[0]).toBeLessThan(15);
     expect(at(img, 1, 2)[0]).toBeGreaterThan(240);
+  });
+
+  it.each([
+    ['kernel=lanczos2', 'kernel "lanczos2" is now spelled "lanczos-2"'],
+    ['kernel=lanczos3', 'kernel "lanczos3" is now spelled "lanczos-3"'],
+    ['kernel=mitchell', 'kernel "mitchell" is now spelled "mitchell-netravali"'],
+    ['kernel=nearest', 'kernel "nearest" is now spelled "nearest-neighbour"'],
+    ['format=auto', 'format "auto" is no longer a value: leave format out and it is negotiated on Accept'],
+  ])('the old spelling %s answers 400 naming the new one', async (q, detail) => {
+    const res = await get('zone.png', `width=32&${q}`);
+    expect(res.statusCode).toBe(400);
+    expect(res.json()).toMatchObject({ code: 'ERR_PARAM_INVALID', detail });
+  });
+
+  it('fit defaults to contain: a 2:1 picture in a square box keeps all of itself, with bars', async () => {
+    const plain = await get('edge.png', 'width=16&height=16&format=png');
+    const contain = await get('edge.png', 'width=16&height=16&format=png&fit=contain');
+    const img = await pixels(plain.rawPayload);
+    expect([img.width, img.height]).toEqual([16, 16]);
+    expect(at(img, 1, 0)).toEqual([255, 255, 255, 0]); // bar above: transparent background in PNG
+    expect(at(img, 1, 8)).toEqual([255, 0, 0, 255]); // the red half is all there
+    expect(plain.headers.etag).toBe(contain.headers.etag);
+    const cover = await pixels((await get('edge.png', 'width=16&height=16&format=png&fit=cover')).rawPayload);
+    expect(at(cover, 1, 0)).toEqual([255, 0, 0, 255]); // cover crops instead: no bar
   });
 });

@@ -61,7 +61,7 @@ describe.skipIf(browserSkipReason)('the inspector page in chromium', () => {
     expect(first.points.hidden).toBe(true);
     // The legacy look as common resizers make it: encoded values, Lanczos-3, nothing removed first.
     const legacy = requested.find((u) => u.includes('/v1/renditions/') && u.includes('light=encoded'));
-    expect(new URL(String(legacy)).searchParams.get('kernel')).toBe('lanczos3');
+    expect(new URL(String(legacy)).searchParams.get('kernel')).toBe('lanczos-3');
     expect(new URL(String(legacy)).searchParams.get('prefilter')).toBe('none');
     expect(first.numbers.scale).toBe('6.25×');
     expect(first.levels.legacy).toMatch(/^(low|moderate|high): /);
@@ -79,7 +79,7 @@ describe.skipIf(browserSkipReason)('the inspector page in chromium', () => {
     // The page shows each copy's level as its own report gives it.
     const level = async (q: string) => ((await fetch(`${base}/v1/alias-risk/${fabric}?width=320${q}`).then((r) => r.json())) as { level: string }).level;
     expect(first.levels.planned.split(':')[0]).toBe(await level(''));
-    expect(first.levels.legacy.split(':')[0]).toBe(await level('&light=encoded&kernel=lanczos3&prefilter=none'));
+    expect(first.levels.legacy.split(':')[0]).toBe(await level('&light=encoded&kernel=lanczos-3&prefilter=none'));
     // Stripes 13.2 source px apart at scale 6.25 are 0.47 cycles per output px, just under the
     // new Nyquist 0.5 (Shannon 1949): a copy that keeps them shows them swelling and fading
     // every 1 / (1 - 2 x 0.47) = 16-19 px; one that shows the cloth's tone instead is even.

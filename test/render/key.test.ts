@@ -16,7 +16,7 @@ describe('renditionKey', () => {
       renditionKey({ ...id, key: 'fabrics/twill2.jpg' }, 'width=480', 'jpeg'),
       renditionKey({ ...id, version: '123-457' }, 'width=480', 'jpeg'),
       renditionKey(id, 'width=481', 'jpeg'),
-      renditionKey(id, 'width=480', 'auto:webp/webp'),
+      renditionKey(id, 'width=480', 'negotiated:webp/webp'),
       // Parts that would run together if simply concatenated stay apart.
       renditionKey({ key: 'fabrics/twill.jpg1', version: '23-456' }, 'width=480', 'jpeg'),
     ];

@@ -4,18 +4,13 @@
  */
 import { writeFile } from 'node:fs/promises';
 import { basename, dirname, extname, resolve } from 'node:path';
-import { type Command, Option } from 'commander';
+import type { Command } from 'commander';
 import { UsageError } from '../exit.js';
-import { positiveInt } from '../options.js';
 import { addRenditionFlags, oneFileSettings, parseRenditionQuery, rawQueryOf, type RenditionFlags } from '../rendition-flags.js';
 
 const byExtension: Record<string, string> = { '.jpg': 'jpeg', '.jpeg': 'jpeg', '.png': 'png', '.webp': 'webp', '.avif': 'avif' };
 
-interface RenderOptions extends RenditionFlags {
-  format?: string;
-  quality?: number;
-  output: string;
-}
+type RenderOptions = RenditionFlags & { output: string };
 
 export function registerRender(program: Command): void {
   addRenditionFlags(
@@ -24,13 +19,11 @@ export function registerRender(program: Command): void {
       .description('render one rendition of an image file, in-process')
       .argument('<file>', 'source image (jpeg, png, webp, avif, gif, tiff)'),
   )
-    .addOption(new Option('--format <format>', 'output format (default: from the -o extension)').choices(['jpeg', 'png', 'webp', 'avif']))
-    .option('--quality <1-100>', 'encoder quality', positiveInt(100))
     .requiredOption('-o, --output <file>', 'where to write the rendition')
-    .addHelpText('after', '\nExample:\n  foldwise render demo/images/fabrics/twill.jpg --width 640 -o twill-640.webp')
+    .addHelpText('after', '\nWithout --format the format follows the -o extension.\n\nExample:\n  foldwise render demo/images/fabrics/twill.jpg --width 640 -o twill-640.webp')
     .action(async (file: string, o: RenderOptions) => {
       const format = o.format ?? byExtension[extname(o.output).toLowerCase()];
-      const raw = rawQueryOf(o, { format, quality: o.quality });
+      const raw = rawQueryOf(o, { format });
       if (!format) throw new UsageError(`cannot tell the format from "${o.output}": add --format`);
       const source = resolve(file);
       // Loaded here, not at start, so `foldwise --help` stays quick.

@@ -6,10 +6,7 @@ import { basename, dirname, resolve } from 'node:path';
 import type { Command } from 'commander';
 import { addRenditionFlags, oneFileSettings, rawQueryOf, type RenditionFlags } from '../rendition-flags.js';
 
-interface RiskOptions extends RenditionFlags {
-  json?: boolean;
-  map?: string;
-}
+type RiskOptions = RenditionFlags & { json?: boolean; map?: string };
 
 export function registerRisk(program: Command): void {
   addRenditionFlags(

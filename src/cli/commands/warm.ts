@@ -57,7 +57,7 @@ export function registerWarm(program: Command): void {
           };
           app.ingest.on('rendition', onRendition);
           const bar = new SingleBar({
-            format: 'warm |{bar}| {value}/{total} files | {renditions} renditions | {file}',
+            format: 'warm |{bar}| {value}/{total} files | {renditions} renditions | ETA {eta_formatted} | {file}',
             noTTYOutput: true,
             notTTYSchedule: 1000,
             hideCursor: true,

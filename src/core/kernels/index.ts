@@ -1,2 +1,2 @@
 export type { Kernel } from './kernel.js';
-export { kernelNames, findKernel } from './table.js';
+export { kernelNames, findKernel, renamedKernels } from './table.js';

@@ -14,7 +14,7 @@ export const box: Kernel = {
 };
 
 /** Nearest neighbour: the box's one sample in [-1/2, 1/2), never stretched (common practice). */
-export const nearest: Kernel = { ...box, name: 'nearest', stretch: false, source: 'nearest neighbour (common practice)' };
+export const nearest: Kernel = { ...box, name: 'nearest-neighbour', stretch: false, source: 'nearest neighbour (common practice)' };
 
 /** Triangle 1 - |x| (linear interpolation; the tent of Pillow's BILINEAR, CHECKS.md). */
 export const triangle: Kernel = {

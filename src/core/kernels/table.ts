@@ -28,7 +28,7 @@ const ALL: readonly Kernel[] = [
   lanczos(2),
   // Keys (1981) a = -0.5 equals Mitchell-Netravali B = 0, C = 0.5 (CHECKS.md).
   bcCubic('catmull-rom', 0, 0.5, 'Keys cubic a=-0.5 (Keys 1981)'),
-  bcCubic('mitchell', 1 / 3, 1 / 3, 'Mitchell-Netravali B=C=1/3 (1988)'),
+  bcCubic('mitchell-netravali', 1 / 3, 1 / 3, 'Mitchell-Netravali B=C=1/3 (1988)'),
   gaussian,
   triangle,
   box,
@@ -39,6 +39,17 @@ const BY_NAME = new Map(ALL.map((k) => [k.name, k]));
 
 /** Names accepted by the `kernel` parameter besides 'auto'. */
 export const kernelNames: readonly string[] = Object.freeze(ALL.map((k) => k.name));
+
+/**
+ * Earlier one-word spellings and the names that replaced them: the query answers an old
+ * spelling with a 400 naming the new one. Append only; every value must be a name above.
+ */
+export const renamedKernels: Readonly<Record<string, string>> = Object.freeze({
+  lanczos2: 'lanczos-2',
+  lanczos3: 'lanczos-3',
+  mitchell: 'mitchell-netravali',
+  nearest: 'nearest-neighbour',
+});
 
 /** The kernel of that name, or undefined. */
 export function findKernel(name: string): Kernel | undefined {

@@ -6,7 +6,7 @@ import { sinc, type Kernel } from './kernel.js';
  */
 export function lanczos(a: number): Kernel {
   return {
-    name: `lanczos${a}`,
+    name: `lanczos-${a}`,
     support: a,
     interpolating: true,
     stretch: true,

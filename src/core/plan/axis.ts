@@ -10,7 +10,7 @@ const LANCZOS_UPSCALE_LIMIT = 2;
 /** The default kernel for a factor: the designed low-pass down, an interpolator up. */
 export function autoKernel(scale: number): KernelName {
   if (scale > 1) return 'bandlimit';
-  return 1 / scale <= LANCZOS_UPSCALE_LIMIT ? 'lanczos3' : 'catmull-rom';
+  return 1 / scale <= LANCZOS_UPSCALE_LIMIT ? 'lanczos-3' : 'catmull-rom';
 }
 
 /** One axis of the plan and a short phrase saying why. */

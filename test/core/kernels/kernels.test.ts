@@ -14,16 +14,16 @@ describe('kernel values', () => {
   // Mitchell & Netravali (1988), B = C = 1/3 (CHECKS.md).
   const mitchell = [8 / 9, 77 / 144, 1 / 18, -5 / 144, 0];
   it.each(mitchell.map((v, i) => [i * 0.5, v]))('mitchell(%f) = %f (Mitchell-Netravali 1988)', (x, v) => {
-    expect(k('mitchell').weight(x)).toBeCloseTo(v, 12);
+    expect(k('mitchell-netravali').weight(x)).toBeCloseTo(v, 12);
   });
 
   // Lanczos (Duchon 1979): values from CHECKS.md.
   it.each([
-    ['lanczos2', 0.5, (4 * Math.SQRT2) / Math.PI ** 2],
-    ['lanczos2', 1.5, -0.0636844],
-    ['lanczos3', 0.5, 6 / Math.PI ** 2],
-    ['lanczos3', 1.5, -4 / (3 * Math.PI ** 2)],
-    ['lanczos3', 2.5, 0.0243171],
+    ['lanczos-2', 0.5, (4 * Math.SQRT2) / Math.PI ** 2],
+    ['lanczos-2', 1.5, -0.0636844],
+    ['lanczos-3', 0.5, 6 / Math.PI ** 2],
+    ['lanczos-3', 1.5, -4 / (3 * Math.PI ** 2)],
+    ['lanczos-3', 2.5, 0.0243171],
   ] as Array<[string, number, number]>)('%s(%f) = %f (Duchon 1979)', (name, x, v) => {
     expect(k(name).weight(x)).toBeCloseTo(v, 6);
   });
@@ -33,7 +33,7 @@ describe.each(kernelNames.map((n) => [n]))('kernel %s', (name) => {
   const kernel = k(name);
   it('is even and vanishes outside its support', () => {
     for (let x = 0.013; x < kernel.support + 1; x += 0.037) {
-      if (name !== 'nearest' && name !== 'box') expect(kernel.weight(-x)).toBeCloseTo(kernel.weight(x), 12);
+      if (name !== 'nearest-neighbour' && name !== 'box') expect(kernel.weight(-x)).toBeCloseTo(kernel.weight(x), 12);
       if (x >= kernel.support) expect(Math.abs(kernel.weight(x))).toBe(0);
     }
   });

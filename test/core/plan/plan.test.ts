@@ -32,8 +32,8 @@ describe('makePlan', () => {
   });
 
   it('honours kernel and prefilter overrides, on each axis', () => {
-    const p = makePlan({ ...base, kernel: 'mitchell', prefilter: 1.5 });
-    expect([p.x.kernel, p.y.kernel, p.x.sigma, p.y.sigma]).toEqual(['mitchell', 'mitchell', 1.5, 1.5]);
+    const p = makePlan({ ...base, kernel: 'mitchell-netravali', prefilter: 1.5 });
+    expect([p.x.kernel, p.y.kernel, p.x.sigma, p.y.sigma]).toEqual(['mitchell-netravali', 'mitchell-netravali', 1.5, 1.5]);
     const none = makePlan({ ...base, prefilter: 'none', adaptiveSigma: { x: 3, y: 3 } });
     expect([none.x.sigma, none.y.sigma]).toEqual([0, 0]);
   });
@@ -69,9 +69,9 @@ describe('makePlan', () => {
 
 describe('formatPlanHeader', () => {
   it('states scale, kernel, sigma, pyramid levels and light in our own format', () => {
-    const p = makePlan({ ...base, kernel: 'lanczos3', prefilter: 1.125 });
+    const p = makePlan({ ...base, kernel: 'lanczos-3', prefilter: 1.125 });
     expect(formatPlanHeader(p)).toBe(
-      'scale=4.000,4.000; kernel=lanczos3; sigma=1.13,1.13; prefilter=asked; pyramid=0,0; cutoff=1.00,1.00; light=linear',
+      'scale=4.000,4.000; kernel=lanczos-3; sigma=1.13,1.13; prefilter=asked; pyramid=0,0; cutoff=1.00,1.00; light=linear',
     );
   });
   it('says where sigma came from: the kernel alone, the content analysis, or nowhere', () => {
@@ -88,7 +88,7 @@ describe('formatPlanHeader', () => {
 
 describe('kernelNames', () => {
   it('lists the published kernels the API names, and the designed default', () => {
-    for (const n of ['lanczos2', 'lanczos3', 'catmull-rom', 'mitchell', 'gaussian', 'triangle', 'box', 'nearest', 'bandlimit']) {
+    for (const n of ['lanczos-2', 'lanczos-3', 'catmull-rom', 'mitchell-netravali', 'gaussian', 'triangle', 'box', 'nearest-neighbour', 'bandlimit']) {
       expect(kernelNames).toContain(n);
     }
   });
@@ -96,8 +96,8 @@ describe('kernelNames', () => {
 
 describe('planResponse', () => {
   it('is 1 at DC and follows the Gaussian prefilter exp(-2 pi^2 sigma^2 f^2) (CHECKS.md)', () => {
-    const plain = makePlan({ ...base, kernel: 'lanczos3', prefilter: 'none' });
-    const blurred = makePlan({ ...base, kernel: 'lanczos3', prefilter: 2 });
+    const plain = makePlan({ ...base, kernel: 'lanczos-3', prefilter: 'none' });
+    const blurred = makePlan({ ...base, kernel: 'lanczos-3', prefilter: 2 });
     expect(planResponse(plain, 'x', 0)).toBeCloseTo(1, 6); // float32 tables
     for (const f of [0.02, 0.05, 0.08]) {
       const g = Math.exp(-2 * Math.PI ** 2 * 4 * f * f);

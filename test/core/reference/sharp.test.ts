@@ -24,9 +24,9 @@ describe('agreement with the reference library in linear light (natural-looking 
   // single codes differ; borders are left out (edge modes differ by design). Tolerance: mean
   // absolute difference <= 0.35 code and 99 % of samples within 2 codes; a gamma or
   // half-pixel error gives a mean of several codes.
-  it.each([[256, 192], [200, 150]])('lanczos3 to %ix%i', async (w, h) => {
+  it.each([[256, 192], [200, 150]])('lanczos-3 to %ix%i', async (w, h) => {
     const ref = await sharpLinear(w, h);
-    const plan = makePlan({ sourceWidth: 512, sourceHeight: 384, targetWidth: w, targetHeight: h, kernel: 'lanczos3', prefilter: 'none', light: 'linear' });
+    const plan = makePlan({ sourceWidth: 512, sourceHeight: 384, targetWidth: w, targetHeight: h, kernel: 'lanczos-3', prefilter: 'none', light: 'linear' });
     const d = differences(renderRaster(src, plan).data as Uint8Array, ref, w, h, 4);
     const mean = d.reduce((p, q) => p + q, 0) / d.length;
     expect(mean).toBeLessThanOrEqual(0.35);
@@ -35,7 +35,7 @@ describe('agreement with the reference library in linear light (natural-looking 
 
   it('an encoded-values resize differs clearly from it (the check can fail)', async () => {
     const ref = await sharpLinear(256, 192);
-    const plan = makePlan({ sourceWidth: 512, sourceHeight: 384, targetWidth: 256, targetHeight: 192, kernel: 'lanczos3', prefilter: 'none', light: 'encoded' });
+    const plan = makePlan({ sourceWidth: 512, sourceHeight: 384, targetWidth: 256, targetHeight: 192, kernel: 'lanczos-3', prefilter: 'none', light: 'encoded' });
     const d = differences(renderRaster(src, plan).data as Uint8Array, ref, 256, 192, 4);
     expect(d.reduce((p, q) => p + q, 0) / d.length).toBeGreaterThan(0.35);
   });

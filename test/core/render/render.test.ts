@@ -41,7 +41,7 @@ describe('no shift: an impulse keeps its centroid (pixel-centre convention x = (
     ['even 2x', 80, 40, 40.5], ['odd 3x', 81, 27, 40], ['fractional 2.5x', 80, 32, 27], ['4x', 80, 20, 41.5],
     ['upscale 2x', 40, 80, 20],
   ];
-  describe.each(kernelNames.filter((n) => n !== 'nearest').map((n) => [n]))('%s', (kernel) => {
+  describe.each(kernelNames.filter((n) => n !== 'nearest-neighbour').map((n) => [n]))('%s', (kernel) => {
     it.each(cases)('%s', (label, sw, tw, p) => {
       if (kernel === 'box' && label.startsWith('fractional')) return;
       const s = sw / tw;
@@ -60,7 +60,7 @@ describe('no shift: an impulse keeps its centroid (pixel-centre convention x = (
 
 describe('gamma', () => {
   const stripes = raster(64, 64, 1, false, (x) => (x % 2 ? 255 : 0));
-  it.each(kernelNames.filter((n) => n !== 'nearest').map((n) => [n]))('1-px stripes halved in linear light give 188 +- 1 with %s (CHECKS.md)', (kernel) => {
+  it.each(kernelNames.filter((n) => n !== 'nearest-neighbour').map((n) => [n]))('1-px stripes halved in linear light give 188 +- 1 with %s (CHECKS.md)', (kernel) => {
     const out = renderRaster(stripes, planFor(64, 64, 32, 32, { kernel }));
     for (let y = 0; y < 32; y++) for (let x = 4; x < 28; x++) expect(Math.abs(out.data[y * 32 + x] - 188)).toBeLessThanOrEqual(1);
   });
@@ -93,7 +93,7 @@ describe('premultiplied alpha', () => {
         if (out[i + 3] < 255) partial++;
         if (out[i] !== 255 || out[i + 1] !== 0 || out[i + 2] !== 0) expect(Array.from(out.subarray(i, i + 4))).toEqual([255, 0, 0, out[i + 3]]);
       }
-      if (kernel !== 'nearest' && kernel !== 'box') expect(partial).toBeGreaterThan(0);
+      if (kernel !== 'nearest-neighbour' && kernel !== 'box') expect(partial).toBeGreaterThan(0);
     });
   });
   it('fully transparent stays transparent', () => {

@@ -44,7 +44,7 @@ describe('weight tables', () => {
   });
 
   it('folds a fractional crop into the table (no rounding to whole pixels)', () => {
-    const ax = { scale: 1, kernel: 'lanczos3', sigma: 0, pyramidLevels: 0 };
+    const ax = { scale: 1, kernel: 'lanczos-3', sigma: 0, pyramidLevels: 0 };
     const t = finalTable(100, 10.25, 50, 50, ax);
     expect(t.centre[0]).toBeCloseTo(10.25, 12);
     expect(t.centre[49]).toBeCloseTo(59.25, 12);

@@ -59,7 +59,7 @@ describe('zone plate', () => {
   // through beyond the Nyquist frequency as it drops with s: the score must rise with s.
   it('scores higher the more it is shrunk behind a fixed prefilter', () => {
     const scores = [1.5, 2, 3, 4, 6].map((s) => {
-      const plan = squarePlan(n, s, 'nearest', 1);
+      const plan = squarePlan(n, s, 'nearest-neighbour', 1);
       return assessRisk(spec, plan, responseOf(plan)).score;
     });
     for (let i = 1; i < scores.length; i++) expect(scores[i]).toBeGreaterThan(scores[i - 1]);

@@ -9,7 +9,7 @@ export function squarePlan(n: number, s: number, kernel: KernelChoice = 'auto', 
 }
 
 /** Naive decimation: no prefilter, nearest neighbour (point sampling). */
-export const naivePlan = (n: number, s: number) => squarePlan(n, s, 'nearest', 'none');
+export const naivePlan = (n: number, s: number) => squarePlan(n, s, 'nearest-neighbour', 'none');
 
 /** The response the service hands to the risk model. */
 export const responseOf = (plan: Plan) => (axis: 'x' | 'y', f: number) => planResponse(plan, axis, f);
@@ -19,7 +19,7 @@ export const responseOf = (plan: Plan) => (axis: 'x' | 'y', f: number) => planRe
  * `sigma`; the model reads its filter from the response the test passes, not from this plan.
  */
 export function handPlan(width: number, height: number, sx: number, sy = sx, sigma = 0): Plan {
-  const axis = (scale: number) => ({ scale, kernel: 'nearest', sigma, pyramidLevels: 0 });
+  const axis = (scale: number) => ({ scale, kernel: 'nearest-neighbour', sigma, pyramidLevels: 0 });
   return {
     sourceWidth: width,
     sourceHeight: height,
