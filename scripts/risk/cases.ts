@@ -7,8 +7,8 @@ import sharp from 'sharp';
 import { makePlan, planResponse, renderRaster } from '../../src/core/index.js';
 import { adaptiveFilter, analyzeSpectrum, assessRisk, type RiskReport, type SourceSpectrum } from '../../src/core/risk/index.js';
 import type { PixelRaster, Plan, PlanRequest } from '../../src/core/types.js';
-import { demoImages } from '../../src/demo/index.js';
-import { toBytes } from '../../src/demo/picture.js';
+import { demoImages } from '../../tools/demo/index.js';
+import { toBytes } from '../../tools/demo/picture.js';
 
 export const WIDTHS = [160, 320, 480, 640, 800, 1280];
 

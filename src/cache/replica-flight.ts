@@ -1,6 +1,6 @@
-import type { RedisFlight } from './redis-lock.js';
-import type { RedisTier } from './redis.js';
-import { type Flight, type FlightResult, SingleFlight } from './single-flight.js';
+import type { RedisFlight } from './redis/lock.js';
+import type { RedisTier } from './redis/tier.js';
+import { type Flight, type FlightResult, SingleFlight } from '../lib/single-flight.js';
 import type { CacheEntry } from './types.js';
 
 /**

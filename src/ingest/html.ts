@@ -3,7 +3,7 @@
  * in the last (fallback) format, so a CMS can paste the answer into a page as it is.
  * Element and attribute syntax per the HTML Living Standard (picture, source, img).
  */
-import { outputFormats, type OutputFormat } from '../media/formats.js';
+import { outputFormats, type OutputFormat } from '../codec/formats.js';
 
 export interface PictureInput {
   formats: readonly OutputFormat[];

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { parsePosition } from '../core/geometry.js';
+import { parsePosition } from '../core/layout/index.js';
 import { FoldwiseError } from '../errors.js';
 import { decimal, digits, parseQuery, type RawQuery } from './query.js';
 

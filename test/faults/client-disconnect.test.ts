@@ -8,7 +8,7 @@
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { SingleFlight } from '../../src/cache/single-flight.js';
+import type { SingleFlight } from '../../src/lib/single-flight.js';
 import { build, type TestApp } from '../helpers/build.js';
 import { at, pixels, writePng } from '../helpers/images.js';
 import { tapNextRun, until } from './pool-tap.js';

@@ -1,12 +1,12 @@
 /**
- * The route's memo of parsed rendition URLs (src/routes/rendition-request.ts): a repeated URL
+ * The route's memo of parsed rendition URLs (src/http/routes/rendition-request.ts): a repeated URL
  * skips the checks but gets exactly what a fresh parse gives; refusals are never remembered;
  * the memo stays within its byte bound; what it hands out cannot be changed by a caller.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { kernelNames } from '../../src/core/index.js';
-import { renditionsPrefix } from '../../src/routes/renditions.js';
-import { renditionRequestReader } from '../../src/routes/rendition-request.js';
+import { renditionsPrefix } from '../../src/http/routes/renditions.js';
+import { renditionRequestReader } from '../../src/http/routes/rendition-request.js';
 import type { RawQuery } from '../../src/schemas/query.js';
 import { compileRenditionQuery } from '../../src/schemas/rendition.js';
 import { build, type TestApp } from '../helpers/build.js';
