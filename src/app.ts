@@ -30,6 +30,7 @@ import metricsRoutes from './http/routes/metrics.js';
 import renditionRoutes from './http/routes/renditions.js';
 import aliasRiskRoutes from './http/routes/alias-risk.js';
 import sourcesRoutes from './http/routes/sources.js';
+import { aliasRiskPrefix, renditionsPrefix } from './schemas/paths.js';
 
 export interface BuildOptions {
   config: Config;
@@ -106,7 +107,7 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     keys: config.signing.keys,
     // Required by default whenever a key is set; required without a key stops the start.
     required: signingRequired(config.signing),
-    prefixes: ['/v1/renditions/', '/v1/alias-risk/'],
+    prefixes: [renditionsPrefix, aliasRiskPrefix],
     signedMaxAgeSeconds: config.http.signedMaxAgeSeconds,
   });
 

@@ -5,7 +5,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { kernelNames } from '../../src/core/index.js';
-import { renditionsPrefix } from '../../src/http/routes/renditions.js';
+import { renditionsPrefix } from '../../src/schemas/paths.js';
 import { renditionRequestReader } from '../../src/http/routes/rendition-request.js';
 import type { RawQuery } from '../../src/schemas/query.js';
 import { compileRenditionQuery } from '../../src/schemas/rendition.js';

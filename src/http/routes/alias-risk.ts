@@ -13,11 +13,10 @@ import { assessRendition, riskBody } from '../../risk/report.js';
 import { compileAliasRiskQuery } from '../../schemas/alias-risk.js';
 import { jsonBody, problemResponses, queryParameters } from '../../schemas/openapi.js';
 import { riskReportSchema } from '../../schemas/risk-report.js';
+import { aliasRiskPrefix } from '../../schemas/paths.js';
 import { compileRenditionQuery } from '../../schemas/rendition.js';
 import { matchesIfNoneMatch } from './conditional.js';
 import { sourcePathOf } from './path.js';
-
-export const aliasRiskPrefix = '/v1/alias-risk/';
 
 /** Width of the source preview under view=map (output px): enough to read a 8 x 6 grid. */
 const MAP_WIDTH = 640;

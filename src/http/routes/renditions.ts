@@ -6,9 +6,8 @@ import { problemResponses, queryParameters } from '../../schemas/openapi.js';
 import { compileRenditionQuery } from '../../schemas/rendition.js';
 import { abandonSignal } from './abandon.js';
 import { matchesIfNoneMatch } from './conditional.js';
+import { renditionsPrefix } from '../../schemas/paths.js';
 import { renditionRequestReader } from './rendition-request.js';
-
-export const renditionsPrefix = '/v1/renditions/';
 
 /**
  * GET (and HEAD) /v1/renditions/{source}: validates the query, checks the signature when

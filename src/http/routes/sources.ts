@@ -2,7 +2,7 @@ import type { FastifyInstance } from 'fastify';
 import { z } from 'zod';
 import { FoldwiseError } from '../../errors.js';
 import { jsonBody, problemResponses } from '../../schemas/openapi.js';
-import { renditionsPrefix } from './renditions.js';
+import { renditionsPrefix } from '../../schemas/paths.js';
 import { signUrl } from '../../security/signing.js';
 import { checkSignedUrl } from '../plugins/signing.js';
 
