@@ -2,7 +2,7 @@ import { randomUUID } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import Fastify, { type FastifyInstance, type FastifyServerOptions, LogController } from 'fastify';
 import type { Flight } from './lib/single-flight.js';
-import type { CacheTier } from './cache/types.js';
+import type { CacheEntry, CacheTier } from './cache/types.js';
 import type { Config } from './config.js';
 import { createFolderOrigin } from './origins/folder.js';
 import { upstreamFromConfig, withUpstream } from './origins/upstream-route.js';
@@ -39,7 +39,7 @@ export interface BuildOptions {
   /** The shared cache tier; default the disk tier at config.cache.dir. */
   sharedTier?: CacheTier;
   /** Single-flight across replicas; default in-process. */
-  flight?: Flight;
+  flight?: Flight<CacheEntry>;
   /** pino options, or false for none; default JSON logs at config.server.logLevel. */
   logger?: FastifyServerOptions['logger'];
 }

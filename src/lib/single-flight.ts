@@ -9,12 +9,12 @@ export interface FlightResult<T> {
  * `signal` is the caller's: when it aborts, that caller stops waiting (rejected with the
  * signal's reason), and once every caller has stopped the work's own signal aborts too.
  */
-export interface Flight {
-  run<T>(key: string, work: (signal: AbortSignal) => Promise<T>, signal?: AbortSignal): Promise<FlightResult<T>>;
+export interface Flight<V> {
+  run(key: string, work: (signal: AbortSignal) => Promise<V>, signal?: AbortSignal): Promise<FlightResult<V>>;
 }
 
-interface InFlight {
-  promise: Promise<unknown>;
+interface InFlight<V> {
+  promise: Promise<V>;
   /** Callers that joined after the first. */
   joined: number;
   /** Callers still waiting; a caller without a signal never stops waiting. */
@@ -46,8 +46,8 @@ function waitFor<T>(work: Promise<T>, signal: AbortSignal | undefined, leave: ()
  * reason) once no caller waits any more: a reference count, so one caller who gives up never
  * cancels work that others still wait for. `onJoin` reports each joiner (tests and metrics).
  */
-export class SingleFlight implements Flight {
-  private readonly flights = new Map<string, InFlight>();
+export class SingleFlight<V = unknown> implements Flight<V> {
+  private readonly flights = new Map<string, InFlight<V>>();
 
   constructor(private readonly onJoin?: (key: string, waiters: number) => void) {}
 
@@ -61,20 +61,20 @@ export class SingleFlight implements Flight {
     return this.flights.get(key)?.waiting ?? 0;
   }
 
-  async run<T>(key: string, work: (signal: AbortSignal) => Promise<T>, signal?: AbortSignal): Promise<FlightResult<T>> {
+  async run(key: string, work: (signal: AbortSignal) => Promise<V>, signal?: AbortSignal): Promise<FlightResult<V>> {
     const current = this.flights.get(key);
     if (current) {
       current.joined += 1;
       current.waiting += 1;
       this.onJoin?.(key, current.joined);
-      const value = (await waitFor(current.promise, signal, () => this.leave(current, signal))) as T;
+      const value = await waitFor(current.promise, signal, () => this.leave(current, signal));
       return { value, leader: false };
     }
     const controller = new AbortController();
     const promise = (async () => work(controller.signal))();
     // The work may settle after every caller left: its rejection is nobody's to report.
     promise.catch(() => undefined);
-    const flight: InFlight = { promise, joined: 0, waiting: 1, controller };
+    const flight: InFlight<V> = { promise, joined: 0, waiting: 1, controller };
     this.flights.set(key, flight);
     promise.finally(() => {
       if (this.flights.get(key) === flight) this.flights.delete(key);
@@ -82,7 +82,7 @@ export class SingleFlight implements Flight {
     return { value: await waitFor(promise, signal, () => this.leave(flight, signal)), leader: true };
   }
 
-  private leave(flight: InFlight, signal: AbortSignal | undefined): void {
+  private leave(flight: InFlight<V>, signal: AbortSignal | undefined): void {
     flight.waiting -= 1;
     if (flight.waiting === 0) flight.controller.abort(signal?.reason);
   }

@@ -24,7 +24,7 @@ import { type Stage, StageClock, type StageTiming } from './timings.js';
 export interface RenderContext {
   origin: Origin;
   cache: TieredCache;
-  flight: Flight;
+  flight: Flight<CacheEntry>;
   pool: RenderPool;
   limits: Limits;
   /** Stage durations, for metrics. */

@@ -6,13 +6,13 @@ import { type DiskEvent, DiskTier } from '../../cache/disk.js';
 import { MemoryTier } from '../../cache/memory.js';
 import { type Flight, SingleFlight } from '../../lib/single-flight.js';
 import { TieredCache } from '../../cache/tiered.js';
-import type { CacheTier, TierHealth } from '../../cache/types.js';
+import type { CacheEntry, CacheTier, TierHealth } from '../../cache/types.js';
 import type { Config } from '../../config.js';
 
 /** The rendition cache as routes see it: the tiers, single-flight, and its events. */
 export interface RenditionCache {
   cache: TieredCache;
-  flight: Flight;
+  flight: Flight<CacheEntry>;
   /** 'join' (key, waiters) when a request joins a render already in flight. */
   events: EventEmitter;
   /** Each tier's health by name, and tiers switched off at start with the reason (for /readyz). */
@@ -30,7 +30,7 @@ export interface CachePluginOptions {
   /** Replaces the disk tier as the shared tier (e.g. Redis). */
   sharedTier?: CacheTier;
   /** Replaces in-process single-flight (e.g. a cross-replica lock). */
-  flight?: Flight;
+  flight?: Flight<CacheEntry>;
 }
 
 /** Bytes a tier holds now, where it can say. */
