@@ -6,6 +6,7 @@
 import sharp, { type Metadata, type Sharp, type SharpOptions } from 'sharp';
 sharp.cache(false);
 import { FoldwiseError } from '../errors.js';
+import { withinMs } from '../lib/deadline.js';
 import { sourceFormats } from './formats.js';
 import { hasAcceptedSignature } from './signature.js';
 
@@ -21,19 +22,8 @@ export interface DecodeLimits {
 }
 
 /** `work`, or ERR_LIMIT_DECODE_TIMEOUT once `timeoutMs` (when given) has passed. */
-export async function withinDeadline<T>(work: Promise<T>, timeoutMs: number | undefined): Promise<T> {
-  if (timeoutMs === undefined) return work;
-  let timer: NodeJS.Timeout | undefined;
-  const deadline = new Promise<never>((_, reject) => {
-    timer = setTimeout(() => {
-      reject(new FoldwiseError('ERR_LIMIT_DECODE_TIMEOUT', `Decoding took longer than ${timeoutMs} ms.`));
-    }, timeoutMs);
-  });
-  try {
-    return await Promise.race([work, deadline]);
-  } finally {
-    clearTimeout(timer);
-  }
+export function withinDecodeDeadline<T>(work: Promise<T>, timeoutMs: number | undefined): Promise<T> {
+  return withinMs(work, timeoutMs, () => new FoldwiseError('ERR_LIMIT_DECODE_TIMEOUT', `Decoding took longer than ${timeoutMs} ms.`));
 }
 
 /** The decode's sharp pipeline, set up from the header once its limits are checked. */

@@ -1,6 +1,6 @@
 import type { Channels, PixelRaster } from '../core/types.js';
 import { collapseGreyAlpha, dropOpaqueAlpha } from './channels.js';
-import { classify, type DecodeLimits, prepare, withinDeadline } from './decode-setup.js';
+import { classify, type DecodeLimits, prepare, withinDecodeDeadline } from './decode-setup.js';
 
 export type { DecodeLimits } from './decode-setup.js';
 
@@ -30,7 +30,7 @@ export interface DecodedImage {
  * @throws FoldwiseError ERR_SOURCE_UNSUPPORTED, ERR_SOURCE_CORRUPT, ERR_SOURCE_PIXELS_EXCEEDED
  */
 export async function decodeImage(bytes: Buffer, limits: DecodeLimits): Promise<DecodedImage> {
-  return withinDeadline(decodeWithin(bytes, limits), limits.timeoutMs);
+  return withinDecodeDeadline(decodeWithin(bytes, limits), limits.timeoutMs);
 }
 
 async function decodeWithin(bytes: Buffer, limits: DecodeLimits): Promise<DecodedImage> {

@@ -1,4 +1,4 @@
-import { type DecodeLimits, prepare, withinDeadline } from './decode-setup.js';
+import { type DecodeLimits, prepare, withinDecodeDeadline } from './decode-setup.js';
 
 /** What a source's header says about the raster its decode will give (src/codec/decode.ts). */
 export interface SourceHeader {
@@ -18,7 +18,7 @@ export interface SourceHeader {
  * ever decoded, so the number of pages does not scale the cost.
  */
 export async function readHeader(bytes: Buffer, limits: DecodeLimits): Promise<SourceHeader> {
-  const p = await withinDeadline(prepare(bytes, limits), limits.timeoutMs);
+  const p = await withinDecodeDeadline(prepare(bytes, limits), limits.timeoutMs);
   const channels = (p.grey ? 1 : 3) + (p.hasAlpha ? 1 : 0);
   return { width: p.width, height: p.height, channels, bytesPerSample: p.deep ? 2 : 1, hasAlpha: p.hasAlpha, format: p.format };
 }

@@ -1,4 +1,4 @@
-import { classify, type DecodeLimits, prepare, withinDeadline } from './decode-setup.js';
+import { classify, type DecodeLimits, prepare, withinDecodeDeadline } from './decode-setup.js';
 
 /**
  * The spool file could not be written (folder gone, file system full), or not read back (out
@@ -43,13 +43,13 @@ export interface SpoolableSource {
  */
 export async function probeSpooledDecode(bytes: Buffer, limits: DecodeLimits): Promise<SpoolableSource | null> {
   // The header read is under the decode deadline too, as in decodeImage.
-  const { pipeline, format, width, height, deep, grey, hasAlpha } = await withinDeadline(prepare(bytes, limits), limits.timeoutMs);
+  const { pipeline, format, width, height, deep, grey, hasAlpha } = await withinDecodeDeadline(prepare(bytes, limits), limits.timeoutMs);
   if (hasAlpha) return null;
   let jobs: Promise<unknown> = Promise.resolve();
   const write = (path: string) => {
     const job = pipeline.toFile(path);
     jobs = Promise.allSettled([jobs, job]);
-    return withinDeadline(
+    return withinDecodeDeadline(
       job.then(
         () => undefined,
         (e: unknown) => {

@@ -10,6 +10,7 @@ import { negotiateFormat } from '../codec/negotiate.js';
 import type { Origin, SourceIdentity } from '../origins/types.js';
 import { canonicalQuery } from '../schemas/canonical.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
+import { withDeadline } from '../lib/deadline.js';
 import { formatKey } from './format-key.js';
 import type { IdentityMemo } from './identity.js';
 import { renditionKey, strongEtag } from './key.js';
@@ -65,16 +66,6 @@ export interface Rendition {
   cache: string;
   timings: StageTiming[];
   key: string;
-}
-
-/** Settles like `work`, or rejects with `late()` once `deadline` aborts. */
-function withDeadline<T>(work: Promise<T>, deadline: AbortSignal, late: () => Error): Promise<T> {
-  if (deadline.aborted) return Promise.reject(late());
-  return new Promise<T>((resolve, reject) => {
-    const onAbort = () => reject(late());
-    deadline.addEventListener('abort', onAbort, { once: true });
-    work.then(resolve, reject).finally(() => deadline.removeEventListener('abort', onAbort));
-  });
 }
 
 /** A rendition resampled and not yet encoded: what outlives the source's pixels. */
