@@ -3,7 +3,7 @@ import type { PixelRaster } from '../core/types.js';
 import { FoldwiseError } from '../errors.js';
 import { parseBackground } from './background.js';
 import { placeOnCanvas, type CanvasPlacement } from './letterbox.js';
-import { outputFormats, type OutputFormat } from './formats.js';
+import { formatSpecs, type OutputFormat } from './formats.js';
 import { tagPngSrgb } from './png-srgb.js';
 
 export interface EncodeOptions {
@@ -34,7 +34,7 @@ export interface EncodeOptions {
  * @throws FoldwiseError ERR_PARAM_INVALID for a bad quality or background
  */
 export async function encodeImage(raster: PixelRaster, opts: EncodeOptions): Promise<Buffer> {
-  const spec = outputFormats[opts.format];
+  const spec = formatSpecs[opts.format];
   if (!spec) throw new FoldwiseError('ERR_PARAM_INVALID', `Unknown output format "${String(opts.format)}".`);
   const quality = opts.quality ?? spec.defaultQuality;
   if (quality !== undefined && !(Number.isInteger(quality) && quality >= 1 && quality <= 100)) {

@@ -27,7 +27,7 @@ export interface OutputFormatSpec {
   extension: string;
 }
 
-export const outputFormats: Readonly<Record<OutputFormat, OutputFormatSpec>> = {
+export const formatSpecs: Readonly<Record<OutputFormat, OutputFormatSpec>> = {
   jpeg: {
     name: 'jpeg',
     contentType: 'image/jpeg',

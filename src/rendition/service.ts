@@ -5,7 +5,7 @@ import type { Limits } from '../config.js';
 import { formatPlanHeader } from '../core/index.js';
 import type { PixelRaster, Plan } from '../core/types.js';
 import { encodeImage } from '../codec/encode.js';
-import { outputFormats, type OutputFormat } from '../codec/formats.js';
+import { formatSpecs, type OutputFormat } from '../codec/formats.js';
 import { negotiateFormat } from '../codec/negotiate.js';
 import type { Origin, SourceIdentity } from '../origins/types.js';
 import { canonicalQuery } from '../schemas/canonical.js';
@@ -144,7 +144,7 @@ async function produce(
 function entryOf(body: Buffer, format: OutputFormat, plan: Plan): CacheEntry {
   return {
     body,
-    contentType: outputFormats[format].contentType,
+    contentType: formatSpecs[format].contentType,
     etag: strongEtag(body),
     headers: { 'rendition-plan': formatPlanHeader(plan) },
     createdAt: Date.now(),

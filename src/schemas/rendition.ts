@@ -1,13 +1,12 @@
 import { z } from 'zod';
-import { parsePosition } from '../core/layout/index.js';
+import { type Fit, parsePosition } from '../core/layout/index.js';
 import { FoldwiseError } from '../errors.js';
 import { decimal, digits, parseQuery, type RawQuery } from './query.js';
 
-export const fitModes = ['contain', 'cover', 'fill', 'scale-down'] as const;
-export const outputFormats = ['auto', 'jpeg', 'png', 'webp', 'avif'] as const;
+export const fitModes = ['contain', 'cover', 'fill', 'scale-down'] as const satisfies readonly Fit[];
+export const formatChoices = ['auto', 'jpeg', 'png', 'webp', 'avif'] as const;
 export const lightModes = ['linear', 'encoded'] as const;
-export type Fit = (typeof fitModes)[number];
-export type OutputFormatChoice = (typeof outputFormats)[number];
+export type OutputFormatChoice = (typeof formatChoices)[number];
 
 const hex = /^#?([0-9a-f]{3}|[0-9a-f]{6})$/i;
 
@@ -51,7 +50,7 @@ export function renditionQueryShape(o: RenditionQueryOptions) {
       .default({ x: 0.5, y: 0.5 })
       .meta({ description: 'CSS object-position for cover and contain: keywords or percentages. Default "50% 50%".' }),
     format: z
-      .enum(outputFormats, { error: `format must be one of ${outputFormats.join(', ')}` })
+      .enum(formatChoices, { error: `format must be one of ${formatChoices.join(', ')}` })
       .default('auto')
       .meta({ description: 'Output format; auto negotiates on Accept and sends Vary: Accept.' }),
     quality: digits('quality', 1, 100).optional().meta({ description: 'Encoder quality; default per format.' }),

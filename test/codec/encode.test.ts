@@ -3,11 +3,11 @@ import { describe, expect, it } from 'vitest';
 import type { PixelRaster } from '../../src/core/types.js';
 import { decodeImage } from '../../src/codec/decode.js';
 import { encodeImage } from '../../src/codec/encode.js';
-import { outputFormats, type OutputFormat } from '../../src/codec/formats.js';
+import { formatSpecs, type OutputFormat } from '../../src/codec/formats.js';
 import { pngChunkTypes } from './fixtures.js';
 
 const limits = { maxPixels: 40_000_000, maxDimension: 20_000 };
-const formats = Object.keys(outputFormats) as OutputFormat[];
+const formats = Object.keys(formatSpecs) as OutputFormat[];
 const sharpName: Record<OutputFormat, string> = { jpeg: 'jpeg', png: 'png', webp: 'webp', avif: 'heif' };
 
 /** A smooth colour ramp: lossy codecs keep it within a few codes. */

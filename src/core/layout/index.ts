@@ -13,7 +13,7 @@ export interface Position {
   y: number;
 }
 
-export interface RenditionRequest {
+export interface LayoutRequest {
   width?: number;
   height?: number;
   /** Pixel density as in srcset (CSS pixels to device pixels); multiplies width and height. */
@@ -52,7 +52,7 @@ const atLeastOne = (v: number) => Math.max(1, Math.round(v));
  *
  * @throws RangeError for non-positive or non-finite sizes, density or positions outside 0..1.
  */
-export function layoutRendition(src: { width: number; height: number }, req: RenditionRequest): RenditionLayout {
+export function layoutRendition(src: { width: number; height: number }, req: LayoutRequest): RenditionLayout {
   const { width: sw, height: sh } = src;
   if (!(sw > 0 && sh > 0 && Number.isFinite(sw) && Number.isFinite(sh))) {
     throw new RangeError(`Source size must be positive, not ${sw}x${sh}.`);

@@ -5,7 +5,7 @@ import type { RenditionQuery } from '../../schemas/rendition.js';
 import { sourcePathOf } from './path.js';
 
 /** What a rendition URL asks for: the checked source path, the query, its canonical form. */
-export interface RenditionRequest {
+export interface RenditionUrl {
   readonly path: string;
   readonly query: Readonly<RenditionQuery>;
   readonly canonical: string;
@@ -13,7 +13,7 @@ export interface RenditionRequest {
 
 export interface RenditionRequestReader {
   /** Reads `url` (with Fastify's parse of its query string); throws what the checks throw. */
-  read(url: string, rawQuery: RawQuery): RenditionRequest;
+  read(url: string, rawQuery: RawQuery): RenditionUrl;
   /** URLs remembered now. */
   readonly size: number;
 }
@@ -34,7 +34,7 @@ export function renditionRequestReader(
   parse: (raw: RawQuery) => RenditionQuery,
   maxBytes = 4 * 2 ** 20,
 ): RenditionRequestReader {
-  const memo = new LRUCache<string, RenditionRequest>({
+  const memo = new LRUCache<string, RenditionUrl>({
     maxSize: maxBytes,
     sizeCalculation: (_value, url) => 2 * url.length + entryOverheadBytes,
   });
@@ -45,7 +45,7 @@ export function renditionRequestReader(
       const path = sourcePathOf(url, prefix);
       const query = parse(rawQuery);
       Object.freeze(query.position);
-      const request: RenditionRequest = Object.freeze({ path, query: Object.freeze(query), canonical: canonicalQuery(query) });
+      const request: RenditionUrl = Object.freeze({ path, query: Object.freeze(query), canonical: canonicalQuery(query) });
       memo.set(url, request);
       return request;
     },

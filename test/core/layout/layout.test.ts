@@ -1,11 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { layoutRendition, type RenditionRequest } from '../../../src/core/layout/index.js';
+import { layoutRendition, type LayoutRequest } from '../../../src/core/layout/index.js';
 
 // Semantics: CSS Images Module Level 3, §5.5 object-fit (fill, contain, cover, scale-down)
 // and §5.6 object-position, whose percentages mean what background-position's do (CSS
 // Backgrounds and Borders Module Level 3, §3.6): offset = (box - image) x percentage.
 const centre = { x: 0.5, y: 0.5 };
-const req = (r: Partial<RenditionRequest>): RenditionRequest => ({ density: 1, fit: 'cover', position: centre, ...r });
+const req = (r: Partial<LayoutRequest>): LayoutRequest => ({ density: 1, fit: 'cover', position: centre, ...r });
 const src = { width: 3000, height: 2000 };
 
 describe('layoutRendition', () => {
