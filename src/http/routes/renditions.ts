@@ -7,7 +7,7 @@ import { compileRenditionQuery } from '../../schemas/rendition.js';
 import { abandonSignal } from './abandon.js';
 import { matchesIfNoneMatch } from './conditional.js';
 import { renditionsPrefix } from '../../schemas/paths.js';
-import { renditionRequestReader } from './rendition-request.js';
+import { renditionUrlReader } from './rendition-url.js';
 
 /**
  * GET (and HEAD) /v1/renditions/{source}: validates the query, checks the signature when
@@ -17,7 +17,7 @@ import { renditionRequestReader } from './rendition-request.js';
 export default async function renditionRoutes(app: FastifyInstance): Promise<void> {
   const { config, renderContext } = app;
   const query = compileRenditionQuery({ maxDimension: config.limits.maxDimension, kernelNames });
-  const requests = renditionRequestReader(renditionsPrefix, query.parse);
+  const requests = renditionUrlReader(renditionsPrefix, query.parse);
   const plainCache = `public, max-age=${config.http.maxAgeSeconds}`;
 
   async function handler(request: FastifyRequest, reply: FastifyReply) {

@@ -11,7 +11,7 @@ export interface RenditionUrl {
   readonly canonical: string;
 }
 
-export interface RenditionRequestReader {
+export interface RenditionUrlReader {
   /** Reads `url` (with Fastify's parse of its query string); throws what the checks throw. */
   read(url: string, rawQuery: RawQuery): RenditionUrl;
   /** URLs remembered now. */
@@ -29,11 +29,11 @@ const entryOverheadBytes = 512;
  * so distinct junk URLs evict each other instead of growing it. Results are frozen: every
  * request that shares one must not be able to change it for the others.
  */
-export function renditionRequestReader(
+export function renditionUrlReader(
   prefix: string,
   parse: (raw: RawQuery) => RenditionQuery,
   maxBytes = 4 * 2 ** 20,
-): RenditionRequestReader {
+): RenditionUrlReader {
   const memo = new LRUCache<string, RenditionUrl>({
     maxSize: maxBytes,
     sizeCalculation: (_value, url) => 2 * url.length + entryOverheadBytes,

@@ -1,12 +1,12 @@
 /**
- * The route's memo of parsed rendition URLs (src/http/routes/rendition-request.ts): a repeated URL
+ * The route's memo of parsed rendition URLs (src/http/routes/rendition-url.ts): a repeated URL
  * skips the checks but gets exactly what a fresh parse gives; refusals are never remembered;
  * the memo stays within its byte bound; what it hands out cannot be changed by a caller.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { kernelNames } from '../../src/core/index.js';
 import { renditionsPrefix } from '../../src/schemas/paths.js';
-import { renditionRequestReader } from '../../src/http/routes/rendition-request.js';
+import { renditionUrlReader } from '../../src/http/routes/rendition-url.js';
 import type { RawQuery } from '../../src/schemas/query.js';
 import { compileRenditionQuery } from '../../src/schemas/rendition.js';
 import { build, type TestApp } from '../helpers/build.js';
@@ -17,7 +17,7 @@ const compiled = compileRenditionQuery({ maxDimension: 4096, kernelNames });
 /** A reader whose zod parses are counted. */
 function countingReader(maxBytes?: number) {
   const state = { parses: 0 };
-  const reader = renditionRequestReader(
+  const reader = renditionUrlReader(
     renditionsPrefix,
     (raw: RawQuery) => {
       state.parses += 1;
@@ -47,7 +47,7 @@ const codeOf = (f: () => unknown): string | undefined => {
   return undefined;
 };
 
-describe('renditionRequestReader', () => {
+describe('renditionUrlReader', () => {
   it('a repeated URL is parsed once and reads the same as the first time', () => {
     const { reader, state } = countingReader();
     const url = `${renditionsPrefix}fabrics/twill%20weave.jpg?width=0480&position=left%20top`;
