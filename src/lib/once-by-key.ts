@@ -1,11 +1,12 @@
 /**
- * Idempotence for ingest: one computation per key at a time (single-flight), and finished
+ * Idempotence for ingest: one computation per key at a time (a SingleFlight), and finished
  * results kept in a small LRU so the same upload twice does the work once.
  */
 import { LRUCache } from 'lru-cache';
+import { SingleFlight } from './single-flight.js';
 
 export class OnceByKey<T extends {}> {
-  private readonly inFlight = new Map<string, Promise<T>>();
+  private readonly flight = new SingleFlight<T>();
   private readonly done: LRUCache<string, T>;
 
   constructor(maxEntries: number) {
@@ -16,16 +17,14 @@ export class OnceByKey<T extends {}> {
   run(key: string, compute: () => Promise<T>): { value: Promise<T>; reused: boolean } {
     const cached = this.done.get(key);
     if (cached !== undefined) return { value: Promise.resolve(cached), reused: true };
-    const pending = this.inFlight.get(key);
-    if (pending) return { value: pending, reused: true };
-    const value = compute().then(
-      (v) => {
-        this.done.set(key, v);
-        return v;
-      },
-    ).finally(() => this.inFlight.delete(key));
-    this.inFlight.set(key, value);
-    return { value, reused: false };
+    // SingleFlight.run looks the key up before its first await: `reused` is read at the same moment.
+    const reused = this.flight.waiting(key) > 0;
+    const value = this.flight.run(key, async () => {
+      const v = await compute();
+      this.done.set(key, v);
+      return v;
+    }).then((r) => r.value);
+    return { value, reused };
   }
 
   /** Whether `key` has a finished result. */

@@ -1,4 +1,5 @@
 import { LRUCache } from 'lru-cache';
+import { SingleFlight } from '../lib/single-flight.js';
 import type { Origin, SourceIdentity } from '../origins/types.js';
 
 /**
@@ -9,7 +10,7 @@ import type { Origin, SourceIdentity } from '../origins/types.js';
  */
 export class IdentityMemo {
   private readonly memo?: LRUCache<string, SourceIdentity>;
-  private readonly pending = new Map<string, Promise<SourceIdentity>>();
+  private readonly pending = new SingleFlight<SourceIdentity>();
 
   constructor(
     private readonly origin: Origin,
@@ -32,18 +33,12 @@ export class IdentityMemo {
   async identify(path: string): Promise<SourceIdentity> {
     const known = this.memo?.get(path);
     if (known) return known;
-    const inFlight = this.pending.get(path);
-    if (inFlight) return inFlight;
-    const call = this.origin.identify(path).then((id) => {
+    const { value } = await this.pending.run(path, async () => {
+      const id = await this.origin.identify(path);
       this.memo?.set(path, id);
       return id;
     });
-    this.pending.set(path, call);
-    try {
-      return await call;
-    } finally {
-      this.pending.delete(path);
-    }
+    return value;
   }
 
   /** Forgets a path (e.g. after its read showed a different version). */

@@ -6,6 +6,7 @@
 import { LRUCache } from 'lru-cache';
 import { analyzeSpectrum, type SourceSpectrum } from '../core/risk/index.js';
 import type { PixelRaster } from '../core/types.js';
+import { SingleFlight } from '../lib/single-flight.js';
 import type { SourceIdentity } from '../origins/types.js';
 
 /** Bump when the analysis changes (tiles, window, units): stored spectra then stop matching. */
@@ -33,7 +34,7 @@ const bytesOf = (s: SourceSpectrum) => s.power.byteLength + s.grid.power.byteLen
 export class SpectrumStore {
   private readonly lru: LRUCache<string, SourceSpectrum>;
   private readonly byRaster = new WeakMap<PixelRaster, SourceSpectrum>();
-  private readonly inflight = new Map<string, Promise<SourceSpectrum>>();
+  private readonly inflight = new SingleFlight<SourceSpectrum>();
   /** Analyses run by this store (for metrics and tests). */
   analyses = 0;
 
@@ -87,10 +88,9 @@ export class SpectrumStore {
     const key = this.keyOf(identity);
     const hit = this.lru.get(key);
     if (hit) return { spectrum: hit, from: 'memory' };
-    const running = this.inflight.get(key);
-    if (running) return { spectrum: await running, from: 'analysed' };
+    // A caller that joins a running analysis never runs the work: its `from` stays 'analysed'.
     let from: SpectrumOrigin = 'analysed';
-    const work = (async () => {
+    const { value } = await this.inflight.run(key, async () => {
       const stored = await this.options.shared?.getValue<SourceSpectrum>(key).catch(() => undefined);
       if (stored && stored.power instanceof Float32Array) {
         from = 'shared';
@@ -105,12 +105,7 @@ export class SpectrumStore {
       this.remember(key, undefined, s);
       await this.options.shared?.setValue(key, s).catch((e) => this.options.onSharedError?.(e));
       return s;
-    })();
-    this.inflight.set(key, work);
-    try {
-      return { spectrum: await work, from };
-    } finally {
-      this.inflight.delete(key);
-    }
+    });
+    return { spectrum: value, from };
   }
 }

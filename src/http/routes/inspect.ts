@@ -6,6 +6,7 @@ import { fileURLToPath } from 'node:url';
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import { findKernel, kernelNames } from '../../core/kernels/index.js';
 import { FoldwiseError } from '../../errors.js';
+import { SingleFlight } from '../../lib/single-flight.js';
 import { matchesIfNoneMatch } from './conditional.js';
 
 /** One served file of the inspector page: its bytes, type and a strong validator. */
@@ -89,13 +90,13 @@ async function readPage(dir: string): Promise<Asset> {
 
 /** Runs `load` once and keeps its result; a failure is forgotten so the next call retries. */
 function memo(load: () => Promise<Asset>): () => Promise<Asset> {
-  let pending: Promise<Asset> | undefined;
-  return () => {
-    pending ??= load().catch((e: unknown) => {
-      pending = undefined;
-      throw e;
-    });
-    return pending;
+  const flight = new SingleFlight<Asset>();
+  let loaded: Asset | undefined;
+  return async () => {
+    if (loaded) return loaded;
+    const { value } = await flight.run('asset', load);
+    loaded = value;
+    return value;
   };
 }
 
