@@ -48,4 +48,6 @@ await Promise.all([
   // command's modules (and the packages they import) load when that command runs.
   build({ ...common, entryPoints: [`${src}/cli/index.ts`], outdir: `${root}/dist/cli`, splitting: true, chunkNames: '[name]-[hash]', plugins: [tscLayoutUrls(`${root}/dist/cli`)] }),
   build({ ...common, entryPoints: [`${src}/pool/worker.ts`], outfile: `${root}/dist/pool/worker.js`, plugins: [tscLayoutUrls(`${root}/dist/pool`)] }),
+  // The demo generator, where the server looks for it in a build (src/server.ts), for `foldwise serve`.
+  build({ ...common, entryPoints: [`${root}/tools/demo/index.ts`], outfile: `${root}/dist/demo/tools/demo/index.js` }),
 ]);

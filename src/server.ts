@@ -13,8 +13,9 @@ async function main(): Promise<void> {
   config.cache.dir = resolve(config.cache.dir);
   if (config.origin.generateDemo) {
     // The demo generator lives in tools/demo, outside the server's tree: from the sources it is
-    // loaded as it is, from a build as dist/demo (npm run build compiles it there).
-    const demo = new URL(import.meta.url.endsWith('.ts') ? '../tools/demo/index.ts' : './demo/index.js', import.meta.url);
+    // loaded as it is, from a build as dist/demo/tools/demo (npm run build compiles it there, and
+    // the CLI bundle bundles it there).
+    const demo = new URL(import.meta.url.endsWith('.ts') ? '../tools/demo/index.ts' : './demo/tools/demo/index.js', import.meta.url);
     const { ensureDemoImages } = (await import(demo.href)) as { ensureDemoImages(dir: string): Promise<string[]> };
     await ensureDemoImages(config.origin.sourceDir);
   }
