@@ -19,7 +19,7 @@ import openApiPlugin from './http/plugins/openapi.js';
 import pressurePlugin from './http/plugins/pressure.js';
 import redisPlugin, { redisSettings } from './http/plugins/redis.js';
 import renderPlugin from './http/plugins/rendition.js';
-import signingPlugin, { signingRequired } from './http/plugins/signing.js';
+import signingPlugin from './http/plugins/signing.js';
 import spectraPlugin from './http/plugins/spectra.js';
 import workerPoolPlugin from './http/plugins/worker-pool.js';
 import docsRoutes from './http/routes/docs.js';
@@ -30,7 +30,7 @@ import metricsRoutes from './http/routes/metrics.js';
 import renditionRoutes from './http/routes/renditions.js';
 import aliasRiskRoutes from './http/routes/alias-risk.js';
 import sourcesRoutes from './http/routes/sources.js';
-import { aliasRiskPrefix, renditionsPrefix } from './schemas/paths.js';
+import { signingRequired } from './security/signing.js';
 
 export interface BuildOptions {
   config: Config;
@@ -107,7 +107,6 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     keys: config.signing.keys,
     // Required by default whenever a key is set; required without a key stops the start.
     required: signingRequired(config.signing),
-    prefixes: [renditionsPrefix, aliasRiskPrefix],
     signedMaxAgeSeconds: config.http.signedMaxAgeSeconds,
   });
 

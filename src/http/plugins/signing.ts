@@ -1,7 +1,6 @@
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import fp from 'fastify-plugin';
-import { FoldwiseError } from '../../errors.js';
-import { verifySignature } from '../../security/signing.js';
+import { checkSignedUrl } from '../../security/signing.js';
 
 /** Signed-URL checking for the endpoints whose URLs name a rendition. */
 export interface SigningOptions {
@@ -9,47 +8,23 @@ export interface SigningOptions {
   keys: string[];
   /** Refuse unsigned requests (403). With keys and not required, signatures are optional. */
   required: boolean;
-  /**
-   * Route patterns (as registered) whose requests are checked, matched by prefix, e.g.
-   * ["/v1/renditions/", "/v1/alias-risk/"]. Matching the route rather than the raw path
-   * means a percent-encoded spelling of the path cannot reach the route unchecked.
-   */
-  prefixes: string[];
   /** max-age for answers to signed URLs, which are marked immutable. */
   signedMaxAgeSeconds: number;
 }
 
 declare module 'fastify' {
+  interface FastifyContextConfig {
+    /**
+     * The route's URLs carry signatures, checked by this plugin's one hook. Reading the matched
+     * route's config rather than the raw path means a percent-encoded spelling of the path
+     * cannot reach the route unchecked.
+     */
+    signed?: boolean;
+  }
   interface FastifyRequest {
     /** True when the URL carried a valid signature. */
     signed: boolean;
   }
-}
-
-/**
- * The one rule for whether unsigned requests are refused: `signing.required` when set, else
- * required whenever a key is configured.
- */
-export function signingRequired(signing: { keys: readonly string[]; required?: boolean }): boolean {
-  return signing.required ?? signing.keys.length > 0;
-}
-
-function splitUrl(url: string): { path: string; query: URLSearchParams } {
-  const q = url.indexOf('?');
-  return q < 0 ? { path: url, query: new URLSearchParams() } : { path: url.slice(0, q), query: new URLSearchParams(url.slice(q + 1)) };
-}
-
-/**
- * The one signature check of a raw request URL: true when validly signed; a present but wrong
- * signature is refused even when signing is optional; a missing one only when `required`.
- * `unsignedDetail` is the 403 detail for a missing signature.
- */
-export function checkSignedUrl(url: string, keys: string[], required: boolean, unsignedDetail: string): boolean {
-  const { path, query } = splitUrl(url);
-  const check = verifySignature(path, query, keys);
-  if (check === 'invalid') throw new FoldwiseError('ERR_SIGNATURE_INVALID', 'The signature does not match this path and query.');
-  if (check === 'missing' && required) throw new FoldwiseError('ERR_SIGNATURE_REQUIRED', unsignedDetail);
-  return check === 'valid';
 }
 
 /**
@@ -64,13 +39,12 @@ async function signingPlugin(app: FastifyInstance, options: SigningOptions): Pro
     throw new RangeError('signing is required but no signing key is configured');
   }
   const cacheControl = `public, max-age=${options.signedMaxAgeSeconds}, immutable`;
-  const applies = (path: string): boolean => options.prefixes.some((p) => path.startsWith(p));
   app.decorateRequest('signed', false);
   // No key: nothing can be signed, so every request is spared both hooks.
   if (options.keys.length === 0) return;
 
   app.addHook('onRequest', async (request: FastifyRequest) => {
-    if (!applies(request.routeOptions.url ?? '')) return;
+    if (request.routeOptions.config?.signed !== true) return;
     request.signed = checkSignedUrl(
       request.url,
       options.keys,

@@ -91,6 +91,7 @@ export default async function aliasRiskRoutes(app: FastifyInstance): Promise<voi
     `${aliasRiskPrefix}*`,
     {
       config: {
+        signed: true,
         openapi: {
           summary: 'The alias risk of a rendition, before it is rendered',
           description:

@@ -7,7 +7,7 @@ import { toFoldwiseError } from '../plugins/errors.js';
 import { ingestQuerySchema, ingestSourceBody, jobSchema, manifestSchema } from '../../schemas/ingest.js';
 import { jsonBody, problemResponses, queryParameters } from '../../schemas/openapi.js';
 import { parseQuery } from '../../schemas/query.js';
-import { checkSignedUrl, signingRequired } from '../plugins/signing.js';
+import { checkSignedUrl, signingRequired } from '../../security/signing.js';
 import { checkSource, checkUpload, requireBinding } from '../../security/ingest-binding.js';
 
 export const ingestPath = '/v1/ingest';

@@ -40,6 +40,7 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
     `${renditionsPrefix}*`,
     {
       config: {
+        signed: true,
         openapi: {
           summary: 'A rendition of a source',
           description:

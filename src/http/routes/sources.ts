@@ -4,7 +4,7 @@ import { FoldwiseError } from '../../errors.js';
 import { jsonBody, problemResponses } from '../../schemas/openapi.js';
 import { renditionsPrefix } from '../../schemas/paths.js';
 import { signUrl } from '../../security/signing.js';
-import { checkSignedUrl } from '../plugins/signing.js';
+import { checkSignedUrl } from '../../security/signing.js';
 
 const listingSchema = z.object({
   sources: z.array(
