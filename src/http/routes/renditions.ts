@@ -26,7 +26,7 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
     const r = await renderRendition({ ...renderContext, signal }, path, q, request.headers.accept, canonical);
     reply
       .header('etag', r.entry.etag)
-      // For validly signed URLs the signing plugin (src/plugins/signing.ts), which checked the
+      // For validly signed URLs the signing plugin (src/http/plugins/signing.ts), which checked the
       // signature before parsing, replaces this with a year and immutable.
       .header('cache-control', plainCache)
       .header('server-timing', serverTiming(r.cache, r.timings));
