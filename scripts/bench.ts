@@ -53,7 +53,7 @@ async function ourPipeline(jpeg: Buffer, w: number, h: number, where: 'in-proces
 }
 
 /**
- * The service's streamed path (src/pool/spool/streamed.ts): sharp decodes into a spool file row by
+ * The service's streamed path (src/rendition/streamed.ts): sharp decodes into a spool file row by
  * row while the pool's workers resample the rows already written; then the same encode.
  */
 async function streamedPipeline(jpeg: Buffer, w: number, h: number, encoder: 'plain' | 'service' = 'plain'): Promise<Buffer> {
@@ -121,7 +121,7 @@ if (!flags['service-only']) {
   console.log(line(head));
   console.log(`|${widths.map((w) => '-'.repeat(w + 2)).join('|')}|`);
   for (const t of table) console.log(line(t));
-  console.log('\nstreamed = what a rendition request runs (src/pool/spool/streamed.ts): sharp decodes into a spool file row by row while the');
+  console.log('\nstreamed = what a rendition request runs (src/rendition/streamed.ts): sharp decodes into a spool file row by row while the');
   console.log('  service pool (src/pool/render-pool.ts, 2 worker threads) resamples the rows already there, then sharp encodes a baseline JPEG (quality 82);');
   console.log('  target: 12 MP -> 800 px streamed <= 1.30x; next column: the same run divided by sharp decoding into the spool file alone');
   console.log('decode then resample = sharp decode to raw in memory, then our resample (in this thread, or staged in shared memory for the pool), then the encode;');

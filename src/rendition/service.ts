@@ -16,9 +16,9 @@ import type { IdentityMemo } from './identity.js';
 import { renditionKey, strongEtag } from './key.js';
 import { checkRequestedSize, type PlannedRendition, planRendition } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
-import { admitRendition } from '../pool/admit-job.js';
+import { admitRendition } from './admit.js';
 import { decodeSource, type LoadedSource, type ReadSource, readSource } from './source.js';
-import { resampleWhileDecoding } from '../pool/spool/streamed.js';
+import { resampleWhileDecoding } from './streamed.js';
 import { type Stage, StageClock, type StageTiming } from './timings.js';
 
 /** Everything a render needs; no Fastify request, so ingest and the CLI can call it too. */
@@ -42,7 +42,7 @@ export interface RenderContext {
   /**
    * adaptiveSigma's answer before any pixel is decoded, from an analysis already at hand;
    * null when there is none (then the source is decoded in full first). Lets a rendition of
-   * an analysed source be resampled while it decodes (src/pool/spool/streamed.ts).
+   * an analysed source be resampled while it decodes (src/rendition/streamed.ts).
    */
   knownAdaptiveSigma?: (plan: Plan, identity: SourceIdentity) => { sigma: { x: number; y: number } | undefined } | null;
   /**

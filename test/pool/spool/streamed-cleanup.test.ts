@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { resolveConfig } from '../../../src/config.js';
 import { kernelNames, makePlan } from '../../../src/core/index.js';
 import { RenderPool } from '../../../src/pool/render-pool.js';
-import { resampleWhileDecoding } from '../../../src/pool/spool/streamed.js';
+import { resampleWhileDecoding } from '../../../src/rendition/streamed.js';
 import { StageClock } from '../../../src/rendition/timings.js';
 import { compileRenditionQuery } from '../../../src/schemas/rendition.js';
 import { type BusyThreadpool, occupyThreadpool } from '../../helpers/busy-threadpool.js';

@@ -4,13 +4,13 @@ import type { OutputFormat } from '../codec/formats.js';
 import { readHeader, type SourceHeader } from '../codec/header.js';
 import { negotiateFormat } from '../codec/negotiate.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
-import type { Lease } from './budget.js';
-import { outputCost, renditionCost, stagingCost } from './cost.js';
-import { planRendition } from '../rendition/plan.js';
-import type { RenderPool } from './render-pool.js';
-import { decodeLimits, type ReadSource } from '../rendition/source.js';
-import { STREAM_MIN_PIXELS } from './spool/streamed.js';
-import type { StageClock } from '../rendition/timings.js';
+import type { Lease } from '../pool/budget.js';
+import { outputCost, renditionCost, stagingCost } from '../pool/cost.js';
+import { planRendition } from './plan.js';
+import type { RenderPool } from '../pool/render-pool.js';
+import { decodeLimits, type ReadSource } from './source.js';
+import { STREAM_MIN_PIXELS } from './streamed.js';
+import type { StageClock } from './timings.js';
 
 /** What admitting a rendition job needs of the render context. */
 export interface AdmitContext {

@@ -1,12 +1,12 @@
-import type { Limits } from '../../config.js';
-import type { PixelRaster, Plan } from '../../core/types.js';
-import { probeSpooledDecode, SpoolWriteError } from '../../codec/spool-decode.js';
-import type { SourceIdentity } from '../../origins/types.js';
-import type { RenditionQuery } from '../../schemas/rendition.js';
-import { type PlannedRendition, planRendition } from '../../rendition/plan.js';
-import type { RenderPool } from '../render-pool.js';
-import { decodeLimits, type ReadSource } from '../../rendition/source.js';
-import type { StageClock } from '../../rendition/timings.js';
+import type { Limits } from '../config.js';
+import type { PixelRaster, Plan } from '../core/types.js';
+import { probeSpooledDecode, SpoolWriteError } from '../codec/spool-decode.js';
+import type { SourceIdentity } from '../origins/types.js';
+import type { RenditionQuery } from '../schemas/rendition.js';
+import { type PlannedRendition, planRendition } from './plan.js';
+import type { RenderPool } from '../pool/render-pool.js';
+import { decodeLimits, type ReadSource } from './source.js';
+import type { StageClock } from './timings.js';
 
 /**
  * Sources smaller than this decode in a few milliseconds, less than the spool file and the
