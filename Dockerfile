@@ -16,6 +16,7 @@ COPY package.json package-lock.json ./
 RUN npm ci --no-audit --no-fund --ignore-scripts && npm rebuild esbuild
 COPY tsconfig.json tsconfig.build.json ./
 COPY src ./src
+COPY tools/demo ./tools/demo
 RUN npm run build && npm prune --omit=dev --no-audit --no-fund --ignore-scripts
 
 FROM node:24-bookworm-slim AS runtime

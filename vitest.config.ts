@@ -9,13 +9,16 @@ import { configDefaults, defineConfig } from 'vitest/config';
 const unit = [
   'test/core/**/*.test.ts',
   'test/config.test.ts',
-  'test/cache/{breaker,disk,memory,pack,single-flight,tiered}.test.ts',
+  'test/cache/{breaker,disk,memory,pack,tiered}.test.ts',
   'test/docs/readme.test.ts',
-  'test/ingest/{jobs,ladder,store,warnings}.test.ts',
+  'test/ingest/{jobs,ladder,store}.test.ts',
   'test/inspect/zoom.test.ts',
-  'test/media/{decode,decode-layouts,decode-refusals,encode,negotiate,spool-parity}.test.ts',
+  'test/codec/{decode,decode-layouts,decode-refusals,encode,negotiate,spool-parity}.test.ts',
+  'test/lib/single-flight.test.ts',
   'test/origins/{address-guard,folder}.test.ts',
-  'test/render/{admission,identity,key,spool-rows,timings}.test.ts',
+  'test/pool/spool/rows.test.ts',
+  'test/rendition/{identity,key,timings}.test.ts',
+  'test/risk/warnings.test.ts',
   'test/security/signing.test.ts',
 ];
 

@@ -9,10 +9,10 @@ import type { PixelRaster } from '../src/core/types.js';
 import { benchJpeg } from './bench/texture.js';
 import { decodeRaw } from './bench/decode.js';
 import { simdKernels } from '../src/core/simd/index.js';
-import { RenderPool } from '../src/render/pool.js';
-import { encodeImage } from '../src/media/encode.js';
+import { RenderPool } from '../src/pool/render-pool.js';
+import { encodeImage } from '../src/codec/encode.js';
 import { timeRuns, type Timing } from './bench/timing.js';
-import { probeSpooledDecode } from '../src/media/spool-decode.js';
+import { probeSpooledDecode } from '../src/codec/spool-decode.js';
 
 const RUNS = Number(process.env.BENCH_RUNS ?? 7);
 // The through-HTTP section (scripts/bench/service.ts): `npm run bench -- --service-runs 5
@@ -38,7 +38,7 @@ function ourResample(src: PixelRaster, w: number, h: number): PixelRaster {
   return renderRaster(src, planOf(src, w, h));
 }
 
-// The service's own pool (src/render/pool.ts): the same band split, source staging and worker
+// The service's own pool (src/pool/render-pool.ts): the same band split, source staging and worker
 // entry as a rendition request; its threads start here, and each job's warm-up run reaches both.
 const pool = new RenderPool({ threads: 2, maxQueue: 0, retryAfterSeconds: 1, spoolDir: 'auto' });
 
@@ -53,7 +53,7 @@ async function ourPipeline(jpeg: Buffer, w: number, h: number, where: 'in-proces
 }
 
 /**
- * The service's streamed path (src/render/streamed.ts): sharp decodes into a spool file row by
+ * The service's streamed path (src/rendition/streamed.ts): sharp decodes into a spool file row by
  * row while the pool's workers resample the rows already written; then the same encode.
  */
 async function streamedPipeline(jpeg: Buffer, w: number, h: number, encoder: 'plain' | 'service' = 'plain'): Promise<Buffer> {
@@ -121,12 +121,12 @@ if (!flags['service-only']) {
   console.log(line(head));
   console.log(`|${widths.map((w) => '-'.repeat(w + 2)).join('|')}|`);
   for (const t of table) console.log(line(t));
-  console.log('\nstreamed = what a rendition request runs (src/render/streamed.ts): sharp decodes into a spool file row by row while the');
-  console.log('  service pool (src/render/pool.ts, 2 worker threads) resamples the rows already there, then sharp encodes a baseline JPEG (quality 82);');
+  console.log('\nstreamed = what a rendition request runs (src/rendition/streamed.ts): sharp decodes into a spool file row by row while the');
+  console.log('  service pool (src/pool/render-pool.ts, 2 worker threads) resamples the rows already there, then sharp encodes a baseline JPEG (quality 82);');
   console.log('  target: 12 MP -> 800 px streamed <= 1.30x; next column: the same run divided by sharp decoding into the spool file alone');
   console.log('decode then resample = sharp decode to raw in memory, then our resample (in this thread, or staged in shared memory for the pool), then the encode;');
   console.log('  the path for sources with alpha and for the first rendition of a source whose spectrum prefilter=auto needs');
-  console.log('service JPEG encoder = src/media/encode.ts (baseline, Huffman tables fitted to the picture, sRGB profile attached), what a rendition request returns');
+  console.log('service JPEG encoder = src/codec/encode.ts (baseline, Huffman tables fitted to the picture, sRGB profile attached), what a rendition request returns');
   const simd = simdKernels();
   console.log(simd
     ? `working memory of the resample (SIMD arena, largest job): ${(simd.memory.buffer.byteLength / 2 ** 20).toFixed(1)} MiB against ${(4000 * 3000 * 3 / 2 ** 20).toFixed(1)} MiB of decoded 12 MP pixels`

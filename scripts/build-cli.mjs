@@ -5,7 +5,7 @@
  *
  *   dist/cli/index.js   the CLI (bin/foldwise.js runs it when it is not older than src/), and
  *                       beside it the chunks each command loads when it runs
- *   dist/worker.js      the piscina worker entry, where src/render/pool.ts looks for it
+ *   dist/pool/worker.js the piscina worker entry, where src/pool/render-pool.ts looks for it
  *
  * Packages stay external (sharp is native; the rest load from node_modules as usual). The
  * layout is the one `npm run build` (tsc) writes, and each module's `import.meta.url` is
@@ -47,5 +47,7 @@ await Promise.all([
   // Split at the CLI's dynamic imports, so `--help` loads neither fastify nor sharp: each
   // command's modules (and the packages they import) load when that command runs.
   build({ ...common, entryPoints: [`${src}/cli/index.ts`], outdir: `${root}/dist/cli`, splitting: true, chunkNames: '[name]-[hash]', plugins: [tscLayoutUrls(`${root}/dist/cli`)] }),
-  build({ ...common, entryPoints: [`${src}/worker.ts`], outfile: `${root}/dist/worker.js`, plugins: [tscLayoutUrls(`${root}/dist`)] }),
+  build({ ...common, entryPoints: [`${src}/pool/worker.ts`], outfile: `${root}/dist/pool/worker.js`, plugins: [tscLayoutUrls(`${root}/dist/pool`)] }),
+  // The demo generator, where the server looks for it in a build (src/server.ts), for `foldwise serve`.
+  build({ ...common, entryPoints: [`${root}/tools/demo/index.ts`], outfile: `${root}/dist/demo/tools/demo/index.js` }),
 ]);

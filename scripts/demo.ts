@@ -4,7 +4,7 @@
  */
 import { stat } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
-import { ensureDemoImages } from '../src/demo/index.js';
+import { ensureDemoImages } from '../tools/demo/index.js';
 
 const dir = resolve(process.argv[2] ?? 'demo/images');
 const started = performance.now();

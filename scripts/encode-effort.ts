@@ -1,14 +1,14 @@
 /**
  * Measures AVIF and WebP encode time and size per effort level on demo pictures scaled to a
  * typical rendition (1200 px wide), as ratios to a baseline JPEG encode measured in the same
- * run. Used to choose the `effort` values in src/media/formats.ts.
+ * run. Used to choose the `effort` values in src/codec/formats.ts.
  *
  *   npx tsx scripts/encode-effort.ts [repeats] [highest AVIF effort]
  *
  * AVIF efforts above 4 take minutes per picture here, so the default stops at 4.
  */
 import sharp from 'sharp';
-import { demoImages, encodeDemo } from '../src/demo/index.js';
+import { demoImages, encodeDemo } from '../tools/demo/index.js';
 
 const repeats = Number(process.argv[2] ?? 3);
 const maxAvifEffort = Number(process.argv[3] ?? 4);

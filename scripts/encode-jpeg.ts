@@ -1,7 +1,7 @@
 /**
  * The JPEG encoder's share of a rendition: time against bytes at equal SSIM for the settings
  * sharp exposes, on the demo pictures scaled to an 800 px rendition. Used to choose the JPEG
- * settings in src/media/encode.ts.
+ * settings in src/codec/encode.ts.
  *
  *   npx tsx scripts/encode-jpeg.ts [repeats]
  *
@@ -16,7 +16,7 @@
  */
 import sharp, { type JpegOptions } from 'sharp';
 import { ssim } from 'ssim.js';
-import { demoImages, encodeDemo } from '../src/demo/index.js';
+import { demoImages, encodeDemo } from '../tools/demo/index.js';
 
 const repeats = Number(process.argv[2] ?? 5);
 const names = ['fabrics/twill.jpg', 'fabrics/herringbone.jpg', 'shop/brick-front.jpg', 'labels/care-label.png'];

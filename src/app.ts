@@ -1,35 +1,36 @@
 import { randomUUID } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import Fastify, { type FastifyInstance, type FastifyServerOptions, LogController } from 'fastify';
-import type { Flight } from './cache/single-flight.js';
-import type { CacheTier } from './cache/types.js';
+import type { Flight } from './lib/single-flight.js';
+import type { CacheEntry, CacheTier } from './cache/types.js';
 import type { Config } from './config.js';
 import { createFolderOrigin } from './origins/folder.js';
 import { upstreamFromConfig, withUpstream } from './origins/upstream-route.js';
 import type { Origin } from './origins/types.js';
-import cachePlugin from './plugins/cache.js';
-import contextPlugin from './plugins/context.js';
-import ingestPlugin from './plugins/ingest.js';
-import { clientErrorHandler } from './plugins/client-errors.js';
-import stoppingPlugin from './plugins/stopping.js';
-import errorsPlugin, { sendProblem, toFoldwiseError } from './plugins/errors.js';
-import memoryWatchPlugin from './plugins/memory-watch.js';
-import metricsPlugin from './plugins/metrics.js';
-import openApiPlugin from './plugins/openapi.js';
-import pressurePlugin from './plugins/pressure.js';
-import redisPlugin, { redisSettings } from './plugins/redis.js';
-import renderPlugin from './plugins/render.js';
-import signingPlugin, { signingRequired } from './plugins/signing.js';
-import spectraPlugin from './plugins/spectra.js';
-import workerPoolPlugin from './plugins/worker-pool.js';
-import docsRoutes from './routes/docs.js';
-import healthRoutes from './routes/health.js';
-import ingestRoutes from './routes/ingest.js';
-import inspectRoutes from './routes/inspect.js';
-import metricsRoutes from './routes/metrics.js';
-import renditionRoutes from './routes/renditions.js';
-import aliasRiskRoutes from './routes/alias-risk.js';
-import sourcesRoutes from './routes/sources.js';
+import cachePlugin from './http/plugins/cache.js';
+import contextPlugin from './http/plugins/context.js';
+import ingestPlugin from './http/plugins/ingest.js';
+import { clientErrorHandler } from './http/plugins/client-errors.js';
+import stoppingPlugin from './http/plugins/stopping.js';
+import errorsPlugin, { sendProblem, toFoldwiseError } from './http/plugins/errors.js';
+import memoryWatchPlugin from './http/plugins/memory-watch.js';
+import metricsPlugin from './http/plugins/metrics.js';
+import openApiPlugin from './http/plugins/openapi.js';
+import pressurePlugin from './http/plugins/pressure.js';
+import redisPlugin, { redisSettings } from './http/plugins/redis.js';
+import renderPlugin from './http/plugins/rendition.js';
+import signingPlugin from './http/plugins/signing.js';
+import spectraPlugin from './http/plugins/spectra.js';
+import workerPoolPlugin from './http/plugins/worker-pool.js';
+import docsRoutes from './http/routes/docs.js';
+import healthRoutes from './http/routes/health.js';
+import ingestRoutes from './http/routes/ingest.js';
+import inspectRoutes from './http/routes/inspect.js';
+import metricsRoutes from './http/routes/metrics.js';
+import renditionRoutes from './http/routes/renditions.js';
+import aliasRiskRoutes from './http/routes/alias-risk.js';
+import sourcesRoutes from './http/routes/sources.js';
+import { signingRequired } from './security/signing.js';
 
 export interface BuildOptions {
   config: Config;
@@ -38,7 +39,7 @@ export interface BuildOptions {
   /** The shared cache tier; default the disk tier at config.cache.dir. */
   sharedTier?: CacheTier;
   /** Single-flight across replicas; default in-process. */
-  flight?: Flight;
+  flight?: Flight<CacheEntry>;
   /** pino options, or false for none; default JSON logs at config.server.logLevel. */
   logger?: FastifyServerOptions['logger'];
 }
@@ -106,7 +107,6 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     keys: config.signing.keys,
     // Required by default whenever a key is set; required without a key stops the start.
     required: signingRequired(config.signing),
-    prefixes: ['/v1/renditions/', '/v1/alias-risk/'],
     signedMaxAgeSeconds: config.http.signedMaxAgeSeconds,
   });
 

@@ -75,8 +75,8 @@ export const configSchema = z.strictObject({
     spoolDir: z.string().min(1),
     /**
      * Bytes of working memory the jobs admitted at once may need (estimated from each
-     * source's header: src/render/cost.ts). null = half the container's memory limit (cgroup
-     * memory.max, else the machine's memory), at most 1 GiB (src/render/budget-default.ts).
+     * source's header: src/pool/cost.ts). null = half the container's memory limit (cgroup
+     * memory.max, else the machine's memory), at most 1 GiB (src/pool/budget-default.ts).
      */
     memoryBudgetBytes: z.number().int().min(64 * 2 ** 20).nullable(),
     /** Longest wait for room in the budget before 503 + Retry-After; well under the idle timeout. */

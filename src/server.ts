@@ -12,7 +12,11 @@ async function main(): Promise<void> {
   config.origin.sourceDir = resolve(config.origin.sourceDir);
   config.cache.dir = resolve(config.cache.dir);
   if (config.origin.generateDemo) {
-    const { ensureDemoImages } = await import('./demo/index.js');
+    // The demo generator lives in tools/demo, outside the server's tree: from the sources it is
+    // loaded as it is, from a build as dist/demo/tools/demo (npm run build compiles it there, and
+    // the CLI bundle bundles it there).
+    const demo = new URL(import.meta.url.endsWith('.ts') ? '../tools/demo/index.ts' : './demo/tools/demo/index.js', import.meta.url);
+    const { ensureDemoImages } = (await import(demo.href)) as { ensureDemoImages(dir: string): Promise<string[]> };
     await ensureDemoImages(config.origin.sourceDir);
   }
   const app = await build({ config });

@@ -1,6 +1,6 @@
-import type { RedisFlight } from './redis-lock.js';
-import type { RedisTier } from './redis.js';
-import { type Flight, type FlightResult, SingleFlight } from './single-flight.js';
+import type { RedisFlight } from './redis/lock.js';
+import type { RedisTier } from './redis/tier.js';
+import { type Flight, type FlightResult, SingleFlight } from '../lib/single-flight.js';
 import type { CacheEntry } from './types.js';
 
 /**
@@ -11,26 +11,26 @@ import type { CacheEntry } from './types.js';
  * cache writes every tier), so the holder's store step here only makes sure the shared tier
  * has it before the waiters are woken.
  */
-export class ReplicaFlight implements Flight {
-  private readonly local: SingleFlight;
+export class ReplicaFlight implements Flight<CacheEntry> {
+  private readonly local: SingleFlight<CacheEntry>;
 
   constructor(
     private readonly redis: RedisFlight,
     private readonly tier: RedisTier,
     onJoin?: (key: string, waiters: number) => void,
   ) {
-    this.local = new SingleFlight(onJoin);
+    this.local = new SingleFlight<CacheEntry>(onJoin);
   }
 
-  run<T>(key: string, work: (signal: AbortSignal) => Promise<T>, signal?: AbortSignal): Promise<FlightResult<T>> {
+  run(key: string, work: (signal: AbortSignal) => Promise<CacheEntry>, signal?: AbortSignal): Promise<FlightResult<CacheEntry>> {
     // The local flight counts this replica's waiting callers; its signal aborts the work here.
     return this.local.run(key, async (abandoned) => {
       const { entry } = await this.redis.run(key, {
         lookup: () => this.tier.get(key),
-        produce: () => work(abandoned) as Promise<unknown> as Promise<CacheEntry>,
+        produce: () => work(abandoned),
         store: (e) => this.tier.set(key, e),
       });
-      return entry as unknown as T;
+      return entry;
     }, signal);
   }
 }

@@ -5,9 +5,9 @@
 import { writeFile } from 'node:fs/promises';
 import type { RiskReport } from '../core/risk/index.js';
 import { type ErrorCode, FoldwiseError } from '../errors.js';
-import { widthRisk } from '../ingest/assess.js';
-import { writeWarnings } from '../ingest/warnings.js';
-import { aliasRiskPrefix } from '../routes/alias-risk.js';
+import { widthRisk } from '../risk/ladder.js';
+import { writeWarnings } from '../risk/warnings.js';
+import { aliasRiskPrefix } from '../schemas/paths.js';
 import type { riskBody } from '../risk/report.js';
 import type { CommandApp } from './app.js';
 import { UsageError } from './exit.js';

@@ -1,7 +1,7 @@
 /** Public surface of the pure resampling core. */
 export type * from './types.js';
 export { makePlan, formatPlanHeader } from './plan/index.js';
-export { renderRaster, type RenderOptions } from './render.js';
+export { renderRaster, type RenderOptions } from './pipeline/index.js';
 export { planResponse } from './resample/index.js';
 export { kernelNames, renamedKernels } from './kernels/index.js';
 export { srgbToLinear8, srgbToLinear16, linearToSrgb8, linearToSrgb16 } from './color/index.js';

@@ -1,9 +1,9 @@
 import type { Limits } from '../config.js';
-import { readHeader } from '../media/header.js';
-import type { Lease } from '../render/budget.js';
-import { decodeCost, outputCost, stagingCost } from '../render/cost.js';
-import type { RenderPool } from '../render/pool.js';
-import { decodeLimits } from '../render/source.js';
+import { readHeader } from '../codec/header.js';
+import type { Lease } from '../pool/budget.js';
+import { decodeCost, outputCost, stagingCost } from '../pool/cost.js';
+import type { RenderPool } from '../pool/render-pool.js';
+import { decodeLimits } from '../rendition/source.js';
 import type { IngestFormat } from '../schemas/ingest.js';
 import { heightFor, ladderFor } from './ladder.js';
 

@@ -3,7 +3,7 @@
  * in the last (fallback) format, so a CMS can paste the answer into a page as it is.
  * Element and attribute syntax per the HTML Living Standard (picture, source, img).
  */
-import { outputFormats, type OutputFormat } from '../media/formats.js';
+import { formatSpecs, type OutputFormat } from '../codec/formats.js';
 
 export interface PictureInput {
   formats: readonly OutputFormat[];
@@ -31,7 +31,7 @@ export function pictureHtml(p: PictureInput): string {
   const sources = p.formats
     .slice(0, -1)
     .filter((f) => p.srcset[f])
-    .map((f) => `  <source type="${outputFormats[f].contentType}" srcset="${attr(p.srcset[f])}" sizes="${attr(p.sizes)}">`);
+    .map((f) => `  <source type="${formatSpecs[f].contentType}" srcset="${attr(p.srcset[f])}" sizes="${attr(p.sizes)}">`);
   const img =
     `  <img src="${attr(p.fallback.url)}" srcset="${attr(p.srcset[last] ?? '')}" sizes="${attr(p.sizes)}"` +
     ` width="${p.fallback.width}" height="${p.fallback.height}" alt="">`;

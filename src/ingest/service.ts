@@ -7,25 +7,25 @@ import { EventEmitter } from 'node:events';
 import type { Config } from '../config.js';
 import { kernelNames } from '../core/index.js';
 import { FoldwiseError } from '../errors.js';
-import { sourceFormats } from '../media/formats.js';
+import { sourceFormats } from '../codec/formats.js';
 import type { Origin } from '../origins/types.js';
-import { renderRendition, type RenderContext } from '../render/service.js';
-import { decodeSource, type LoadedSource, loadSource, readSource } from '../render/source.js';
-import { StageClock } from '../render/timings.js';
-import type { SpectrumStore } from '../risk/spectra.js';
+import { renderRendition, type RenderContext } from '../rendition/service.js';
+import { decodeSource, type LoadedSource, loadSource, readSource } from '../rendition/source.js';
+import { StageClock } from '../rendition/timings.js';
+import type { SpectrumStore } from '../risk/spectrum-store.js';
 import type { IngestFormat } from '../schemas/ingest.js';
 import { compileRenditionQuery } from '../schemas/rendition.js';
 import { admitDecode, admitLadder } from './admit.js';
-import { assessLadder } from './assess.js';
-import { mapBounded } from './bounded.js';
-import { Gate } from './gate.js';
+import { assessLadder } from '../risk/ladder.js';
+import { mapBounded } from '../lib/bounded.js';
+import { Gate } from '../lib/semaphore.js';
 import { JobTable } from './jobs.js';
 import { ladderFor } from './ladder.js';
 import { assembleManifest, type Manifest, type ManifestRendition } from './manifest.js';
-import { OnceByKey } from './single-flight.js';
+import { OnceByKey } from '../lib/once-by-key.js';
 import { digestOf, keyFor, storeOnce } from './store.js';
 import { renditionUrl } from './urls.js';
-import { writeWarnings } from './warnings.js';
+import { writeWarnings } from '../risk/warnings.js';
 
 export interface IngestOptions {
   /** Widths to render; default the ladder capped at the source width. */

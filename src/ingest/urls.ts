@@ -2,7 +2,7 @@
  * URLs of the renditions a manifest lists: the rendition route with exactly the parameters the
  * ingest rendered with, so a GET on one is a cache hit. Signed when signing is on.
  */
-import { renditionsPrefix } from '../routes/renditions.js';
+import { renditionsPrefix } from '../schemas/paths.js';
 import { signUrl } from '../security/signing.js';
 
 /** Each path segment percent-encoded on its own (RFC 3986 section 3.3), slashes kept. */

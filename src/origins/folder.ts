@@ -2,7 +2,7 @@ import { constants, type Dirent } from 'node:fs';
 import { open, readdir, realpath, stat } from 'node:fs/promises';
 import { join, relative, sep } from 'node:path';
 import { FoldwiseError } from '../errors.js';
-import { hasSourceExtension } from '../media/formats.js';
+import { hasSourceExtension } from '../codec/formats.js';
 import type { Origin, SourceBytes, SourceIdentity, SourceListing } from './types.js';
 import { safeRelativePath } from './safe-path.js';
 

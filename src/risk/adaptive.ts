@@ -8,7 +8,7 @@ import { planResponse } from '../core/index.js';
 import { adaptiveFilter } from '../core/risk/index.js';
 import type { AdaptiveFilter, PixelRaster, Plan } from '../core/types.js';
 import type { SourceIdentity } from '../origins/types.js';
-import type { SpectrumStore } from './spectra.js';
+import type { SpectrumStore } from './spectrum-store.js';
 
 /** A PlanResponse (core/risk) read from the plan's own weight tables. */
 export const planResponseOf = (plan: Plan) => (axis: 'x' | 'y', f: number) => planResponse(plan, axis, f);

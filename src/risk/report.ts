@@ -4,11 +4,11 @@
  * cached spectrum.
  */
 import type { Limits } from '../config.js';
-import type { RenditionLayout } from '../core/geometry.js';
+import type { RenditionLayout } from '../core/layout/index.js';
 import { formatPlanHeader } from '../core/index.js';
 import { adaptiveFilter, assessRisk, type RiskReport, type SourceSpectrum } from '../core/risk/index.js';
 import type { AdaptiveFilter, Plan } from '../core/types.js';
-import { planRendition } from '../render/plan.js';
+import { planRendition } from '../rendition/plan.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import { planResponseOf } from './adaptive.js';
 

@@ -1,14 +1,13 @@
 import { z } from 'zod';
-import { parsePosition } from '../core/geometry.js';
+import { type Fit, parsePosition } from '../core/layout/index.js';
 import { renamedKernels } from '../core/kernels/index.js';
 import { FoldwiseError } from '../errors.js';
 import { decimal, digits, parseQuery, type RawQuery } from './query.js';
 
-export const fitModes = ['contain', 'cover', 'fill', 'scale-down'] as const;
-export const outputFormats = ['jpeg', 'png', 'webp', 'avif'] as const;
+export const fitModes = ['contain', 'cover', 'fill', 'scale-down'] as const satisfies readonly Fit[];
+export const formatChoices = ['jpeg', 'png', 'webp', 'avif'] as const;
 export const lightModes = ['linear', 'encoded'] as const;
-export type Fit = (typeof fitModes)[number];
-export type OutputFormatChoice = (typeof outputFormats)[number];
+export type OutputFormatChoice = (typeof formatChoices)[number];
 
 /** Old spellings of enum values, per parameter, and what a 400 says about each (names the new one). */
 const renamed: Record<string, Readonly<Record<string, string>>> = {
@@ -67,7 +66,7 @@ export function renditionQueryShape(o: RenditionQueryOptions) {
       .default({ x: 0.5, y: 0.5 })
       .meta({ description: 'CSS object-position for cover and contain: keywords or percentages. Default "50% 50%".' }),
     format: z
-      .enum(outputFormats, { error: enumError('format', outputFormats) })
+      .enum(formatChoices, { error: enumError('format', formatChoices) })
       .optional()
       .meta({ description: 'Output format. Left out, it is negotiated on Accept and the answer sends Vary: Accept.' }),
     quality: digits('quality', 1, 100).optional().meta({ description: 'Encoder quality; default per format.' }),

@@ -4,6 +4,7 @@
  * no padding). Several keys verify (rotation); the first one signs.
  */
 import { createHmac, timingSafeEqual } from 'node:crypto';
+import { FoldwiseError } from '../errors.js';
 
 /** The query parameter that carries the signature. */
 export const signatureParam = 'signature';
@@ -103,4 +104,30 @@ export function verifySignature(path: string, query: QueryInput, keys: readonly 
     if (timingSafeEqual(digest(key, canonicalPath, canonicalQuery), supplied)) ok = true;
   }
   return ok ? 'valid' : 'invalid';
+}
+
+/**
+ * The one rule for whether unsigned requests are refused: `signing.required` when set, else
+ * required whenever a key is configured.
+ */
+export function signingRequired(signing: { keys: readonly string[]; required?: boolean }): boolean {
+  return signing.required ?? signing.keys.length > 0;
+}
+
+function splitUrl(url: string): { path: string; query: URLSearchParams } {
+  const q = url.indexOf('?');
+  return q < 0 ? { path: url, query: new URLSearchParams() } : { path: url.slice(0, q), query: new URLSearchParams(url.slice(q + 1)) };
+}
+
+/**
+ * The one signature check of a raw request URL: true when validly signed; a present but wrong
+ * signature is refused even when signing is optional; a missing one only when `required`.
+ * `unsignedDetail` is the 403 detail for a missing signature.
+ */
+export function checkSignedUrl(url: string, keys: string[], required: boolean, unsignedDetail: string): boolean {
+  const { path, query } = splitUrl(url);
+  const check = verifySignature(path, query, keys);
+  if (check === 'invalid') throw new FoldwiseError('ERR_SIGNATURE_INVALID', 'The signature does not match this path and query.');
+  if (check === 'missing' && required) throw new FoldwiseError('ERR_SIGNATURE_REQUIRED', unsignedDetail);
+  return check === 'valid';
 }

@@ -2,8 +2,8 @@ import { mkdtemp, readFile, rm, stat } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { demoImages, encodeDemo, ensureDemoImages } from '../../src/demo/index.js';
-import { decodeImage } from '../../src/media/decode.js';
+import { demoImages, encodeDemo, ensureDemoImages } from '../../tools/demo/index.js';
+import { decodeImage } from '../../src/codec/decode.js';
 
 const limits = { maxPixels: 40_000_000, maxDimension: 20_000 };
 let first: string;

@@ -8,7 +8,8 @@
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { SingleFlight } from '../../src/cache/single-flight.js';
+import type { SingleFlight } from '../../src/lib/single-flight.js';
+import type { CacheEntry } from '../../src/cache/types.js';
 import { build, type TestApp } from '../helpers/build.js';
 import { at, pixels, writePng } from '../helpers/images.js';
 import { tapNextRun, until } from './pool-tap.js';
@@ -57,7 +58,7 @@ describe('a client disconnects mid-render', () => {
     req.destroy();
     await until(() => serverClosedSockets > closedBefore);
     held.release();
-    const flight = t.app.renditionCache.flight as SingleFlight;
+    const flight = t.app.renditionCache.flight as SingleFlight<CacheEntry>;
     await until(() => t.app.renderPool.memory().admittedBytes === 0 && flight.size === 0);
     expect(t.app.renderPool.inFlight).toBe(0);
 
@@ -71,7 +72,7 @@ describe('a client disconnects mid-render', () => {
   it('while another caller waits, the render completes into the cache for it', async () => {
     const held = holdNextTask();
     const url = '/v1/renditions/flat.png?width=20&format=png';
-    const flight = t.app.renditionCache.flight as SingleFlight;
+    const flight = t.app.renditionCache.flight as SingleFlight<CacheEntry>;
     const leaving = connect(url);
     await held.reachedPool;
     const joined = new Promise<void>((r) => t.app.renditionCache.events.once('join', () => r()));

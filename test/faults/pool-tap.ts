@@ -4,7 +4,7 @@
  * production code. Each tap affects the next call only and then restores the pool.
  */
 import type { Piscina } from 'piscina';
-import type { RenderPool } from '../../src/render/pool.js';
+import type { RenderPool } from '../../src/pool/render-pool.js';
 
 type Run = Piscina['run'];
 

@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 import { readFile, utimes } from 'node:fs/promises';
 import { join } from 'node:path';
-import { ensureDemoImages } from '../../src/demo/index.js';
+import { ensureDemoImages } from '../../tools/demo/index.js';
 import { build, type TestApp } from '../helpers/build.js';
 import { type GoldenRequest, goldenRequests } from './requests.js';
 

@@ -6,7 +6,7 @@ import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { build, type TestApp } from '../helpers/build.js';
 import { writePng } from '../helpers/images.js';
-import { STREAM_MIN_PIXELS } from '../../src/render/streamed.js';
+import { STREAM_MIN_PIXELS } from '../../src/rendition/streamed.js';
 import { grating, greyRaster } from '../core/risk/patterns.js';
 
 const timing = (res: { headers: Record<string, unknown> }) => String(res.headers['server-timing']);

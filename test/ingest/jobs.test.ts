@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { JobTable } from '../../src/ingest/jobs.js';
-import { OnceByKey } from '../../src/ingest/single-flight.js';
+import { OnceByKey } from '../../src/lib/once-by-key.js';
 
 const describeError = (e: unknown) => ({ code: 'ERR_TEST', detail: String((e as Error).message) });
 
@@ -55,7 +55,7 @@ describe('JobTable', () => {
 
 describe('Gate', () => {
   it('lets at most `limit` calls in, the rest in arrival order', async () => {
-    const { Gate } = await import('../../src/ingest/gate.js');
+    const { Gate } = await import('../../src/lib/semaphore.js');
     const g = new Gate(2);
     const gates = [gate(), gate(), gate()];
     const order: number[] = [];
@@ -82,7 +82,7 @@ describe('Gate', () => {
   });
 
   it('refuses at once past `maxWaiting` waiters, and admits again once the line shortens', async () => {
-    const { Gate } = await import('../../src/ingest/gate.js');
+    const { Gate } = await import('../../src/lib/semaphore.js');
     const g = new Gate(1, 1, () => new Error('full'));
     const first = gate();
     const second = gate();

@@ -5,7 +5,7 @@ import { join } from 'node:path';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { kernelNames } from '../../src/core/index.js';
-import { demoImages, encodeDemo } from '../../src/demo/index.js';
+import { demoImages, encodeDemo } from '../../tools/demo/index.js';
 import { build, type TestApp } from '../helpers/build.js';
 import { browserSkipReason, launchBrowser } from './browser.js';
 import { cropSpread, failed, inkIn, shown, startLoadCounter, type View } from './view.js';

@@ -29,6 +29,8 @@ describe('signed URLs, signing required (keys set)', () => {
       expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
       expect(res.json()).toMatchObject({ status: 403, code: 'ERR_SIGNATURE_REQUIRED' });
     }
+    // HEAD is the GET route's twin and carries its route config: refused the same way.
+    expect((await t.app.inject({ method: 'HEAD', url: `${path}?width=16` })).statusCode).toBe(403);
     expect(memoryEntries(t.app)).toBe(0);
   });
 

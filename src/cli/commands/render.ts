@@ -28,7 +28,7 @@ export function registerRender(program: Command): void {
       const source = resolve(file);
       // Loaded here, not at start, so `foldwise --help` stays quick.
       const { withApp } = await import('../app.js');
-      const { renderRendition } = await import('../../render/service.js');
+      const { renderRendition } = await import('../../rendition/service.js');
       await withApp(oneFileSettings(dirname(source)), async ({ app, config }) => {
         const query = await parseRenditionQuery(config, raw);
         const r = await renderRendition(app.renderContext, basename(source), query);

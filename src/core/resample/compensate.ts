@@ -1,6 +1,6 @@
 import type { Kernel } from '../kernels/index.js';
 import type { AxisFilter } from './filter.js';
-import { pyramidChainResponse } from '../pyramid.js';
+import { pyramidChainResponse } from './pyramid.js';
 
 /** Frequency samples per cycle-per-output-pixel in the design integrals. */
 const F_STEPS = 512;

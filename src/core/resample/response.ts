@@ -1,7 +1,7 @@
 import type { Plan } from '../types.js';
 import { planTable } from './axis-table.js';
 import type { WeightTable } from './weights.js';
-import { pyramidChainResponse } from '../pyramid.js';
+import { pyramidChainResponse } from './pyramid.js';
 
 /** Output pixels sampled when averaging a table's response over its phases. */
 const PHASES = 33;

@@ -1,7 +1,7 @@
 /** Deterministic analytic test signals (no invented data): ramps, sines, impulses, noise. */
-import { mulberry32 } from '../../../src/demo/prng.js';
+import { mulberry32 } from '../../../tools/demo/prng.js';
 
-/** A seeded generator (mulberry32, src/demo/prng.ts), so noise inputs are the same on every run. */
+/** A seeded generator (mulberry32, tools/demo/prng.ts), so noise inputs are the same on every run. */
 export const seededRandom = mulberry32;
 
 export type SignalKind = 'impulse' | 'ramp' | 'sine' | 'noise';

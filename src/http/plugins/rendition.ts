@@ -1,0 +1,35 @@
+import type { FastifyInstance } from 'fastify';
+import fp from 'fastify-plugin';
+import { IdentityMemo } from '../../rendition/identity.js';
+import type { RenderContext } from '../../rendition/service.js';
+import { adaptiveHook, knownAdaptiveHook } from '../../risk/adaptive.js';
+
+declare module 'fastify' {
+  interface FastifyInstance {
+    /** What renderRendition needs, wired to this app's origin, cache, pool and metrics. */
+    renderContext: RenderContext;
+  }
+}
+
+/** Assembles the render context once, at registration, from the other plugins. */
+async function renderPlugin(app: FastifyInstance): Promise<void> {
+  const { metrics } = app;
+  app.decorate('renderContext', {
+    origin: app.origin,
+    identities: new IdentityMemo(app.origin, app.config.cache.identityTtlMs),
+    cache: app.renditionCache.cache,
+    flight: app.renditionCache.flight,
+    pool: app.renderPool,
+    limits: app.config.limits,
+    observe: (stage, seconds) => metrics.stageSeconds.observe({ stage }, seconds),
+    onLookup: (result) => metrics.cacheLookups.inc({ result }),
+    adaptiveSigma: adaptiveHook(app.spectra),
+    knownAdaptiveSigma: knownAdaptiveHook(app.spectra),
+  } satisfies RenderContext);
+}
+
+export default fp(renderPlugin, {
+  name: 'foldwise-render',
+  fastify: '5.x',
+  dependencies: ['foldwise-context', 'foldwise-metrics', 'foldwise-cache', 'foldwise-worker-pool', 'foldwise-spectra'],
+});

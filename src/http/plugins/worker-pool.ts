@@ -1,0 +1,46 @@
+import type { FastifyInstance } from 'fastify';
+import fp from 'fastify-plugin';
+import { Gauge } from 'prom-client';
+import { RenderPool, type RenderPoolOptions } from '../../pool/render-pool.js';
+
+declare module 'fastify' {
+  interface FastifyInstance {
+    renderPool: RenderPool;
+  }
+}
+
+/** Starts the worker-thread pool at registration, reports its load, and closes it with the app. */
+async function workerPoolPlugin(app: FastifyInstance, opts: RenderPoolOptions): Promise<void> {
+  const pool = new RenderPool(opts);
+  const registers = [app.metrics.registry];
+  new Gauge({
+    name: 'foldwise_pool_queue_depth',
+    help: 'Resample tasks waiting for a worker thread.',
+    registers,
+    collect() {
+      this.set(pool.queueDepth);
+    },
+  });
+  new Gauge({
+    name: 'foldwise_pool_renders_in_flight',
+    help: `Renders admitted (bound: ${pool.bound}; past it requests get 503).`,
+    registers,
+    collect() {
+      this.set(pool.inFlight);
+    },
+  });
+  new Gauge({
+    name: 'foldwise_pool_utilization',
+    help: 'Share of worker-thread capacity in use (piscina).',
+    registers,
+    collect() {
+      this.set(pool.utilization);
+    },
+  });
+  if (pool.spool) app.log.info({ spoolDir: pool.spool.dir }, 'renders resample sources while they decode');
+  else if (opts.spoolDir !== 'off') app.log.warn({ spoolDir: opts.spoolDir }, 'spool folder unavailable: sources are decoded in full before resampling');
+  app.decorate('renderPool', pool);
+  app.addHook('onClose', async () => pool.close());
+}
+
+export default fp(workerPoolPlugin, { name: 'foldwise-worker-pool', fastify: '5.x', dependencies: ['foldwise-metrics'] });

@@ -1,0 +1,66 @@
+import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
+import { kernelNames } from '../../core/index.js';
+import { renderRendition } from '../../rendition/service.js';
+import { serverTiming } from '../../rendition/timings.js';
+import { problemResponses, queryParameters } from '../../schemas/openapi.js';
+import { compileRenditionQuery } from '../../schemas/rendition.js';
+import { abandonSignal } from './abandon.js';
+import { matchesIfNoneMatch } from './conditional.js';
+import { renditionsPrefix } from '../../schemas/paths.js';
+import { renditionUrlReader } from './rendition-url.js';
+
+/**
+ * GET (and HEAD) /v1/renditions/{source}: validates the query, checks the signature when
+ * signing is on, renders or answers from cache, and speaks HTTP caching (strong ETag, 304,
+ * Cache-Control, Vary) with Server-Timing and Rendition-Plan.
+ */
+export default async function renditionRoutes(app: FastifyInstance): Promise<void> {
+  const { config, renderContext } = app;
+  const query = compileRenditionQuery({ maxDimension: config.limits.maxDimension, kernelNames });
+  const requests = renditionUrlReader(renditionsPrefix, query.parse);
+  const plainCache = `public, max-age=${config.http.maxAgeSeconds}`;
+
+  async function handler(request: FastifyRequest, reply: FastifyReply) {
+    const { path, query: q, canonical } = requests.read(request.url, request.query as Record<string, unknown>);
+    const signal = abandonSignal(reply);
+    const r = await renderRendition({ ...renderContext, signal, shedding: request.shedding }, path, q, request.headers.accept, canonical);
+    reply
+      .header('etag', r.entry.etag)
+      // For validly signed URLs the signing plugin (src/http/plugins/signing.ts), which checked the
+      // signature before parsing, replaces this with a year and immutable.
+      .header('cache-control', plainCache)
+      .header('server-timing', serverTiming(r.cache, r.timings));
+    if (q.format === undefined) reply.header('vary', 'Accept');
+    for (const [k, v] of Object.entries(r.entry.headers)) reply.header(k, v);
+    if (matchesIfNoneMatch(request.headers['if-none-match'], r.entry.etag)) return reply.code(304).send();
+    return reply.type(r.entry.contentType).header('content-length', r.entry.body.length).send(r.entry.body);
+  }
+
+  app.get(
+    `${renditionsPrefix}*`,
+    {
+      config: {
+        signed: true,
+        openapi: {
+          summary: 'A rendition of a source',
+          description:
+            'Renders (or answers from cache) the source at {source} under the origin root. Unknown, repeated or out-of-range parameters are refused with 400 so junk queries cannot bust the cache.',
+          tags: ['renditions'],
+          parameters: [
+            { name: 'source', in: 'path', required: true, description: 'Path under the origin root.', schema: { type: 'string' } },
+            ...queryParameters(query.schema),
+          ],
+          responses: {
+            '200': {
+              description: 'The rendition. Headers: ETag, Cache-Control, Vary (format absent), Server-Timing, Rendition-Plan.',
+              content: { 'image/avif': {}, 'image/webp': {}, 'image/jpeg': {}, 'image/png': {} },
+            },
+            '304': { description: 'Not modified (If-None-Match matched the ETag).' },
+            ...problemResponses(400, 403, 404, 413, 415, 422, 500, 503),
+          },
+        },
+      },
+    },
+    handler,
+  );
+}

@@ -1,0 +1,148 @@
+import { closeSync, openSync, readSync } from 'node:fs';
+
+/** What the reader expects of the spool file's pixels. */
+export interface SpoolShape {
+  width: number;
+  height: number;
+  channels: number;
+  depth: 8 | 16;
+}
+
+/** States of the writer in `state[0]`, set by the render pool (RenderPool.resampleSpooled). */
+export const WRITING = 0;
+export const WRITTEN = 1;
+export const STOPPED = 2;
+
+/**
+ * libvips' uncompressed image file ('.v'): a 64-byte header of little-endian 32-bit fields
+ * (magic, width, height, bands, bits per band, band format, coding, ...) and then the pixels,
+ * row by row, samples interleaved, in the writing machine's byte order; metadata follows them.
+ * Layout from libvips' vips.c (vips__read_header_bytes); band formats 0 = uchar, 2 = ushort.
+ */
+const HEADER_BYTES = 64;
+const MAGIC = [0xb6, 0xa6, 0xf2, 0x08];
+
+/** Rows read at once: about 1 MiB, so a block stays in the core's cache while it is resampled. */
+const BLOCK_BYTES = 2 ** 20;
+
+/** Why a header does not describe the pixels expected, or null when it does. */
+export function headerMismatch(header: Uint8Array, shape: SpoolShape): string | null {
+  if (header.length < HEADER_BYTES || MAGIC.some((b, i) => header[i] !== b)) return 'not a libvips image file';
+  const v = new DataView(header.buffer, header.byteOffset, HEADER_BYTES);
+  const field = (i: number) => v.getInt32(4 + 4 * i, true);
+  const [width, height, bands] = [field(0), field(1), field(2)];
+  const format = field(4);
+  const coding = field(5);
+  if (width !== shape.width || height !== shape.height) return `the file is ${width}x${height}, not ${shape.width}x${shape.height}`;
+  if (bands !== shape.channels) return `the file has ${bands} bands, not ${shape.channels}`;
+  if (format !== (shape.depth === 16 ? 2 : 0) || coding !== 0) return `the file's samples are not ${shape.depth}-bit unsigned`;
+  return null;
+}
+
+/** The file could not be opened or read (EMFILE, EIO, ...): it says nothing about the source. */
+export const READ_FAILED = 'spool read:';
+/** The file is not what was written for this render (wrong header, ends early). */
+export const FILE_WRONG = 'spool file:';
+
+/**
+ * Source rows read from a spool file that libvips may still be writing (src/codec/spool-decode.ts),
+ * for renderRaster's rowAt: the worker thread resamples the top of the image while the rest is
+ * decoded. Rows are read straight from the file, a block of about 1 MiB at a time, into this
+ * reader's own buffer (no copy of the whole source anywhere). A row not yet written is waited
+ * for: Atomics.wait on `state` for a millisecond at a time, woken early when the pool marks
+ * the writer WRITTEN or STOPPED. Throws once the render is STOPPED (decode failed, deadline),
+ * when the file ends before a row once WRITTEN, and when it cannot be read. Synchronous: for
+ * worker threads, where blocking waits cost nothing else.
+ */
+export class SpoolRows {
+  private fd = -1;
+  private readonly rowBytes: number;
+  private readonly block: Uint8Array;
+  private readonly samples: Uint8Array | Uint16Array;
+  private first = 0;
+  private count = 0;
+
+  constructor(
+    private readonly path: string,
+    private readonly shape: SpoolShape,
+    private readonly state: Int32Array,
+  ) {
+    this.rowBytes = shape.width * shape.channels * (shape.depth / 8);
+    const rows = Math.max(1, Math.min(shape.height, Math.floor(BLOCK_BYTES / this.rowBytes)));
+    const buffer = new ArrayBuffer(rows * this.rowBytes);
+    this.block = new Uint8Array(buffer);
+    this.samples = shape.depth === 16 ? new Uint16Array(buffer) : this.block;
+  }
+
+  /** renderRaster's rowAt: row y, read (and waited for) when it is not in the block already. */
+  readonly rowAt = (y: number): { data: Uint8Array | Uint16Array; at: number } => {
+    if (y < this.first || y >= this.first + this.count) this.load(y);
+    const n = this.shape.width * this.shape.channels;
+    return { data: this.samples, at: (y - this.first) * n };
+  };
+
+  /** Closes the file (the reader may be dropped at any point). */
+  close(): void {
+    if (this.fd >= 0) closeSync(this.fd);
+    this.fd = -1;
+  }
+
+  private load(y: number): void {
+    if (this.fd < 0) this.open();
+    const want = Math.min(this.block.length, (this.shape.height - y) * this.rowBytes);
+    for (;;) {
+      const settled = this.settledState();
+      const got = this.read(this.block.subarray(0, want), HEADER_BYTES + y * this.rowBytes);
+      if (got >= this.rowBytes) {
+        this.first = y;
+        this.count = Math.floor(got / this.rowBytes);
+        return;
+      }
+      if (settled === WRITTEN) throw new Error(`${FILE_WRONG} it ends before row ${y}`);
+      this.wait();
+    }
+  }
+
+  private open(): void {
+    for (;;) {
+      const settled = this.settledState();
+      try {
+        this.fd = openSync(this.path, 'r');
+        break;
+      } catch (e) {
+        if ((e as NodeJS.ErrnoException).code !== 'ENOENT') throw new Error(`${READ_FAILED} ${(e as Error).message}`);
+        if (settled === WRITTEN) throw new Error(`${FILE_WRONG} it was never made`);
+      }
+      this.wait();
+    }
+    const header = new Uint8Array(HEADER_BYTES);
+    for (;;) {
+      const settled = this.settledState();
+      if (this.read(header, 0) === HEADER_BYTES) break;
+      if (settled === WRITTEN) throw new Error(`${FILE_WRONG} it has no header`);
+      this.wait();
+    }
+    const wrong = headerMismatch(header, this.shape);
+    if (wrong) throw new Error(`${FILE_WRONG} ${wrong}`);
+  }
+
+  /** Bytes read at `position` (whatever the file holds there now). */
+  private read(into: Uint8Array, position: number): number {
+    try {
+      return readSync(this.fd, into, 0, into.length, position);
+    } catch (e) {
+      throw new Error(`${READ_FAILED} ${(e as Error).message}`);
+    }
+  }
+
+  /** The writer's state, read before a read so that WRITTEN means the read saw all there is. */
+  private settledState(): number {
+    const s = Atomics.load(this.state, 0);
+    if (s === STOPPED) throw new Error('the source stopped arriving');
+    return s;
+  }
+
+  private wait(): void {
+    Atomics.wait(this.state, 0, WRITING, 1);
+  }
+}

@@ -1,0 +1,78 @@
+/**
+ * Worker-thread entry (piscina): resamples one band of output rows with the pure core. The
+ * source either lives in a SharedArrayBuffer, so two workers can render different bands of
+ * one rendition without copying it twice, or is a spool file libvips is still writing, read
+ * row by row here (src/pool/spool/rows.ts; with render/hand-back.ts the only modules
+ * besides the core this thread imports). The output is shared memory too.
+ */
+import { renderRaster } from '../core/index.js';
+import { simdKernels } from '../core/simd/index.js';
+import type { Channels, PixelRaster, Plan } from '../core/types.js';
+import { HAND_BACK_MIN_BYTES, handBack } from './hand-back.js';
+import { SpoolRows } from './spool/rows.js';
+
+// Compile and instantiate the SIMD kernels when the thread starts, not in its first render.
+simdKernels();
+
+/** A raster whose samples live in a SharedArrayBuffer. */
+export interface SharedRaster {
+  buffer: SharedArrayBuffer;
+  width: number;
+  height: number;
+  channels: Channels;
+  depth: 8 | 16;
+}
+
+/** A raster whose rows are in a spool file being written (src/codec/spool-decode.ts). */
+export interface SpooledRaster {
+  path: string;
+  width: number;
+  height: number;
+  channels: 1 | 3;
+  depth: 8 | 16;
+  /** Int32Array buffer of the writer's state (spool-rows.ts: WRITING, WRITTEN, STOPPED). */
+  state: SharedArrayBuffer;
+}
+
+export interface ResampleTask {
+  src: SharedRaster | SpooledRaster;
+  plan: Plan;
+  /** Output rows [from, to) this task renders. */
+  rows: [number, number];
+  /** The whole output (plan.targetWidth x plan.targetHeight), same channels and depth. */
+  out: SharedArrayBuffer;
+}
+
+/** The first `length` samples of `buffer` (a reused buffer may be longer than the raster). */
+function view(buffer: SharedArrayBuffer, depth: 8 | 16, length: number): Uint8Array | Uint16Array {
+  return depth === 16 ? new Uint16Array(buffer, 0, length) : new Uint8Array(buffer, 0, length);
+}
+
+function render(src: SharedRaster | SpooledRaster, plan: Plan, rows: [number, number]): PixelRaster {
+  const { width, height, channels, depth } = src;
+  if ('buffer' in src) {
+    const data = view(src.buffer, depth, width * height * channels);
+    return renderRaster({ data, width, height, channels }, plan, { rows });
+  }
+  const spool = new SpoolRows(src.path, src, new Int32Array(src.state));
+  try {
+    // The rows come from rowAt; the raster's own samples are not read (none are given).
+    const data = depth === 16 ? new Uint16Array(0) : new Uint8Array(0);
+    return renderRaster({ data, width, height, channels }, plan, { rows, rowAt: spool.rowAt });
+  } finally {
+    spool.close();
+  }
+}
+
+/** Renders rows [from, to) of the plan's output into `out`; returns the number of rows done. */
+export default function resample(task: ResampleTask): number {
+  const { src, plan, rows, out } = task;
+  const band = render(src, plan, rows);
+  const outSamples = plan.targetWidth * plan.targetHeight * src.channels;
+  view(out, src.depth, outSamples).set(band.data, rows[0] * plan.targetWidth * src.channels);
+  // This thread's handle on a large shared source would keep it mapped until the thread next
+  // collects garbage, which an idle thread may not do for minutes: collect after this task
+  // (once piscina has let go of it; pool.ts keeps its threads off Atomics.wait for that).
+  if ('buffer' in src && src.buffer.byteLength >= HAND_BACK_MIN_BYTES) handBack();
+  return band.height;
+}

@@ -1,0 +1,64 @@
+import type { Limits } from '../config.js';
+import type { PixelRaster } from '../core/types.js';
+import type { OutputFormat } from '../codec/formats.js';
+import { readHeader, type SourceHeader } from '../codec/header.js';
+import { negotiateFormat } from '../codec/negotiate.js';
+import type { RenditionQuery } from '../schemas/rendition.js';
+import type { Lease } from '../pool/budget.js';
+import { decodeCost, outputCost, renditionCost, stagingCost } from '../pool/cost.js';
+import { planRendition } from './plan.js';
+import type { RenderPool } from '../pool/render-pool.js';
+import { decodeLimits, type ReadSource } from './source.js';
+import { STREAM_MIN_PIXELS } from './streamed.js';
+import type { StageClock } from './timings.js';
+
+/** What admitting a rendition job needs of the render context. */
+export interface AdmitContext {
+  pool: RenderPool;
+  limits: Limits;
+  clock: StageClock;
+  signal?: AbortSignal;
+}
+
+/** The header of a raster already decoded (the upload hook's ladder). */
+export function headerOf(raster: PixelRaster, hasAlpha: boolean): SourceHeader {
+  const bytesPerSample = raster.data instanceof Uint16Array ? 2 : 1;
+  return { width: raster.width, height: raster.height, channels: raster.channels, bytesPerSample, hasAlpha, format: 'raw' };
+}
+
+/** The output format a query will be encoded in, for the estimate (no format: what Accept picks). */
+function formatFor(q: RenditionQuery, accept: string | undefined, hasAlpha: boolean): OutputFormat {
+  return q.format === undefined ? negotiateFormat(accept, hasAlpha) : q.format;
+}
+
+/** Output pixels of the query on this source (the canvas when there is one). */
+function outputPixels(h: SourceHeader, q: RenditionQuery, limits: Limits): number {
+  const { layout } = planRendition(h, q, limits);
+  const box = layout.canvas ?? { width: layout.targetWidth, height: layout.targetHeight };
+  return box.width * box.height;
+}
+
+/**
+ * Estimates a rendition job's peak bytes from the source's header (read now, no pixel decoded;
+ * the limits refuse a source here already) and waits for them in the pool's memory budget.
+ * `source` is the read bytes, or the raster already decoded by the caller (then only the
+ * staging copy and the output side are new).
+ */
+export async function admitRendition(
+  ctx: AdmitContext,
+  source: ReadSource | { raster: PixelRaster; hasAlpha: boolean },
+  q: RenditionQuery,
+  accept: string | undefined,
+): Promise<Lease> {
+  if ('bytes' in source) {
+    const h = await ctx.clock.time('decode', () => readHeader(source.bytes, decodeLimits(ctx.limits)));
+    const streamed = ctx.pool.spool !== null && !h.hasAlpha && h.width * h.height >= STREAM_MIN_PIXELS;
+    const bytes = renditionCost(h, outputPixels(h, q, ctx.limits), formatFor(q, accept, h.hasAlpha), streamed);
+    // Streamed, the source is in a spool file, not in this process's buffers.
+    const held = streamed ? 0 : decodeCost(h) + stagingCost(h);
+    return ctx.pool.admit(bytes, `a ${h.width}x${h.height} ${8 * h.bytesPerSample}-bit ${h.channels}-channel source`, ctx.signal, held);
+  }
+  const h = headerOf(source.raster, source.hasAlpha);
+  const bytes = stagingCost(h) + outputCost(h, outputPixels(h, q, ctx.limits), formatFor(q, accept, h.hasAlpha));
+  return ctx.pool.admit(bytes, `a rendition of a ${h.width}x${h.height} source`, ctx.signal, stagingCost(h));
+}
