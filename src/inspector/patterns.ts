@@ -1,26 +1,11 @@
+import type { VisiblePattern } from '../core/risk/visibility.js';
 /**
  * A pattern of the alias-risk report, named by what it does in the copy. Pure, no DOM: tested
  * in Node.
  */
 
-/** One pattern as GET /v1/alias-risk/{source} reports it (see src/core/risk). */
-export interface Pattern {
-  kind: 'fold' | 'beat' | 'clean';
-  /** Signed, cycles per source px. */
-  frequency: { fx: number; fy: number };
-  /** Where the viewer sees it, signed, cycles per output px. */
-  apparent: { fx: number; fy: number };
-  cyclesPerDegree: number;
-  /** Michelson contrast in the copy, 0..1. */
-  contrast: number;
-  /** The contrast a viewer just sees at that frequency. */
-  threshold: number;
-  /** contrast / threshold: 1.0 = just visible. */
-  margin: number;
-  description: string;
-  /** A spectral line, or the broadband fold of fine detail (grain, edges). */
-  source?: 'line' | 'broadband';
-}
+/** One pattern as GET /v1/alias-risk/{source} reports it: the core's own type (erased in the bundle). */
+export type Pattern = Omit<VisiblePattern, 'source' | 'passed'> & Partial<Pick<VisiblePattern, 'source'>>;
 
 /** Below this (cycles per output px) a pattern has no visible period left: a flat tone. */
 const FLAT = 1e-3;
