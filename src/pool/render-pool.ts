@@ -2,7 +2,9 @@ import { availableParallelism } from 'node:os';
 import { createRequire } from 'node:module';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Piscina } from 'piscina';
-import type { PixelRaster, Plan } from '../core/types.js';
+import type { AdaptiveFilter, PixelRaster, Plan } from '../core/types.js';
+import type { SourceSpectrum } from '../core/risk/index.js';
+import type { Analysed } from './analysis.js';
 import { type ErrorCode, FoldwiseError } from '../errors.js';
 import type { ResampleTask, SharedRaster, SpooledRaster } from './worker.js';
 import { type Lease, MemoryBudget, type MemoryState } from './budget.js';
@@ -92,6 +94,8 @@ export class RenderPool {
   private spooled = 0;
   private readonly rssCeiling: number;
   private readonly piscina: Piscina<ResampleTask, number>;
+  private warming?: Promise<void>;
+  private isWarm = false;
   private closing?: Promise<void>;
   private readonly staging: StagingBuffers;
   /** Where spooled decodes write (resampleSpooled), or null when spooling is off or unavailable. */
@@ -193,12 +197,16 @@ export class RenderPool {
     });
   }
 
-  /** Resamples `src` by `plan` in the pool; big outputs are split into two bands of rows. */
-  async resample(src: PixelRaster, plan: Plan, signal?: AbortSignal): Promise<PixelRaster> {
+  /**
+   * Resamples `src` by `plan` in the pool; big outputs are split into two bands of rows. The
+   * plan may be a function of the source staged in shared memory (the content-adaptive plan
+   * asks the pool to analyse it first, src/risk/adaptive.ts), so the pixels are copied once.
+   */
+  async resample(src: PixelRaster, plan: Plan | ((staged: SharedRaster) => Promise<Plan>), signal?: AbortSignal): Promise<PixelRaster> {
     // A closed piscina would start fresh threads for a late task: refuse it here instead.
     if (this.closing) throw this.stopping();
     const shared = share(src, this.staging);
-    const out = await this.runBands(shared, plan, signal);
+    const out = await this.runBands(shared, typeof plan === 'function' ? await plan(shared) : plan, signal);
     // Only after a clean finish: a task cut short may still be reading the buffer.
     if (shared.buffer.byteLength <= STAGING_MAX_BYTES) this.staging.give(shared.buffer);
     else handBack();
@@ -257,6 +265,59 @@ export class RenderPool {
       throw e instanceof FoldwiseError ? e : new FoldwiseError('ERR_RENDER_FAILED', 'resampling failed', { cause: e });
     } finally {
       signal?.removeEventListener('abort', stop);
+    }
+  }
+
+  /**
+   * The Welch spectrum of a source in shared memory or a spool file (whose decode has ended:
+   * the task reads the rows the analysis needs), and prefilter=auto's filter for `plan`.
+   */
+  analyse(src: SharedRaster | SpooledRaster, plan: Plan, signal?: AbortSignal): Promise<Analysed> {
+    return this.task('analyse', { src, plan }, signal);
+  }
+
+  /** prefilter=auto's filter for `plan` from a spectrum analysed before. */
+  adapt(spectrum: SourceSpectrum, plan: Plan, signal?: AbortSignal): Promise<AdaptiveFilter | undefined> {
+    return this.task('adapt', { spectrum, plan }, signal);
+  }
+
+  /**
+   * Resolves once every thread has started, compiled its SIMD kernels and rendered, analysed
+   * and decided once (warm.ts): what /readyz waits for. Rejects only when the pool closes first.
+   */
+  warm(): Promise<void> {
+    const arrived = new SharedArrayBuffer(4);
+    this.warming ??= Promise.all(
+      Array.from({ length: this.threads }, () => this.task('warm', { arrived, threads: this.threads })),
+    ).then(() => {
+      this.isWarm = true;
+    });
+    return this.warming;
+  }
+
+  /** Whether warm() has resolved. */
+  get warmed(): boolean {
+    return this.isWarm;
+  }
+
+  /** Runs a named task of worker.ts, with the same refusals as a render's bands. */
+  private async task<T>(name: string, task: object, signal?: AbortSignal): Promise<T> {
+    if (this.closing) throw this.stopping();
+    // As in runBands: piscina's listener on a long-lived signal would hold the task (and a
+    // staged source) until the signal goes; a signal of the task's own lives as long as it.
+    const own = new AbortController();
+    const relay = () => own.abort(signal?.reason);
+    if (signal?.aborted) relay();
+    signal?.addEventListener('abort', relay, { once: true });
+    try {
+      return (await this.piscina.run(task as ResampleTask, { name, signal: own.signal })) as T;
+    } catch (e) {
+      if (signal?.aborted && signal.reason instanceof FoldwiseError) throw signal.reason;
+      if (signal?.aborted) throw this.refusal('ERR_RENDER_TIMEOUT', `the ${name} task took longer than allowed`, e);
+      if (this.closing) throw this.stopping(e);
+      throw new FoldwiseError('ERR_RENDER_FAILED', `the ${name} task failed`, { cause: e });
+    } finally {
+      signal?.removeEventListener('abort', relay);
     }
   }
 

@@ -2,14 +2,18 @@
  * Worker-thread entry (piscina): resamples one band of output rows with the pure core. The
  * source either lives in a SharedArrayBuffer, so two workers can render different bands of
  * one rendition without copying it twice, or is a spool file libvips is still writing, read
- * row by row here (src/pool/spool/rows.ts; with render/hand-back.ts the only modules
- * besides the core this thread imports). The output is shared memory too.
+ * row by row here (src/pool/spool/rows.ts; with hand-back.ts, analysis.ts and warm.ts the
+ * only modules besides the core this thread imports). The output is shared memory too.
  */
 import { renderRaster } from '../core/index.js';
 import { simdKernels } from '../core/simd/index.js';
 import type { Channels, PixelRaster, Plan } from '../core/types.js';
 import { HAND_BACK_MIN_BYTES, handBack } from './hand-back.js';
 import { SpoolRows } from './spool/rows.js';
+
+// Named tasks (piscina's `name`): the analysis and decision of prefilter=auto, the warm start.
+export { adaptTask as adapt, analyseTask as analyse } from './analysis.js';
+export { warmTask as warm } from './warm.js';
 
 // Compile and instantiate the SIMD kernels when the thread starts, not in its first render.
 simdKernels();

@@ -1,0 +1,86 @@
+/**
+ * The worker side of prefilter=auto: the spectrum analysis of a staged source and the
+ * content-adaptive filter of a plan, run in the pool's threads so the event loop never waits
+ * on them (a 12 MP analysis and its decision take tens of milliseconds). Imports the core and
+ * the spool reader only, as worker.ts does.
+ */
+import { planResponse } from '../core/index.js';
+import { adaptiveFilter, analyzeSpectrum, type SourceSpectrum } from '../core/risk/index.js';
+import { layoutTiles } from '../core/spectrum/tiles.js';
+import type { AdaptiveFilter, PixelRaster, Plan } from '../core/types.js';
+import { SpoolRows } from './spool/rows.js';
+import type { SharedRaster, SpooledRaster } from './worker.js';
+
+/** Analyse a source in shared memory or a spool file; decide prefilter=auto's filter for `plan`. */
+export interface AnalyseTask {
+  src: SharedRaster | SpooledRaster;
+  plan: Plan;
+}
+
+export interface Analysed {
+  spectrum: SourceSpectrum;
+  /** adaptiveFilter's answer for the task's plan (undefined: the plan stays as it is). */
+  filter: AdaptiveFilter | undefined;
+}
+
+/** Decide prefilter=auto's filter for `plan` from a spectrum analysed before. */
+export interface AdaptTask {
+  spectrum: SourceSpectrum;
+  plan: Plan;
+}
+
+/** adaptiveFilter with the plan's own weight tables as its response. */
+export function decide(spectrum: SourceSpectrum, plan: Plan): AdaptiveFilter | undefined {
+  return adaptiveFilter(spectrum, plan, (axis, f) => planResponse(plan, axis, f));
+}
+
+/** The source rows the Welch tiles read (tiles.ts's layout): sorted, without repeats. */
+export function tileRows(width: number, height: number): number[] {
+  const layout = layoutTiles(width, height);
+  const rows = new Set<number>();
+  for (let k = 1; k < layout.corners.length; k += 2) {
+    for (let y = layout.corners[k]; y < layout.corners[k] + layout.tileSize; y++) rows.add(y);
+  }
+  return [...rows].sort((a, b) => a - b);
+}
+
+/**
+ * A raster of the spool file's size holding only the rows the analysis reads; the rest stays
+ * zero and is never touched, so its pages are never made resident (a fresh large buffer is
+ * zero-filled by the system on first touch): a 14.7 MP source costs the analysis about 10 MB,
+ * not 44. test/pool/analysis.test.ts checks the spectrum equals the one of the whole raster.
+ */
+function tileRaster(src: SpooledRaster): PixelRaster {
+  const { width, height, channels, depth } = src;
+  const n = width * channels;
+  const data = depth === 16 ? new Uint16Array(n * height) : new Uint8Array(n * height);
+  const spool = new SpoolRows(src.path, src, new Int32Array(src.state));
+  try {
+    for (const y of tileRows(width, height)) {
+      const row = spool.rowAt(y);
+      data.set(row.data.subarray(row.at, row.at + n), y * n);
+    }
+  } finally {
+    spool.close();
+  }
+  return { data, width, height, channels };
+}
+
+function rasterOf(src: SharedRaster | SpooledRaster): PixelRaster {
+  if (!('buffer' in src)) return tileRaster(src);
+  const { buffer, width, height, channels, depth } = src;
+  const length = width * height * channels;
+  const data = depth === 16 ? new Uint16Array(buffer, 0, length) : new Uint8Array(buffer, 0, length);
+  return { data, width, height, channels };
+}
+
+/** The piscina task: analyse, then decide for the plan. */
+export function analyseTask(task: AnalyseTask): Analysed {
+  const spectrum = analyzeSpectrum(rasterOf(task.src));
+  return { spectrum, filter: decide(spectrum, task.plan) };
+}
+
+/** The piscina task: decide for the plan from a known spectrum. */
+export function adaptTask(task: AdaptTask): AdaptiveFilter | undefined {
+  return decide(task.spectrum, task.plan);
+}

@@ -1,0 +1,92 @@
+import { mkdtemp, rm } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import sharp from 'sharp';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { makePlan } from '../../src/core/index.js';
+import { adaptiveFilter, analyzeSpectrum } from '../../src/core/risk/index.js';
+import { decodeImage } from '../../src/codec/decode.js';
+import { probeSpooledDecode } from '../../src/codec/spool-decode.js';
+import { analyseTask, tileRows } from '../../src/pool/analysis.js';
+import { RenderPool } from '../../src/pool/render-pool.js';
+import { WRITTEN } from '../../src/pool/spool/rows.js';
+import { planResponseOf } from '../../src/risk/adaptive.js';
+
+const limits = { maxPixels: 50_000_000, maxDimension: 10_000 };
+const W = 1100;
+const H = 700;
+
+/** A grating at 0.275 cycles/px along x (above the new Nyquist of a 2x reduction) and a slower one along y. */
+async function gratingJpeg(): Promise<Buffer> {
+  const raw = Buffer.alloc(W * H * 3);
+  for (let y = 0; y < H; y++) {
+    for (let x = 0; x < W; x++) {
+      const v = 0.5 + 0.3 * Math.cos(2 * Math.PI * 0.275 * x) + 0.15 * Math.sin(2 * Math.PI * 0.04 * y);
+      raw.fill(Math.round(255 * v), (y * W + x) * 3, (y * W + x) * 3 + 3);
+    }
+  }
+  return sharp(raw, { raw: { width: W, height: H, channels: 3 } }).jpeg({ quality: 92 }).toBuffer();
+}
+
+const planFor = (tw: number, th: number) =>
+  makePlan({ sourceWidth: W, sourceHeight: H, targetWidth: tw, targetHeight: th, kernel: 'auto', prefilter: 'auto', light: 'linear' });
+
+describe('the analysis in the pool (src/pool/analysis.ts)', () => {
+  let dir: string;
+  let jpeg: Buffer;
+  let file: string;
+  let state: SharedArrayBuffer;
+
+  beforeAll(async () => {
+    dir = await mkdtemp(join(tmpdir(), 'fw-analysis-'));
+    jpeg = await gratingJpeg();
+    file = join(dir, 'source.v');
+    const probe = await probeSpooledDecode(jpeg, limits);
+    await probe!.write(file);
+    const s = new Int32Array(new SharedArrayBuffer(4));
+    s[0] = WRITTEN;
+    state = s.buffer as SharedArrayBuffer;
+  });
+  afterAll(() => rm(dir, { recursive: true, force: true }));
+
+  it('reads only the rows the Welch tiles cover, a fraction of a large source', () => {
+    const rows = tileRows(4432, 3324);
+    expect(rows.length).toBeGreaterThan(0);
+    expect(rows.length).toBeLessThan(3324 / 3);
+    expect(rows.every((y, i) => y >= 0 && y < 3324 && (i === 0 || y > rows[i - 1]))).toBe(true);
+  });
+
+  it('from a spool file: the same spectrum and filter as the whole decoded raster gives', async () => {
+    const { raster } = await decodeImage(jpeg, limits);
+    const plan = planFor(550, 350);
+    const whole = analyzeSpectrum(raster);
+    const expected = adaptiveFilter(whole, plan, planResponseOf(plan));
+    // The grating folds at 2x (sampling theorem, CHECKS.md): the filter lowers the x cut-off.
+    expect(expected?.cutoff?.x).toBeLessThan(1);
+    const got = analyseTask({ src: { path: file, width: W, height: H, channels: 3, depth: 8, state }, plan });
+    expect(got.spectrum).toEqual(whole);
+    expect(got.filter).toEqual(expected);
+  });
+
+  it('in the pool, from shared memory and from the spool file alike; warm() reaches every thread first', async () => {
+    const pool = new RenderPool({ threads: 2, maxQueue: 4, retryAfterSeconds: 1 });
+    try {
+      expect(pool.warmed).toBe(false);
+      await pool.warm();
+      expect(pool.warmed).toBe(true);
+      const { raster } = await decodeImage(jpeg, limits);
+      const plan = planFor(550, 350);
+      const fromFile = await pool.analyse({ path: file, width: W, height: H, channels: 3, depth: 8, state }, plan);
+      const buffer = new SharedArrayBuffer(raster.data.byteLength);
+      new Uint8Array(buffer).set(raster.data);
+      const fromMemory = await pool.analyse({ buffer, width: W, height: H, channels: 3, depth: 8 }, plan);
+      expect(fromFile.spectrum).toEqual(analyzeSpectrum(raster));
+      expect(fromMemory).toEqual(fromFile);
+      expect(await pool.adapt(fromFile.spectrum, plan)).toEqual(fromFile.filter);
+      // A plan that shrinks nothing folds nothing (sampling theorem): no filter.
+      expect(await pool.adapt(fromFile.spectrum, planFor(W, H))).toBeUndefined();
+    } finally {
+      await pool.close();
+    }
+  });
+});
