@@ -1,28 +1,29 @@
 /**
  * One spectrum analysis per source version: many widths, views and renditions of the same
- * source cost one Welch analysis. L1 is an in-process LRU bounded in bytes; L2, when the app
- * has a shared tier (Redis), lets every replica reuse one replica's analysis.
+ * source cost one Welch analysis. L1 is an in-process LRU bounded in bytes; below it the
+ * rendition cache's shared tiers (the disk folder, Redis) keep each analysis next to the
+ * renditions, so a restarted process or another replica reuses it instead of analysing again.
  */
 import { LRUCache } from 'lru-cache';
 import { analyzeSpectrum, type SourceSpectrum } from '../core/risk/index.js';
 import type { PixelRaster } from '../core/types.js';
+import { packValue, unpackValue } from '../cache/pack.js';
+import type { CacheEntry, CacheTier } from '../cache/types.js';
 import { SingleFlight } from '../lib/single-flight.js';
 import type { SourceIdentity } from '../origins/types.js';
 
 /** Bump when the analysis changes (tiles, window, units): stored spectra then stop matching. */
 export const spectrumVersion = 'fw-spectrum-3';
 
-/** The part of a shared tier the store uses (RedisTier has it). */
-export interface SharedValues {
-  getValue<T>(key: string): Promise<T | undefined>;
-  setValue(key: string, value: unknown): Promise<void>;
-}
+/** The content type a stored analysis carries in a cache tier (never served over HTTP). */
+export const SPECTRUM_TYPE = 'application/vnd.foldwise.spectrum';
 
 export interface SpectrumStoreOptions {
   /** L1 budget in bytes. */
   maxBytes: number;
-  shared?: SharedValues | null;
-  /** Called when a shared-tier write fails (the analysis is still served). */
+  /** Tiers below L1, in lookup order (the rendition cache's disk and Redis tiers); none by default. */
+  tiers?: readonly CacheTier[];
+  /** Called when a tier's read or write fails (the analysis is still served). */
   onSharedError?: (error: unknown) => void;
 }
 
@@ -31,10 +32,27 @@ export type SpectrumOrigin = 'memory' | 'shared' | 'analysed';
 
 const bytesOf = (s: SourceSpectrum) => s.power.byteLength + s.grid.power.byteLength + 512;
 
+/** A stored analysis as a cache entry (pack.ts's byte form). */
+function entryOf(key: string, s: SourceSpectrum): CacheEntry {
+  return { body: packValue(s), contentType: SPECTRUM_TYPE, etag: `"${key}"`, headers: {}, createdAt: Date.now() };
+}
+
+/** The analysis a cache entry holds, or undefined when it is not one. */
+function spectrumOf(entry: CacheEntry | undefined): SourceSpectrum | undefined {
+  if (!entry || entry.contentType !== SPECTRUM_TYPE) return undefined;
+  try {
+    const s = unpackValue<SourceSpectrum>(entry.body);
+    return s.power instanceof Float32Array && s.grid?.power instanceof Float32Array ? s : undefined;
+  } catch {
+    return undefined;
+  }
+}
+
 export class SpectrumStore {
   private readonly lru: LRUCache<string, SourceSpectrum>;
   private readonly byRaster = new WeakMap<PixelRaster, SourceSpectrum>();
   private readonly inflight = new SingleFlight<SourceSpectrum>();
+  private readonly writes = new Set<Promise<void>>();
   /** Analyses run by this store (for metrics and tests). */
   analyses = 0;
 
@@ -72,8 +90,58 @@ export class SpectrumStore {
     if (known) return known;
     const s = this.analyse(raster);
     this.remember(key, raster, s);
-    if (key && this.options.shared) this.options.shared.setValue(key, s).catch((e) => this.options.onSharedError?.(e));
+    if (key) void this.store(key, s);
     return s;
+  }
+
+  /** Writes an analysis to every tier below L1; failures are reported, never thrown. */
+  private store(key: string, s: SourceSpectrum): Promise<void> {
+    const tiers = this.options.tiers ?? [];
+    if (tiers.length === 0) return Promise.resolve();
+    const entry = entryOf(key, s);
+    const write = Promise.all(tiers.map((t) => t.set(key, entry).catch((e: unknown) => this.options.onSharedError?.(e)))).then(() => undefined);
+    this.writes.add(write);
+    void write.finally(() => this.writes.delete(write));
+    return write;
+  }
+
+  /** Resolves once every tier write started so far has ended (for shutdown and tests). */
+  async settled(): Promise<void> {
+    await Promise.all([...this.writes]);
+  }
+
+  /** The first tier below L1 that holds the analysis, read back; undefined when none does. */
+  private async stored(key: string): Promise<SourceSpectrum | undefined> {
+    for (const tier of this.options.tiers ?? []) {
+      const entry = await tier.get(key).catch((e: unknown) => {
+        this.options.onSharedError?.(e);
+        return undefined;
+      });
+      const s = spectrumOf(entry);
+      if (s) return s;
+    }
+    return undefined;
+  }
+
+  /**
+   * The spectrum of a source version from L1 or, failing that, the tiers below it (then kept in
+   * L1); undefined when no tier has it. Never analyses.
+   */
+  async lookup(identity: SourceIdentity): Promise<SourceSpectrum | undefined> {
+    const key = this.keyOf(identity);
+    const hit = this.lru.get(key);
+    if (hit) return hit;
+    const s = await this.stored(key);
+    if (s) this.lru.set(key, s);
+    return s;
+  }
+
+  /** Keeps an analysis made elsewhere (the pool's) in L1 and every tier below it; counts it. */
+  keep(identity: SourceIdentity, s: SourceSpectrum): Promise<void> {
+    const key = this.keyOf(identity);
+    this.analyses++;
+    this.lru.set(key, s);
+    return this.store(key, s);
   }
 
   /**
@@ -91,8 +159,8 @@ export class SpectrumStore {
     // A caller that joins a running analysis never runs the work: its `from` stays 'analysed'.
     let from: SpectrumOrigin = 'analysed';
     const { value } = await this.inflight.run(key, async () => {
-      const stored = await this.options.shared?.getValue<SourceSpectrum>(key).catch(() => undefined);
-      if (stored && stored.power instanceof Float32Array) {
+      const stored = await this.stored(key);
+      if (stored) {
         from = 'shared';
         this.remember(key, undefined, stored);
         return stored;
@@ -103,7 +171,7 @@ export class SpectrumStore {
         return made;
       });
       this.remember(key, undefined, s);
-      await this.options.shared?.setValue(key, s).catch((e) => this.options.onSharedError?.(e));
+      await this.store(key, s);
       return s;
     });
     return { spectrum: value, from };

@@ -1,10 +1,11 @@
 import type { FastifyInstance } from 'fastify';
 import fp from 'fastify-plugin';
+import { MemoryTier } from '../../cache/memory.js';
 import { SpectrumStore } from '../../risk/spectrum-store.js';
 
 declare module 'fastify' {
   interface FastifyInstance {
-    /** One alias-risk spectrum analysis per source version (memory, then the shared tier). */
+    /** One alias-risk spectrum analysis per source version (memory, then the rendition cache's shared tiers). */
     spectra: SpectrumStore;
   }
 }
@@ -14,14 +15,19 @@ export interface SpectraPluginOptions {
   maxBytes?: number;
 }
 
-/** Opens the spectrum store at registration, over the shared Redis tier when there is one. */
+/**
+ * Opens the spectrum store at registration, over the rendition cache's tiers below memory (the
+ * disk folder, Redis): a restart or another replica finds an analysis there.
+ */
 async function spectraPlugin(app: FastifyInstance, opts: SpectraPluginOptions): Promise<void> {
   const store = new SpectrumStore({
     maxBytes: opts.maxBytes ?? 64 * 1024 * 1024,
-    shared: app.sharedRedis?.tier ?? null,
-    onSharedError: (err) => app.log.warn({ err }, 'storing a spectrum in the shared tier failed'),
+    tiers: app.renditionCache.cache.tiers.filter((t) => !(t instanceof MemoryTier)),
+    onSharedError: (err) => app.log.warn({ err }, 'a cache tier failed to read or store a spectrum'),
   });
   app.decorate('spectra', store);
+  // Analyses still being written go to the tiers before they close.
+  app.addHook('preClose', () => store.settled());
 }
 
-export default fp(spectraPlugin, { name: 'foldwise-spectra', fastify: '5.x', dependencies: ['foldwise-redis'] });
+export default fp(spectraPlugin, { name: 'foldwise-spectra', fastify: '5.x', dependencies: ['foldwise-cache'] });
