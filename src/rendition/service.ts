@@ -16,9 +16,11 @@ import type { IdentityMemo } from './identity.js';
 import { renditionKey, strongEtag } from './key.js';
 import { checkRequestedSize, type PlannedRendition, planRendition } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
+import type { SharedRaster } from '../pool/worker.js';
 import { admitRendition } from './admit.js';
 import { decodeSource, type LoadedSource, type ReadSource, readSource } from './source.js';
 import { resampleWhileDecoding } from './streamed.js';
+import { type AdaptivePrefilter, shrinks } from './prefilter.js';
 import { type Stage, StageClock, type StageTiming } from './timings.js';
 
 /** Everything a render needs; no Fastify request, so ingest and the CLI can call it too. */
@@ -36,15 +38,9 @@ export interface RenderContext {
   identities?: IdentityMemo;
   /**
    * Content-adaptive prefilter (alias-risk analysis, src/risk/adaptive.ts), asked only when
-   * prefilter=auto, with the plan it would raise and the source version (for its cache).
+   * prefilter=auto and the plan shrinks; it analyses and decides in the pool's threads.
    */
-  adaptiveSigma?: (raster: PixelRaster, plan: Plan, identity?: SourceIdentity) => { x: number; y: number } | undefined;
-  /**
-   * adaptiveSigma's answer before any pixel is decoded, from an analysis already at hand;
-   * null when there is none (then the source is decoded in full first). Lets a rendition of
-   * an analysed source be resampled while it decodes (src/rendition/streamed.ts).
-   */
-  knownAdaptiveSigma?: (plan: Plan, identity: SourceIdentity) => { sigma: { x: number; y: number } | undefined } | null;
+  adaptive?: AdaptivePrefilter;
   /**
    * A source the caller has already read and decoded (the upload hook's ladder, the alias-risk
    * preview): a miss renders from it instead of reading and decoding again, when it is the
@@ -107,12 +103,19 @@ async function resampleSource(ctx: RenditionContextInternal, read: LoadedSource 
   const { decoded, identity } = source;
   const src = decoded.raster;
   const first = planRendition(src, q, ctx.limits);
-  const sigma = q.prefilter === 'auto' ? ctx.adaptiveSigma?.(src, first.plan, identity) : undefined;
-  const { layout, plan } = sigma ? planRendition(src, q, ctx.limits, sigma) : first;
+  const adaptive = q.prefilter === 'auto' && shrinks(first.plan) ? ctx.adaptive : undefined;
   const deadline = AbortSignal.timeout(ctx.limits.renderTimeoutMs);
   const stop = ctx.signal ? AbortSignal.any([ctx.signal, deadline]) : deadline;
+  let planned = first;
+  // The content-adaptive plan: from the kept spectrum, else the pool analyses the staged pixels.
+  const plan = !adaptive ? first.plan : async (staged: SharedRaster) => {
+    const known = await adaptive.known(first.plan, identity, stop);
+    const filter = known ? known.filter : await adaptive.analyse(staged, first.plan, identity, stop);
+    if (filter) planned = planRendition(src, q, ctx.limits, filter);
+    return planned.plan;
+  };
   const raster = await ctx.clock.time('resample', () => ctx.pool.resample(src, plan, stop));
-  return { raster, layout, plan, hasAlpha: decoded.hasAlpha, identity, deadline };
+  return { raster, layout: planned.layout, plan: planned.plan, hasAlpha: decoded.hasAlpha, identity, deadline };
 }
 
 async function produce(

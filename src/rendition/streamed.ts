@@ -5,6 +5,9 @@ import type { SourceIdentity } from '../origins/types.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import { type PlannedRendition, planRendition } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
+import { type SpoolShape, WRITTEN } from '../pool/spool/rows.js';
+import type { SpooledRaster } from '../pool/worker.js';
+import { type AdaptivePrefilter, shrinks } from './prefilter.js';
 import { decodeLimits, type ReadSource } from './source.js';
 import type { StageClock } from './timings.js';
 
@@ -22,8 +25,7 @@ export interface StreamContext {
   clock: StageClock;
   /** Aborts when no one waits for the render any more. */
   signal?: AbortSignal;
-  adaptiveSigma?: unknown;
-  knownAdaptiveSigma?: (plan: Plan, identity: SourceIdentity) => { sigma: { x: number; y: number } | undefined } | null;
+  adaptive?: AdaptivePrefilter;
 }
 
 /** A rendition resampled while its source decoded. */
@@ -34,16 +36,24 @@ export interface StreamedRendition extends PlannedRendition {
 }
 
 /**
- * The plan for a streamed render, or null when it needs the decoded pixels first: with
- * prefilter=auto and an adaptive prefilter in play, the source's spectrum must already be
- * known (an earlier rendition of the same version analysed it).
+ * The plan for a streamed render, and whether it is provisional: with prefilter=auto on a
+ * shrinking plan and no spectrum kept for the source version, the render starts on the plan
+ * without the content-adaptive filter while the analysis waits for the decode to end.
  */
-function streamPlan(ctx: StreamContext, size: { width: number; height: number }, q: RenditionQuery, identity: SourceIdentity): PlannedRendition | null {
+async function streamPlan(ctx: StreamContext, size: { width: number; height: number }, q: RenditionQuery, identity: SourceIdentity, signal: AbortSignal): Promise<{ planned: PlannedRendition; provisional: boolean }> {
   const first = planRendition(size, q, ctx.limits);
-  if (q.prefilter !== 'auto' || !ctx.adaptiveSigma) return first;
-  const known = ctx.knownAdaptiveSigma?.(first.plan, identity);
-  if (!known) return null;
-  return known.sigma ? planRendition(size, q, ctx.limits, known.sigma) : first;
+  if (q.prefilter !== 'auto' || !ctx.adaptive || !shrinks(first.plan)) return { planned: first, provisional: false };
+  const known = await ctx.adaptive.known(first.plan, identity, signal);
+  if (!known) return { planned: first, provisional: true };
+  return { planned: known.filter ? planRendition(size, q, ctx.limits, known.filter) : first, provisional: false };
+}
+
+/** The spool file as a source whose decode has ended (the analysis reads it after the decode). */
+function written(path: string, probe: SpoolShape & { channels: 1 | 3 }): SpooledRaster {
+  const state = new Int32Array(new SharedArrayBuffer(4));
+  state[0] = WRITTEN;
+  const { width, height, channels, depth } = probe;
+  return { path, width, height, channels, depth, state: state.buffer as SharedArrayBuffer };
 }
 
 /**
@@ -53,35 +63,51 @@ function streamPlan(ctx: StreamContext, size: { width: number; height: number },
  * last row is decoded instead of a whole resample later. The header is read first (timed as
  * `decode`), the overlapped part is timed as `stream`.
  *
+ * The first rendition of a new source (prefilter=auto, no spectrum kept) streams too: it
+ * renders on the plan without the content-adaptive filter while the source decodes, and once
+ * the last row is written the pool analyses the spool file's rows (in parallel with the
+ * render's last rows). When the analysis leaves the plan as it is (most pictures) the streamed
+ * rendition is the answer; when it lowers a cut-off, the source is resampled again from the
+ * spool file with the adapted plan (timed as `resample`): the bytes are those of the
+ * decode-then-resample path for that plan either way.
+ *
  * Returns null, having decoded nothing, when the render must take the decode-then-resample
- * path: spooling is off, the source has alpha or fewer than STREAM_MIN_PIXELS pixels, or the
- * plan needs a spectrum not at hand. Also null when the spool file could not be written or
- * read back (a full or missing folder, no file descriptors left): the caller then decodes in
- * memory. Errors of the source itself are thrown as the in-memory decode throws them.
+ * path: spooling is off, the source has alpha or fewer than STREAM_MIN_PIXELS pixels. Also
+ * null when the spool file could not be written or read back (a full or missing folder, no
+ * file descriptors left): the caller then decodes in memory. Errors of the source itself are
+ * thrown as the in-memory decode throws them.
  */
 export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSource, q: RenditionQuery): Promise<StreamedRendition | null> {
   const spool = ctx.pool.spool;
   if (!spool) return null;
   const probe = await ctx.clock.time('decode', () => probeSpooledDecode(source.bytes, decodeLimits(ctx.limits)));
   if (!probe || probe.width * probe.height < STREAM_MIN_PIXELS) return null;
-  const planned = streamPlan(ctx, probe, q, source.identity);
-  if (!planned) return null;
   const deadline = AbortSignal.timeout(ctx.limits.decodeTimeoutMs + ctx.limits.renderTimeoutMs);
   const stop = ctx.signal ? AbortSignal.any([ctx.signal, deadline]) : deadline;
+  const { planned, provisional } = await streamPlan(ctx, probe, q, source.identity, stop);
   const file = spool.path();
   // The file's bytes count in /dev/shm until it is removed (and libvips is done with it).
   const unhold = ctx.pool.holdSpool(probe.width * probe.height * probe.channels * (probe.depth / 8));
-  const written = probe.write(file);
+  const decoding = probe.write(file);
+  // Once the last row is written, the new source's analysis, while the render finishes.
+  const analysing = provisional ? decoding.then(() => ctx.adaptive!.analyse(written(file, probe), planned.plan, source.identity, stop)) : undefined;
+  analysing?.catch(() => undefined);
   try {
-    const raster = await ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, written, planned.plan, stop));
-    return { ...planned, raster, deadline };
+    const raster = await ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, decoding, planned.plan, stop));
+    const filter = await analysing;
+    if (!filter) return { ...planned, raster, deadline };
+    const adapted = planRendition(probe, q, ctx.limits, filter);
+    const again = await ctx.clock.time('resample', () => ctx.pool.resampleSpooled(file, probe, decoding, adapted.plan, stop));
+    return { ...adapted, raster: again, deadline };
   } catch (e) {
     if (e instanceof SpoolWriteError) return null;
     throw e;
   } finally {
-    written.catch(() => undefined);
+    decoding.catch(() => undefined);
+    // The analysis reads the file: it must be done before the file goes.
+    await analysing?.catch(() => undefined);
     await spool.remove(file);
-    // libvips may make or write the file after this (a deadline settled `written` first, or its
+    // libvips may make or write the file after this (a deadline settled `decoding` first, or its
     // job was still waiting for a pool thread): once it is done, remove the file again, or it
     // would hold memory in /dev/shm until the pool closes.
     probe.idle().then(() => spool.remove(file)).catch(() => undefined).finally(unhold);

@@ -1,38 +1,33 @@
 /**
  * The content-adaptive filter of the render path: prefilter=auto asks the visibility model for
  * per-axis cut-off factors on sources whose planned rendition would show a false pattern
- * (src/core/risk: adaptiveFilter), using the cached spectrum of that source version. The hooks
- * keep the render context's `{ x, y }` shape (extra sigma, 0 here) and carry the cut-offs in it.
+ * (src/core/risk: adaptiveFilter), using the kept spectrum of that source version. Both the
+ * analysis and the decision run in the pool's threads (src/pool/analysis.ts): tens of
+ * milliseconds each for a large source, which the event loop must not wait through.
  */
 import { planResponse } from '../core/index.js';
-import { adaptiveFilter } from '../core/risk/index.js';
-import type { AdaptiveFilter, PixelRaster, Plan } from '../core/types.js';
-import type { SourceIdentity } from '../origins/types.js';
+import type { Plan } from '../core/types.js';
+import type { RenderPool } from '../pool/render-pool.js';
+import { type AdaptivePrefilter, shrinks } from '../rendition/prefilter.js';
 import type { SpectrumStore } from './spectrum-store.js';
 
 /** A PlanResponse (core/risk) read from the plan's own weight tables. */
 export const planResponseOf = (plan: Plan) => (axis: 'x' | 'y', f: number) => planResponse(plan, axis, f);
 
-/**
- * The render context's adaptiveSigma hook, backed by `store`. A plan that shrinks neither axis
- * cannot fold anything, so it never costs an analysis.
- */
-export function adaptiveHook(store: SpectrumStore) {
-  return (raster: PixelRaster, plan: Plan, identity?: SourceIdentity): AdaptiveFilter | undefined =>
-    plan.x.scale > 1 || plan.y.scale > 1
-      ? adaptiveFilter(store.ofRaster(raster, identity), plan, planResponseOf(plan))
-      : undefined;
-}
-
-/**
- * The render context's knownAdaptiveSigma hook: the same answer as adaptiveHook's, from the
- * spectrum this process already holds for the source version, so the render can start before
- * the source is decoded; null when that spectrum is not at hand (the pixels are needed first).
- */
-export function knownAdaptiveHook(store: SpectrumStore) {
-  return (plan: Plan, identity: SourceIdentity): { sigma: AdaptiveFilter | undefined } | null => {
-    if (!(plan.x.scale > 1 || plan.y.scale > 1)) return { sigma: undefined };
-    const spectrum = store.known(identity);
-    return spectrum ? { sigma: adaptiveFilter(spectrum, plan, planResponseOf(plan)) } : null;
+/** The render context's prefilter=auto hooks, backed by `store` and `pool`. */
+export function adaptivePrefilter(store: SpectrumStore, pool: RenderPool): AdaptivePrefilter {
+  return {
+    async known(plan, identity, signal) {
+      if (!shrinks(plan)) return { filter: undefined };
+      const spectrum = await store.lookup(identity);
+      return spectrum ? { filter: await pool.adapt(spectrum, plan, signal) } : null;
+    },
+    async analyse(src, plan, identity, signal) {
+      if (!shrinks(plan)) return undefined;
+      const { spectrum, filter } = await pool.analyse(src, plan, signal);
+      // Kept in memory at once; the shared tiers are written in the background.
+      void store.keep(identity, spectrum);
+      return filter;
+    },
   };
 }

@@ -67,33 +67,59 @@ describe('GET /v1/renditions: resampled while the source decodes (spooled)', () 
     expect(off.app.renderPool.spool).toBeNull();
   });
 
-  it('prefilter=auto: the first rendition of a new source resamples after the decode (its spectrum is needed); the next streams', async () => {
+  it('prefilter=auto: the first rendition of a new source streams too, with the bytes of the decode-then-resample service', async () => {
     const first = await get(t, 'grating.jpg', 'width=120&format=png');
     expect(first.statusCode).toBe(200);
-    expect(stages(first)).toContain('resample');
-    expect(stages(first)).not.toContain('stream');
+    // The analysis (in the pool, after the decode) left the plan as it was: no second resample.
+    expect(stages(first)).toContain('stream');
+    expect(stages(first)).not.toContain('resample');
+    expect(String(first.headers['rendition-plan'])).toContain('cutoff=1.00,1.00');
+    const ref = await get(off, 'grating.jpg', 'width=120&format=png');
+    expect(stages(ref)).toContain('resample');
+    expect(first.headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
+    expect(first.rawPayload.equals(ref.rawPayload)).toBe(true);
     const second = await get(t, 'grating.jpg', 'width=100&format=png');
-    expect(second.statusCode).toBe(200);
     expect(stages(second)).toContain('stream');
     expect(stages(second)).not.toContain('resample');
-    // The same bytes and plan as the decode-then-resample service gives for the same request.
-    const ref = await get(off, 'grating.jpg', 'width=100&format=png');
-    expect(stages(ref)).toContain('resample');
-    expect(second.headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
-    expect(second.rawPayload.equals(ref.rawPayload)).toBe(true);
+    const ref2 = await get(off, 'grating.jpg', 'width=100&format=png');
+    expect(second.headers['rendition-plan']).toBe(ref2.headers['rendition-plan']);
+    expect(second.rawPayload.equals(ref2.rawPayload)).toBe(true);
   });
 
-  it('prefilter=auto on a source whose spectrum lowers the cut-off: the next rendition streams with the lowered cut-off', async () => {
+  it('prefilter=auto on a new source whose spectrum lowers the cut-off: resampled again from the spool file with it; the next streams with it', async () => {
     const first = await get(t, 'near.png', 'width=640&format=png');
-    expect(stages(first)).not.toContain('stream');
+    expect(stages(first)).toContain('stream');
+    expect(stages(first)).toContain('resample');
+    const ref1 = await get(off, 'near.png', 'width=640&format=png');
+    expect(first.headers['rendition-plan']).toBe(ref1.headers['rendition-plan']);
+    expect(first.rawPayload.equals(ref1.rawPayload)).toBe(true);
     const second = await get(t, 'near.png', 'width=620&format=png');
     expect(stages(second)).toContain('stream');
+    expect(stages(second)).not.toContain('resample');
     const cutoff = /cutoff=([\d.]+),([\d.]+)/.exec(String(second.headers['rendition-plan']));
     expect(Math.min(Number(cutoff?.[1]), Number(cutoff?.[2]))).toBeLessThan(1);
     expect(String(second.headers['rendition-plan'])).not.toBe(String((await get(t, 'near.png', 'width=620&format=png&prefilter=none')).headers['rendition-plan']));
     const ref = await get(off, 'near.png', 'width=620&format=png');
     expect(second.headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
     expect(second.rawPayload.equals(ref.rawPayload)).toBe(true);
+  });
+
+  it('a restarted process finds the spectrum in the disk tier: a further width streams with the adapted plan, analysing nothing', async () => {
+    // near.png was analysed above; a new process over the same cache folder.
+    await t.app.spectra.settled();
+    const again = await build({ sourceDir: t.sourceDir, config: { cache: { dir: t.cacheDir } } });
+    try {
+      const res = await get(again, 'near.png', 'width=600&format=png');
+      expect(stages(res)).toContain('stream');
+      expect(stages(res)).not.toContain('resample');
+      expect(again.app.spectra.analyses).toBe(0);
+      expect(String(res.headers['rendition-plan'])).toMatch(/prefilter=[a-z,]*content/);
+      const ref = await get(off, 'near.png', 'width=600&format=png');
+      expect(res.headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
+      expect(res.rawPayload.equals(ref.rawPayload)).toBe(true);
+    } finally {
+      await again.close();
+    }
   });
 
   it('prefilter=none streams from the first rendition, with the bytes of the unspooled service', async () => {
