@@ -22,6 +22,8 @@ async function main(): Promise<void> {
   const app = await build({ config });
   installShutdown(app, { deadlineMs: config.shutdown.deadlineMs });
   await app.listen({ host: config.server.host, port: config.server.port });
+  // /readyz says 503 until the render threads are warm: so does this line.
+  await app.renderPool.warm();
   app.log.info({ sourceDir: config.origin.sourceDir, cacheDir: config.cache.dir }, 'foldwise ready');
 }
 

@@ -50,6 +50,8 @@ export async function build(options: TestAppOptions = {}): Promise<TestApp> {
   const { config: _drop, sourceDir: _s, ...rest } = options;
   const app = await buildApp({ ...rest, config });
   await app.ready();
+  // As server.ts does before it says ready (and /readyz answers 200).
+  await app.renderPool.warm();
   return {
     app,
     config,

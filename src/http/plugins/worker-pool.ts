@@ -39,6 +39,13 @@ async function workerPoolPlugin(app: FastifyInstance, opts: RenderPoolOptions): 
   });
   if (pool.spool) app.log.info({ spoolDir: pool.spool.dir }, 'renders resample sources while they decode');
   else if (opts.spoolDir !== 'off') app.log.warn({ spoolDir: opts.spoolDir }, 'spool folder unavailable: sources are decoded in full before resampling');
+  // Warm start: every thread loads, compiles its kernels and renders once while the server
+  // starts; /readyz answers 503 until it is done (server.ts waits for it before saying ready).
+  const started = performance.now();
+  pool.warm().then(
+    () => app.log.info({ ms: Math.round(performance.now() - started), threads: pool.threads }, 'render threads warm'),
+    (err: unknown) => app.log.warn({ err }, 'render threads did not warm up'),
+  );
   app.decorate('renderPool', pool);
   app.addHook('onClose', async () => pool.close());
 }

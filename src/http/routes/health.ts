@@ -13,8 +13,8 @@ const readySchema = z.object({
 
 /**
  * /healthz: the process is alive and serving (for restarts). /readyz: this replica can serve
- * rendition traffic, hits included (for load balancers): 503 only while it stops or when its
- * source folder is gone. Busy render slots do not make it unready: a replica in a miss flood
+ * rendition traffic, hits included (for load balancers): 503 while its render threads warm up
+ * at start (RenderPool.warm), while it stops, or when its source folder is gone. Busy render slots do not make it unready: a replica in a miss flood
  * still serves every hit, and pulling all busy replicas at once would turn load into an outage
  * (misses past the bound get their own 503 with Retry-After). A degraded shared tier (Redis
  * down, the disk cache off or full) answers 200 "degraded" with the reason.
@@ -54,6 +54,7 @@ export default async function healthRoutes(app: FastifyInstance): Promise<void> 
       const checks: Record<string, { ok: boolean; detail: string }> = {
         origin: { ok: originOk, detail: originOk ? 'source folder reachable' : 'source folder missing' },
         stopping: { ok: !stopping, detail: stopping ? 'shutting down' : 'running' },
+        warm: { ok: pool.warmed, detail: pool.warmed ? 'render threads warm' : 'render threads starting' },
       };
       const failed = Object.entries(checks).filter(([, c]) => !c.ok);
       if (failed.length > 0) {
