@@ -1,5 +1,5 @@
 import type { Limits } from '../config.js';
-import type { PixelRaster, Plan } from '../core/types.js';
+import type { AdaptiveFilter, PixelRaster } from '../core/types.js';
 import { probeSpooledDecode, SpoolWriteError } from '../codec/spool-decode.js';
 import type { SourceIdentity } from '../origins/types.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
@@ -40,8 +40,7 @@ export interface StreamedRendition extends PlannedRendition {
  * shrinking plan and no spectrum kept for the source version, the render starts on the plan
  * without the content-adaptive filter while the analysis waits for the decode to end.
  */
-async function streamPlan(ctx: StreamContext, size: { width: number; height: number }, q: RenditionQuery, identity: SourceIdentity, signal: AbortSignal): Promise<{ planned: PlannedRendition; provisional: boolean }> {
-  const first = planRendition(size, q, ctx.limits);
+async function streamPlan(ctx: StreamContext, first: PlannedRendition, size: { width: number; height: number }, q: RenditionQuery, identity: SourceIdentity, signal: AbortSignal): Promise<{ planned: PlannedRendition; provisional: boolean }> {
   if (q.prefilter !== 'auto' || !ctx.adaptive || !shrinks(first.plan)) return { planned: first, provisional: false };
   const known = await ctx.adaptive.known(first.plan, identity, signal);
   if (!known) return { planned: first, provisional: true };
@@ -84,15 +83,21 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
   if (!probe || probe.width * probe.height < STREAM_MIN_PIXELS) return null;
   const deadline = AbortSignal.timeout(ctx.limits.decodeTimeoutMs + ctx.limits.renderTimeoutMs);
   const stop = ctx.signal ? AbortSignal.any([ctx.signal, deadline]) : deadline;
-  const { planned, provisional } = await streamPlan(ctx, probe, q, source.identity, stop);
+  // Refuses a bad output size before anything is decoded.
+  const first = planRendition(probe, q, ctx.limits);
   const file = spool.path();
   // The file's bytes count in /dev/shm until it is removed (and libvips is done with it).
   const unhold = ctx.pool.holdSpool(probe.width * probe.height * probe.channels * (probe.depth / 8));
+  // The decode starts before the plan is settled: deciding from a kept spectrum is a pool task,
+  // and the rows spooled meanwhile are resampled at once when it ends.
   const decoding = probe.write(file);
-  // Once the last row is written, the new source's analysis, while the render finishes.
-  const analysing = provisional ? decoding.then(() => ctx.adaptive!.analyse(written(file, probe), planned.plan, source.identity, stop)) : undefined;
-  analysing?.catch(() => undefined);
+  decoding.catch(() => undefined);
+  let analysing: Promise<AdaptiveFilter | undefined> | undefined;
   try {
+    const { planned, provisional } = await streamPlan(ctx, first, probe, q, source.identity, stop);
+    // Once the last row is written, the new source's analysis, while the render finishes.
+    if (provisional) analysing = decoding.then(() => ctx.adaptive!.analyse(written(file, probe), planned.plan, source.identity, stop));
+    analysing?.catch(() => undefined);
     const raster = await ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, decoding, planned.plan, stop));
     const filter = await analysing;
     if (!filter) return { ...planned, raster, deadline };
@@ -103,7 +108,6 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
     if (e instanceof SpoolWriteError) return null;
     throw e;
   } finally {
-    decoding.catch(() => undefined);
     // The analysis reads the file: it must be done before the file goes.
     await analysing?.catch(() => undefined);
     await spool.remove(file);
