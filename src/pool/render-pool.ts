@@ -12,6 +12,7 @@ import { resolveMemoryBudget } from './budget-default.js';
 import { HAND_BACK_MIN_BYTES, handBack } from './hand-back.js';
 import { StagingBuffers } from './staging.js';
 import { SpoolWriteError } from '../codec/spool-decode.js';
+import { warmCodecs } from '../codec/warm.js';
 import { FILE_WRONG, READ_FAILED, type SpoolShape, STOPPED, WRITING, WRITTEN } from './spool/rows.js';
 import { SpoolDir } from './spool/dir.js';
 
@@ -283,16 +284,28 @@ export class RenderPool {
 
   /**
    * Resolves once every thread has started, compiled its SIMD kernels and rendered, analysed
-   * and decided once (warm.ts): what /readyz waits for. Rejects only when the pool closes first.
+   * and decided once (warm.ts), and this thread has run sharp's codecs once (codec/warm.ts):
+   * what /readyz waits for. Rejects only when the pool closes first.
    */
   warm(): Promise<void> {
-    const arrived = new SharedArrayBuffer(4);
-    this.warming ??= Promise.all(
-      Array.from({ length: this.threads }, () => this.task('warm', { arrived, threads: this.threads })),
-    ).then(() => {
+    this.warming ??= this.warmUp().then(() => {
       this.isWarm = true;
     });
     return this.warming;
+  }
+
+  private async warmUp(): Promise<void> {
+    const arrived = new SharedArrayBuffer(4);
+    const threads = Array.from({ length: this.threads }, () => this.task('warm', { arrived, threads: this.threads }));
+    // sharp's codecs in this thread too, through the spool folder when there is one (a failure
+    // there is the render's to meet: a spool write that fails falls back to decoding in memory).
+    const file = this.spool?.path();
+    try {
+      await Promise.all([warmCodecs(file).catch(() => undefined), ...threads]);
+    } finally {
+      await Promise.allSettled(threads);
+      if (file) await this.spool?.remove(file);
+    }
   }
 
   /** Whether warm() has resolved. */
