@@ -177,7 +177,7 @@ export class IngestService extends EventEmitter {
     // The render path's spectrum store: analysed once per source version, and the renders'
     // content-adaptive prefilter below finds it there by identity.
     const before = this.spectra.analyses;
-    const spectrum = this.spectra.ofRaster(raster, identity);
+    const spectrum = await this.spectra.ofRaster(raster, identity);
     if (this.spectra.analyses > before) this.emit('analysed', sourceKey);
     const steps = assessLadder(
       spectrum,

@@ -14,12 +14,13 @@ import type { SharedRaster, SpooledRaster } from './worker.js';
 /** Analyse a source in shared memory or a spool file; decide prefilter=auto's filter for `plan`. */
 export interface AnalyseTask {
   src: SharedRaster | SpooledRaster;
-  plan: Plan;
+  /** The plan to decide for; none for the spectrum alone. */
+  plan?: Plan;
 }
 
 export interface Analysed {
   spectrum: SourceSpectrum;
-  /** adaptiveFilter's answer for the task's plan (undefined: the plan stays as it is). */
+  /** adaptiveFilter's answer for the task's plan (undefined: the plan stays as it is, or none was given). */
   filter: AdaptiveFilter | undefined;
 }
 
@@ -77,7 +78,7 @@ function rasterOf(src: SharedRaster | SpooledRaster): PixelRaster {
 /** The piscina task: analyse, then decide for the plan. */
 export function analyseTask(task: AnalyseTask): Analysed {
   const spectrum = analyzeSpectrum(rasterOf(task.src));
-  return { spectrum, filter: decide(spectrum, task.plan) };
+  return { spectrum, filter: task.plan ? decide(spectrum, task.plan) : undefined };
 }
 
 /** The piscina task: decide for the plan from a known spectrum. */

@@ -273,8 +273,17 @@ export class RenderPool {
    * The Welch spectrum of a source in shared memory or a spool file (whose decode has ended:
    * the task reads the rows the analysis needs), and prefilter=auto's filter for `plan`.
    */
-  analyse(src: SharedRaster | SpooledRaster, plan: Plan, signal?: AbortSignal): Promise<Analysed> {
+  analyse(src: SharedRaster | SpooledRaster, plan: Plan | undefined, signal?: AbortSignal): Promise<Analysed> {
     return this.task('analyse', { src, plan }, signal);
+  }
+
+  /** The Welch spectrum of a decoded raster, analysed in the pool (the raster is staged in shared memory). */
+  async analyseRaster(src: PixelRaster, signal?: AbortSignal): Promise<SourceSpectrum> {
+    if (this.closing) throw this.stopping();
+    const shared = share(src, this.staging);
+    const { spectrum } = await this.analyse(shared, undefined, signal);
+    if (shared.buffer.byteLength <= STAGING_MAX_BYTES) this.staging.give(shared.buffer);
+    return spectrum;
   }
 
   /** prefilter=auto's filter for `plan` from a spectrum analysed before. */

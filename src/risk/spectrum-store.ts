@@ -25,6 +25,8 @@ export interface SpectrumStoreOptions {
   tiers?: readonly CacheTier[];
   /** Called when a tier's read or write fails (the analysis is still served). */
   onSharedError?: (error: unknown) => void;
+  /** Runs one analysis; default analyzeSpectrum in this thread (the app gives the pool's). */
+  analyser?: (raster: PixelRaster) => Promise<SourceSpectrum>;
 }
 
 /** Where a spectrum came from. */
@@ -70,9 +72,9 @@ export class SpectrumStore {
     if (raster) this.byRaster.set(raster, s);
   }
 
-  private analyse(raster: PixelRaster): SourceSpectrum {
+  private analyse(raster: PixelRaster): Promise<SourceSpectrum> {
     this.analyses++;
-    return analyzeSpectrum(raster);
+    return this.options.analyser?.(raster) ?? Promise.resolve(analyzeSpectrum(raster));
   }
 
   /** The spectrum of a source version when this process has it at hand (L1), else undefined. */
@@ -81,14 +83,18 @@ export class SpectrumStore {
   }
 
   /**
-   * The spectrum of a raster already in memory (the render path): L1 by identity, or this
-   * raster's earlier analysis, or a new one now (stored in L1 and, in the background, in L2).
+   * The spectrum of a raster already in memory (an upload's): L1 by identity, or this raster's
+   * earlier analysis, or the tiers below L1, or a new one now (kept in L1 and, in the
+   * background, in the tiers).
    */
-  ofRaster(raster: PixelRaster, identity?: SourceIdentity): SourceSpectrum {
+  async ofRaster(raster: PixelRaster, identity?: SourceIdentity): Promise<SourceSpectrum> {
     const key = identity ? this.keyOf(identity) : undefined;
-    const known = (key && this.lru.get(key)) || this.byRaster.get(raster);
-    if (known) return known;
-    const s = this.analyse(raster);
+    const known = (key && this.lru.get(key)) || this.byRaster.get(raster) || (key && (await this.stored(key)));
+    if (known) {
+      this.remember(key, raster, known);
+      return known;
+    }
+    const s = await this.analyse(raster);
     this.remember(key, raster, s);
     if (key) void this.store(key, s);
     return s;
@@ -151,7 +157,7 @@ export class SpectrumStore {
    */
   async get(
     identity: SourceIdentity,
-    produce: (analyse: (raster: PixelRaster) => SourceSpectrum) => Promise<SourceSpectrum>,
+    produce: (analyse: (raster: PixelRaster) => Promise<SourceSpectrum>) => Promise<SourceSpectrum>,
   ): Promise<{ spectrum: SourceSpectrum; from: SpectrumOrigin }> {
     const key = this.keyOf(identity);
     const hit = this.lru.get(key);
@@ -165,8 +171,8 @@ export class SpectrumStore {
         this.remember(key, undefined, stored);
         return stored;
       }
-      const s = await produce((raster) => {
-        const made = this.analyse(raster);
+      const s = await produce(async (raster) => {
+        const made = await this.analyse(raster);
         this.remember(undefined, raster, made);
         return made;
       });

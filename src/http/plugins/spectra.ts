@@ -24,10 +24,12 @@ async function spectraPlugin(app: FastifyInstance, opts: SpectraPluginOptions): 
     maxBytes: opts.maxBytes ?? 64 * 1024 * 1024,
     tiers: app.renditionCache.cache.tiers.filter((t) => !(t instanceof MemoryTier)),
     onSharedError: (err) => app.log.warn({ err }, 'a cache tier failed to read or store a spectrum'),
+    // In the pool's threads: the event loop never waits through an analysis.
+    analyser: (raster) => app.renderPool.analyseRaster(raster),
   });
   app.decorate('spectra', store);
   // Analyses still being written go to the tiers before they close.
   app.addHook('preClose', () => store.settled());
 }
 
-export default fp(spectraPlugin, { name: 'foldwise-spectra', fastify: '5.x', dependencies: ['foldwise-cache'] });
+export default fp(spectraPlugin, { name: 'foldwise-spectra', fastify: '5.x', dependencies: ['foldwise-cache', 'foldwise-worker-pool'] });

@@ -48,7 +48,7 @@ export default async function aliasRiskRoutes(app: FastifyInstance): Promise<voi
       try {
         const { decoded } = await decodeSource(read, ctx.limits, clock);
         const start = performance.now();
-        const s = analyse(decoded.raster);
+        const s = await analyse(decoded.raster);
         analyseMs = performance.now() - start;
         return s;
       } finally {
