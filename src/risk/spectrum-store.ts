@@ -77,11 +77,6 @@ export class SpectrumStore {
     return this.options.analyser?.(raster) ?? Promise.resolve(analyzeSpectrum(raster));
   }
 
-  /** The spectrum of a source version when this process has it at hand (L1), else undefined. */
-  known(identity: SourceIdentity): SourceSpectrum | undefined {
-    return this.lru.get(this.keyOf(identity));
-  }
-
   /**
    * The spectrum of a raster already in memory (an upload's): L1 by identity, or this raster's
    * earlier analysis, or the tiers below L1, or a new one now (kept in L1 and, in the
