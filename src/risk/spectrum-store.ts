@@ -29,6 +29,12 @@ export interface SpectrumStoreOptions {
   analyser?: (raster: PixelRaster) => Promise<SourceSpectrum>;
 }
 
+/**
+ * Smaller sources keep their analysis in memory only: it takes about as long to redo as to
+ * read back from a tier, and would only crowd the tiers' entries.
+ */
+export const SHARED_MIN_PIXELS = 1 << 20;
+
 /** Where a spectrum came from. */
 export type SpectrumOrigin = 'memory' | 'shared' | 'analysed';
 
@@ -95,10 +101,13 @@ export class SpectrumStore {
     return s;
   }
 
-  /** Writes an analysis to every tier below L1; failures are reported, never thrown. */
+  /**
+   * Writes an analysis to every tier below L1 (sources of SHARED_MIN_PIXELS or more);
+   * failures are reported, never thrown.
+   */
   private store(key: string, s: SourceSpectrum): Promise<void> {
     const tiers = this.options.tiers ?? [];
-    if (tiers.length === 0) return Promise.resolve();
+    if (tiers.length === 0 || s.width * s.height < SHARED_MIN_PIXELS) return Promise.resolve();
     const entry = entryOf(key, s);
     const write = Promise.all(tiers.map((t) => t.set(key, entry).catch((e: unknown) => this.options.onSharedError?.(e)))).then(() => undefined);
     this.writes.add(write);
