@@ -25,6 +25,8 @@ const pictures: Array<[string, number, number, number]> = [
   ['first-4mp.jpg', 2304, 1728, 11], ['new-4mp.jpg', 2304, 1728, 12],
   ['new-6mp.jpg', 3200, 2000, 13], ['new-15mp.jpg', 4432, 3324, 14],
 ];
+// A load of new pictures, for the event-loop lag: six more 4 MP textures.
+const flood: Array<[string, number, number, number]> = Array.from({ length: 6 }, (_, i) => [`flood-${i}.jpg`, 2304, 1728, 40 + i]);
 
 interface Server { url: string; stop(): Promise<void> }
 interface Started { match: RegExpExecArray; stop(): Promise<void> }
@@ -74,10 +76,28 @@ async function timedGet(url: string): Promise<number> {
 
 const rendition = (name: string, width: number) => `/v1/renditions/${name}?width=${width}&format=jpeg`;
 
+/** The event-loop lag p99 and max (ms) prom-client reports since its previous scrape. */
+async function eventLoopLag(url: string): Promise<{ p99: number; max: number }> {
+  const text = await (await fetch(url + '/metrics')).text();
+  const ms = (name: string) => Number(new RegExp(`^foldwise_nodejs_eventloop_lag_${name}_seconds (\\S+)`, 'm').exec(text)?.[1] ?? NaN) * 1000;
+  return { p99: ms('p99'), max: ms('max') };
+}
+
+/** The lag while `names` (new pictures) are each rendered once, 3 at a time. */
+async function lagUnderNewPictures(url: string, names: string[]): Promise<{ p99: number; max: number }> {
+  await eventLoopLag(url); // the scrape starts a new window
+  let next = 0;
+  await Promise.all(Array.from({ length: 3 }, async () => {
+    while (next < names.length) await timedGet(url + rendition(names[next++], 800));
+  }));
+  return eventLoopLag(url);
+}
+
 /** Runs the through-HTTP measurements `runs` times and returns their tables as text. */
 export async function serviceBenchTable(runs: number, seconds: number): Promise<string> {
   const sourceDir = mkdtempSync(join(tmpdir(), 'foldwise-bench-sources-'));
-  for (const [name, w, h, seed] of pictures) writeFileSync(join(sourceDir, name), await benchJpeg(w, h, seed));
+  for (const [name, w, h, seed] of [...pictures, ...flood]) writeFileSync(join(sourceDir, name), await benchJpeg(w, h, seed));
+  const lags: Array<{ p99: number; max: number }> = [];
   const bytes = Object.fromEntries(pictures.map(([name]) => [name, readFileSync(join(sourceDir, name))]));
   const mp = (name: string) => { const p = pictures.find((q) => q[0] === name)!; return `${((p[1] * p[2]) / 1e6).toFixed(1)} MP`; };
   const rows = new Map<string, { ratios: number[]; ms: number[] }>();
@@ -102,6 +122,7 @@ export async function serviceBenchTable(runs: number, seconds: number): Promise<
           add(`further width of the ${mp(name)} picture -> ${width} px`, await timedGet(service.url + rendition(name, width)), decode[name]);
         }
       }
+      lags.push(await lagUnderNewPictures(service.url, flood.map(([name]) => name)));
     } finally {
       await service.stop();
     }
@@ -112,6 +133,8 @@ export async function serviceBenchTable(runs: number, seconds: number): Promise<
     '|---|---|---|---|',
     ...[...rows].map(([label, r]) => `| ${label} | ${quantile(r.ratios, 0.5).toFixed(2)}x | ${r.ratios.map((x) => x.toFixed(2)).join(' ')} | ${quantile(r.ms, 0.5).toFixed(0)} |`),
   ];
+  const p99s = lags.map((l) => l.p99);
+  lines.push('', `event-loop lag while ${flood.length} new 4 MP pictures render, 3 at a time (/metrics): p99 median ${quantile(p99s, 0.5).toFixed(1)} ms (per run: ${p99s.map((x) => x.toFixed(1)).join(' ')}), max per run: ${lags.map((l) => l.max.toFixed(1)).join(' ')} ms (target: p99 < 20 ms)`);
   lines.push('', await throughput(sourceDir, seconds));
   rmSync(sourceDir, { recursive: true, force: true });
   return lines.join('\n');
