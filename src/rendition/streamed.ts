@@ -99,7 +99,8 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
     if (provisional) analysing = decoding.then(() => ctx.adaptive!.analyse(written(file, probe), planned.plan, source.identity, stop));
     analysing?.catch(() => undefined);
     const raster = await ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, decoding, planned.plan, stop));
-    const filter = await analysing;
+    // What the analysis adds after the render (timed as `plan`; absent when none ran).
+    const filter = analysing && (await ctx.clock.time('plan', () => analysing));
     if (!filter) return { ...planned, raster, deadline };
     const adapted = planRendition(probe, q, ctx.limits, filter);
     const again = await ctx.clock.time('resample', () => ctx.pool.resampleSpooled(file, probe, decoding, adapted.plan, stop));
