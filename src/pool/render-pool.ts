@@ -120,8 +120,9 @@ export class RenderPool {
       filename: workerFile,
       minThreads: this.threads,
       maxThreads: this.threads,
-      // At most `maxRunning` jobs reach the pool, with two band tasks each.
-      maxQueue: 2 * maxRunning,
+      // At most `maxRunning` jobs reach the pool, with at most three tasks each at once: two
+      // bands, or a band and the new source's analysis, or the decision and then the bands.
+      maxQueue: 3 * maxRunning,
       // piscina's default has an idle thread block in Atomics.wait, still holding its last
       // task: the collection a large source's task schedules (worker.ts) never ran, and one
       // mapping the size of that source stayed for good. Message events let it run.
