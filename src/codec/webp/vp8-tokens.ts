@@ -8,12 +8,59 @@
 import type { BoolDecoder } from './bool-decoder.js';
 import type { MbModes } from './vp8-modes.js';
 
-const EOB = 11;
-// DCT_0..DCT_4 are 0..4, dct_cat1..dct_cat6 are 5..10 (§13.2 coeff_tree).
-const coeffTree = [-EOB, 2, -0, 4, -1, 6, 8, 12, -2, 10, -3, -4, 14, 16, -5, -6, 18, 20, -7, -8, -9, -10];
 const coeffBands = [0, 1, 2, 3, 6, 4, 5, 6, 6, 6, 6, 6, 6, 6, 6, 7];
 /** Pcat1..Pcat6 of §13.2: the extra bits of each category, most significant first. */
 const categoryProbs = [[159], [165, 145], [173, 148, 140], [176, 155, 140, 135], [180, 157, 141, 134, 130], [254, 254, 243, 230, 196, 177, 153, 140, 133, 130, 129]];
+
+/** Where coeff_probs[type][coeff_bands[n]][ctx] starts in the flattened table. */
+const at = (type: number, n: number, ctx: number): number => ((type * 8 + coeffBands[n]) * 3 + ctx) * 11;
+
+function skipExtraBits(d: BoolDecoder, category: number): void {
+  for (const q of categoryProbs[category]) d.bit(q);
+}
+
+/**
+ * A token of at least 2 (coeff_tree of §13.2 from its node 6, probabilities p + 3 .. p + 10):
+ * DCT_2, DCT_3, DCT_4, or dct_cat1..6 with their extra bits. Its value is not needed.
+ */
+function skipLargeToken(d: BoolDecoder, probs: Uint8Array, p: number): void {
+  if (!d.bit(probs[p + 3])) {
+    if (d.bit(probs[p + 4])) d.bit(probs[p + 5]); // DCT_2, or DCT_3 / DCT_4
+  } else if (!d.bit(probs[p + 6])) {
+    skipExtraBits(d, d.bit(probs[p + 7])); // cat1 / cat2
+  } else if (!d.bit(probs[p + 8])) {
+    skipExtraBits(d, 2 + d.bit(probs[p + 9])); // cat3 / cat4
+  } else {
+    skipExtraBits(d, 4 + d.bit(probs[p + 10])); // cat5 / cat6
+  }
+}
+
+/**
+ * One 4x4 block's tokens from position `first` (§13.2, §13.3): the coefficient tree walked
+ * node by node. Node 0 is end of block, node 1 DCT_0, after which the next token cannot be
+ * an end of block and starts at node 1; node 2 DCT_1. Returns the block's "has coefficients"
+ * flag.
+ */
+function readBlock(d: BoolDecoder, probs: Uint8Array, type: number, first: number, ctx: number): number {
+  let n = first;
+  let p = at(type, n, ctx);
+  while (n < 16) {
+    if (!d.bit(probs[p])) return n > first ? 1 : 0; // end of block
+    while (!d.bit(probs[p + 1])) {
+      // DCT_0: the next position's context is 0
+      if (++n === 16) return 1;
+      p = at(type, n, 0);
+    }
+    let next = 1;
+    if (d.bit(probs[p + 2])) {
+      skipLargeToken(d, probs, p);
+      next = 2;
+    }
+    d.bit(128); // sign
+    if (++n < 16) p = at(type, n, next);
+  }
+  return 1;
+}
 
 /** §13.3: per macroblock column above and for the current row to the left, 4 Y, 2 U, 2 V and 1 Y2 flags. */
 export class TokenContexts {
@@ -25,26 +72,6 @@ export class TokenContexts {
   startRow(): void {
     this.left.fill(0);
   }
-}
-
-function readBlock(d: BoolDecoder, probs: Uint8Array, type: number, first: number, ctx: number): number {
-  let n = first;
-  let p = ((type * 8 + coeffBands[n]) * 3 + ctx) * 11;
-  let afterZero = false;
-  while (n < 16) {
-    // After a DCT_0 the tree is entered past its end-of-block branch (§13.2).
-    const token = d.tree(coeffTree, probs, p, afterZero ? 2 : 0);
-    if (token === EOB) break;
-    let next = 0;
-    if (token > 0) {
-      if (token >= 5) for (const q of categoryProbs[token - 5]) d.bit(q);
-      d.bit(128); // sign
-      next = token === 1 ? 1 : 2;
-    }
-    afterZero = token === 0;
-    if (++n < 16) p = ((type * 8 + coeffBands[n]) * 3 + next) * 11;
-  }
-  return n > first ? 1 : 0;
 }
 
 /** Reads macroblock `mbx`'s residual data, as its modes say, and updates the contexts. */
