@@ -1,14 +1,19 @@
 /**
- * The boolean entropy decoder of RFC 6386 §7.3 (and its reference bool_decoder.h, §20.2), over
- * bytes [start, end) of a buffer, which also tells how far it has read: past the end it shifts
- * in zeros, as the reference does, and counts them. A decoder whose symbols match the
- * encoder's stops within a few bytes of its partition's end; one that lost step with the
- * encoder (damaged data) runs out or stops far from it.
+ * The boolean entropy decoder of RFC 6386 §7.3 (reference: bool_decoder.h, §20.2), over bytes
+ * [start, end) of a buffer, which also tells how far it has read. It decodes the same bools
+ * as the reference; only its bookkeeping differs: `range` is kept minus one, and `value` holds
+ * the 8-bit window plus up to 16 look-ahead bits, read two bytes at a time only when needed
+ * (so it never reads ahead of need by more than a byte, as libwebp's decoder, from memory).
+ * Past the end it shifts in zeros, as the reference does, and counts them. A decoder whose
+ * symbols match the encoder's stops within a few bytes of its partition's end; one that lost
+ * step with the encoder (damaged data) runs out or stops far from it.
  */
 export class BoolDecoder {
-  private value: number;
-  private range = 255;
-  private bitCount = 0;
+  private value = 0;
+  /** The reference's range minus one, 127..254 between calls. */
+  private range = 254;
+  /** Look-ahead bits in `value` below the 8-bit window (negative: the window needs bytes). */
+  private bits = -8;
   private pos: number;
   /** Zero bytes shifted in after the end of the partition. */
   overrun = 0;
@@ -19,8 +24,6 @@ export class BoolDecoder {
     private readonly end: number,
   ) {
     this.pos = start;
-    // §20.2 init_bool_decoder: the first two bytes make up the 16-bit value.
-    this.value = (this.next() << 8) | this.next();
   }
 
   /** Bytes of the partition not read yet. */
@@ -28,38 +31,41 @@ export class BoolDecoder {
     return this.end - this.pos;
   }
 
-  private next(): number {
-    if (this.pos < this.end) return this.data[this.pos++];
-    this.overrun++;
-    return 0;
+  private load(): void {
+    const d = this.data;
+    if (this.pos + 2 <= this.end) {
+      this.value = (this.value << 16) | (d[this.pos] << 8) | d[this.pos + 1];
+      this.pos += 2;
+      this.bits += 16;
+    } else {
+      let byte = 0;
+      if (this.pos < this.end) byte = d[this.pos++];
+      else this.overrun++;
+      this.value = (this.value << 8) | byte;
+      this.bits += 8;
+    }
   }
 
   /** One bool whose probability of being 0 is `prob` / 256 (§7.3 bool_get). */
   bit(prob: number): number {
-    const split = 1 + (((this.range - 1) * prob) >> 8);
-    const bigSplit = split << 8;
+    if (this.bits < 0) this.load();
+    const pos = this.bits;
+    // §7.3: split = 1 + (((range - 1) * prob) >> 8); here `range` is range - 1 and so is `split`.
+    const split = (this.range * prob) >> 8;
+    let range: number;
     let bit: number;
-    if (this.value >= bigSplit) {
+    if (this.value >>> pos > split) {
+      range = this.range - split - 1;
+      this.value -= (split + 1) << pos;
       bit = 1;
-      this.range -= split;
-      this.value -= bigSplit;
     } else {
+      range = split;
       bit = 0;
-      this.range = split;
     }
-    // The reference shifts one bit at a time until range >= 128, taking in a byte after every
-    // 8 shifts; this shifts them all at once (at most 7, so at most one byte comes in) and
-    // places the byte where the remaining shifts would have moved it.
-    const shift = Math.clz32(this.range) - 24;
-    if (shift > 0) {
-      this.range <<= shift;
-      this.value <<= shift;
-      this.bitCount += shift;
-      if (this.bitCount >= 8) {
-        this.bitCount -= 8;
-        this.value |= this.next() << this.bitCount;
-      }
-    }
+    // Shift until range >= 128, all shifts at once (at most 7).
+    const shift = Math.clz32(range + 1) - 24;
+    this.range = ((range + 1) << shift) - 1;
+    this.bits = pos - shift;
     return bit;
   }
 
