@@ -3,7 +3,7 @@
  * [start, end) of a buffer, which also tells how far it has read. It decodes the same bools
  * as the reference; only its bookkeeping differs: `range` is kept minus one, and `value` holds
  * the 8-bit window plus up to 16 look-ahead bits, read two bytes at a time only when needed
- * (so it never reads ahead of need by more than a byte, as libwebp's decoder, from memory).
+ * (so it reads ahead of need by less than two bytes; libwebp's decoder works so, from memory).
  * Past the end it shifts in zeros, as the reference does, and counts them. A decoder whose
  * symbols match the encoder's stops within a few bytes of its partition's end; one that lost
  * step with the encoder (damaged data) runs out or stops far from it.

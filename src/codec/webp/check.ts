@@ -15,7 +15,7 @@ export { WebpDamage } from './damage.js';
 
 /**
  * How far a valid partition's decoder may stop from its end. Measured with libwebp's encoder
- * (through sharp): at most 2 bytes unread, none read past the end, and the eight bools after
+ * (through sharp, test/codec/webp-check.test.ts): at most 2 bytes unread, none read past the end, and the eight bools after
  * the last symbol all 0 (the encoder flushes with zero bits at p = 1/2; libvpx's encoder flushes
  * 32 of them, from memory of vp8_stop_encode). The margins leave room for other encoders.
  */
@@ -23,12 +23,12 @@ const MAX_UNREAD = 8;
 const MAX_OVERRUN = 2;
 
 function judge(end: PartitionEnd, name: string): void {
-  if (end.overrun > MAX_OVERRUN) throw new WebpDamage(`${name} ends ${end.overrun} bytes early for its content (cut short or damaged)`);
+  if (end.overrun > MAX_OVERRUN) throw new WebpDamage(`${name} runs out ${end.overrun} bytes before its content ends (cut short or damaged)`);
   if (end.unread > MAX_UNREAD) throw new WebpDamage(`${name} has ${end.unread} bytes its content does not account for (damaged)`);
   if (end.tail !== 0) throw new WebpDamage(`${name} does not end with the encoder's flush (damaged)`);
 }
 
-/** VP8L header (WebP lossless bitstream specification): signature 0x2f, 14-bit sizes minus one, alpha bit, version 0. */
+/** VP8L header (WebP lossless bitstream specification; layout from memory): signature 0x2f, 14-bit sizes minus one, alpha bit, version 0. */
 function checkLossless(img: WebpImage): void {
   const d = img.bitstream.data;
   if (d.length < 5 || d[0] !== 0x2f) throw new WebpDamage('the VP8L signature byte 0x2f is missing');
@@ -38,7 +38,7 @@ function checkLossless(img: WebpImage): void {
   if (img.width > 0 && (w !== img.width || h !== img.height)) throw new WebpDamage(`the VP8L image is ${w}x${h}, its container says ${img.width}x${img.height}`);
 }
 
-/** ALPH header byte: reserved 2 bits, pre-processing (0 or 1), filtering (0..3), compression (0 raw, 1 lossless). */
+/** ALPH header byte (container specification; layout from memory): reserved 2 bits, pre-processing (0 or 1), filtering (0..3), compression (0 raw, 1 lossless). */
 function checkAlpha(img: WebpImage, width: number, height: number): void {
   const a = img.alpha!.data;
   if (a.length < 2) throw new WebpDamage('the ALPH chunk is empty');

@@ -5,7 +5,8 @@
  * "VP8 " or "VP8L" chunk, the extended one a "VP8X" chunk first, then either one image (an
  * optional "ALPH" before "VP8 ", or "VP8L") or, when animated, "ANIM" and "ANMF" frames, each
  * with its own image chunks. Returns the image bitstreams with the size each must have.
- * Field layouts are from the specification; the checks are what it says a file MUST be.
+ * Field layouts (VP8X flags and 24-bit canvas size minus one, ANMF's 16-byte frame header)
+ * are from memory of the specification; the checks are what it says a file must be.
  */
 import { WebpDamage } from './damage.js';
 
