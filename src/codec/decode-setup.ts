@@ -9,6 +9,7 @@ import { FoldwiseError } from '../errors.js';
 import { withinMs } from '../lib/deadline.js';
 import { sourceFormats } from './formats.js';
 import { hasAcceptedSignature } from './signature.js';
+import { checkWebp, WebpDamage } from './webp/check.js';
 
 export interface DecodeLimits {
   /** Most pixels (width x height of one frame) a source may have. */
@@ -56,6 +57,7 @@ export async function prepare(bytes: Buffer, limits: DecodeLimits): Promise<Prep
   });
   const format = checkFormat(meta);
   const [width, height] = checkLimits(meta, limits);
+  if (format === 'webp') await checkWebpOnce(bytes);
 
   const grey = meta.space === 'b-w' || meta.space === 'grey16';
   const deep = meta.depth !== 'uchar' && meta.depth !== 'char';
@@ -73,6 +75,25 @@ export async function prepare(bytes: Buffer, limits: DecodeLimits): Promise<Prep
   // keep a thread busy after the caller has been answered.
   if (limits.timeoutMs !== undefined) pipeline = pipeline.timeout({ seconds: Math.max(1, Math.ceil(limits.timeoutMs / 1000)) });
   return { pipeline, format, width, height, deep, grey, greyAlpha8, hasAlpha: meta.hasAlpha === true };
+}
+
+/**
+ * libwebp decodes a VP8 stream with damaged DCT tokens into a garbled picture without any
+ * error (VP8 has no checksum), so WebP sources go through our own bitstream check first
+ * (src/codec/webp/check.ts). Memoised per buffer: the header read at admission and the decode
+ * that follows see the same bytes.
+ */
+const webpChecks = new WeakMap<Buffer, Promise<void>>();
+function checkWebpOnce(bytes: Buffer): Promise<void> {
+  let check = webpChecks.get(bytes);
+  if (!check) {
+    check = checkWebp(bytes).catch((e: unknown) => {
+      if (!(e instanceof WebpDamage)) throw e;
+      throw new FoldwiseError('ERR_SOURCE_CORRUPT', `The source image is corrupt: ${e.message}.`, { cause: e });
+    });
+    webpChecks.set(bytes, check);
+  }
+  return check;
 }
 
 function checkFormat(meta: Metadata): string {
