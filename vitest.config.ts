@@ -19,6 +19,7 @@ const unit = [
   'test/pool/spool/rows.test.ts',
   'test/rendition/{identity,key,timings}.test.ts',
   'test/risk/warnings.test.ts',
+  'test/schemas/colour.test.ts',
   'test/security/signing.test.ts',
 ];
 
