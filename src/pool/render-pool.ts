@@ -12,6 +12,7 @@ import { StagingBuffers } from './staging.js';
 import { SpoolWriteError } from '../codec/spool-decode.js';
 import { SpoolReadError, type SpoolShape, STOPPED, WRITING, WRITTEN } from './spool/rows.js';
 import { SpoolDir } from './spool/dir.js';
+import { type BandPiscina, type BandRunner, piscinaRunner, type RunBand } from './runner.js';
 
 export interface RenderPoolOptions {
   /** Worker threads; 0 = one per available core. */
@@ -27,6 +28,8 @@ export interface RenderPoolOptions {
   rssCeilingBytes?: number;
   /** Spool folder for decodes resampled as they arrive ('auto', a path, or 'off'); default 'off'. */
   spoolDir?: string;
+  /** How band tasks are run on the threads (runner.ts); default piscina's run. Fault tests inject one. */
+  runner?: BandRunner;
 }
 
 /**
@@ -91,7 +94,8 @@ export class RenderPool {
   private readonly budget: MemoryBudget;
   private spooled = 0;
   private readonly rssCeiling: number;
-  private readonly piscina: Piscina<ResampleTask, BandOutcome>;
+  private readonly piscina: BandPiscina;
+  private readonly runBand: RunBand;
   private closing?: Promise<void>;
   private readonly staging: StagingBuffers;
   /** Where spooled decodes write (resampleSpooled), or null when spooling is off or unavailable. */
@@ -123,6 +127,7 @@ export class RenderPool {
       atomics: 'disabled',
       execArgv: fromSource ? ['--import', tsxLoader] : [],
     });
+    this.runBand = (opts.runner ?? piscinaRunner)(this.piscina);
   }
 
   /** Most jobs in flight (running + waiting) before refusals start. */
@@ -276,7 +281,7 @@ export class RenderPool {
       const relay = () => own.abort(signal?.reason);
       if (signal?.aborted) relay();
       signal?.addEventListener('abort', relay, { once: true });
-      const runs = bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out }, { signal: own.signal }));
+      const runs = bands.map((rows) => this.runBand({ src: shared, plan, rows, out }, { signal: own.signal }));
       const settled = await Promise.allSettled(runs).finally(() => signal?.removeEventListener('abort', relay));
       const failed = settled.find((r) => r.status === 'rejected');
       if (failed) throw failed.reason;
