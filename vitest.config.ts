@@ -17,8 +17,9 @@ const unit = [
   'test/lib/single-flight.test.ts',
   'test/origins/{address-guard,folder}.test.ts',
   'test/pool/spool/rows.test.ts',
-  'test/rendition/{identity,key,timings}.test.ts',
+  'test/rendition/{identity,key,plan,timings}.test.ts',
   'test/risk/warnings.test.ts',
+  'test/schemas/colour.test.ts',
   'test/security/signing.test.ts',
 ];
 

@@ -31,6 +31,7 @@ import renditionRoutes from './http/routes/renditions.js';
 import aliasRiskRoutes from './http/routes/alias-risk.js';
 import sourcesRoutes from './http/routes/sources.js';
 import { signingRequired } from './security/signing.js';
+import type { BandRunner } from './pool/runner.js';
 
 export interface BuildOptions {
   config: Config;
@@ -42,6 +43,8 @@ export interface BuildOptions {
   flight?: Flight<CacheEntry>;
   /** pino options, or false for none; default JSON logs at config.server.logLevel. */
   logger?: FastifyServerOptions['logger'];
+  /** How the render pool runs its band tasks (src/pool/runner.ts); default piscina's run. For fault tests. */
+  poolRunner?: BandRunner;
 }
 
 const packageVersion = (
@@ -99,7 +102,7 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     sharedTier: options.sharedTier ?? app.sharedRedis?.tier,
     flight: options.flight ?? app.sharedRedis?.flight,
   });
-  await app.register(workerPoolPlugin, { ...config.pool, rssCeilingBytes: config.pressure.maxRssBytes });
+  await app.register(workerPoolPlugin, { ...config.pool, rssCeilingBytes: config.pressure.maxRssBytes, runner: options.poolRunner });
   await app.register(memoryWatchPlugin, config.pressure);
   await app.register(spectraPlugin);
   await app.register(renderPlugin);

@@ -1,7 +1,7 @@
 import sharp from 'sharp';
 import type { PixelRaster } from '../core/types.js';
 import { FoldwiseError } from '../errors.js';
-import { parseBackground } from './background.js';
+import type { Rgb } from '../schemas/colour.js';
 import { placeOnCanvas, type CanvasPlacement } from './letterbox.js';
 import { formatSpecs, type OutputFormat } from './formats.js';
 import { tagPngSrgb } from './png-srgb.js';
@@ -10,8 +10,8 @@ export interface EncodeOptions {
   format: OutputFormat;
   /** 1..100; the format's default when left out; ignored by PNG. */
   quality?: number;
-  /** Hex colour or `transparent`: fills contain bars and flattens alpha for JPEG. */
-  background: string;
+  /** Fills contain bars and flattens alpha for JPEG (the query's `background`, parsed there). */
+  background: Rgb;
   /** object-fit: contain — the canvas the raster is placed on, from layoutRendition. */
   canvas?: CanvasPlacement;
 }
@@ -25,13 +25,13 @@ export interface EncodeOptions {
  *   was taken, often the photographer's home or workshop.
  * - Contain bars: in a format with alpha they are transparent when the raster has alpha
  *   (so the bars match the picture's own transparent surroundings), and the background
- *   colour, with its alpha, otherwise. JPEG bars are the background colour.
+ *   colour otherwise. JPEG bars are the background colour.
  * - JPEG flattens alpha onto the background in sRGB-encoded values, the way browsers
  *   composite a transparent PNG over a page (CSS Compositing and Blending Level 1, §5.1
  *   simple alpha compositing), so a JPEG looks like the PNG shown on that background.
  * - A 16-bit raster becomes a 16-bit PNG; lossy formats get 8 bits, rounded to nearest.
  *
- * @throws FoldwiseError ERR_PARAM_INVALID for a bad quality or background
+ * @throws FoldwiseError ERR_PARAM_INVALID for a bad quality or format
  */
 export async function encodeImage(raster: PixelRaster, opts: EncodeOptions): Promise<Buffer> {
   const spec = formatSpecs[opts.format];
@@ -40,17 +40,13 @@ export async function encodeImage(raster: PixelRaster, opts: EncodeOptions): Pro
   if (quality !== undefined && !(Number.isInteger(quality) && quality >= 1 && quality <= 100)) {
     throw new FoldwiseError('ERR_PARAM_INVALID', 'quality must be an integer from 1 to 100.');
   }
-  const background = parseBackground(opts.background);
+  const background = opts.background;
 
   let r = raster;
   if (r.data instanceof Uint16Array && !spec.depths.includes(16)) r = to8Bit(r);
   if (opts.canvas) {
     const rasterAlpha = r.channels === 2 || r.channels === 4;
-    const fill = !spec.hasAlpha
-      ? { ...background, alpha: 1 }
-      : rasterAlpha
-        ? { ...background, alpha: 0 }
-        : background;
+    const fill = { ...background, alpha: spec.hasAlpha && rasterAlpha ? 0 : 1 };
     r = placeOnCanvas(r, opts.canvas, fill);
   }
   const alpha = r.channels === 2 || r.channels === 4;

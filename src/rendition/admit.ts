@@ -6,7 +6,7 @@ import { negotiateFormat } from '../codec/negotiate.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import type { Lease } from '../pool/budget.js';
 import { decodeCost, outputCost, renditionCost, stagingCost } from '../pool/cost.js';
-import { planRendition } from './plan.js';
+import { layoutOf } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
 import { decodeLimits, type ReadSource } from './source.js';
 import { STREAM_MIN_PIXELS } from './streamed.js';
@@ -33,7 +33,7 @@ function formatFor(q: RenditionQuery, accept: string | undefined, hasAlpha: bool
 
 /** Output pixels of the query on this source (the canvas when there is one). */
 function outputPixels(h: SourceHeader, q: RenditionQuery, limits: Limits): number {
-  const { layout } = planRendition(h, q, limits);
+  const layout = layoutOf(h, q, limits);
   const box = layout.canvas ?? { width: layout.targetWidth, height: layout.targetHeight };
   return box.width * box.height;
 }

@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { type Fit, parsePosition } from '../core/layout/index.js';
 import { renamedKernels } from '../core/kernels/index.js';
 import { FoldwiseError } from '../errors.js';
+import { hexColour } from './colour.js';
 import { decimal, digits, parseQuery, type RawQuery } from './query.js';
 
 export const fitModes = ['contain', 'cover', 'fill', 'scale-down'] as const satisfies readonly Fit[];
@@ -22,14 +23,6 @@ function enumError(name: string, values: readonly string[]) {
     const phrase = Object.hasOwn(renamed[name] ?? {}, input) ? renamed[name][input] : undefined;
     return phrase ? `${name} "${input}" ${phrase}` : `${name} must be one of ${values.join(', ')}`;
   };
-}
-
-const hex = /^#?([0-9a-f]{3}|[0-9a-f]{6})$/i;
-
-/** "#abc", "abc", "#aabbcc" or "aabbcc" -> "#aabbcc" (lower case). */
-function normaliseHex(text: string): string {
-  const h = text.replace(/^#/, '').toLowerCase();
-  return `#${h.length === 3 ? [...h].map((c) => c + c).join('') : h}`;
 }
 
 /** Compile-time options of the rendition query: limits and the core's kernel table. */
@@ -70,12 +63,9 @@ export function renditionQueryShape(o: RenditionQueryOptions) {
       .optional()
       .meta({ description: 'Output format. Left out, it is negotiated on Accept and the answer sends Vary: Accept.' }),
     quality: digits('quality', 1, 100).optional().meta({ description: 'Encoder quality; default per format.' }),
-    background: z
-      .string()
-      .regex(hex, 'background must be a hex colour: #rgb or #rrggbb (write # as %23, or leave it out)')
-      .transform(normaliseHex)
-      .default('#ffffff')
-      .meta({ description: 'Colour of contain bars and of alpha flattened into JPEG.' }),
+    background: hexColour('background must be a hex colour: #rgb or #rrggbb (write # as %23, or leave it out)', '#ffffff')
+      // prefault keeps no default in the JSON schema: the OpenAPI text states it here.
+      .meta({ description: 'Colour of contain bars and of alpha flattened into JPEG.', default: '#ffffff' }),
     kernel: z
       .enum(kernels, { error: enumError('kernel', kernels) })
       .default('auto')

@@ -6,7 +6,7 @@ import { writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { tapNextRun } from '../faults/pool-tap.js';
+import { PoolTap } from '../faults/pool-tap.js';
 import { build, type TestApp } from '../helpers/build.js';
 import { writePng } from '../helpers/images.js';
 import { memoryEntries } from './cache-probe.js';
@@ -70,11 +70,12 @@ describe('limits, each with its own code', () => {
 
 describe('deadlines', () => {
   it('render: 503 ERR_RENDER_TIMEOUT when a resample task never finishes', async () => {
-    const held = await build({ config: { limits: { renderTimeoutMs: 50 } } });
+    const tap = new PoolTap();
+    const held = await build({ poolRunner: tap.runner, config: { limits: { renderTimeoutMs: 50 } } });
     try {
       await writePng(held.sourceDir, 'small.png', 64, 64, 3, () => [10, 20, 30]);
       // The held task honours only its abort signal, as a piscina task does when cancelled.
-      tapNextRun(held.app.renderPool, (_original, _task, options) =>
+      tap.nextRun((_original, _task, options) =>
         new Promise((_resolve, reject) => {
           const signal = options?.signal as AbortSignal;
           signal.addEventListener('abort', () => reject(signal.reason), { once: true });

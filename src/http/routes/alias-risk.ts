@@ -1,5 +1,5 @@
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
-import { formatPlanHeader, kernelNames } from '../../core/index.js';
+import { formatPlanHeader, kernelNames, planResponseOf } from '../../core/index.js';
 import { strongEtag } from '../../rendition/key.js';
 import { checkRequestedSize } from '../../rendition/plan.js';
 import { renderRendition } from '../../rendition/service.js';
@@ -8,7 +8,6 @@ import { decodeCost } from '../../pool/cost.js';
 import { decodeLimits, decodeSource, readSource } from '../../rendition/source.js';
 import { serverTiming, StageClock } from '../../rendition/timings.js';
 import { decodeRgb, encodePng, riskMap, spectrumPicture } from '../../risk/pictures/index.js';
-import { planResponseOf } from '../../risk/adaptive.js';
 import { assessRendition, riskBody } from '../../risk/report.js';
 import { compileAliasRiskQuery } from '../../schemas/alias-risk.js';
 import { jsonBody, problemResponses, queryParameters } from '../../schemas/openapi.js';

@@ -45,6 +45,7 @@ export function renditionUrlReader(
       const path = sourcePathOf(url, prefix);
       const query = parse(rawQuery);
       Object.freeze(query.position);
+      Object.freeze(query.background);
       const request: RenditionUrl = Object.freeze({ path, query: Object.freeze(query), canonical: canonicalQuery(query) });
       memo.set(url, request);
       return request;
