@@ -1,4 +1,5 @@
 import type { Browser, BrowserContext, Page, Route } from 'playwright-core';
+import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { build, type TestApp } from '../helpers/build.js';
 import { browserSkipReason, launchBrowser } from '../inspect/browser.js';
@@ -117,6 +118,33 @@ describe.skipIf(browserSkipReason !== undefined)('the manifest <picture> in Chro
       });
     }
   }
+
+  it('the placeholder decodes in Chromium, and the placeholder html shows it in the box until the image arrives', async () => {
+    const { placeholder } = manifest;
+    const context = await browser.newContext({ viewport: { width: 768, height: 900 }, deviceScaleFactor: 1 });
+    try {
+      const { page, held } = await openHeld(context, address, pageOf(manifest.htmlWithPlaceholder));
+      const decoded = await page.evaluate<number[]>(
+        `(async () => { const i = new Image(); i.src = ${JSON.stringify(placeholder.dataUri)}; await i.decode(); return [i.naturalWidth, i.naturalHeight]; })()`,
+      );
+      expect(decoded).toEqual([placeholder.width, placeholder.height]);
+      await held.requested;
+      // While the image is held: the box shows the placeholder, a ramp from green-blue on the
+      // left to red-blue on the right (rampCode), not an empty box.
+      const shot = await page.locator('img').screenshot({ path: process.env.FOLDWISE_SHOTS ? `${process.env.FOLDWISE_SHOTS}/placeholder-held.png` : undefined });
+      const { data, info } = await sharp(shot).raw().toBuffer({ resolveWithObject: true });
+      const px = (x: number) => [...data.subarray((Math.floor(info.height / 2) * info.width + x) * info.channels, (Math.floor(info.height / 2) * info.width + x) * info.channels + 3)];
+      const [left, right] = [px(10), px(info.width - 10)];
+      expect(left[1] - left[0]).toBeGreaterThan(150);
+      expect(right[0] - right[1]).toBeGreaterThan(150);
+      held.release();
+      const done = await page.evaluate<{ shift: number; naturalWidth: number }>(settled);
+      expect(done.naturalWidth).toBeGreaterThan(0);
+      expect(done.shift).toBe(0);
+    } finally {
+      await context.close();
+    }
+  });
 
   it('the same page without width and height does shift (the measurement can fail)', async () => {
     const context = await browser.newContext({ viewport: { width: 768, height: 900 }, deviceScaleFactor: 1 });
