@@ -46,7 +46,9 @@ export interface RenditionQueryOptions {
 export function renditionQueryShape(o: RenditionQueryOptions) {
   const kernels = ['auto', ...o.kernelNames] as [string, ...string[]];
   return {
-    width: digits('width', 1, o.maxDimension).optional().meta({ description: 'Target width in CSS pixels.' }),
+    width: digits('width', 1, o.maxDimension)
+      .optional()
+      .meta({ description: 'Target width in CSS pixels; on /v1/renditions also the keyword hinted (with slot): the width from Client Hints.' }),
     height: digits('height', 1, o.maxDimension).optional().meta({ description: 'Target height in CSS pixels.' }),
     density: decimal('density', 0.5, 4)
       .default(1)
