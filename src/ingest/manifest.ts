@@ -22,7 +22,7 @@ export function assembleManifest(
   formats: readonly IngestFormat[],
   renditions: readonly ManifestRendition[],
   warnings: readonly string[],
-  markup: { sizes?: string; placeholder: Placeholder },
+  markup: { sizes?: string; placeholder: Placeholder; transparent: boolean },
 ): Manifest {
   const rank = (f: string): number => formats.indexOf(f as IngestFormat);
   const ordered = [...renditions]
@@ -42,7 +42,8 @@ export function assembleManifest(
   const widest = last.at(-1) ?? { width: source.width, height: source.height };
   const picture = fallback && { formats, srcset, sizes, fallback, box: { width: widest.width, height: widest.height } };
   const html = picture ? pictureHtml(picture) : '';
-  const htmlWithPlaceholder = picture ? pictureHtml({ ...picture, placeholder }) : '';
+  // A transparent picture would show the placeholder through itself once loaded: no variant.
+  const htmlWithPlaceholder = picture && !markup.transparent ? pictureHtml({ ...picture, placeholder }) : html;
   const src = fallback?.url ?? '';
   return { source, renditions: ordered, srcset, sizes, src, html, placeholder, htmlWithPlaceholder, warnings: [...warnings] };
 }

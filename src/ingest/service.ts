@@ -206,7 +206,7 @@ export class IngestService extends EventEmitter {
     });
     const placeholder = await makePlaceholder(this.render, sourceKey, loaded, (raw) => this.query.parse(raw));
     const source = { key: sourceKey, width: raster.width, height: raster.height };
-    return assembleManifest(source, formats, renditions, writeWarnings(steps), { sizes: options.sizes, placeholder });
+    return assembleManifest(source, formats, renditions, writeWarnings(steps), { sizes: options.sizes, placeholder, transparent: loaded.decoded.hasAlpha });
   }
 }
 

@@ -101,7 +101,7 @@ export const manifestSchema = z
         mean: z.string().meta({ description: 'The mean colour in linear light, as CSS hex #rrggbb.' }),
       })
       .meta({ description: 'A tiny preview for lazy loading, from the rendition pipeline.' }),
-    htmlWithPlaceholder: z.string().meta({ description: 'html that shows the mean colour and the placeholder in the box until the image paints over them.' }),
+    htmlWithPlaceholder: z.string().meta({ description: 'html that shows the mean colour and the placeholder in the box until the image paints over them; the plain html for a picture with transparency.' }),
     warnings: z.array(z.string()).meta({ description: 'Alias-risk warnings in plain words.' }),
   })
   .meta({ title: 'IngestManifest' });

@@ -72,6 +72,13 @@ describe('the manifest placeholder', () => {
     expect(m.html).not.toContain('data:');
   });
 
+  it('gives a transparent picture no placeholder under it (it would show through)', async () => {
+    const rgba = await sharp(Buffer.alloc(64 * 40 * 4, 128), { raw: { width: 64, height: 40, channels: 4 } }).png().toBuffer();
+    const m = (await upload(t.app, rgba, '?widths=32')).json();
+    expect(m.htmlWithPlaceholder).toBe(m.html);
+    expect(m.placeholder.mean).toBe('#808080');
+  });
+
   it('takes sizes from the query, and refuses markup in it', async () => {
     const sizes = '(max-width: 600px) 100vw, 600px';
     const m = (await upload(t.app, sourceBytes, `?widths=160&sizes=${encodeURIComponent(sizes)}`)).json();
