@@ -23,7 +23,8 @@ describe('POST /v1/ingest renders the whole ladder from one decode', () => {
 
   it('resamples every rendition without decoding the source again', async () => {
     expect(manifest.renditions).toHaveLength(4); // 2 widths x the default formats webp, jpeg
-    expect(await stageCount(t, 'resample')).toBe(4);
+    // Four renditions and the 32 px placeholder, all from the one decode.
+    expect(await stageCount(t, 'resample')).toBe(5);
     expect(await stageCount(t, 'decode')).toBe(0);
     expect(await stageCount(t, 'stream')).toBe(0);
   });
