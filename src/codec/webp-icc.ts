@@ -3,7 +3,7 @@
  * RIFF chunks, each a FourCC, a little-endian 32-bit size and the payload padded to even
  * length; VP8X's first byte holds the feature flags, ICC = 0x20). For tiny inline images
  * (the manifest placeholder) the sRGB profile would be most of the bytes, and an untagged
- * image is taken as sRGB by browsers anyway (CSS Color 4: untagged images are sRGB).
+ * image is taken as sRGB by browsers anyway (CSS Color 4: untagged images are sRGB; from memory).
  * Without other features (alpha, metadata, animation) the simple format remains: RIFF + VP8.
  */
 const ICC_FLAG = 0x20;
