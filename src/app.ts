@@ -30,6 +30,7 @@ import metricsRoutes from './http/routes/metrics.js';
 import renditionRoutes from './http/routes/renditions.js';
 import aliasRiskRoutes from './http/routes/alias-risk.js';
 import sourcesRoutes from './http/routes/sources.js';
+import clientHintsPlugin from './http/plugins/client-hints.js';
 import { signingRequired } from './security/signing.js';
 import type { BandRunner } from './pool/runner.js';
 
@@ -93,6 +94,7 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   await app.register(errorsPlugin);
   await app.register(stoppingPlugin, { retryAfterSeconds: config.pool.retryAfterSeconds });
   await app.register(openApiPlugin);
+  await app.register(clientHintsPlugin);
   await app.register(metricsPlugin);
   await app.register(contextPlugin, { config, origin });
   await app.register(pressurePlugin, config.pressure);

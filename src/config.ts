@@ -57,6 +57,14 @@ export const configSchema = z.strictObject({
     decodeTimeoutMs: positiveInt,
     /** Deadline for resampling and encoding one rendition. */
     renderTimeoutMs: positiveInt,
+    /**
+     * Enlargement caps, in output px per source px: `default` for every rendition (1: never
+     * beyond the source, as the upload hook's ladder), `allowed` for one asked with
+     * enlarge=allowed. Past the cap the rendition is made smaller, never refused.
+     */
+    enlargement: z
+      .strictObject({ default: z.number().min(1).max(16), allowed: z.number().min(1).max(16) })
+      .refine((e) => e.allowed >= e.default, 'allowed must be at least default'),
   }),
   pool: z.strictObject({
     /** Worker threads; 0 = one per available core. */

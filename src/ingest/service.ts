@@ -22,6 +22,7 @@ import { Gate } from '../lib/semaphore.js';
 import { JobTable } from './jobs.js';
 import { ladderFor } from './ladder.js';
 import { assembleManifest, type Manifest, type ManifestRendition } from './manifest.js';
+import { makePlaceholder } from './placeholder.js';
 import { OnceByKey } from '../lib/once-by-key.js';
 import { digestOf, keyFor, storeOnce } from './store.js';
 import { renditionUrl } from './urls.js';
@@ -34,6 +35,8 @@ export interface IngestOptions {
   formats?: readonly IngestFormat[];
   /** Rendition parameters for every rung (prefilter, kernel, light), as a rendition URL spells them. */
   rendition?: Readonly<Record<string, string>>;
+  /** The html's sizes attribute; default 100vw. */
+  sizes?: string;
 }
 
 /** Prepared ingest work: `key` identifies the manifest; `compute` builds it. */
@@ -129,7 +132,8 @@ export class IngestService extends EventEmitter {
 
   private optionsKey(options: IngestOptions): string {
     const extra = new URLSearchParams(options.rendition ?? {}).toString();
-    return `${options.widths?.join(',') ?? 'ladder'}|${(options.formats ?? this.config.ingest.formats).join(',')}|${extra}`;
+    const formats = (options.formats ?? this.config.ingest.formats).join(',');
+    return `${options.widths?.join(',') ?? 'ladder'}|${formats}|${extra}|${options.sizes ?? ''}`;
   }
 
   /** Refuses, before any work, rendition parameters the rendition route would refuse (same codes). */
@@ -221,8 +225,9 @@ export class IngestService extends EventEmitter {
         risk: { level: step.level, score: step.score },
       };
     });
+    const placeholder = await makePlaceholder(this.render, sourceKey, loaded, (raw) => this.query.parse(raw));
     const source = { key: sourceKey, width: raster.width, height: raster.height };
-    return assembleManifest(source, formats, renditions, writeWarnings(steps));
+    return assembleManifest(source, formats, renditions, writeWarnings(steps), { sizes: options.sizes, placeholder, transparent: loaded.decoded.hasAlpha });
   }
 }
 

@@ -26,6 +26,23 @@ export interface SourceSpectra {
   known(identity: SourceIdentity): SourceSpectrum | undefined;
 }
 
+/**
+ * The Rendition-Clamped header of a layout the enlargement cap shrank, else undefined: a
+ * structured-field dictionary (RFC 8941) of the size asked and the cap applied.
+ */
+export function clampedHeader(layout: RenditionLayout, q: RenditionQuery, limits: Limits): string | undefined {
+  const c = layout.clamped;
+  if (!c) return undefined;
+  const cap = q.enlarge === 'allowed' ? limits.enlargement.allowed : limits.enlargement.default;
+  return `asked-width=${c.width}, asked-height=${c.height}, limit=${num(cap)}`;
+}
+
+/** An RFC 8941 decimal: at most three fractional digits, at least one. */
+function num(n: number): string {
+  const t = String(Math.round(n * 1000) / 1000);
+  return t.includes('.') ? t : `${t}.0`;
+}
+
 /** Output pixels a query asks for before the source is known (both sides given), else 0. */
 export function requestedPixels(q: RenditionQuery): number {
   return q.width !== undefined && q.height !== undefined ? q.width * q.density * q.height * q.density : 0;
@@ -69,6 +86,7 @@ export function layoutOf(source: Size, q: RenditionQuery, limits: Limits): Rendi
     density: q.density,
     fit: q.fit,
     position: q.position,
+    maxScale: q.enlarge === 'allowed' ? limits.enlargement.allowed : limits.enlargement.default,
   });
   const box = layout.canvas ?? { width: layout.targetWidth, height: layout.targetHeight };
   refuseSide(box.width, box.height, limits);

@@ -14,7 +14,7 @@ import { withDeadline } from '../lib/deadline.js';
 import { formatKey } from './format-key.js';
 import type { IdentityMemo } from './identity.js';
 import { renditionKey, strongEtag } from './key.js';
-import { checkRequestedSize, type PlannedRendition, planRendition, type SourceSpectra } from './plan.js';
+import { checkRequestedSize, clampedHeader, type PlannedRendition, planRendition, type SourceSpectra } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
 import { admitRendition } from './admit.js';
 import { decodeSource, type LoadedSource, type ReadSource, readSource } from './source.js';
@@ -130,18 +130,20 @@ async function produce(
     const body = await ctx.clock.time('encode', () =>
       withDeadline(encoding, deadline, () => ctx.pool.refusal('ERR_RENDER_TIMEOUT', 'encoding took longer than allowed')),
     );
-    return { entry: entryOf(body, format, plan), identity: done.identity };
+    return { entry: entryOf(body, format, plan, clampedHeader(layout, q, ctx.limits)), identity: done.identity };
   } finally {
     void ended.then(() => lease?.release());
   }
 }
 
-function entryOf(body: Buffer, format: OutputFormat, plan: Plan): CacheEntry {
+function entryOf(body: Buffer, format: OutputFormat, plan: Plan, clamped: string | undefined): CacheEntry {
+  const headers: Record<string, string> = { 'rendition-plan': formatPlanHeader(plan) };
+  if (clamped) headers['rendition-clamped'] = clamped;
   return {
     body,
     contentType: formatSpecs[format].contentType,
     etag: strongEtag(body),
-    headers: { 'rendition-plan': formatPlanHeader(plan) },
+    headers,
     createdAt: Date.now(),
   };
 }

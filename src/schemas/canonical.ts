@@ -32,6 +32,7 @@ export function canonicalQuery(q: RenditionQuery): string {
   };
   add('background', hexOf(q.background), '#ffffff');
   add('density', num(q.density), '1');
+  add('enlarge', q.enlarge, 'limited');
   add('fit', fit, 'contain');
   add('format', q.format);
   add('height', q.height === undefined ? undefined : String(q.height));

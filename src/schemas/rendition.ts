@@ -8,6 +8,7 @@ import { decimal, digits, parseQuery, type RawQuery } from './query.js';
 export const fitModes = ['contain', 'cover', 'fill', 'scale-down'] as const satisfies readonly Fit[];
 export const formatChoices = ['jpeg', 'png', 'webp', 'avif'] as const;
 export const lightModes = ['linear', 'encoded'] as const;
+export const enlargeModes = ['limited', 'allowed'] as const;
 export type OutputFormatChoice = (typeof formatChoices)[number];
 
 /** Old spellings of enum values, per parameter, and what a 400 says about each (names the new one). */
@@ -38,7 +39,9 @@ export interface RenditionQueryOptions {
 export function renditionQueryShape(o: RenditionQueryOptions) {
   const kernels = ['auto', ...o.kernelNames] as [string, ...string[]];
   return {
-    width: digits('width', 1, o.maxDimension).optional().meta({ description: 'Target width in CSS pixels.' }),
+    width: digits('width', 1, o.maxDimension)
+      .optional()
+      .meta({ description: 'Target width in CSS pixels; on /v1/renditions also the keyword hinted (with slot): the width from Client Hints.' }),
     height: digits('height', 1, o.maxDimension).optional().meta({ description: 'Target height in CSS pixels.' }),
     density: decimal('density', 0.5, 4)
       .default(1)
@@ -81,6 +84,13 @@ export function renditionQueryShape(o: RenditionQueryOptions) {
       .enum(lightModes, { error: 'light must be linear or encoded' })
       .default('linear')
       .meta({ description: 'Resample in linear light, or in the encoded values (legacy match).' }),
+    enlarge: z
+      .enum(enlargeModes, { error: 'enlarge must be limited or allowed' })
+      .default('limited')
+      .meta({
+        description:
+          'limited (default): at most limits.enlargement.default x the source (1: never beyond it); allowed: up to limits.enlargement.allowed x. Past the cap the rendition is made smaller (same shape) and the answer says so in Rendition-Clamped.',
+      }),
     signature: z
       .string()
       .regex(/^[A-Za-z0-9_-]{1,256}$/, 'signature must be URL-safe base64')

@@ -23,8 +23,9 @@ describe('POST /v1/ingest decodes the upload once and renders the whole ladder f
 
   it('resamples every rendition without decoding the source again', async () => {
     expect(manifest.renditions).toHaveLength(4); // 2 widths x the default formats webp, jpeg
-    expect(await stageCount(t, 'resample')).toBe(4);
-    // The one decode checks the bytes before they are stored and serves every rung.
+    // Four renditions and the 32 px placeholder, all from the one decode, which also checks
+    // the bytes before they are stored.
+    expect(await stageCount(t, 'resample')).toBe(5);
     expect(await stageCount(t, 'decode')).toBe(1);
     expect(await stageCount(t, 'stream')).toBe(0);
   });

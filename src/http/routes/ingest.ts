@@ -63,7 +63,7 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
     const q = parseQuery(query, request.query as Record<string, unknown>);
     const rendition: Record<string, string> = {};
     for (const name of ['prefilter', 'kernel', 'light'] as const) if (q[name] !== undefined) rendition[name] = q[name];
-    const options = { widths: q.widths, formats: q.formats, rendition };
+    const options = { widths: q.widths, formats: q.formats, rendition, sizes: q.sizes };
     const binding = { digest: q.digest, source: q.source };
     if (signedRequests.has(request)) requireBinding(binding);
     const body: unknown = request.body;
