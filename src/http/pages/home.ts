@@ -17,6 +17,8 @@ export interface HomeFacts {
 
 /** Tiles are 240 x 160 CSS px, cropped to fill (fit=cover), with a 2x candidate. */
 const tile = { width: 240, height: 160 };
+/** The picture the form starts on: the inspector's own first picture, where the difference shows most. */
+const firstChoice = 'fabrics/pinstripe.png';
 /** The most pictures the shelf shows; the listing has the rest. */
 const shelfMax = 48;
 
@@ -31,7 +33,7 @@ const places: Array<[string, string, string]> = [
 ];
 
 function tryForm(sources: string[]): string {
-  const options = sources.map((s) => `<option>${esc(s)}</option>`).join('');
+  const options = sources.map((s) => `<option${s === firstChoice ? ' selected' : ''}>${esc(s)}</option>`).join('');
   const field = sources.length > 0
     ? `<label>Picture <select name="source">${options}</select></label>`
     : '<label>Source path <input name="source" required placeholder="fabrics/twill.png"></label>';
@@ -86,7 +88,7 @@ ${places.map(([href, label, about]) => `      <li><a href="${href}">${esc(label)
     </ul>
 ${f.signed ? '' : tryForm(f.sources ?? [])}    <h2 id="pictures">The demo shop\u2019s pictures</h2>
 ${shelf(f)}    <h2 id="use">From a page or a shell</h2>
-    <pre>&lt;img src="${esc(`${renditionsPrefix}${encodePath(example)}?width=480`)}" width="480" alt="\u2026"&gt;
+    <pre>${esc(`<img src="${renditionsPrefix}${encodePath(example)}?width=480" width="480" alt="\u2026">`)}
 
 curl -s '${esc(`${f.origin}${aliasRiskPrefix}${encodePath(example)}?width=480`)}'   # its alias risk, before rendering
 npx foldwise render path/to/picture.png --width 480 -o picture-480.webp   # the same, without a server</pre>

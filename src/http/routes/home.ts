@@ -8,7 +8,7 @@ import { matchesIfNoneMatch } from './conditional.js';
 
 /**
  * GET /: the start page a developer meets when opening the service in a browser.
- * GET /assets/site.css: the stylesheet of the server-made pages.
+ * GET /assets/site.css: the stylesheet of the server-made pages; GET /favicon.ico: to the icon.
  */
 export default async function homeRoutes(app: FastifyInstance, opts: { version: string }): Promise<void> {
   const { listing } = app.config.origin;
@@ -36,6 +36,10 @@ export default async function homeRoutes(app: FastifyInstance, opts: { version: 
       return asPage(reply).header('cache-control', 'no-cache').send(html);
     },
   );
+
+  // Browsers ask for it on every document without a <link rel="icon">, renditions opened
+  // directly among them: send them to the site's icon rather than to a 404.
+  app.get('/favicon.ico', async (_request, reply) => reply.header('cache-control', 'max-age=86400').redirect('/inspect/assets/icon.svg', 301));
 
   const cssEtag = `"${createHash('sha256').update(siteCss).digest('base64url').slice(0, 27)}"`;
   app.get('/assets/site.css', async (request, reply) => {
