@@ -10,6 +10,13 @@ import { browserSkipReason, launchBrowser } from '../../inspect/browser.js';
 import { shown } from '../../inspect/view.js';
 
 const sources = ['fabrics/pinstripe.png', 'fabrics/twill.jpg', 'shop/brick-front.jpg'];
+/**
+ * Every rendition is rendered fresh from a 2000 x 2400 px class source (first request
+ * included); on a shared two-core machine a page's pictures can take tens of seconds, so the
+ * waits are bounded by these generous limits, not by playwright's 30 s default.
+ */
+const waitMs = 150_000;
+const testMs = 300_000;
 
 /** The little of the browser's globals the page reads touch (no DOM library in tests). */
 interface Img {
@@ -39,6 +46,7 @@ describe.skipIf(browserSkipReason)('the start page and the docs in chromium', ()
 
   async function open(deviceScaleFactor = 1): Promise<Page> {
     const page = await browser.newPage({ viewport: { width: 1280, height: 900 }, deviceScaleFactor });
+    page.setDefaultTimeout(waitMs);
     page.on('pageerror', (e) => problems.push(`page error: ${e.message}`));
     page.on('console', (m) => m.type() === 'error' && problems.push(`console: ${m.text()}`));
     return page;
@@ -56,7 +64,7 @@ describe.skipIf(browserSkipReason)('the start page and the docs in chromium', ()
     await t.app.listen({ host: '127.0.0.1', port: 0 });
     base = `http://127.0.0.1:${(t.app.server.address() as AddressInfo).port}`;
     browser = await launchBrowser();
-  });
+  }, testMs);
 
   afterAll(async () => {
     await browser?.close();
@@ -68,7 +76,7 @@ describe.skipIf(browserSkipReason)('the start page and the docs in chromium', ()
     for (const dpr of [1, 2]) {
       const page = await open(dpr);
       await page.goto(`${base}/`);
-      await page.waitForFunction(tilesLoaded);
+      await page.waitForFunction(tilesLoaded, undefined, { timeout: waitMs });
       const seen = await page.evaluate(tiles);
       // Natural sizes are in CSS px (the 2x candidate's 480 x 320 divided by its density).
       expect(seen.map((s) => [s.width, s.height]), `dpr ${dpr}`).toEqual(sources.map(() => [240, 160]));
@@ -80,7 +88,7 @@ describe.skipIf(browserSkipReason)('the start page and the docs in chromium', ()
       await page.close();
     }
     expect(problems).toEqual([]);
-  });
+  }, testMs);
 
   it('follows a tile\u2019s link to its rendition, and the form to the inspector with the risk', async () => {
     const page = await open();
@@ -104,7 +112,7 @@ describe.skipIf(browserSkipReason)('the start page and the docs in chromium', ()
     expect(view.levels.planned).toMatch(/^(low|moderate|high):/);
     await page.close();
     expect(problems).toEqual([]);
-  });
+  }, testMs);
 
   it('/docs reads as a page: the contents lead to each operation; /docs/errors lands on a code', async () => {
     const page = await open();
