@@ -48,7 +48,7 @@ describe('the server\u2019s log as a person and a machine see it', () => {
     const child = spawn(command, args, { env, stdio: ['ignore', 'pipe', 'pipe'] });
     const exited = new Promise<number | null>((resolve) => child.on('close', resolve));
     let log = '';
-    const waiters: Array<() => void> = [];
+    const waiters: Array<() => boolean> = [];
     const seen = (pattern: RegExp) =>
       new Promise<RegExpExecArray>((resolve, reject) => {
         const look = () => {
