@@ -20,8 +20,10 @@ export function typeLine(s: Schema | undefined): string {
   else if (s.type === 'array') parts.push(`array of ${typeLine(s.items as Schema | undefined)}`);
   else if (s.type !== undefined) parts.push(esc([s.type].flat().join(' or ')));
   else parts.push('any');
-  const min = s.minimum ?? s.exclusiveMinimum;
-  const max = s.maximum ?? s.exclusiveMaximum;
+  // zod writes every int's safe-integer range as bounds: they say nothing to a reader.
+  const bound = (v: unknown) => (typeof v === 'number' && Math.abs(v) !== Number.MAX_SAFE_INTEGER ? v : undefined);
+  const min = bound(s.minimum ?? s.exclusiveMinimum);
+  const max = bound(s.maximum ?? s.exclusiveMaximum);
   if (typeof min === 'number' && typeof max === 'number') parts.push(`${min} to ${max}`);
   else if (typeof min === 'number') parts.push(`at least ${min}`);
   else if (typeof max === 'number') parts.push(`at most ${max}`);

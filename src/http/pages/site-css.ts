@@ -31,7 +31,7 @@ h2 { font-size: 1.25rem; margin: 2rem 0 .5rem; padding-bottom: .25rem; border-bo
 h3 { font-size: 1.05rem; margin: 1.25rem 0 .35rem; }
 .lede { font-size: 1.1rem; color: var(--muted); max-width: 48rem; margin-top: 0; }
 .muted { color: var(--muted); }
-.links { display: grid; grid-template-columns: repeat(auto-fill, minmax(15rem, 1fr)); gap: .75rem; padding: 0; list-style: none; }
+.links { display: grid; grid-template-columns: repeat(auto-fill, minmax(10.5rem, 1fr)); gap: .75rem; padding: 0; list-style: none; }
 .links li { background: var(--card); border: 1px solid var(--line); border-radius: 6px; padding: .6rem .9rem; }
 .links a { font-weight: 600; }
 .links span { display: block; color: var(--muted); font-size: .9rem; }
