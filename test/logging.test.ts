@@ -34,7 +34,14 @@ describe('the server\u2019s log as a person and a machine see it', () => {
   let env: NodeJS.ProcessEnv;
   beforeAll(async () => {
     dir = await mkdtemp(join(tmpdir(), 'fw-logs-'));
-    await writeFile(join(dir, 'config.json'), JSON.stringify({ origin: { generateDemo: false, sourceDir: dir }, cache: { dir: join(dir, 'cache') }, pool: { threads: 1 } }));
+    // Load shedding off: a busy machine's start-up stall must not turn the first request into a 503.
+    const config = {
+      origin: { generateDemo: false, sourceDir: dir },
+      cache: { dir: join(dir, 'cache') },
+      pool: { threads: 1 },
+      pressure: { maxEventLoopDelayMs: 0, maxHeapUsedBytes: 0, maxRssBytes: 0 },
+    };
+    await writeFile(join(dir, 'config.json'), JSON.stringify(config));
     env = { ...process.env, FOLDWISE_CONFIG: join(dir, 'config.json'), FOLDWISE_LOG_FORMAT: undefined };
   });
   afterAll(() => rm(dir, { recursive: true, force: true }));
