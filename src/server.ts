@@ -6,7 +6,9 @@ import type { AddressInfo } from 'node:net';
 import { resolve } from 'node:path';
 import { build } from './app.js';
 import { ConfigError, loadConfig } from './config.js';
+import { warmStartPage } from './http/warm-start.js';
 import { pageUrl, serverLogger } from './logging.js';
+import { signingRequired } from './security/signing.js';
 import { installShutdown } from './shutdown.js';
 
 async function main(): Promise<void> {
@@ -26,6 +28,8 @@ async function main(): Promise<void> {
   await app.listen({ host: config.server.host, port: config.server.port });
   const url = pageUrl(app.server.address() as AddressInfo);
   app.log.info({ url, sourceDir: config.origin.sourceDir, cacheDir: config.cache.dir }, `foldwise ready: open ${url} in a browser`);
+  // The demo's start page shows every picture: render its tiles now, before a browser asks.
+  if (config.origin.generateDemo && config.origin.listing && !signingRequired(config.signing)) void warmStartPage(app);
 }
 
 main().catch((error: unknown) => {

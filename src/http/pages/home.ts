@@ -47,13 +47,22 @@ function tryForm(sources: string[]): string {
 `;
 }
 
+/** The URLs of a picture's tile on the start page: the 1x `src` and the 2x candidate. */
+export function tileUrls(path: string): [string, string] {
+  const thumb = `${renditionsPrefix}${encodePath(path)}?width=${tile.width}&height=${tile.height}&fit=cover`;
+  return [thumb, `${thumb}&density=2`];
+}
+
+/** The pictures the shelf shows, in its order. */
+export const shelfSources = (sources: string[]) => sources.slice(0, shelfMax);
+
 function shelfItem(path: string): string {
   const base = `${renditionsPrefix}${encodePath(path)}`;
   const risk = `${aliasRiskPrefix}${encodePath(path)}`;
-  const thumb = `${base}?width=${tile.width}&height=${tile.height}&fit=cover`;
+  const [thumb, thumb2x] = tileUrls(path);
   const inspect = `/inspect?source=${encodePath(path)}&width=320`;
   return `      <li>
-        <a href="${esc(inspect)}"><img src="${esc(thumb)}" srcset="${esc(`${thumb}&density=2`)} 2x" width="${tile.width}" height="${tile.height}" loading="lazy" decoding="async" alt="${esc(path)}"></a>
+        <a href="${esc(inspect)}"><img src="${esc(thumb)}" srcset="${esc(thumb2x)} 2x" width="${tile.width}" height="${tile.height}" loading="lazy" decoding="async" alt="${esc(path)}"></a>
         <div class="about">
           <div class="name">${esc(path)}</div>
           <div class="acts">
@@ -76,7 +85,7 @@ function shelf(f: HomeFacts): string {
   const more = f.sources.length > shelfMax ? `<p class="muted">${f.sources.length - shelfMax} more in <a href="/v1/sources">/v1/sources</a>.</p>` : '';
   return `    <p>Each tile is a rendition made now, ${tile.width} \u00d7 ${tile.height} CSS px, cropped to fill (<code>fit=cover</code>), with a <code>density=2</code> candidate for sharper screens.</p>
     <ul class="shelf">
-${f.sources.slice(0, shelfMax).map(shelfItem).join('\n')}
+${shelfSources(f.sources).map(shelfItem).join('\n')}
     </ul>
     ${more}\n`;
 }
