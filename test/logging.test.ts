@@ -27,6 +27,9 @@ const noScript = existsSync(scriptPath) ? undefined : `${scriptPath} not found: 
 if (noScript) console.warn(noScript);
 
 // Terminal colour codes (ECMA-48 SGR and cursor moves), removed before reading the lines.
+/** The longest wait for one log line (a busy shared machine starts slowly). */
+const waitMs = 45_000;
+
 const ansi = /\u001b\[[0-9;]*[A-Za-z]/g;
 
 describe('the server\u2019s log as a person and a machine see it', () => {
@@ -50,6 +53,8 @@ describe('the server\u2019s log as a person and a machine see it', () => {
    * Starts `command`, waits for the start line, opens its URL and waits for that request's
    * completion line, then stops the server with SIGTERM (sent to the process `server` names:
    * under script(1) the server is script's child); returns the log without colour codes.
+   * Each wait is bounded (waitMs) and fails with the log so far; a server still running when
+   * the test ends, passed or failed, is killed.
    */
   async function startAndStop(command: string, args: string[], server: (pid: number) => number = (pid) => pid) {
     const child = spawn(command, args, { env, stdio: ['ignore', 'pipe', 'pipe'] });
@@ -65,20 +70,30 @@ describe('the server\u2019s log as a person and a machine see it', () => {
         };
         if (!look()) waiters.push(look);
         child.on('close', () => reject(new Error(`server exited before ${pattern}: ${log}`)));
+        setTimeout(() => reject(new Error(`no ${pattern} within ${waitMs} ms: ${log}`)), waitMs).unref();
       });
     child.stdout.setEncoding('utf8').on('data', (d: string) => {
       log += d;
       for (const w of [...waiters]) if (w()) waiters.splice(waiters.indexOf(w), 1);
     });
-    const url = (await seen(/foldwise ready: open (http:\/\/127\.0\.0\.1:\d+\/) in a browser/))[1];
-    const page = await fetch(url, { headers: { accept: 'text/html' } });
-    await page.text();
-    // The request's last line (its status is checked by the caller, from the response).
-    await seen(/request completed/);
-    process.kill(server(child.pid ?? 0), 'SIGTERM');
-    await seen(/shutdown complete/);
-    expect(await exited).toBe(0);
-    return { log: log.replace(ansi, ''), url, page };
+    let serverPid: number | undefined;
+    try {
+      const url = (await seen(/foldwise ready: open (http:\/\/127\.0\.0\.1:\d+\/) in a browser/))[1];
+      serverPid = server(child.pid ?? 0);
+      const page = await fetch(url, { headers: { accept: 'text/html' } });
+      await page.text();
+      // The request's last line (its status is checked by the caller, from the response).
+      await seen(/request completed/);
+      process.kill(serverPid, 'SIGTERM');
+      await seen(/shutdown complete/);
+      expect(await exited).toBe(0);
+      return { log: log.replace(ansi, ''), url, page };
+    } finally {
+      if (child.exitCode === null && child.signalCode === null) {
+        if (serverPid) process.kill(serverPid, 'SIGKILL');
+        child.kill('SIGKILL');
+      }
+    }
   }
 
   it('writes one JSON object per line when stdout is a pipe, the start line among them', async () => {
@@ -87,7 +102,7 @@ describe('the server\u2019s log as a person and a machine see it', () => {
     const lines = log.trim().split('\n');
     const parsed = lines.map((l) => JSON.parse(l) as { msg: string; url?: string });
     expect(parsed.find((l) => l.msg.startsWith('foldwise ready'))).toMatchObject({ url, msg: `foldwise ready: open ${url} in a browser` });
-  });
+  }, 4 * waitMs);
 
   it.skipIf(noScript)('writes readable lines through pino-pretty on a terminal', async () => {
     const serve = [process.execPath, binPath, 'serve', '--port', '0', '--host', '127.0.0.1'].map((a) => `'${a}'`).join(' ');
@@ -100,5 +115,5 @@ describe('the server\u2019s log as a person and a machine see it', () => {
     expect(start).toMatch(new RegExp(`^\\[\\d\\d:\\d\\d:\\d\\d\\.\\d{3}\\] INFO: foldwise ready: open ${url.replace(/[.]/g, '\\.')} in a browser \\{`));
     expect(log).toMatch(/^\[\d\d:\d\d:\d\d\.\d{3}\] INFO: request completed \{.*"statusCode":200/m);
     expect(log).not.toMatch(/^\{"level"/m);
-  });
+  }, 4 * waitMs);
 });
