@@ -13,6 +13,7 @@ const unit = [
   'test/docs/readme.test.ts',
   'test/ingest/{jobs,ladder,store}.test.ts',
   'test/inspect/zoom.test.ts',
+  'test/http/pages/accept.test.ts',
   'test/codec/{decode,decode-layouts,decode-refusals,encode,negotiate,spool-parity,webp-icc}.test.ts',
   'test/lib/single-flight.test.ts',
   'test/origins/{address-guard,folder}.test.ts',

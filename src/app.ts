@@ -24,6 +24,7 @@ import spectraPlugin from './http/plugins/spectra.js';
 import workerPoolPlugin from './http/plugins/worker-pool.js';
 import docsRoutes from './http/routes/docs.js';
 import healthRoutes from './http/routes/health.js';
+import homeRoutes from './http/routes/home.js';
 import ingestRoutes from './http/routes/ingest.js';
 import inspectRoutes from './http/routes/inspect.js';
 import metricsRoutes from './http/routes/metrics.js';
@@ -125,5 +126,6 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   await app.register(metricsRoutes);
   await app.register(docsRoutes, { version: packageVersion });
   await app.register(inspectRoutes);
+  await app.register(homeRoutes, { version: packageVersion });
   return app;
 }
