@@ -23,7 +23,7 @@ export const BANDLIMIT_DESIGN: KaiserSincDesign = { cutoff: 0.49, radius: 5, bet
 
 /** Every kernel the `kernel` parameter accepts, by name. One table, no other registry. */
 const ALL: readonly Kernel[] = [
-  kaiserSinc('bandlimit', BANDLIMIT_DESIGN, 'Kaiser-windowed sinc at the new Nyquist (designed)'),
+  { ...kaiserSinc('bandlimit', BANDLIMIT_DESIGN, 'Kaiser-windowed sinc at the new Nyquist (designed)'), limitsRinging: true },
   lanczos(3),
   lanczos(2),
   // Keys (1981) a = -0.5 equals Mitchell-Netravali B = 0, C = 0.5 (CHECKS.md).
