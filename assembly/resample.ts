@@ -283,16 +283,18 @@ export function quantise8(dst: i32, src: i32, n: i32, thresholds: i32, start: i3
 
 /**
  * The ringing limiter (src/core/resample/limit.ts): each output sample is clamped to the range
- * of the inputs under its central lobe, lobe = [first input, count] per output (i32 pairs).
+ * of the inputs under its central lobe widened by `slack` times its span on either side,
+ * lobe = [first input, count] per output (i32 pairs).
  * f32x4 min and max over lanes, so no branch depends on the data. Pixels are stored lane by
  * lane: a whole-vector store would clamp the next pixel's lanes with this pixel's range.
  */
 export function limit(
   dst: i32, dstBase: i32, dstStep: i32, src: i32, srcBase: i32, srcStep: i32,
-  lanes: i32, lobe: i32, o0: i32, o1: i32,
+  lanes: i32, lobe: i32, o0: i32, o1: i32, slack: f32,
 ): void {
   const sb = <usize>(srcStep << 2);
   const vec = lanes > 4 ? lanes & ~3 : 0;
+  const vs = f32x4.splat(slack);
   for (let o = o0; o < o1; o++) {
     const first = load<i32>(addr(lobe, 2 * o));
     const n = load<i32>(addr(lobe, 2 * o + 1));
@@ -305,7 +307,8 @@ export function limit(
         lo = f32x4.min(lo, x);
         hi = f32x4.max(hi, x);
       }
-      storeLanes(d, f32x4.min(hi, f32x4.max(lo, v128.load(d))), lanes);
+      const m = f32x4.mul(vs, f32x4.sub(hi, lo));
+      storeLanes(d, f32x4.min(f32x4.add(hi, m), f32x4.max(f32x4.sub(lo, m), v128.load(d))), lanes);
       continue;
     }
     for (let i = 0; i < vec; i += 4) {
@@ -316,7 +319,8 @@ export function limit(
         lo = f32x4.min(lo, x);
         hi = f32x4.max(hi, x);
       }
-      v128.store(d + j, f32x4.min(hi, f32x4.max(lo, v128.load(d + j))));
+      const m = f32x4.mul(vs, f32x4.sub(hi, lo));
+      v128.store(d + j, f32x4.min(f32x4.add(hi, m), f32x4.max(f32x4.sub(lo, m), v128.load(d + j))));
     }
     for (let i = vec; i < lanes; i++) {
       const j = <usize>(i << 2);
@@ -326,7 +330,8 @@ export function limit(
         lo = min(lo, x);
         hi = max(hi, x);
       }
-      store<f32>(d + j, min(hi, max(lo, load<f32>(d + j))));
+      const m = slack * (hi - lo);
+      store<f32>(d + j, min(hi + m, max(lo - m, load<f32>(d + j))));
     }
   }
 }

@@ -1,4 +1,4 @@
-import { limitRinging, ringingLimited } from './limit.js';
+import { limitRinging, RING_SLACK, ringingLimited } from './limit.js';
 import type { WeightTable } from './weights.js';
 
 /**
@@ -33,7 +33,7 @@ export function resampleAxis(
   if (!lobe || !ringingLimited()) return;
   const k = table.simd;
   if (k && dst.buffer === k.memory.buffer && src.buffer === dst.buffer && lobe.buffer === dst.buffer) {
-    k.limit(dst.byteOffset, dstBase, dstStep, src.byteOffset, srcBase, srcStep, lanes, lobe.byteOffset, o0, o1);
+    k.limit(dst.byteOffset, dstBase, dstStep, src.byteOffset, srcBase, srcStep, lanes, lobe.byteOffset, o0, o1, RING_SLACK);
   } else {
     limitRinging(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, lobe, o0, o1);
   }
