@@ -283,7 +283,8 @@ export function quantise8(dst: i32, src: i32, n: i32, thresholds: i32, start: i3
 
 /**
  * The ringing limiter (src/core/resample/limit.ts): each output sample is clamped to the range
- * of the inputs under its central lobe widened by `slack` times its span on either side,
+ * of the inputs under its central lobe widened by `slack` times its span (below: at most
+ * `slack` times the lobe's minimum, so a dark ground stays its own colour),
  * lobe = [first input, count] per output (i32 pairs).
  * f32x4 min and max over lanes, so no branch depends on the data. Pixels are stored lane by
  * lane: a whole-vector store would clamp the next pixel's lanes with this pixel's range.
@@ -308,7 +309,8 @@ export function limit(
         hi = f32x4.max(hi, x);
       }
       const m = f32x4.mul(vs, f32x4.sub(hi, lo));
-      storeLanes(d, f32x4.min(f32x4.add(hi, m), f32x4.max(f32x4.sub(lo, m), v128.load(d))), lanes);
+      const below = f32x4.sub(lo, f32x4.min(m, f32x4.mul(vs, lo)));
+      storeLanes(d, f32x4.min(f32x4.add(hi, m), f32x4.max(below, v128.load(d))), lanes);
       continue;
     }
     for (let i = 0; i < vec; i += 4) {
@@ -320,7 +322,8 @@ export function limit(
         hi = f32x4.max(hi, x);
       }
       const m = f32x4.mul(vs, f32x4.sub(hi, lo));
-      v128.store(d + j, f32x4.min(f32x4.add(hi, m), f32x4.max(f32x4.sub(lo, m), v128.load(d + j))));
+      const below = f32x4.sub(lo, f32x4.min(m, f32x4.mul(vs, lo)));
+      v128.store(d + j, f32x4.min(f32x4.add(hi, m), f32x4.max(below, v128.load(d + j))));
     }
     for (let i = vec; i < lanes; i++) {
       const j = <usize>(i << 2);
@@ -331,7 +334,7 @@ export function limit(
         hi = max(hi, x);
       }
       const m = slack * (hi - lo);
-      store<f32>(d + j, min(hi + m, max(lo - m, load<f32>(d + j))));
+      store<f32>(d + j, min(hi + m, max(lo - min(m, slack * lo), load<f32>(d + j))));
     }
   }
 }

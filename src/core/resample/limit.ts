@@ -13,12 +13,13 @@ import type { WeightTable } from './weights.js';
 let limiting = true;
 
 /**
- * The clamp's range is the lobe's [lo, hi] widened by this share of hi - lo on either side.
- * Where the lobe is flat (the far side of an edge, the ground between pinstripes) the clamp is
- * exact, so no halo or black trough survives; where the lobe spans an edge the step may
- * overshoot by at most this share (the 3 % target); a texture's crest between two source
- * samples, which the samples' own range would clip (by up to 1 - cos(pi f) at f cycles per
- * source px), keeps its height.
+ * The clamp's range is the lobe's [lo, hi] widened by this share of hi - lo above, and below
+ * by the smaller of that and this share of lo itself (linear light: a dark ground may darken by
+ * 3 % of its own light at most, not of the step, so it never turns black). Where the lobe is
+ * flat (the far side of an edge, the ground between pinstripes) the clamp is exact, so no halo
+ * or black trough survives; where the lobe spans an edge the step may overshoot by at most this
+ * share (the 3 % target); a texture's crest between two source samples, which the samples' own
+ * range would clip (by up to 1 - cos(pi f) at f cycles per source px), keeps its height.
  */
 export const RING_SLACK = 0.03;
 
@@ -80,9 +81,10 @@ export function limitRinging(
         if (u < lo) lo = u;
         else if (u > hi) hi = u;
       }
-      // The same float32 steps as the SIMD twin: m = slack (hi - lo), then lo - m and hi + m.
-      const m = Math.fround(Math.fround(RING_SLACK) * Math.fround(hi - lo));
-      const floor = Math.fround(lo - m);
+      // The same float32 steps as the SIMD twin: m = slack (hi - lo), hi + m, lo - min(m, slack lo).
+      const slack = Math.fround(RING_SLACK);
+      const m = Math.fround(slack * Math.fround(hi - lo));
+      const floor = Math.fround(lo - Math.min(m, Math.fround(slack * lo)));
       const ceil = Math.fround(hi + m);
       if (v < floor) dst[d + l] = floor;
       else if (v > ceil) dst[d + l] = ceil;
