@@ -91,3 +91,17 @@ export function limitRinging(
     }
   }
 }
+
+/** The limiter after one resampleAxis pass: the SIMD twin when the arrays live in its memory. */
+export function limitPass(
+  dst: Float32Array, dstBase: number, dstStep: number, src: Float32Array, srcBase: number,
+  srcStep: number, lanes: number, table: WeightTable, o0: number, o1: number,
+): void {
+  const { lobe, simd: k } = table;
+  if (!lobe || !limiting) return;
+  if (k && dst.buffer === k.memory.buffer && src.buffer === dst.buffer && lobe.buffer === dst.buffer) {
+    k.limit(dst.byteOffset, dstBase, dstStep, src.byteOffset, srcBase, srcStep, lanes, lobe.byteOffset, o0, o1, RING_SLACK);
+  } else {
+    limitRinging(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, lobe, o0, o1);
+  }
+}

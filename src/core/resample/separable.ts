@@ -1,4 +1,4 @@
-import { limitRinging, RING_SLACK, ringingLimited } from './limit.js';
+import { limitPass } from './limit.js';
 import type { WeightTable } from './weights.js';
 
 /**
@@ -29,14 +29,7 @@ export function resampleAxis(
 ): void {
   if (dst === src) throw new RangeError('resampleAxis works out of place: dst === src');
   filterAxis(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, table, o0, o1);
-  const lobe = table.lobe;
-  if (!lobe || !ringingLimited()) return;
-  const k = table.simd;
-  if (k && dst.buffer === k.memory.buffer && src.buffer === dst.buffer && lobe.buffer === dst.buffer) {
-    k.limit(dst.byteOffset, dstBase, dstStep, src.byteOffset, srcBase, srcStep, lanes, lobe.byteOffset, o0, o1, RING_SLACK);
-  } else {
-    limitRinging(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, lobe, o0, o1);
-  }
+  if (table.lobe) limitPass(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, table, o0, o1);
 }
 
 /** resampleAxis without the ringing limiter: the SIMD twin or the scalar loops. */
