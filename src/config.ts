@@ -18,6 +18,18 @@ export const configSchema = z.strictObject({
     requestTimeoutMs: z.number().int().min(0),
     /** A connection idle this long (no bytes either way) is closed. 0 switches it off. */
     idleTimeoutMs: z.number().int().min(0),
+    /**
+     * The address callers reach the service at (behind a load balancer or CDN), e.g.
+     * "https://img.example.org": manifests, srcset and callbacks carry absolute URLs under it.
+     * null = paths relative to the host the caller used.
+     */
+    publicUrl: z
+      .string()
+      .url()
+      .regex(/^https?:\/\/[^?#]*$/, 'publicUrl must be an http(s) URL without query or fragment')
+      .nullable()
+      .optional()
+      .transform((v) => v?.replace(/\/+$/, '') ?? null),
   }),
   origin: z.strictObject({
     sourceDir: z.string().min(1),
@@ -168,6 +180,7 @@ export const envMap: Record<string, { path: string[]; parse: (v: string) => unkn
   FOLDWISE_CACHE_DIR: { path: ['cache', 'dir'], parse: (v) => v },
   FOLDWISE_REDIS_URL: { path: ['cache', 'redisUrl'], parse: (v) => v },
   FOLDWISE_SPOOL_DIR: { path: ['pool', 'spoolDir'], parse: (v) => v },
+  FOLDWISE_PUBLIC_URL: { path: ['server', 'publicUrl'], parse: (v) => v },
   FOLDWISE_UPSTREAM_HOSTS: {
     path: ['origin', 'upstream', 'allowHosts'],
     parse: (v) => v.split(',').map((h) => h.trim()).filter((h) => h.length > 0),

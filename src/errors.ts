@@ -54,6 +54,8 @@ export const errorCodes = {
   // Never sent: the client has gone. Logged as the outcome of work it abandoned (status 499, common practice).
   ERR_REQUEST_ABANDONED: { status: 499, title: 'The client closed the request before the answer' },
   ERR_MEMORY_STUCK: { status: 503, title: 'Memory stays above its ceiling with no work admitted; restart this replica' },
+  // Issue 13 (replicas): uploads as CMSs send them, the object store, deletion, callbacks.
+  ERR_INGEST_MULTIPART: { status: 400, title: 'A multipart upload must carry exactly one file' },
 } as const satisfies Record<string, { status: number; title: string }>;
 
 export type ErrorCode = keyof typeof errorCodes;

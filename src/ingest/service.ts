@@ -191,7 +191,7 @@ export class IngestService extends EventEmitter {
       const r = await renderRendition({ ...this.render, decoded: loaded, admitted: true }, sourceKey, queryFor(step.width, format));
       this.emit('rendition', { source: sourceKey, width: step.width, format, cache: r.cache, bytes: r.entry.body.length } satisfies RenditionEvent);
       return {
-        url: renditionUrl(sourceKey, step.width, format, this.config.signing.keys[0], extra),
+        url: renditionUrl(sourceKey, step.width, format, this.config.signing.keys[0], extra, this.config.server.publicUrl),
         width: step.width,
         height: step.height,
         format,

@@ -1,9 +1,11 @@
 import type { IncomingMessage } from 'node:http';
+import multipart from '@fastify/multipart';
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import { errorCodes, FoldwiseError } from '../../errors.js';
 import type { IngestWork } from '../../ingest/service.js';
 import { prefersAsync, readUpload } from '../../ingest/upload.js';
 import { toFoldwiseError } from '../plugins/errors.js';
+import { multipartLimits, readMultipart } from './ingest-multipart.js';
 import { ingestQuerySchema, ingestSourceBody, jobSchema, manifestSchema } from '../../schemas/ingest.js';
 import { jsonBody, problemResponses, queryParameters } from '../../schemas/openapi.js';
 import { parseQuery } from '../../schemas/query.js';
@@ -21,7 +23,10 @@ function jobError(e: unknown): { code: string; detail: string } {
 
 function mediaTypeError(request: FastifyRequest): FoldwiseError {
   const type = request.headers['content-type'] ?? 'a body without Content-Type';
-  return new FoldwiseError('ERR_INGEST_MEDIA_TYPE', `cannot ingest ${type}: send image/* bytes or application/json {"source": "..."}`);
+  return new FoldwiseError(
+    'ERR_INGEST_MEDIA_TYPE',
+    `cannot ingest ${type}: send image/* or application/octet-stream bytes, multipart/form-data with one file field, or application/json {"source": "..."}`,
+  );
 }
 
 /**
@@ -35,9 +40,12 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
   const query = ingestQuerySchema(config.limits.maxDimension);
   const limit = config.limits.maxUploadBytes;
 
-  app.addContentTypeParser(/^image\/[a-z0-9.+-]+$/i, (request: FastifyRequest, payload: IncomingMessage) =>
-    readUpload(payload, request.headers['content-length'], limit),
-  );
+  const bytesParser = (request: FastifyRequest, payload: IncomingMessage) => readUpload(payload, request.headers['content-length'], limit);
+  app.addContentTypeParser(/^image\/[a-z0-9.+-]+$/i, bytesParser);
+  // Bytes of no declared type: the format is sniffed from the bytes, as for image/*.
+  app.addContentTypeParser('application/octet-stream', bytesParser);
+  // multipart/form-data: parsed lazily by the handler (readMultipart), one file within the limit.
+  await app.register(multipart, { limits: multipartLimits(limit) });
   // Fastify's built-in text/plain parser would read up to its body limit and answer 413; a text
   // upload is refused as the wrong type (415) before any of its body is read.
   app.removeContentTypeParser('text/plain');
@@ -60,13 +68,20 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
   });
 
   async function workOf(request: FastifyRequest): Promise<IngestWork> {
-    const q = parseQuery(query, request.query as Record<string, unknown>);
+    const form = request.isMultipart() ? await readMultipart(request, limit) : undefined;
+    const raw = { ...(request.query as Record<string, unknown>) };
+    if (form && Object.keys(form.fields).length > 0) {
+      // Form fields are not covered by the URL's signature: a signed upload takes none.
+      if (signedRequests.has(request)) throw new FoldwiseError('ERR_INGEST_MULTIPART', 'a signed upload takes its parameters in the signed URL, not in form fields');
+      for (const [name, value] of Object.entries(form.fields)) raw[name] = name in raw ? [raw[name], value].flat() : value;
+    }
+    const q = parseQuery(query, raw);
     const rendition: Record<string, string> = {};
     for (const name of ['prefilter', 'kernel', 'light'] as const) if (q[name] !== undefined) rendition[name] = q[name];
     const options = { widths: q.widths, formats: q.formats, rendition };
     const binding = { digest: q.digest, source: q.source };
     if (signedRequests.has(request)) requireBinding(binding);
-    const body: unknown = request.body;
+    const body: unknown = form ? form.bytes : request.body;
     if (Buffer.isBuffer(body)) return ingest.fromUpload(body, options, checkUpload(body, binding));
     if (body === undefined || body === null) throw new FoldwiseError('ERR_INGEST_EMPTY', 'the request has no body: send image bytes or JSON naming a source');
     if (!/^application\/json\b/i.test(request.headers['content-type'] ?? '')) throw mediaTypeError(request);
@@ -103,7 +118,7 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
         openapi: {
           summary: 'Ingest a picture: rendition ladder, srcset, alias-risk warnings, pre-rendered cache',
           description:
-            'Body: image bytes (image/*, at most limits.maxUploadBytes) stored under a content-addressed key, or JSON {"source": "path/in/origin"}. With "Prefer: respond-async" the answer is 202 and Location names the job. With signing on, the signed query must name the body: digest (SHA-256 hex of the upload) or source (equal to the JSON body\'s source).',
+            'Body: image bytes (image/* or application/octet-stream; or multipart/form-data with one file field and optional fields named as the query parameters; at most limits.maxUploadBytes) stored under a content-addressed key, or JSON {"source": "path/in/origin"}. With "Prefer: respond-async" the answer is 202 and Location names the job. With signing on, the signed query must name the body: digest (SHA-256 hex of the upload) or source (equal to the JSON body\'s source).',
           tags: ['ingest'],
           parameters: [
             // Comma lists: OpenAPI style form with explode false.
@@ -111,7 +126,11 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
             { name: 'Prefer', in: 'header', required: false, description: 'respond-async (RFC 7240)', schema: { type: 'string' } },
           ],
           requestBody: {
-            content: { 'image/*': {}, 'application/json': { schema: { type: 'object', properties: { source: { type: 'string' } }, required: ['source'] } } },
+            content: {
+              'image/*': {},
+              'application/octet-stream': {},
+              'multipart/form-data': { schema: { type: 'object', properties: { file: { type: 'string', format: 'binary' } } } },
+              'application/json': { schema: { type: 'object', properties: { source: { type: 'string' } }, required: ['source'] } } },
           },
           responses: {
             '200': jsonBody('The manifest', manifestSchema),
