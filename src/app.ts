@@ -10,6 +10,7 @@ import type { Origin } from './origins/types.js';
 import cachePlugin from './http/plugins/cache.js';
 import contextPlugin from './http/plugins/context.js';
 import ingestPlugin from './http/plugins/ingest.js';
+import ingestQueuePlugin from './http/plugins/ingest-queue.js';
 import { clientErrorHandler } from './http/plugins/client-errors.js';
 import stoppingPlugin from './http/plugins/stopping.js';
 import errorsPlugin, { sendProblem, toFoldwiseError } from './http/plugins/errors.js';
@@ -111,6 +112,7 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   });
 
   await app.register(ingestPlugin);
+  await app.register(ingestQueuePlugin);
 
   await app.register(renditionRoutes);
   await app.register(aliasRiskRoutes);

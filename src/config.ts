@@ -164,6 +164,15 @@ export const configSchema = z.strictObject({
     maxJobs: positiveInt,
     /** Finished manifests kept so a repeated ingest does no work. */
     manifestCacheEntries: positiveInt,
+    /**
+     * With Redis (cache.redisUrl) async jobs live on a shared queue: finished jobs are kept this
+     * long for polls; a running job's lock lapses this long after its replica died, and another
+     * replica takes the job over; a job failing for a passing reason (5xx) runs at most
+     * jobAttempts times, with exponential backoff from 1 s.
+     */
+    jobResultSeconds: positiveInt,
+    jobLockMs: z.number().int().min(500),
+    jobAttempts: z.number().int().min(1).max(20),
   }),
 });
 

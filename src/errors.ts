@@ -56,6 +56,7 @@ export const errorCodes = {
   ERR_MEMORY_STUCK: { status: 503, title: 'Memory stays above its ceiling with no work admitted; restart this replica' },
   // Issue 13 (replicas): uploads as CMSs send them, the object store, deletion, callbacks.
   ERR_INGEST_MULTIPART: { status: 400, title: 'A multipart upload must carry exactly one file' },
+  ERR_INGEST_QUEUE_DOWN: { status: 503, title: 'The job queue cannot be reached; retry later' },
 } as const satisfies Record<string, { status: number; title: string }>;
 
 export type ErrorCode = keyof typeof errorCodes;

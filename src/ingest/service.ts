@@ -40,6 +40,8 @@ export interface IngestOptions {
 export interface IngestWork {
   key: string;
   compute: () => Promise<Manifest>;
+  /** The stored source and options, for work handed to another replica (the job queue). */
+  spec?: { source: string; options: IngestOptions };
 }
 
 /** One rendition the service made or found, for observers (metrics, tests). */
@@ -112,7 +114,8 @@ export class IngestService extends EventEmitter {
     const digest = known ?? digestOf(bytes);
     const key = `upload:${digest}|${this.optionsKey(options)}`;
     const stored = this.isDone(key) ? undefined : await this.store(bytes, digest);
-    return { key, compute: async () => this.buildFrom(stored ?? (await this.store(bytes, digest)), options) };
+    const spec = stored === undefined ? undefined : { source: stored, options };
+    return { key, spec, compute: async () => this.buildFrom(stored ?? (await this.store(bytes, digest)), options) };
   }
 
   /** A source already in the origin: identified now (404 here), read and decoded by `compute`. */
@@ -122,7 +125,13 @@ export class IngestService extends EventEmitter {
     return {
       key: `source:${identity.key}@${identity.version}|${this.optionsKey(options)}`,
       compute: () => this.buildFrom(identity.key, options),
+      spec: { source: identity.key, options },
     };
+  }
+
+  /** Work another replica prepared (a queued job): the source is already stored. */
+  fromQueued(key: string, source: string, options: IngestOptions): IngestWork {
+    return { key, compute: () => this.buildFrom(source, options), spec: { source, options } };
   }
 
   private optionsKey(options: IngestOptions): string {

@@ -1,10 +1,11 @@
 import type { IncomingMessage } from 'node:http';
 import multipart from '@fastify/multipart';
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
-import { errorCodes, FoldwiseError } from '../../errors.js';
+import { FoldwiseError } from '../../errors.js';
 import type { IngestWork } from '../../ingest/service.js';
 import { prefersAsync, readUpload } from '../../ingest/upload.js';
-import { toFoldwiseError } from '../plugins/errors.js';
+import { describeFailure } from '../plugins/ingest-queue.js';
+import { queueDown } from '../../ingest/queue.js';
 import { multipartLimits, readMultipart } from './ingest-multipart.js';
 import { ingestQuerySchema, ingestSourceBody, jobSchema, manifestSchema } from '../../schemas/ingest.js';
 import { jsonBody, problemResponses, queryParameters } from '../../schemas/openapi.js';
@@ -17,8 +18,8 @@ export const jobsPrefix = '/v1/ingest/jobs/';
 
 /** A failure as a job shows it: code and a sentence; a 5xx shows only its title. */
 function jobError(e: unknown): { code: string; detail: string } {
-  const fw = toFoldwiseError(e);
-  return { code: fw.code, detail: fw.status >= 500 ? errorCodes[fw.code].title : fw.message };
+  const { code, detail } = describeFailure(e);
+  return { code, detail };
 }
 
 function mediaTypeError(request: FastifyRequest): FoldwiseError {
@@ -91,17 +92,33 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
     return ingest.fromSource(parsed.data.source, options);
   }
 
+  const queue = app.ingestQueue;
+  const retryAfter = String(config.pool.retryAfterSeconds);
+  const stopping = () => new FoldwiseError('ERR_SERVICE_STOPPING', 'the service is stopping and takes no new ingest jobs');
+
+  /** On the shared queue when there is one (and the work can travel), else in this process. */
+  async function startJob(work: IngestWork) {
+    if (queue && work.spec) {
+      if (!queue.accepting) throw stopping();
+      const { source, options } = work.spec;
+      return queue.submit({ key: work.key, source, options }).catch((e: unknown) => {
+        throw queueDown(e, config.pool.retryAfterSeconds);
+      });
+    }
+    if (!ingest.jobs.accepting) throw stopping();
+    return ingest.jobs.start((started) => ingest.run(work, started).value, jobError);
+  }
+
   async function post(request: FastifyRequest, reply: FastifyReply) {
     const work = await workOf(request);
     reply.header('cache-control', 'no-store');
     if (!prefersAsync(request.headers.prefer) || ingest.isDone(work.key)) {
       return reply.send(await ingest.run(work).value);
     }
-    if (!ingest.jobs.accepting) throw new FoldwiseError('ERR_SERVICE_STOPPING', 'the service is stopping and takes no new ingest jobs');
-    const job = ingest.jobs.start((started) => ingest.run(work, started).value, jobError);
+    const job = await startJob(work);
     if (!job) {
       throw new FoldwiseError('ERR_INGEST_JOBS_FULL', `${config.ingest.maxJobs} ingest jobs are unfinished`, {
-        headers: { 'retry-after': String(config.pool.retryAfterSeconds) },
+        headers: { 'retry-after': retryAfter },
       });
     }
     return reply
@@ -151,12 +168,17 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
           summary: 'State of an asynchronous ingest job, with its manifest once done',
           tags: ['ingest'],
           parameters: [{ name: 'id', in: 'path', required: true, schema: { type: 'string' } }],
-          responses: { '200': jsonBody('The job', jobSchema), ...problemResponses(404) },
+          responses: { '200': jsonBody('The job', jobSchema), ...problemResponses(404, 503) },
         },
       },
     },
     async (request: FastifyRequest<{ Params: { id: string } }>, reply) => {
-      const job = ingest.jobs.get(request.params.id);
+      const { id } = request.params;
+      const job = queue
+        ? await queue.get(id).catch((e: unknown) => {
+            throw queueDown(e, config.pool.retryAfterSeconds);
+          })
+        : ingest.jobs.get(id);
       if (!job) throw new FoldwiseError('ERR_INGEST_JOB_NOT_FOUND', 'no ingest job with this id (finished jobs are forgotten after a while)');
       const { result, ...rest } = job;
       return reply.header('cache-control', 'no-store').send({ ...rest, manifest: result });
