@@ -21,6 +21,9 @@ import pressurePlugin from './http/plugins/pressure.js';
 import redisPlugin, { redisSettings } from './http/plugins/redis.js';
 import renderPlugin from './http/plugins/rendition.js';
 import signingPlugin from './http/plugins/signing.js';
+import sourceIndexPlugin from './http/plugins/source-index.js';
+import deletionPlugin from './http/plugins/deletion.js';
+import deleteSourceRoutes from './http/routes/delete-source.js';
 import spectraPlugin from './http/plugins/spectra.js';
 import workerPoolPlugin from './http/plugins/worker-pool.js';
 import docsRoutes from './http/routes/docs.js';
@@ -102,6 +105,7 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   });
   await app.register(workerPoolPlugin, { ...config.pool, rssCeilingBytes: config.pressure.maxRssBytes });
   await app.register(memoryWatchPlugin, config.pressure);
+  await app.register(sourceIndexPlugin);
   await app.register(spectraPlugin);
   await app.register(renderPlugin);
   await app.register(signingPlugin, {
@@ -113,11 +117,13 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
 
   await app.register(ingestPlugin);
   await app.register(ingestQueuePlugin);
+  await app.register(deletionPlugin);
 
   await app.register(renditionRoutes);
   await app.register(aliasRiskRoutes);
   await app.register(ingestRoutes);
   await app.register(sourcesRoutes);
+  await app.register(deleteSourceRoutes);
   await app.register(healthRoutes);
   await app.register(metricsRoutes);
   await app.register(docsRoutes, { version: packageVersion });

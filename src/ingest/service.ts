@@ -79,6 +79,11 @@ export class IngestService extends EventEmitter {
     this.query = compileRenditionQuery({ maxDimension: limits.maxDimension, kernelNames });
   }
 
+  /** Forgets the finished manifests of a source (it was deleted). */
+  forgetSource(sourceKey: string): void {
+    this.manifests.forgetWhere((m) => m.source.key === sourceKey);
+  }
+
   /** Whether the manifest for `key` is already made (a repeat answers at once). */
   isDone(key: string): boolean {
     return this.manifests.has(key);

@@ -24,4 +24,6 @@ export interface Origin {
   read(path: string, signal?: AbortSignal): Promise<SourceBytes>;
   identify(path: string, signal?: AbortSignal): Promise<SourceIdentity>;
   list?(): Promise<SourceListing[]>;
+  /** Deletes a source; false when there was none. Origins that cannot delete leave it out. */
+  remove?(path: string): Promise<boolean>;
 }

@@ -24,6 +24,8 @@ import { type Stage, StageClock, type StageTiming } from './timings.js';
 /** Everything a render needs; no Fastify request, so ingest and the CLI can call it too. */
 export interface RenderContext {
   origin: Origin;
+  /** Told of each rendition stored, by its source's key (the index deletion uses). */
+  onStored?: (source: string, key: string) => void;
   cache: TieredCache;
   flight: Flight<CacheEntry>;
   pool: RenderPool;
@@ -193,6 +195,7 @@ export async function renderRendition(
     const storeKey = read.version === identity.version ? key : renditionKey(read, canonical, fmt);
     if (storeKey !== key) ctx.identities?.forget(path);
     await clock.time('cache', () => ctx.cache.set(storeKey, made));
+    ctx.onStored?.(read.key, storeKey);
     return made;
   }, ctx.signal);
   return { entry, cache: 'miss', timings: clock.timings, key };
