@@ -11,6 +11,7 @@ import cachePlugin from './http/plugins/cache.js';
 import contextPlugin from './http/plugins/context.js';
 import ingestPlugin from './http/plugins/ingest.js';
 import ingestQueuePlugin from './http/plugins/ingest-queue.js';
+import callbacksPlugin from './http/plugins/callbacks.js';
 import { clientErrorHandler } from './http/plugins/client-errors.js';
 import stoppingPlugin from './http/plugins/stopping.js';
 import errorsPlugin, { sendProblem, toFoldwiseError } from './http/plugins/errors.js';
@@ -116,6 +117,7 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   });
 
   await app.register(ingestPlugin);
+  await app.register(callbacksPlugin);
   await app.register(ingestQueuePlugin);
   await app.register(deletionPlugin);
 

@@ -173,6 +173,10 @@ export const configSchema = z.strictObject({
     jobResultSeconds: positiveInt,
     jobLockMs: z.number().int().min(500),
     jobAttempts: z.number().int().min(1).max(20),
+    /** Callback deliveries: attempts at most, the first retry's delay (doubling), one attempt's deadline. */
+    callbackAttempts: z.number().int().min(1).max(20),
+    callbackBaseDelayMs: positiveInt,
+    callbackTimeoutMs: positiveInt,
   }),
 });
 

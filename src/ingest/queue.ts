@@ -56,7 +56,7 @@ function encodeFailure(e: { code: string; detail: string }): string {
   return `${e.code}: ${e.detail}`;
 }
 
-function decodeFailure(reason: string | undefined): { code: string; detail: string } {
+export function decodeFailure(reason: string | undefined): { code: string; detail: string } {
   const m = /^(ERR_[A-Z0-9_]+): ([\s\S]*)$/.exec(reason ?? '');
   return m ? { code: m[1], detail: m[2] } : { code: 'ERR_INTERNAL', detail: 'Internal error' };
 }

@@ -3,7 +3,10 @@
  * replicas built in this process that share one source folder (standing in for a shared store)
  * and one Redis. Tests wait on the queues' `settled` events and the origins' `read` events.
  */
+import { createHmac } from 'node:crypto';
 import { once } from 'node:events';
+import { createServer } from 'node:http';
+import type { AddressInfo } from 'node:net';
 import { mkdtemp, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -16,6 +19,7 @@ import { GatedOrigin } from './replicas.js';
 
 type Node = TestApp & { origin: GatedOrigin; queue: IngestQueue };
 
+const key = 'a signing key for the weaving shop';
 let server: RedisProcess;
 let dir: string;
 
@@ -133,6 +137,43 @@ describe.skipIf(!redisBinary)('ingest jobs on the shared queue', () => {
       expect(job.manifest.renditions.map((r: any) => r.width)).toEqual([64, 128, 64, 128]);
     } finally {
       await d.close();
+    }
+  });
+
+  it('a queued job with a callback: the outcome is POSTed, signed, through the shared callback queue after a failed attempt', async () => {
+    const received: Array<{ body: string; signature: string; time: string }> = [];
+    const statuses = [503, 200];
+    const target = createServer((req, res) => {
+      const chunks: Buffer[] = [];
+      req.on('data', (c: Buffer) => chunks.push(c)).on('end', () => {
+        received.push({ body: Buffer.concat(chunks).toString(), signature: String(req.headers['foldwise-callback-signature']), time: String(req.headers['foldwise-callback-time']) });
+        res.writeHead(statuses.shift() ?? 200).end();
+      });
+    });
+    target.listen(0, '127.0.0.1');
+    await once(target, 'listening');
+    const url = `http://127.0.0.1:${(target.address() as AddressInfo).port}`;
+    const g = await node({
+      signing: { keys: [key], required: false },
+      origin: { upstream: { allowHosts: [url], allowPrivate: true } },
+      ingest: { jobLockMs: 1000, callbackBaseDelayMs: 50 },
+    });
+    try {
+      const delivered = once(g.app.callbacks, 'delivered');
+      const accepted = await g.app.inject({
+        method: 'POST', url: `/v1/ingest?widths=64&callback=${encodeURIComponent(`${url}/done`)}`, headers: { 'content-type': 'image/png' }, payload: await png(100, 60, rampCode(100)),
+      });
+      expect(accepted.statusCode).toBe(202);
+      const [job] = await delivered;
+      expect(job).toBe(accepted.json().id);
+      expect(received).toHaveLength(2);
+      const last = received[1];
+      expect(last.signature).toBe(createHmac('sha256', key).update(`${last.time}.${last.body}`).digest('base64url'));
+      expect(JSON.parse(last.body)).toMatchObject({ job, state: 'done', manifest: { renditions: [{ width: 64 }, { width: 64 }] } });
+    } finally {
+      await g.close();
+      target.closeAllConnections();
+      target.close();
     }
   });
 

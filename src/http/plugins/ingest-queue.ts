@@ -2,7 +2,9 @@ import type { FastifyInstance } from 'fastify';
 import fp from 'fastify-plugin';
 import { Counter } from 'prom-client';
 import { errorCodes } from '../../errors.js';
-import { IngestQueue } from '../../ingest/queue.js';
+import type { Job } from 'bullmq';
+import type { CallbackOutcome } from '../../ingest/callback-sender.js';
+import { decodeFailure, IngestQueue, type QueuedWork } from '../../ingest/queue.js';
 import { toFoldwiseError } from './errors.js';
 
 declare module 'fastify' {
@@ -53,7 +55,15 @@ async function ingestQueuePlugin(app: FastifyInstance): Promise<void> {
     labelNames: ['state'],
     registers: [app.metrics.registry],
   });
-  queue.on('settled', (_id: string, state: string) => settled.inc({ state }));
+  queue.on('settled', (id: string, state: 'done' | 'failed', job: Job) => {
+    settled.inc({ state });
+    const { callback } = job.data as QueuedWork;
+    if (!callback) return;
+    const outcome: CallbackOutcome = { job: id, state, finishedAt: new Date(job.finishedOn ?? Date.now()).toISOString() };
+    if (state === 'done') outcome.manifest = job.returnvalue;
+    else outcome.error = decodeFailure(job.failedReason);
+    app.callbacks.send(callback, outcome).catch((err: unknown) => app.log.error({ err, job: id }, 'callback could not be queued'));
+  });
   // BullMQ reconnects by itself; the errors are logged, rate-limited by the link's own pace.
   queue.on('redis-error', (e: Error) => app.log.warn({ err: e.message }, 'ingest queue: Redis error'));
   app.decorate('ingestQueue', queue);
@@ -75,5 +85,5 @@ async function ingestQueuePlugin(app: FastifyInstance): Promise<void> {
 export default fp(ingestQueuePlugin, {
   name: 'foldwise-ingest-queue',
   fastify: '5.x',
-  dependencies: ['foldwise-context', 'foldwise-metrics', 'foldwise-ingest'],
+  dependencies: ['foldwise-context', 'foldwise-metrics', 'foldwise-ingest', 'foldwise-callbacks'],
 });

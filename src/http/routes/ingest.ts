@@ -4,8 +4,10 @@ import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import { FoldwiseError } from '../../errors.js';
 import type { IngestWork } from '../../ingest/service.js';
 import { prefersAsync, readUpload } from '../../ingest/upload.js';
-import { describeFailure } from '../plugins/ingest-queue.js';
 import { queueDown } from '../../ingest/queue.js';
+import { checkCallbackUrl } from '../../ingest/callback.js';
+import { parseAllowHosts } from '../../origins/http-allowlist.js';
+import { jobStarter } from './ingest-jobs.js';
 import { multipartLimits, readMultipart } from './ingest-multipart.js';
 import { ingestQuerySchema, ingestSourceBody, jobSchema, manifestSchema } from '../../schemas/ingest.js';
 import { jsonBody, problemResponses, queryParameters } from '../../schemas/openapi.js';
@@ -15,12 +17,6 @@ import { checkSource, checkUpload, requireBinding } from '../../security/ingest-
 
 export const ingestPath = '/v1/ingest';
 export const jobsPrefix = '/v1/ingest/jobs/';
-
-/** A failure as a job shows it: code and a sentence; a 5xx shows only its title. */
-function jobError(e: unknown): { code: string; detail: string } {
-  const { code, detail } = describeFailure(e);
-  return { code, detail };
-}
 
 function mediaTypeError(request: FastifyRequest): FoldwiseError {
   const type = request.headers['content-type'] ?? 'a body without Content-Type';
@@ -68,7 +64,7 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
     requireBinding({ digest: raw.digest as string | undefined, source: raw.source as string | undefined });
   });
 
-  async function workOf(request: FastifyRequest): Promise<IngestWork> {
+  async function workOf(request: FastifyRequest): Promise<{ work: IngestWork; callback?: string }> {
     const form = request.isMultipart() ? await readMultipart(request, limit) : undefined;
     const raw = { ...(request.query as Record<string, unknown>) };
     if (form && Object.keys(form.fields).length > 0) {
@@ -83,42 +79,38 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
     const binding = { digest: q.digest, source: q.source };
     if (signedRequests.has(request)) requireBinding(binding);
     const body: unknown = form ? form.bytes : request.body;
-    if (Buffer.isBuffer(body)) return ingest.fromUpload(body, options, checkUpload(body, binding));
+    const callback = callbackOf(q.callback);
+    if (Buffer.isBuffer(body)) return { work: await ingest.fromUpload(body, options, checkUpload(body, binding)), callback };
     if (body === undefined || body === null) throw new FoldwiseError('ERR_INGEST_EMPTY', 'the request has no body: send image bytes or JSON naming a source');
     if (!/^application\/json\b/i.test(request.headers['content-type'] ?? '')) throw mediaTypeError(request);
     const parsed = ingestSourceBody.safeParse(body);
     if (!parsed.success) throw new FoldwiseError('ERR_REQUEST_INVALID', `JSON body: ${parsed.error.issues[0].message}`);
     checkSource(parsed.data.source, binding);
-    return ingest.fromSource(parsed.data.source, options);
+    return { work: await ingest.fromSource(parsed.data.source, options), callback };
   }
 
   const queue = app.ingestQueue;
-  const retryAfter = String(config.pool.retryAfterSeconds);
-  const stopping = () => new FoldwiseError('ERR_SERVICE_STOPPING', 'the service is stopping and takes no new ingest jobs');
+  const startJob = jobStarter(app);
+  const allowed = parseAllowHosts(config.origin.upstream.allowHosts);
 
-  /** On the shared queue when there is one (and the work can travel), else in this process. */
-  async function startJob(work: IngestWork) {
-    if (queue && work.spec) {
-      if (!queue.accepting) throw stopping();
-      const { source, options } = work.spec;
-      return queue.submit({ key: work.key, source, options }).catch((e: unknown) => {
-        throw queueDown(e, config.pool.retryAfterSeconds);
-      });
-    }
-    if (!ingest.jobs.accepting) throw stopping();
-    return ingest.jobs.start((started) => ingest.run(work, started).value, jobError);
+  /** The callback URL, when given: needs a key to sign with, and an allowlisted target. */
+  function callbackOf(text: string | undefined): string | undefined {
+    if (text === undefined) return undefined;
+    if (keys.length === 0) throw new FoldwiseError('ERR_INGEST_CALLBACK_UNSIGNED', 'a callback needs signing.keys: its body is signed with the first key');
+    return checkCallbackUrl(text, allowed).href;
   }
 
   async function post(request: FastifyRequest, reply: FastifyReply) {
-    const work = await workOf(request);
+    const { work, callback } = await workOf(request);
     reply.header('cache-control', 'no-store');
-    if (!prefersAsync(request.headers.prefer) || ingest.isDone(work.key)) {
+    // A callback makes the job asynchronous: its outcome goes to the callback either way.
+    if (!callback && (!prefersAsync(request.headers.prefer) || ingest.isDone(work.key))) {
       return reply.send(await ingest.run(work).value);
     }
-    const job = await startJob(work);
+    const job = await startJob(work, callback);
     if (!job) {
       throw new FoldwiseError('ERR_INGEST_JOBS_FULL', `${config.ingest.maxJobs} ingest jobs are unfinished`, {
-        headers: { 'retry-after': retryAfter },
+        headers: { 'retry-after': String(config.pool.retryAfterSeconds) },
       });
     }
     return reply
