@@ -5,6 +5,7 @@ import type { Flight } from './lib/single-flight.js';
 import type { CacheEntry, CacheTier } from './cache/types.js';
 import type { Config } from './config.js';
 import { createFolderOrigin } from './origins/folder.js';
+import { createS3Origin } from './origins/s3.js';
 import { upstreamFromConfig, withUpstream } from './origins/upstream-route.js';
 import type { Origin } from './origins/types.js';
 import cachePlugin from './http/plugins/cache.js';
@@ -89,9 +90,11 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     done(null, payload);
   });
 
-  const origin =
-    options.origin ??
-    withUpstream(createFolderOrigin(config.origin.sourceDir, { maxBytes: config.limits.maxSourceBytes }), upstreamFromConfig(config));
+  const { storeUrl, s3Endpoint } = config.origin;
+  const local = storeUrl
+    ? createS3Origin({ storeUrl, endpoint: s3Endpoint, maxBytes: config.limits.maxSourceBytes, retryAfterSeconds: config.pool.retryAfterSeconds })
+    : createFolderOrigin(config.origin.sourceDir, { maxBytes: config.limits.maxSourceBytes });
+  const origin = options.origin ?? withUpstream(local, upstreamFromConfig(config));
   await app.register(errorsPlugin);
   await app.register(stoppingPlugin, { retryAfterSeconds: config.pool.retryAfterSeconds });
   await app.register(openApiPlugin);

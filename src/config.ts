@@ -38,6 +38,14 @@ export const configSchema = z.strictObject({
     /** Generate the demo pictures into sourceDir before listening (npm start). */
     generateDemo: z.boolean(),
     /**
+     * s3://bucket/prefix: sources and uploads in an S3-compatible object store instead of
+     * sourceDir (credentials and region from AWS_ACCESS_KEY_ID, AWS_SECRET_ACCESS_KEY,
+     * AWS_REGION). null = the folder origin.
+     */
+    storeUrl: z.string().regex(/^s3:\/\/[a-z0-9][a-z0-9.-]{1,61}[a-z0-9](\/.*)?$/, 'storeUrl must be s3://bucket[/prefix]').nullable().optional(),
+    /** Endpoint of an S3-compatible server, e.g. http://127.0.0.1:9000 (path-style addressing). */
+    s3Endpoint: z.string().url().nullable().optional(),
+    /**
      * HTTP(S) upstreams, reached as /v1/renditions/~upstream/<host>[:port]/<path>. Only the
      * allowlisted origins are fetched; every resolved address must be public unless allowed.
      */
@@ -194,6 +202,8 @@ export const envMap: Record<string, { path: string[]; parse: (v: string) => unkn
   FOLDWISE_REDIS_URL: { path: ['cache', 'redisUrl'], parse: (v) => v },
   FOLDWISE_SPOOL_DIR: { path: ['pool', 'spoolDir'], parse: (v) => v },
   FOLDWISE_PUBLIC_URL: { path: ['server', 'publicUrl'], parse: (v) => v },
+  FOLDWISE_STORE_URL: { path: ['origin', 'storeUrl'], parse: (v) => v },
+  FOLDWISE_S3_ENDPOINT: { path: ['origin', 's3Endpoint'], parse: (v) => v },
   FOLDWISE_UPSTREAM_HOSTS: {
     path: ['origin', 'upstream', 'allowHosts'],
     parse: (v) => v.split(',').map((h) => h.trim()).filter((h) => h.length > 0),

@@ -57,6 +57,7 @@ export const errorCodes = {
   // Issue 13 (replicas): uploads as CMSs send them, the object store, deletion, callbacks.
   ERR_INGEST_MULTIPART: { status: 400, title: 'A multipart upload must carry exactly one file' },
   ERR_INGEST_QUEUE_DOWN: { status: 503, title: 'The job queue cannot be reached; retry later' },
+  ERR_STORE_FAILED: { status: 502, title: 'The object store failed; retry later' },
   ERR_INGEST_CALLBACK_UNSIGNED: { status: 400, title: 'Callbacks need a signing key to sign their bodies' },
 } as const satisfies Record<string, { status: number; title: string }>;
 

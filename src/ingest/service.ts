@@ -164,7 +164,8 @@ export class IngestService extends EventEmitter {
       .finally(() => lease.release());
     const { keyPrefix: prefix, digestChars } = this.config.ingest;
     const sourceKey = keyFor(digest, extensionOf(format), { prefix, digestChars });
-    await storeOnce(this.config.origin.sourceDir, sourceKey, bytes);
+    const origin = this.render.origin;
+    await (origin.write ? origin.write(sourceKey, bytes) : storeOnce(this.config.origin.sourceDir, sourceKey, bytes));
     return sourceKey;
   }
 

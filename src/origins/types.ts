@@ -26,4 +26,6 @@ export interface Origin {
   list?(): Promise<SourceListing[]>;
   /** Deletes a source; false when there was none. Origins that cannot delete leave it out. */
   remove?(path: string): Promise<boolean>;
+  /** Stores bytes under a path unless the same size is there (content-addressed uploads); whether it wrote. */
+  write?(path: string, bytes: Uint8Array): Promise<boolean>;
 }

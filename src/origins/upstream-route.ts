@@ -47,6 +47,7 @@ export function withUpstream(local: Origin, upstream: Origin | undefined): Origi
     },
   };
   if (local.list) origin.list = local.list.bind(local);
+  if (local.write) origin.write = local.write.bind(local);
   if (local.remove) {
     const remove = local.remove.bind(local);
     origin.remove = async (path) => {
