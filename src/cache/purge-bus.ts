@@ -40,6 +40,11 @@ export class PurgeBus {
     const sub = this.link.subscriber();
     if (!this.listening) {
       this.listening = true;
+      // A subscription lost with the connection (or refused before it was up) is made again.
+      sub.on('ready', () => {
+        this.subscribed = undefined;
+        void this.start();
+      });
       sub.on('message', (channel: string, text: string) => {
         if (channel === this.purge) void this.onPurge(text);
         else if (channel === this.purged) this.acks.emit('ack', text);

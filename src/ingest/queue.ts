@@ -143,6 +143,11 @@ export class IngestQueue extends EventEmitter {
     return this.view(job);
   }
 
+  /** Jobs this replica's worker runs now. */
+  get runningCount(): number {
+    return this.running.size;
+  }
+
   /** Resolves once the queue's Redis connection is up (again). */
   ready(): Promise<void> {
     return this.queue.waitUntilReady();

@@ -24,7 +24,7 @@ export interface SpectrumStoreOptions {
   shared?: SharedValues | null;
   /** Called when a shared-tier write fails (the analysis is still served). */
   onSharedError?: (error: unknown) => void;
-  /** Told of each analysis stored in the shared tier, by its source's key (for deletion). */
+  /** Told of each analysis about to be stored in the shared tier, by its source's key (for deletion). */
   onShared?: (source: string, key: string) => void;
 }
 
@@ -80,7 +80,8 @@ export class SpectrumStore {
     const s = this.analyse(raster);
     this.remember(key, raster, s);
     if (key && identity && this.options.shared) {
-      this.options.shared.setValue(key, s).then(() => this.options.onShared?.(identity.key, key), (e) => this.options.onSharedError?.(e));
+      this.options.onShared?.(identity.key, key);
+      this.options.shared.setValue(key, s).catch((e) => this.options.onSharedError?.(e));
     }
     return s;
   }
@@ -113,7 +114,8 @@ export class SpectrumStore {
       });
       this.remember(key, undefined, s);
       if (this.options.shared) {
-        await this.options.shared.setValue(key, s).then(() => this.options.onShared?.(identity.key, key), (e) => this.options.onSharedError?.(e));
+        this.options.onShared?.(identity.key, key);
+        await this.options.shared.setValue(key, s).catch((e) => this.options.onSharedError?.(e));
       }
       return s;
     });

@@ -1,6 +1,6 @@
 import type { FastifyInstance } from 'fastify';
 import fp from 'fastify-plugin';
-import { Counter } from 'prom-client';
+import { Counter, Gauge } from 'prom-client';
 import { errorCodes } from '../../errors.js';
 import type { Job } from 'bullmq';
 import type { CallbackOutcome } from '../../ingest/callback-sender.js';
@@ -54,6 +54,14 @@ async function ingestQueuePlugin(app: FastifyInstance): Promise<void> {
     help: 'Queued ingest jobs this replica finished, by outcome.',
     labelNames: ['state'],
     registers: [app.metrics.registry],
+  });
+  new Gauge({
+    name: 'foldwise_ingest_queue_running',
+    help: 'Queued ingest jobs this replica runs now.',
+    registers: [app.metrics.registry],
+    collect() {
+      this.set(queue.runningCount);
+    },
   });
   queue.on('settled', (id: string, state: 'done' | 'failed', job: Job) => {
     settled.inc({ state });
