@@ -46,7 +46,7 @@ const s3 = new S3Client({ endpoint, forcePathStyle: true, credentials: { accessK
 await s3.send(new CreateBucketCommand({ Bucket: 'shop' }));
 const configFile = join(dir, 'config.json');
 await writeFile(configFile, JSON.stringify({
-  server: { logLevel: 'warn' },
+  server: { logLevel: 'info' },
   origin: { generateDemo: false },
   ingest: { jobLockMs: 3000, maxJobs: 256 },
   pressure: { maxEventLoopDelayMs: 0 },

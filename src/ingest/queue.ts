@@ -171,8 +171,11 @@ export class IngestQueue extends EventEmitter {
     return Promise.race([work, late]).finally(() => clearTimeout(timer));
   }
 
-  private async view(job: Job): Promise<JobView<Manifest>> {
+  private async view(fetched: Job): Promise<JobView<Manifest>> {
+    let job = fetched;
     const state = stateOf[await job.getState()] ?? 'queued';
+    // The job may have ended between its fetch and the state read: fetch it again for its result.
+    if ((state === 'done' || state === 'failed') && !job.finishedOn) job = (await this.queue.getJob(job.id!)) ?? job;
     const view: JobView<Manifest> = { id: job.id!, state, createdAt: new Date(job.timestamp).toISOString() };
     if (job.finishedOn && (state === 'done' || state === 'failed')) view.finishedAt = new Date(job.finishedOn).toISOString();
     if (state === 'done') view.result = job.returnvalue as Manifest;
