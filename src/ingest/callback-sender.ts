@@ -6,7 +6,7 @@
  */
 import { EventEmitter } from 'node:events';
 import { type Job, Queue, Worker } from 'bullmq';
-import { connectionOf } from './queue.js';
+import { connectionOf } from './queue-terms.js';
 
 export interface CallbackOutcome {
   job: string;

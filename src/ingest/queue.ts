@@ -6,11 +6,10 @@
  * idempotent: the job id is derived from the work's key (content digest and options), so the
  * same upload twice is one job, and a job run twice renders into the same cache keys.
  */
-import { createHash } from 'node:crypto';
 import { EventEmitter } from 'node:events';
 import { type Job, Queue, UnrecoverableError, Worker } from 'bullmq';
-import { FoldwiseError } from '../errors.js';
-import type { JobState, JobView } from './jobs.js';
+import type { JobView } from './jobs.js';
+import { connectionOf, decodeFailure, encodeFailure, jobIdOf, stateOf } from './queue-terms.js';
 import type { Manifest } from './manifest.js';
 import type { IngestOptions } from './service.js';
 
@@ -42,35 +41,6 @@ export interface QueueSettings {
 }
 
 const QUEUE = 'ingest';
-
-/** The job's id: a digest of the work key and callback, so equal work is one job. */
-export function jobIdOf(work: Pick<QueuedWork, 'key' | 'callback'>): string {
-  return `j${createHash('sha256').update(`${work.key}\n${work.callback ?? ''}`).digest('hex').slice(0, 32)}`;
-}
-
-/** BullMQ's states in the job vocabulary of the API. */
-const stateOf: Record<string, JobState> = { completed: 'done', failed: 'failed', active: 'running' };
-
-/** A failure as a job keeps it: "CODE: detail" (the message BullMQ stores). */
-function encodeFailure(e: { code: string; detail: string }): string {
-  return `${e.code}: ${e.detail}`;
-}
-
-export function decodeFailure(reason: string | undefined): { code: string; detail: string } {
-  const m = /^(ERR_[A-Z0-9_]+): ([\s\S]*)$/.exec(reason ?? '');
-  return m ? { code: m[1], detail: m[2] } : { code: 'ERR_INTERNAL', detail: 'Internal error' };
-}
-
-export function connectionOf(url: string) {
-  const u = new URL(url);
-  return {
-    host: u.hostname,
-    port: Number(u.port || 6379),
-    username: u.username ? decodeURIComponent(u.username) : undefined,
-    password: u.password ? decodeURIComponent(u.password) : undefined,
-    db: u.pathname.length > 1 ? Number(u.pathname.slice(1)) : undefined,
-  };
-}
 
 export class IngestQueue extends EventEmitter {
   /** False once stopping began: `submit` refuses new jobs. */
@@ -206,12 +176,4 @@ export class IngestQueue extends EventEmitter {
     await this.queue.close();
     return handed;
   }
-}
-
-/** The error a route answers while the queue's Redis is away. */
-export function queueDown(cause: unknown, retryAfterSeconds: number): FoldwiseError {
-  return new FoldwiseError('ERR_INGEST_QUEUE_DOWN', 'the job queue (Redis) cannot be reached; retry later', {
-    cause,
-    headers: { 'retry-after': String(retryAfterSeconds) },
-  });
 }

@@ -4,7 +4,8 @@ import { Counter, Gauge } from 'prom-client';
 import { errorCodes } from '../../errors.js';
 import type { Job } from 'bullmq';
 import type { CallbackOutcome } from '../../ingest/callback-sender.js';
-import { decodeFailure, IngestQueue, type QueuedWork } from '../../ingest/queue.js';
+import { IngestQueue, type QueuedWork } from '../../ingest/queue.js';
+import { decodeFailure } from '../../ingest/queue-terms.js';
 import { toFoldwiseError } from './errors.js';
 
 declare module 'fastify' {

@@ -3,7 +3,7 @@ import { FoldwiseError } from '../../errors.js';
 import type { CallbackOutcome } from '../../ingest/callback-sender.js';
 import type { JobView } from '../../ingest/jobs.js';
 import type { Manifest } from '../../ingest/manifest.js';
-import { queueDown } from '../../ingest/queue.js';
+import { queueDown } from '../../ingest/queue-terms.js';
 import type { IngestWork } from '../../ingest/service.js';
 import { describeFailure } from '../plugins/ingest-queue.js';
 

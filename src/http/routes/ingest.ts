@@ -4,7 +4,7 @@ import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import { FoldwiseError } from '../../errors.js';
 import type { IngestWork } from '../../ingest/service.js';
 import { prefersAsync, readUpload } from '../../ingest/upload.js';
-import { queueDown } from '../../ingest/queue.js';
+import { queueDown } from '../../ingest/queue-terms.js';
 import { checkCallbackUrl } from '../../ingest/callback.js';
 import { parseAllowHosts } from '../../origins/http-allowlist.js';
 import { jobStarter } from './ingest-jobs.js';
