@@ -3,7 +3,7 @@
  * origin's listing and the HTTP layer all read this table instead of repeating its facts.
  */
 
-export type OutputFormat = 'jpeg' | 'png' | 'webp' | 'avif';
+export type OutputFormat = 'jpeg' | 'png' | 'webp' | 'avif' | 'gif';
 
 export interface OutputFormatSpec {
   name: OutputFormat;
@@ -22,6 +22,8 @@ export interface OutputFormatSpec {
    * - WebP effort 2 took 3.9-4.7x with bytes within 1-7 % of effort 6 (7-35x), so 2.
    */
   effort: number | undefined;
+  /** Whether the format can carry an animation (sharp writes WebP's and GIF's). */
+  animates: boolean;
   /** Bits per sample the encoder can write. */
   depths: readonly (8 | 16)[];
   extension: string;
@@ -34,6 +36,7 @@ export const formatSpecs: Readonly<Record<OutputFormat, OutputFormatSpec>> = {
     defaultQuality: 82,
     hasAlpha: false,
     effort: undefined,
+    animates: false,
     depths: [8],
     extension: 'jpg',
   },
@@ -43,6 +46,7 @@ export const formatSpecs: Readonly<Record<OutputFormat, OutputFormatSpec>> = {
     defaultQuality: undefined,
     hasAlpha: true,
     effort: undefined,
+    animates: false,
     depths: [8, 16],
     extension: 'png',
   },
@@ -52,6 +56,7 @@ export const formatSpecs: Readonly<Record<OutputFormat, OutputFormatSpec>> = {
     defaultQuality: 80,
     hasAlpha: true,
     effort: 2,
+    animates: true,
     depths: [8],
     extension: 'webp',
   },
@@ -62,8 +67,20 @@ export const formatSpecs: Readonly<Record<OutputFormat, OutputFormatSpec>> = {
     defaultQuality: 55,
     hasAlpha: true,
     effort: 0,
+    animates: false,
     depths: [8],
     extension: 'avif',
+  },
+  gif: {
+    name: 'gif',
+    contentType: 'image/gif',
+    defaultQuality: undefined,
+    hasAlpha: true,
+    // libimagequant's and cgif's effort through sharp (1..10, sharp's default 7; common practice).
+    effort: 7,
+    animates: true,
+    depths: [8],
+    extension: 'gif',
   },
 };
 

@@ -3,7 +3,7 @@ import { readHeader } from '../codec/header.js';
 import type { Lease } from '../pool/budget.js';
 import { decodeCost, outputCost, stagingCost } from '../pool/cost.js';
 import type { RenderPool } from '../pool/render-pool.js';
-import { decodeLimits } from '../rendition/source.js';
+import { decodeLimits, ladderWish } from '../rendition/source.js';
 import type { IngestFormat } from '../schemas/ingest.js';
 import { heightFor, ladderFor } from './ladder.js';
 
@@ -31,7 +31,7 @@ export async function admitLadder(
   limits: Limits,
   opts: { widths?: readonly number[]; formats: readonly IngestFormat[]; concurrency: number },
 ): Promise<LadderLease> {
-  const h = await readHeader(bytes, decodeLimits(limits));
+  const h = await readHeader(bytes, decodeLimits(limits), ladderWish);
   const widest = Math.max(...ladderFor(h.width, opts.widths));
   const pixels = widest * heightFor(h.width, h.height, widest);
   const perRendition = stagingCost(h) + Math.max(...opts.formats.map((f) => outputCost(h, pixels, f)));

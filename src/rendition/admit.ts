@@ -8,7 +8,7 @@ import type { Lease } from '../pool/budget.js';
 import { decodeCost, outputCost, renditionCost, stagingCost } from '../pool/cost.js';
 import { planRendition } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
-import { decodeLimits, type ReadSource } from './source.js';
+import { decodeLimits, type ReadSource, wishOf } from './source.js';
 import { STREAM_MIN_PIXELS } from './streamed.js';
 import type { StageClock } from './timings.js';
 
@@ -51,12 +51,13 @@ export async function admitRendition(
   accept: string | undefined,
 ): Promise<Lease> {
   if ('bytes' in source) {
-    const h = await ctx.clock.time('decode', () => readHeader(source.bytes, decodeLimits(ctx.limits)));
-    const streamed = ctx.pool.spool !== null && !h.hasAlpha && h.width * h.height >= STREAM_MIN_PIXELS;
+    const h = await ctx.clock.time('decode', () => readHeader(source.bytes, decodeLimits(ctx.limits), wishOf(q)));
+    const streamed = ctx.pool.spool !== null && !h.hasAlpha && (h.frames ?? 1) === 1 && h.width * h.height >= STREAM_MIN_PIXELS;
     const bytes = renditionCost(h, outputPixels(h, q, ctx.limits), formatFor(q, accept, h.hasAlpha), streamed);
     // Streamed, the source is in a spool file, not in this process's buffers.
     const held = streamed ? 0 : decodeCost(h) + stagingCost(h);
-    return ctx.pool.admit(bytes, `a ${h.width}x${h.height} ${8 * h.bytesPerSample}-bit ${h.channels}-channel source`, ctx.signal, held);
+    const frames = (h.frames ?? 1) > 1 ? ` of ${h.frames} frames (pixels counted over every frame)` : '';
+    return ctx.pool.admit(bytes, `a ${h.width}x${h.height} ${8 * h.bytesPerSample}-bit ${h.channels}-channel source${frames}`, ctx.signal, held);
   }
   const h = headerOf(source.raster, source.hasAlpha);
   const bytes = stagingCost(h) + outputCost(h, outputPixels(h, q, ctx.limits), formatFor(q, accept, h.hasAlpha));

@@ -5,7 +5,7 @@ import type { SourceIdentity } from '../origins/types.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import { type PlannedRendition, planRendition } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
-import { decodeLimits, type ReadSource } from './source.js';
+import { decodeLimits, type ReadSource, wishOf } from './source.js';
 import type { StageClock } from './timings.js';
 
 /**
@@ -62,7 +62,7 @@ function streamPlan(ctx: StreamContext, size: { width: number; height: number },
 export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSource, q: RenditionQuery): Promise<StreamedRendition | null> {
   const spool = ctx.pool.spool;
   if (!spool) return null;
-  const probe = await ctx.clock.time('decode', () => probeSpooledDecode(source.bytes, decodeLimits(ctx.limits)));
+  const probe = await ctx.clock.time('decode', () => probeSpooledDecode(source.bytes, decodeLimits(ctx.limits), wishOf(q)));
   if (!probe || probe.width * probe.height < STREAM_MIN_PIXELS) return null;
   const planned = streamPlan(ctx, probe, q, source.identity);
   if (!planned) return null;

@@ -67,6 +67,11 @@ export const manifestSchema = z
       key: z.string().meta({ description: 'Path of the source in the folder origin.' }),
       width: z.number().int(),
       height: z.number().int(),
+      frames: z
+        .number()
+        .int()
+        .optional()
+        .meta({ description: 'Present when the source is animated: its frame count. WebP and GIF renditions keep every frame; other formats show the first. Widths and risk come from the first frame.' }),
     }),
     renditions: z.array(
       z.object({

@@ -46,7 +46,8 @@ export default async function aliasRiskRoutes(app: FastifyInstance): Promise<voi
       const header = await readHeader(read.bytes, decodeLimits(ctx.limits));
       const lease = await ctx.pool.admit(2 * decodeCost(header), `analysing a ${header.width}x${header.height} source`);
       try {
-        const { decoded } = await decodeSource(read, ctx.limits, clock);
+        // The source's own gamut (luminance with its primaries' coefficients); an animation's first frame.
+        const { decoded } = await decodeSource(read, ctx.limits, clock, { gamut: 'source', frames: 0 });
         const start = performance.now();
         const s = analyse(decoded.raster);
         analyseMs = performance.now() - start;
