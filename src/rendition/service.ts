@@ -4,7 +4,6 @@ import type { CacheEntry } from '../cache/types.js';
 import type { Limits } from '../config.js';
 import { formatPlanHeader } from '../core/index.js';
 import type { PixelRaster, Plan } from '../core/types.js';
-import { encodeImage } from '../codec/encode.js';
 import { formatSpecs, type OutputFormat } from '../codec/formats.js';
 import { negotiateAnimated, negotiateFormat } from '../codec/negotiate.js';
 import type { Animation } from '../codec/decode.js';
@@ -21,6 +20,7 @@ import type { RenderPool } from '../pool/render-pool.js';
 import { admitRendition } from './admit.js';
 import { decodeSource, type LoadedSource, type ReadSource, readSource, servesWish, wishOf } from './source.js';
 import { resampleWhileDecoding } from './streamed.js';
+import { encodeSmallest, fallbackFormat } from './smallest.js';
 import { type Stage, StageClock, type StageTiming } from './timings.js';
 
 /** Everything a render needs; no Fastify request, so ingest and the CLI can call it too. */
@@ -144,10 +144,11 @@ async function produce(
     const done = await resampleSource(ctx, source, q);
     const { raster, layout, plan, deadline } = done;
     const negotiated = done.animation ? negotiateAnimated(accept) : negotiateFormat(accept, done.hasAlpha);
-    const format: OutputFormat = q.format ?? negotiated;
-    const encoding = encodeImage(raster, { format, quality: q.quality, background: q.background, canvas: layout.canvas, animation: done.animation });
+    const fallback = fallbackFormat(done.animation !== undefined, done.hasAlpha);
+    const options = { quality: q.quality, background: q.background, canvas: layout.canvas, animation: done.animation };
+    const encoding = encodeSmallest(raster, options, q.format ?? negotiated, q.format === undefined, fallback);
     ended = encoding.catch(() => undefined);
-    const body = await ctx.clock.time('encode', () =>
+    const { body, format } = await ctx.clock.time('encode', () =>
       withDeadline(encoding, deadline, () => ctx.pool.refusal('ERR_RENDER_TIMEOUT', 'encoding took longer than allowed')),
     );
     return { entry: entryOf(body, format, plan), identity: done.identity };
