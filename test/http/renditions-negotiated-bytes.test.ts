@@ -1,12 +1,16 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { demoImages, ensureDemoImages } from '../../tools/demo/index.js';
+import { demoExtras } from '../../tools/demo/extras.js';
 import { build, type TestApp } from '../helpers/build.js';
 
 // A negotiated format never answers more bytes than the fallback (JPEG, PNG with alpha, GIF
 // for animations) at the service's settings, on the demo shop's pictures.
 
 const accepts = ['image/avif,image/webp,*/*', 'image/webp,*/*'];
-const cases = demoImages.flatMap((d) => [640, ...(d.path === 'fabrics/herringbone.jpg' ? [1280] : [])].map((w) => [d.path, w] as const));
+const cases = [
+  ...demoImages.flatMap((d) => [640, ...(d.path === 'fabrics/herringbone.jpg' ? [1280] : [])].map((w) => [d.path, w] as const)),
+  ...demoExtras.map((d) => [d.path, 320] as const),
+];
 
 describe('negotiated formats never cost bytes', () => {
   let t: TestApp;
