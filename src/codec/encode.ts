@@ -106,9 +106,10 @@ export async function encodeImage(raster: PixelRaster, opts: EncodeOptions): Pro
         .jpeg({ quality, progressive: false, optimiseCoding: true, chromaSubsampling: quality! >= 90 ? '4:4:4' : '4:2:0' })
         .toBuffer();
     case 'webp':
-      return img.withIccProfile(profile).webp({ quality, effort: spec.effort, smartSubsample: true, ...motion }).toBuffer();
+      return img.withIccProfile(profile).webp({ quality, effort: spec.effort, ...motion }).toBuffer();
     case 'avif':
-      return img.withIccProfile(profile).avif({ quality, effort: spec.effort }).toBuffer();
+      // 4:2:0 at equal SSIM took 0.83x the JPEG's bytes against 0.91x for 4:4:4 (formats.ts).
+      return img.withIccProfile(profile).avif({ quality, effort: spec.effort, chromaSubsampling: '4:2:0' }).toBuffer();
   }
 }
 

@@ -30,7 +30,7 @@ export function ingestQuerySchema(maxDimension: number) {
       .meta({ description: 'Comma list of widths; default 160..2560 capped at the source width.' }),
     formats: commaList('formats', z.enum(ingestFormats, 'formats: each must be webp, avif, jpeg or png'), ingestFormats.length)
       .optional()
-      .meta({ description: 'Comma list of formats; default ingest.formats (webp,jpeg).' }),
+      .meta({ description: 'Comma list of formats; default ingest.formats (avif,jpeg: measured, see README).' }),
     digest: z
       .string()
       .regex(/^[0-9a-f]{64}$/, 'digest must be the SHA-256 of the upload as 64 lowercase hex characters')

@@ -40,7 +40,7 @@ describe('POST /v1/ingest with image bytes', () => {
   it('lists one rendition per width and format, never wider than the source', () => {
     const widths = [80, 160, 240, 300];
     expect(manifest.renditions.map((r: any) => `${r.format}:${r.width}x${r.height}`)).toEqual(
-      ['webp', 'jpeg'].flatMap((f) => widths.map((w) => `${f}:${w}x${Math.round((w * 200) / 300)}`)),
+      ['avif', 'jpeg'].flatMap((f) => widths.map((w) => `${f}:${w}x${Math.round((w * 200) / 300)}`)),
     );
     for (const r of manifest.renditions) {
       expect(r.url).toBe(`/v1/renditions/${manifest.source.key}?width=${r.width}&format=${r.format}`);
@@ -55,7 +55,7 @@ describe('POST /v1/ingest with image bytes', () => {
   });
 
   it('gives a srcset per format that parses (HTML Living Standard) with ascending w descriptors', () => {
-    expect(Object.keys(manifest.srcset)).toEqual(['webp', 'jpeg']);
+    expect(Object.keys(manifest.srcset)).toEqual(['avif', 'jpeg']);
     for (const [format, srcset] of Object.entries(manifest.srcset as Record<string, string>)) {
       const parsed = parseSrcset(srcset);
       const widths = widthDescriptors(parsed);
@@ -74,7 +74,7 @@ describe('POST /v1/ingest with image bytes', () => {
     expect(manifest.html).toBe(
       [
         '<picture>',
-        `  <source type="image/webp" srcset="${esc(manifest.srcset.webp)}" sizes="${manifest.sizes}">`,
+        `  <source type="image/avif" srcset="${esc(manifest.srcset.avif)}" sizes="${manifest.sizes}">`,
         `  <img src="${esc(jpeg300.url)}" srcset="${esc(manifest.srcset.jpeg)}" sizes="${manifest.sizes}" width="300" height="200" alt="">`,
         '</picture>',
       ].join('\n'),

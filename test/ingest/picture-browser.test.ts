@@ -29,7 +29,7 @@ describe.skipIf(browserSkipReason !== undefined)('the manifest <picture> in Chro
     // at device pixel ratio 1 the browser takes the narrowest candidate at least that wide.
     [150, 160],
     [700, 300],
-  ])('at a %i px viewport it loads the %i px WebP', async (viewport, expected) => {
+  ])("at a %i px viewport it loads the %i px AVIF (first of the upload hook's default formats)", async (viewport, expected) => {
     const page = await browser.newPage({ viewport: { width: viewport, height: 400 }, deviceScaleFactor: 1 });
     try {
       await page.goto(`${address}/healthz`);
@@ -42,7 +42,7 @@ describe.skipIf(browserSkipReason !== undefined)('the manifest <picture> in Chro
       expect(img.sources).toBe(1);
       const chosen = new URL(img.src);
       expect(chosen.origin).toBe(address);
-      expect(chosen.search).toBe(`?width=${expected}&format=webp`);
+      expect(chosen.search).toBe(`?width=${expected}&format=avif`);
       // Loaded and decoded. (naturalWidth itself is density-corrected: width / (w / slot).)
       expect(img.loaded).toBe(true);
     } finally {
