@@ -34,7 +34,7 @@ function formatFor(q: RenditionQuery, accept: string | undefined, hasAlpha: bool
 
 /** A negotiated format is encoded alongside its fallback (smallest.ts): that encoder's bytes too. */
 function fallbackEncoder(h: SourceHeader, q: RenditionQuery, pixels: number): number {
-  if (q.format !== undefined) return 0;
+  if (q.format !== undefined) return 0; // (an over-estimate when Accept picks a fallback itself)
   return pixels * (h.frames ?? 1) * ENCODER_BYTES_PER_PIXEL[fallbackFormat((h.frames ?? 1) > 1, h.hasAlpha)];
 }
 

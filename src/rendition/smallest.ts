@@ -15,7 +15,7 @@ export interface Encoded {
 
 /**
  * Encodes `raster` in `format`. When the format was negotiated (the request named none) and is
- * not the fallback, the fallback is encoded alongside (concurrently: libvips runs each on its
+ * WebP or AVIF, the fallback is encoded alongside (concurrently: libvips runs each on its
  * own thread) and the smaller answer wins, the fallback on a tie: a negotiated format must
  * save bytes, never spend them (the demo's twill came out 7 % larger as WebP than as JPEG).
  * The choice is cached with the rendition, under the key of the Accept header's choices, so
@@ -28,7 +28,9 @@ export async function encodeSmallest(
   negotiated: boolean,
   fallback: OutputFormat,
 ): Promise<Encoded> {
-  if (!negotiated || format === fallback) return { body: await encodeImage(raster, { ...opts, format }), format };
+  // Only WebP and AVIF are weighed: a client that accepts only PNG (say) gets PNG, not a JPEG.
+  const weighed = negotiated && format !== fallback && (format === 'webp' || format === 'avif');
+  if (!weighed) return { body: await encodeImage(raster, { ...opts, format }), format };
   const [body, plain] = await Promise.all([encodeImage(raster, { ...opts, format }), encodeImage(raster, { ...opts, format: fallback })]);
   return body.length < plain.length ? { body, format } : { body: plain, format: fallback };
 }

@@ -35,3 +35,17 @@ describe('negotiated formats never cost bytes', () => {
     }
   });
 });
+
+describe('the bytes rule weighs only WebP and AVIF', () => {
+  let t: TestApp;
+  beforeAll(async () => {
+    t = await build();
+    await ensureDemoImages(t.sourceDir);
+  }, 120_000);
+  afterAll(() => t.close());
+
+  it('a client that accepts only PNG gets PNG, even where a JPEG would be smaller', async () => {
+    const res = await t.app.inject({ url: '/v1/renditions/fabrics/twill.jpg?width=200', headers: { accept: 'image/png' } });
+    expect(res.headers['content-type']).toBe('image/png');
+  });
+});
