@@ -66,15 +66,16 @@ export async function encodeImage(raster: PixelRaster, opts: EncodeOptions): Pro
   }
   const animated = opts.animation !== undefined && opts.animation.frames > 1 && spec.animates;
   if (opts.animation && !animated) r = firstFrame(r, opts.animation.frames);
-  const p3 = raster.gamut === 'display-p3' && r.channels >= 3 && opts.format !== 'gif';
+  const p3 = raster.gamut === 'display-p3' && r.channels >= 3;
   // sharp tags without converting only from a 16-bit raster: its processing profile for 16-bit
-  // input is P3, so the P3 output transform is the identity (measured: codes kept exactly).
+  // input is P3, so the P3 output transform is the identity (measured: codes kept exactly),
+  // and the sRGB one (GIF, which has no colour tag) a conversion from P3.
   if (p3 && !(r.data instanceof Uint16Array)) r = to16Bit(r);
   const alpha = r.channels === 2 || r.channels === 4;
   const deep = r.data instanceof Uint16Array && !p3;
   const pageHeight = animated ? r.height / opts.animation!.frames : undefined;
   let img = sharp(r.data, { raw: { width: r.width, height: r.height, channels: r.channels, ...(pageHeight ? { pageHeight } : {}) } });
-  const profile = p3 ? 'p3' : 'srgb';
+  const profile = p3 && opts.format !== 'gif' ? 'p3' : 'srgb';
   const motion = animated ? { loop: opts.animation!.loop, delay: opts.animation!.delays } : {};
 
   switch (opts.format) {
@@ -91,6 +92,7 @@ export async function encodeImage(raster: PixelRaster, opts: EncodeOptions): Pro
       return tagPngSrgb(png);
     }
     case 'gif':
+      if (p3) img = img.withIccProfile('srgb').toColourspace('srgb');
       return img.gif({ ...motion, effort: spec.effort }).toBuffer();
     case 'jpeg':
       if (alpha) img = img.flatten({ background: { r: background.r, g: background.g, b: background.b } });
