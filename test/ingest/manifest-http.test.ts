@@ -134,3 +134,21 @@ describe('POST /v1/ingest with JSON naming a source', () => {
     });
   });
 });
+
+describe('POST /v1/ingest with an animated GIF', () => {
+  it('says the source is animated; WebP renditions keep every frame, AVIF and JPEG show the first', async () => {
+    const sharp = (await import('sharp')).default;
+    const frames = 3;
+    const data = new Uint8Array(120 * 80 * frames * 3).map((_, i) => 60 * Math.floor(i / (120 * 80 * 3)) + 40);
+    const gif = await sharp(data, { raw: { width: 120, height: 80 * frames, channels: 3, pageHeight: 80 } }).gif({ delay: [100, 100, 100] }).toBuffer();
+    const res = await upload(t.app, gif, '?widths=60,120&formats=webp,avif,jpeg');
+    expect(res.statusCode).toBe(200);
+    const m = res.json();
+    expect(m.source).toMatchObject({ width: 120, height: 80, frames: 3 });
+    for (const r of m.renditions) {
+      const got = await t.app.inject({ url: r.url });
+      const meta = await sharp(got.rawPayload).metadata();
+      expect([r.format, meta.pages ?? 1, r.height]).toEqual([r.format, r.format === 'webp' ? 3 : 1, (r.width * 80) / 120]);
+    }
+  });
+});
