@@ -280,3 +280,61 @@ export function quantise8(dst: i32, src: i32, n: i32, thresholds: i32, start: i3
     store<u8>(<usize>(dst + i), code);
   }
 }
+
+/**
+ * The ringing limiter (src/core/resample/limit.ts): each output sample is clamped to the range
+ * of the inputs under its central lobe widened by `slack` times its span (below: at most
+ * `slack` times the lobe's minimum, so a dark ground stays its own colour),
+ * lobe = [first input, count] per output (i32 pairs).
+ * f32x4 min and max over lanes, so no branch depends on the data. Pixels are stored lane by
+ * lane: a whole-vector store would clamp the next pixel's lanes with this pixel's range.
+ */
+export function limit(
+  dst: i32, dstBase: i32, dstStep: i32, src: i32, srcBase: i32, srcStep: i32,
+  lanes: i32, lobe: i32, o0: i32, o1: i32, slack: f32,
+): void {
+  const sb = <usize>(srcStep << 2);
+  const vec = lanes > 4 ? lanes & ~3 : 0;
+  const vs = f32x4.splat(slack);
+  for (let o = o0; o < o1; o++) {
+    const first = load<i32>(addr(lobe, 2 * o));
+    const n = load<i32>(addr(lobe, 2 * o + 1));
+    const d = addr(dst, dstBase + o * dstStep);
+    const s = addr(src, srcBase + first * srcStep);
+    if (lanes <= 4) {
+      let lo = v128.load(s), hi = lo;
+      for (let k = 1; k < n; k++) {
+        const x = v128.load(s + <usize>k * sb);
+        lo = f32x4.min(lo, x);
+        hi = f32x4.max(hi, x);
+      }
+      const m = f32x4.mul(vs, f32x4.sub(hi, lo));
+      const below = f32x4.sub(lo, f32x4.min(m, f32x4.mul(vs, lo)));
+      storeLanes(d, f32x4.min(f32x4.add(hi, m), f32x4.max(below, v128.load(d))), lanes);
+      continue;
+    }
+    for (let i = 0; i < vec; i += 4) {
+      const j = <usize>(i << 2);
+      let lo = v128.load(s + j), hi = lo;
+      for (let k = 1; k < n; k++) {
+        const x = v128.load(s + <usize>k * sb + j);
+        lo = f32x4.min(lo, x);
+        hi = f32x4.max(hi, x);
+      }
+      const m = f32x4.mul(vs, f32x4.sub(hi, lo));
+      const below = f32x4.sub(lo, f32x4.min(m, f32x4.mul(vs, lo)));
+      v128.store(d + j, f32x4.min(f32x4.add(hi, m), f32x4.max(below, v128.load(d + j))));
+    }
+    for (let i = vec; i < lanes; i++) {
+      const j = <usize>(i << 2);
+      let lo = load<f32>(s + j), hi = lo;
+      for (let k = 1; k < n; k++) {
+        const x = load<f32>(s + <usize>k * sb + j);
+        lo = min(lo, x);
+        hi = max(hi, x);
+      }
+      const m = slack * (hi - lo);
+      store<f32>(d + j, min(hi + m, max(lo - min(m, slack * lo), load<f32>(d + j))));
+    }
+  }
+}

@@ -24,13 +24,16 @@ import spectraPlugin from './http/plugins/spectra.js';
 import workerPoolPlugin from './http/plugins/worker-pool.js';
 import docsRoutes from './http/routes/docs.js';
 import healthRoutes from './http/routes/health.js';
+import homeRoutes from './http/routes/home.js';
 import ingestRoutes from './http/routes/ingest.js';
 import inspectRoutes from './http/routes/inspect.js';
 import metricsRoutes from './http/routes/metrics.js';
 import renditionRoutes from './http/routes/renditions.js';
 import aliasRiskRoutes from './http/routes/alias-risk.js';
 import sourcesRoutes from './http/routes/sources.js';
+import clientHintsPlugin from './http/plugins/client-hints.js';
 import { signingRequired } from './security/signing.js';
+import type { BandRunner } from './pool/runner.js';
 
 export interface BuildOptions {
   config: Config;
@@ -42,6 +45,8 @@ export interface BuildOptions {
   flight?: Flight<CacheEntry>;
   /** pino options, or false for none; default JSON logs at config.server.logLevel. */
   logger?: FastifyServerOptions['logger'];
+  /** How the render pool runs its band tasks (src/pool/runner.ts); default piscina's run. For fault tests. */
+  poolRunner?: BandRunner;
 }
 
 const packageVersion = (
@@ -90,6 +95,7 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   await app.register(errorsPlugin);
   await app.register(stoppingPlugin, { retryAfterSeconds: config.pool.retryAfterSeconds });
   await app.register(openApiPlugin);
+  await app.register(clientHintsPlugin);
   await app.register(metricsPlugin);
   await app.register(contextPlugin, { config, origin });
   await app.register(pressurePlugin, config.pressure);
@@ -99,7 +105,7 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     sharedTier: options.sharedTier ?? app.sharedRedis?.tier,
     flight: options.flight ?? app.sharedRedis?.flight,
   });
-  await app.register(workerPoolPlugin, { ...config.pool, rssCeilingBytes: config.pressure.maxRssBytes });
+  await app.register(workerPoolPlugin, { ...config.pool, rssCeilingBytes: config.pressure.maxRssBytes, runner: options.poolRunner });
   await app.register(memoryWatchPlugin, config.pressure);
   await app.register(spectraPlugin);
   await app.register(renderPlugin);
@@ -120,5 +126,6 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   await app.register(metricsRoutes);
   await app.register(docsRoutes, { version: packageVersion });
   await app.register(inspectRoutes);
+  await app.register(homeRoutes, { version: packageVersion });
   return app;
 }

@@ -10,6 +10,8 @@ export const configSchema = z.strictObject({
     host: z.string().min(1),
     port: z.number().int().min(0).max(65535),
     logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']),
+    /** json: one JSON object per line (for machines); pretty: readable lines; auto: pretty on a terminal. */
+    logFormat: z.enum(['auto', 'json', 'pretty']),
     trustProxy: z.boolean(),
     /**
      * Deadline for receiving a whole request (headers and body), against clients that send
@@ -57,6 +59,14 @@ export const configSchema = z.strictObject({
     decodeTimeoutMs: positiveInt,
     /** Deadline for resampling and encoding one rendition. */
     renderTimeoutMs: positiveInt,
+    /**
+     * Enlargement caps, in output px per source px: `default` for every rendition (1: never
+     * beyond the source, as the upload hook's ladder), `allowed` for one asked with
+     * enlarge=allowed. Past the cap the rendition is made smaller, never refused.
+     */
+    enlargement: z
+      .strictObject({ default: z.number().min(1).max(16), allowed: z.number().min(1).max(16) })
+      .refine((e) => e.allowed >= e.default, 'allowed must be at least default'),
   }),
   pool: z.strictObject({
     /** Worker threads; 0 = one per available core. */
@@ -164,6 +174,7 @@ type Json = Record<string, unknown>;
 export const envMap: Record<string, { path: string[]; parse: (v: string) => unknown }> = {
   HOST: { path: ['server', 'host'], parse: (v) => v },
   PORT: { path: ['server', 'port'], parse: (v) => (/^\d+$/.test(v) ? Number(v) : v) },
+  FOLDWISE_LOG_FORMAT: { path: ['server', 'logFormat'], parse: (v) => v },
   FOLDWISE_SOURCE_DIR: { path: ['origin', 'sourceDir'], parse: (v) => v },
   FOLDWISE_CACHE_DIR: { path: ['cache', 'dir'], parse: (v) => v },
   FOLDWISE_REDIS_URL: { path: ['cache', 'redisUrl'], parse: (v) => v },

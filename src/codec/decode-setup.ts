@@ -12,9 +12,10 @@ import { sourceFormats } from './formats.js';
 import { gifReachesTrailer } from './gif-blocks.js';
 import { isWideGamutProfile } from './icc.js';
 import { type Animation, animationOf, type DecodeWish, stillSrgb } from './wish.js';
+import { hasAcceptedSignature } from './signature.js';
+import { checkWebp, WebpDamage } from './webp/check.js';
 
 export { type Animation, type DecodeWish, stillSrgb } from './wish.js';
-import { hasAcceptedSignature } from './signature.js';
 
 export interface DecodeLimits {
   /** Most pixels (width x height of one frame) a source may have. */
@@ -73,6 +74,7 @@ export async function prepare(bytes: Buffer, limits: DecodeLimits, wish: DecodeW
   const pages = meta.pages ?? 1;
   const animated = wish.frames === 'all' && pages > 1;
   const [width, height] = checkLimits(meta, limits, animated ? pages : 1);
+  if (format === 'webp') await checkWebpOnce(bytes);
   if (typeof wish.frames === 'number') {
     if (wish.frames >= pages) throw new FoldwiseError('ERR_PARAM_INVALID', `still=${wish.frames + 1} asks for a frame the source lacks: it has ${pages}.`);
     options.page = wish.frames;
@@ -103,6 +105,25 @@ export async function prepare(bytes: Buffer, limits: DecodeLimits, wish: DecodeW
   if (limits.timeoutMs !== undefined) pipeline = pipeline.timeout({ seconds: Math.max(1, Math.ceil(limits.timeoutMs / 1000)) });
   const gamut: GamutName = wide ? 'display-p3' : 'srgb';
   return { pipeline, format, width, height, deep, grey, greyAlpha8, hasAlpha: meta.hasAlpha === true, gamut, pages, animation };
+}
+
+/**
+ * libwebp decodes a VP8 stream with damaged DCT tokens into a garbled picture without any
+ * error (VP8 has no checksum), so WebP sources go through our own bitstream check first
+ * (src/codec/webp/check.ts). Memoised per buffer: the header read at admission and the decode
+ * that follows see the same bytes.
+ */
+const webpChecks = new WeakMap<Buffer, Promise<void>>();
+function checkWebpOnce(bytes: Buffer): Promise<void> {
+  let check = webpChecks.get(bytes);
+  if (!check) {
+    check = checkWebp(bytes).catch((e: unknown) => {
+      if (!(e instanceof WebpDamage)) throw e;
+      throw new FoldwiseError('ERR_SOURCE_CORRUPT', `The source image is corrupt: ${e.message}.`, { cause: e });
+    });
+    webpChecks.set(bytes, check);
+  }
+  return check;
 }
 
 function checkFormat(meta: Metadata): string {

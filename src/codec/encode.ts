@@ -2,7 +2,7 @@ import sharp from 'sharp';
 import { frameOf, stackFrames } from '../core/index.js';
 import type { PixelRaster } from '../core/types.js';
 import { FoldwiseError } from '../errors.js';
-import { parseBackground } from './background.js';
+import type { Rgb } from '../schemas/colour.js';
 import { placeOnCanvas, type CanvasPlacement } from './letterbox.js';
 import { formatSpecs, type OutputFormat } from './formats.js';
 import { tagPngSrgb } from './png-srgb.js';
@@ -12,8 +12,8 @@ export interface EncodeOptions {
   format: OutputFormat;
   /** 1..100; the format's default when left out; ignored by PNG. */
   quality?: number;
-  /** Hex colour or `transparent`: fills contain bars and flattens alpha for JPEG. */
-  background: string;
+  /** Fills contain bars and flattens alpha for JPEG (the query's `background`, parsed there). */
+  background: Rgb;
   /** object-fit: contain — the canvas the raster is placed on, from layoutRendition. */
   canvas?: CanvasPlacement;
   /** Stacked frames to write as an animation (WebP, GIF); other formats take the first frame. */
@@ -31,7 +31,7 @@ export interface EncodeOptions {
  *   was taken, often the photographer's home or workshop.
  * - Contain bars: in a format with alpha they are transparent when the raster has alpha
  *   (so the bars match the picture's own transparent surroundings), and the background
- *   colour, with its alpha, otherwise. JPEG bars are the background colour.
+ *   colour otherwise. JPEG bars are the background colour.
  * - JPEG flattens alpha onto the background in sRGB-encoded values, the way browsers
  *   composite a transparent PNG over a page (CSS Compositing and Blending Level 1, §5.1
  *   simple alpha compositing), so a JPEG looks like the PNG shown on that background.
@@ -39,7 +39,7 @@ export interface EncodeOptions {
  * - An animation (WebP, GIF) keeps each frame's delay and the loop count; GIF's palette is
  *   chosen per frame by libimagequant (through sharp), with its default dithering.
  *
- * @throws FoldwiseError ERR_PARAM_INVALID for a bad quality or background
+ * @throws FoldwiseError ERR_PARAM_INVALID for a bad quality or format
  */
 export async function encodeImage(raster: PixelRaster, opts: EncodeOptions): Promise<Buffer> {
   const spec = formatSpecs[opts.format];
@@ -48,17 +48,13 @@ export async function encodeImage(raster: PixelRaster, opts: EncodeOptions): Pro
   if (quality !== undefined && !(Number.isInteger(quality) && quality >= 1 && quality <= 100)) {
     throw new FoldwiseError('ERR_PARAM_INVALID', 'quality must be an integer from 1 to 100.');
   }
-  const background = parseBackground(opts.background);
+  const background = opts.background;
 
   let r = raster;
   if (r.data instanceof Uint16Array && !spec.depths.includes(16)) r = to8Bit(r);
   if (opts.canvas) {
     const rasterAlpha = r.channels === 2 || r.channels === 4;
-    const fill = !spec.hasAlpha
-      ? { ...background, alpha: 1 }
-      : rasterAlpha
-        ? { ...background, alpha: 0 }
-        : background;
+    const fill = { ...background, alpha: spec.hasAlpha && rasterAlpha ? 0 : 1 };
     const canvas = opts.canvas;
     const frames = opts.animation?.frames ?? 1;
     // Each frame on its own canvas: a stack placed as one would put the bars only around it.

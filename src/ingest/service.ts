@@ -23,6 +23,7 @@ import { Gate } from '../lib/semaphore.js';
 import { JobTable } from './jobs.js';
 import { ladderFor } from './ladder.js';
 import { assembleManifest, type Manifest, type ManifestRendition } from './manifest.js';
+import { makePlaceholder } from './placeholder.js';
 import { OnceByKey } from '../lib/once-by-key.js';
 import { digestOf, keyFor, storeOnce } from './store.js';
 import { renditionUrl } from './urls.js';
@@ -35,6 +36,8 @@ export interface IngestOptions {
   formats?: readonly IngestFormat[];
   /** Rendition parameters for every rung (prefilter, kernel, light), as a rendition URL spells them. */
   rendition?: Readonly<Record<string, string>>;
+  /** The html's sizes attribute; default 100vw. */
+  sizes?: string;
 }
 
 /** Prepared ingest work: `key` identifies the manifest; `compute` builds it. */
@@ -99,11 +102,13 @@ export class IngestService extends EventEmitter {
   }
 
   /**
-   * Uploaded bytes: refused when the origin is read-only; decoded now (bad bytes fail here,
-   * before any 202, with the rendition path's own limits) and stored under their content key;
-   * the decoded pixels are not kept, so waiting work holds bytes on disk, not rasters.
+   * Uploaded bytes: refused when the origin is read-only. The work decodes them once: the
+   * decode checks them (the rendition path's own limits) before they are stored under their
+   * content key, and the same pixels serve every rung. `checkFirst` (the work may wait: an
+   * async job) checks them now as well, so bad bytes get their 4xx before any 202; that check
+   * keeps no pixels, so waiting work holds bytes, not rasters.
    */
-  async fromUpload(bytes: Buffer, options: IngestOptions, known?: string): Promise<IngestWork> {
+  async fromUpload(bytes: Buffer, options: IngestOptions, known?: string, checkFirst = false): Promise<IngestWork> {
     this.checkRendition(options);
     if (!this.config.ingest.writable) {
       throw new FoldwiseError('ERR_INGEST_READ_ONLY', 'uploads are switched off: the folder origin is read-only (ingest.writable)');
@@ -112,8 +117,8 @@ export class IngestService extends EventEmitter {
     // `known`: the digest the caller already computed of these very bytes (the signing check).
     const digest = known ?? digestOf(bytes);
     const key = `upload:${digest}|${this.optionsKey(options)}`;
-    const stored = this.isDone(key) ? undefined : await this.store(bytes, digest);
-    return { key, compute: async () => this.buildFrom(stored ?? (await this.store(bytes, digest)), options) };
+    if (checkFirst && !this.isDone(key)) await this.check(bytes, digest);
+    return { key, compute: () => this.buildUpload(bytes, digest, options) };
   }
 
   /** A source already in the origin: identified now (404 here), read and decoded by `compute`. */
@@ -128,7 +133,8 @@ export class IngestService extends EventEmitter {
 
   private optionsKey(options: IngestOptions): string {
     const extra = new URLSearchParams(options.rendition ?? {}).toString();
-    return `${options.widths?.join(',') ?? 'ladder'}|${(options.formats ?? this.config.ingest.formats).join(',')}|${extra}`;
+    const formats = (options.formats ?? this.config.ingest.formats).join(',');
+    return `${options.widths?.join(',') ?? 'ladder'}|${formats}|${extra}|${options.sizes ?? ''}`;
   }
 
   /** Refuses, before any work, rendition parameters the rendition route would refuse (same codes). */
@@ -136,23 +142,42 @@ export class IngestService extends EventEmitter {
     this.query.parse({ width: '1', ...options.rendition });
   }
 
-  /** Validates the bytes with the rendition path's own loader (same limits) and stores them. */
-  private async store(bytes: Buffer, digest: string): Promise<string> {
+  /** Decodes the uploaded bytes with the rendition path's own loader (same limits). */
+  private decodeUpload(bytes: Buffer, digest: string): Promise<LoadedSource> {
     const identity = { key: `upload/${digest}`, version: digest };
     const upload: Origin = {
       name: 'upload',
       read: async () => ({ identity, bytes }),
       identify: async () => identity,
     };
+    // Observed as the render path's `decode` stage (/metrics counts an upload's decodes).
+    return loadSource(upload, identity.key, this.config.limits, new StageClock(this.render.observe), undefined, ladderWish);
+  }
+
+  /** Checks the bytes now (a decode within its own lease); only the verdict is kept. */
+  private async check(bytes: Buffer, digest: string): Promise<void> {
     const lease = await admitDecode(this.render.pool, bytes, this.config.limits);
-    // Only the format is kept: the raster is unreachable before the lease ends (and collected then).
-    const format = await loadSource(upload, identity.key, this.config.limits, new StageClock())
-      .then((loaded) => loaded.decoded.format)
+    // The raster is unreachable before the lease ends (and collected then).
+    await this.decodeUpload(bytes, digest)
+      .then((loaded) => extensionOf(loaded.decoded.format))
       .finally(() => lease.release());
-    const { keyPrefix: prefix, digestChars } = this.config.ingest;
-    const sourceKey = keyFor(digest, extensionOf(format), { prefix, digestChars });
-    await storeOnce(this.config.origin.sourceDir, sourceKey, bytes);
-    return sourceKey;
+  }
+
+  /** The upload's one decode, under the ladder's lease: checked, stored, then every rung rendered from it. */
+  private async buildUpload(bytes: Buffer, digest: string, options: IngestOptions): Promise<Manifest> {
+    const { limits, ingest } = this.config;
+    const formats = options.formats ?? ingest.formats;
+    const { lease, concurrency } = await admitLadder(this.render.pool, bytes, limits, { ...options, formats, concurrency: ingest.concurrency });
+    try {
+      const { decoded } = await this.decodeUpload(bytes, digest);
+      const sourceKey = keyFor(digest, extensionOf(decoded.format), { prefix: ingest.keyPrefix, digestChars: ingest.digestChars });
+      await storeOnce(this.config.origin.sourceDir, sourceKey, bytes);
+      // The stored file's identity (the cache keys' version), asked of the origin, not read back.
+      const identity = await this.render.origin.identify(sourceKey);
+      return await this.build(sourceKey, { identity, decoded }, options, concurrency);
+    } finally {
+      lease.release();
+    }
   }
 
   private async buildFrom(sourceKey: string, options: IngestOptions): Promise<Manifest> {
@@ -203,8 +228,9 @@ export class IngestService extends EventEmitter {
         risk: { level: step.level, score: step.score },
       };
     });
+    const placeholder = await makePlaceholder(this.render, sourceKey, loaded, (raw) => this.query.parse(raw));
     const source = { key: sourceKey, width: raster.width, height: raster.height, ...(frames > 1 ? { frames } : {}) };
-    return assembleManifest(source, formats, renditions, writeWarnings(steps));
+    return assembleManifest(source, formats, renditions, writeWarnings(steps), { sizes: options.sizes, placeholder, transparent: loaded.decoded.hasAlpha });
   }
 }
 

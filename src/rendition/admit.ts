@@ -7,7 +7,7 @@ import type { RenditionQuery } from '../schemas/rendition.js';
 import type { Lease } from '../pool/budget.js';
 import { decodeCost, ENCODER_BYTES_PER_PIXEL, outputCost, renditionCost, stagingCost } from '../pool/cost.js';
 import { fallbackFormat } from './smallest.js';
-import { planRendition } from './plan.js';
+import { layoutOf } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
 import { decodeLimits, type ReadSource, wishOf } from './source.js';
 import { STREAM_MIN_PIXELS } from './streamed.js';
@@ -40,7 +40,7 @@ function fallbackEncoder(h: SourceHeader, q: RenditionQuery, pixels: number): nu
 
 /** Output pixels of the query on this source (the canvas when there is one). */
 function outputPixels(h: SourceHeader, q: RenditionQuery, limits: Limits): number {
-  const { layout } = planRendition(h, q, limits);
+  const layout = layoutOf(h, q, limits);
   const box = layout.canvas ?? { width: layout.targetWidth, height: layout.targetHeight };
   return box.width * box.height;
 }

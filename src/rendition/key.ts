@@ -8,9 +8,7 @@ import type { SourceIdentity } from '../origins/types.js';
  */
 // 5: the baseline JPEG encoder and the content cut-off, which two branches each called 4.
 // 6: fit defaults to contain (was cover), so a URL with both sides and no fit gets new bytes.
-// 7: wide-gamut sources stay Display P3 and animations stay animated (were sRGB first frames);
-//    a negotiated format larger than its fallback answers the fallback; AVIF q72 4:2:0 and
-//    WebP without smart subsampling (scripts/encode-formats.ts).
+// 7: this session: enlargement cap; ringing limiter; wide gamut as P3; animations kept; negotiated-bytes rule.
 export const pipelineVersion = 'fw-pipeline-7';
 
 // Hits ask for the same few keys over and over; hashing is most of a hit's key cost. The memo

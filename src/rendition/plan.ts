@@ -1,13 +1,46 @@
 import type { Limits } from '../config.js';
 import { layoutRendition, type RenditionLayout } from '../core/layout/index.js';
-import { makePlan } from '../core/index.js';
-import type { AdaptiveFilter, Plan } from '../core/types.js';
+import { makePlan, planResponseOf } from '../core/index.js';
+import { adaptiveFilter, type SourceSpectrum } from '../core/risk/index.js';
+import type { AdaptiveFilter, PixelRaster, Plan } from '../core/types.js';
 import { FoldwiseError } from '../errors.js';
+import type { SourceIdentity } from '../origins/types.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
+
+type Size = { width: number; height: number };
 
 export interface PlannedRendition {
   layout: RenditionLayout;
   plan: Plan;
+  /** What prefilter=auto changed for this source (per-axis cut-off factors), if anything. */
+  adaptive?: AdaptiveFilter;
+}
+
+/**
+ * The source spectra behind prefilter=auto (src/risk/spectrum-store.ts): `ofRaster` finds or
+ * makes the analysis of decoded pixels; `known` is the analysis already at hand for a source
+ * version, which lets a rendition be planned, and resampled, before its source is decoded.
+ */
+export interface SourceSpectra {
+  ofRaster(raster: PixelRaster, identity?: SourceIdentity): SourceSpectrum;
+  known(identity: SourceIdentity): SourceSpectrum | undefined;
+}
+
+/**
+ * The Rendition-Clamped header of a layout the enlargement cap shrank, else undefined: a
+ * structured-field dictionary (RFC 8941) of the size asked and the cap applied.
+ */
+export function clampedHeader(layout: RenditionLayout, q: RenditionQuery, limits: Limits): string | undefined {
+  const c = layout.clamped;
+  if (!c) return undefined;
+  const cap = q.enlarge === 'allowed' ? limits.enlargement.allowed : limits.enlargement.default;
+  return `asked-width=${c.width}, asked-height=${c.height}, limit=${num(cap)}`;
+}
+
+/** An RFC 8941 decimal: at most three fractional digits, at least one. */
+function num(n: number): string {
+  const t = String(Math.round(n * 1000) / 1000);
+  return t.includes('.') ? t : `${t}.0`;
 }
 
 /** Output pixels a query asks for before the source is known (both sides given), else 0. */
@@ -43,34 +76,60 @@ export function checkRequestedSize(q: RenditionQuery, limits: Limits): void {
 
 /**
  * Lays the query out on a source of the given size (object-fit / object-position, exact
- * fractional crop) and plans the resample. The output limit covers the canvas too.
+ * fractional crop), refused past the output limits (the canvas included): what admission
+ * needs to know of a rendition, before any plan.
  */
-export function planRendition(
-  source: { width: number; height: number },
-  q: RenditionQuery,
-  limits: Limits,
-  adaptiveSigma?: AdaptiveFilter,
-): PlannedRendition {
+export function layoutOf(source: Size, q: RenditionQuery, limits: Limits): RenditionLayout {
   const layout = layoutRendition(source, {
     width: q.width,
     height: q.height,
     density: q.density,
     fit: q.fit,
     position: q.position,
+    maxScale: q.enlarge === 'allowed' ? limits.enlargement.allowed : limits.enlargement.default,
   });
   const box = layout.canvas ?? { width: layout.targetWidth, height: layout.targetHeight };
   refuseSide(box.width, box.height, limits);
   refuseOutput(box.width * box.height, limits);
-  const plan = makePlan({
-    sourceWidth: source.width,
-    sourceHeight: source.height,
-    crop: layout.crop,
-    targetWidth: layout.targetWidth,
-    targetHeight: layout.targetHeight,
-    kernel: q.kernel,
-    prefilter: q.prefilter,
-    light: q.light,
-    adaptiveSigma,
-  });
-  return { layout, plan };
+  return layout;
+}
+
+/**
+ * The layout (layoutOf) and the resample plan of a rendition. With prefilter=auto and a plan
+ * that shrinks an axis, it asks `spectrum` for the source's analysis and plans again with the
+ * adaptive filter the visibility model gives (core/risk: adaptiveFilter). The one place a
+ * rendition is planned: the in-memory and streamed render paths and the alias-risk report
+ * call it, so the report describes exactly the plan a render uses.
+ *
+ * Returns null only when `spectrum` may answer undefined (the streamed path before decode)
+ * and did: the plan needs the decoded pixels first.
+ */
+export function planRendition(source: Size, q: RenditionQuery, limits: Limits, spectrum?: () => SourceSpectrum): PlannedRendition;
+export function planRendition(source: Size, q: RenditionQuery, limits: Limits, spectrum?: () => SourceSpectrum | undefined): PlannedRendition | null;
+export function planRendition(
+  source: Size,
+  q: RenditionQuery,
+  limits: Limits,
+  spectrum?: () => SourceSpectrum | undefined,
+): PlannedRendition | null {
+  const layout = layoutOf(source, q, limits);
+  const planOf = (adaptiveSigma?: AdaptiveFilter) =>
+    makePlan({
+      sourceWidth: source.width,
+      sourceHeight: source.height,
+      crop: layout.crop,
+      targetWidth: layout.targetWidth,
+      targetHeight: layout.targetHeight,
+      kernel: q.kernel,
+      prefilter: q.prefilter,
+      light: q.light,
+      adaptiveSigma,
+    });
+  const plan = planOf();
+  // A plan that shrinks neither axis cannot fold anything: it never costs an analysis.
+  if (!spectrum || q.prefilter !== 'auto' || !(plan.x.scale > 1 || plan.y.scale > 1)) return { layout, plan };
+  const analysed = spectrum();
+  if (!analysed) return null;
+  const adaptive = adaptiveFilter(analysed, plan, planResponseOf(plan));
+  return adaptive ? { layout, plan: planOf(adaptive), adaptive } : { layout, plan };
 }

@@ -15,7 +15,7 @@ import { withDeadline } from '../lib/deadline.js';
 import { formatKey } from './format-key.js';
 import type { IdentityMemo } from './identity.js';
 import { renditionKey, strongEtag } from './key.js';
-import { checkRequestedSize, type PlannedRendition, planRendition } from './plan.js';
+import { checkRequestedSize, clampedHeader, type PlannedRendition, planRendition, type SourceSpectra } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
 import { admitRendition } from './admit.js';
 import { decodeSource, type LoadedSource, type ReadSource, readSource, servesWish, wishOf } from './source.js';
@@ -37,16 +37,10 @@ export interface RenderContext {
   /** Short-lived memo of source identities (hits then skip the origin); default ask the origin. */
   identities?: IdentityMemo;
   /**
-   * Content-adaptive prefilter (alias-risk analysis, src/risk/adaptive.ts), asked only when
-   * prefilter=auto, with the plan it would raise and the source version (for its cache).
+   * The source spectra behind prefilter=auto's content-adaptive filter (the app wires
+   * src/risk/spectrum-store.ts); without them prefilter=auto is the kernel's own.
    */
-  adaptiveSigma?: (raster: PixelRaster, plan: Plan, identity?: SourceIdentity) => { x: number; y: number } | undefined;
-  /**
-   * adaptiveSigma's answer before any pixel is decoded, from an analysis already at hand;
-   * null when there is none (then the source is decoded in full first). Lets a rendition of
-   * an analysed source be resampled while it decodes (src/rendition/streamed.ts).
-   */
-  knownAdaptiveSigma?: (plan: Plan, identity: SourceIdentity) => { sigma: { x: number; y: number } | undefined } | null;
+  spectra?: SourceSpectra;
   /**
    * A source the caller has already read and decoded (the upload hook's ladder, the alias-risk
    * preview): a miss renders from it instead of reading and decoding again, when it is the
@@ -115,9 +109,8 @@ async function resampleSource(ctx: RenditionContextInternal, read: LoadedSource 
   // An animation is planned on one frame, and its content-adaptive prefilter comes from the
   // first frame's spectrum (the alias-risk report says so).
   const src = frames > 1 ? frameOf(whole, frames, 0) : whole;
-  const first = planRendition(src, q, ctx.limits);
-  const sigma = q.prefilter === 'auto' ? ctx.adaptiveSigma?.(src, first.plan, identity) : undefined;
-  const { layout, plan } = sigma ? planRendition(src, q, ctx.limits, sigma) : first;
+  const { spectra } = ctx;
+  const { layout, plan } = planRendition(src, q, ctx.limits, spectra && (() => spectra.ofRaster(src, identity)));
   const deadline = AbortSignal.timeout(ctx.limits.renderTimeoutMs);
   const stop = ctx.signal ? AbortSignal.any([ctx.signal, deadline]) : deadline;
   const raster = await ctx.clock.time('resample', () =>
@@ -151,18 +144,20 @@ async function produce(
     const { body, format } = await ctx.clock.time('encode', () =>
       withDeadline(encoding, deadline, () => ctx.pool.refusal('ERR_RENDER_TIMEOUT', 'encoding took longer than allowed')),
     );
-    return { entry: entryOf(body, format, plan), identity: done.identity };
+    return { entry: entryOf(body, format, plan, clampedHeader(layout, q, ctx.limits)), identity: done.identity };
   } finally {
     void ended.then(() => lease?.release());
   }
 }
 
-function entryOf(body: Buffer, format: OutputFormat, plan: Plan): CacheEntry {
+function entryOf(body: Buffer, format: OutputFormat, plan: Plan, clamped: string | undefined): CacheEntry {
+  const headers: Record<string, string> = { 'rendition-plan': formatPlanHeader(plan) };
+  if (clamped) headers['rendition-clamped'] = clamped;
   return {
     body,
     contentType: formatSpecs[format].contentType,
     etag: strongEtag(body),
-    headers: { 'rendition-plan': formatPlanHeader(plan) },
+    headers,
     createdAt: Date.now(),
   };
 }

@@ -88,6 +88,7 @@ export async function loadSource(
   limits: Limits,
   clock: StageClock,
   signal?: AbortSignal,
+  wish: DecodeWish = stillSrgb,
 ): Promise<LoadedSource> {
-  return decodeSource(await readSource(origin, path, limits, clock, signal), limits, clock);
+  return decodeSource(await readSource(origin, path, limits, clock, signal), limits, clock, wish);
 }

@@ -1,9 +1,8 @@
 import type { Limits } from '../config.js';
-import type { PixelRaster, Plan } from '../core/types.js';
+import type { PixelRaster } from '../core/types.js';
 import { probeSpooledDecode, SpoolWriteError } from '../codec/spool-decode.js';
-import type { SourceIdentity } from '../origins/types.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
-import { type PlannedRendition, planRendition } from './plan.js';
+import { type PlannedRendition, planRendition, type SourceSpectra } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
 import { decodeLimits, type ReadSource, wishOf } from './source.js';
 import type { StageClock } from './timings.js';
@@ -22,8 +21,7 @@ export interface StreamContext {
   clock: StageClock;
   /** Aborts when no one waits for the render any more. */
   signal?: AbortSignal;
-  adaptiveSigma?: unknown;
-  knownAdaptiveSigma?: (plan: Plan, identity: SourceIdentity) => { sigma: { x: number; y: number } | undefined } | null;
+  spectra?: SourceSpectra;
 }
 
 /** A rendition resampled while its source decoded. */
@@ -31,19 +29,6 @@ export interface StreamedRendition extends PlannedRendition {
   raster: PixelRaster;
   /** Started before the decode: covers decode, resample and then the encode. */
   deadline: AbortSignal;
-}
-
-/**
- * The plan for a streamed render, or null when it needs the decoded pixels first: with
- * prefilter=auto and an adaptive prefilter in play, the source's spectrum must already be
- * known (an earlier rendition of the same version analysed it).
- */
-function streamPlan(ctx: StreamContext, size: { width: number; height: number }, q: RenditionQuery, identity: SourceIdentity): PlannedRendition | null {
-  const first = planRendition(size, q, ctx.limits);
-  if (q.prefilter !== 'auto' || !ctx.adaptiveSigma) return first;
-  const known = ctx.knownAdaptiveSigma?.(first.plan, identity);
-  if (!known) return null;
-  return known.sigma ? planRendition(size, q, ctx.limits, known.sigma) : first;
 }
 
 /**
@@ -64,7 +49,10 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
   if (!spool) return null;
   const probe = await ctx.clock.time('decode', () => probeSpooledDecode(source.bytes, decodeLimits(ctx.limits), wishOf(q)));
   if (!probe || probe.width * probe.height < STREAM_MIN_PIXELS) return null;
-  const planned = streamPlan(ctx, probe, q, source.identity);
+  // With prefilter=auto the adaptive filter needs the source's spectrum already at hand (an
+  // earlier rendition of the same version analysed it); else the pixels come first (null).
+  const { spectra } = ctx;
+  const planned = planRendition(probe, q, ctx.limits, spectra && (() => spectra.known(source.identity)));
   if (!planned) return null;
   const deadline = AbortSignal.timeout(ctx.limits.decodeTimeoutMs + ctx.limits.renderTimeoutMs);
   const stop = ctx.signal ? AbortSignal.any([ctx.signal, deadline]) : deadline;

@@ -1,3 +1,4 @@
+import { hexOf } from './colour.js';
 import type { RenditionQuery } from './rendition.js';
 
 /** Shortest decimal that round-trips, with at most 6 fractional digits. */
@@ -30,8 +31,9 @@ export function canonicalQuery(q: RenditionQuery): string {
   const add = (name: string, value: string | undefined, dflt?: string) => {
     if (value !== undefined && value !== dflt) pairs.push([name, value]);
   };
-  add('background', q.background, '#ffffff');
+  add('background', hexOf(q.background), '#ffffff');
   add('density', num(q.density), '1');
+  add('enlarge', q.enlarge, 'limited');
   add('fit', fit, 'contain');
   add('format', q.format);
   add('gamut', q.gamut === 'srgb' ? 'srgb' : undefined);

@@ -50,7 +50,7 @@ describe('POST /v1/ingest with image bytes', () => {
       expect(r.risk.score).toBeGreaterThanOrEqual(0);
       expect(r.risk.score).toBeLessThanOrEqual(1);
     }
-    expect(manifest.sizes).toBe('(max-width: 300px) 100vw, 300px');
+    expect(manifest.sizes).toBe('100vw'); // issue 17: the default spans the viewport
     expect(manifest.warnings).toEqual([]);
   });
 
@@ -75,7 +75,8 @@ describe('POST /v1/ingest with image bytes', () => {
       [
         '<picture>',
         `  <source type="image/avif" srcset="${esc(manifest.srcset.avif)}" sizes="${manifest.sizes}">`,
-        `  <img src="${esc(jpeg300.url)}" srcset="${esc(manifest.srcset.jpeg)}" sizes="${manifest.sizes}" width="300" height="200" alt="">`,
+        `  <img src="${esc(jpeg300.url)}" srcset="${esc(manifest.srcset.jpeg)}" sizes="${manifest.sizes}" width="300" height="200"` +
+          ' loading="lazy" decoding="async" style="max-width:100%;height:auto" alt="">',
         '</picture>',
       ].join('\n'),
     );

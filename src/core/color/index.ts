@@ -6,3 +6,4 @@ export {
   srgbSpace, displayP3Space, adobeRgbSpace, rec2020Space,
   type RgbSpace, type GamutName, type Matrix3, type Chromaticity,
 } from './primaries.js';
+export { linearMeanColour, hexColour } from './mean.js';

@@ -2,7 +2,6 @@ import type { FastifyInstance } from 'fastify';
 import fp from 'fastify-plugin';
 import { IdentityMemo } from '../../rendition/identity.js';
 import type { RenderContext } from '../../rendition/service.js';
-import { adaptiveHook, knownAdaptiveHook } from '../../risk/adaptive.js';
 
 declare module 'fastify' {
   interface FastifyInstance {
@@ -23,8 +22,7 @@ async function renderPlugin(app: FastifyInstance): Promise<void> {
     limits: app.config.limits,
     observe: (stage, seconds) => metrics.stageSeconds.observe({ stage }, seconds),
     onLookup: (result) => metrics.cacheLookups.inc({ result }),
-    adaptiveSigma: adaptiveHook(app.spectra),
-    knownAdaptiveSigma: knownAdaptiveHook(app.spectra),
+    spectra: app.spectra,
   } satisfies RenderContext);
 }
 

@@ -63,11 +63,11 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
     const q = parseQuery(query, request.query as Record<string, unknown>);
     const rendition: Record<string, string> = {};
     for (const name of ['prefilter', 'kernel', 'light'] as const) if (q[name] !== undefined) rendition[name] = q[name];
-    const options = { widths: q.widths, formats: q.formats, rendition };
+    const options = { widths: q.widths, formats: q.formats, rendition, sizes: q.sizes };
     const binding = { digest: q.digest, source: q.source };
     if (signedRequests.has(request)) requireBinding(binding);
     const body: unknown = request.body;
-    if (Buffer.isBuffer(body)) return ingest.fromUpload(body, options, checkUpload(body, binding));
+    if (Buffer.isBuffer(body)) return ingest.fromUpload(body, options, checkUpload(body, binding), prefersAsync(request.headers.prefer));
     if (body === undefined || body === null) throw new FoldwiseError('ERR_INGEST_EMPTY', 'the request has no body: send image bytes or JSON naming a source');
     if (!/^application\/json\b/i.test(request.headers['content-type'] ?? '')) throw mediaTypeError(request);
     const parsed = ingestSourceBody.safeParse(body);

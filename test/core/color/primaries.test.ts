@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import {
   adobeRgbDecode, adobeRgbSpace, displayP3Space, luminanceCoefficients, rec2020Space, rgbToRgb, rgbToXyz, srgbSpace,
 } from '../../../src/core/color/index.js';
-import { tileLuminance } from '../../../src/core/spectrum/luminance.js';
+import { windowedTileLuminance } from '../../../src/core/spectrum/luminance.js';
 
 function close(actual: number[], expected: number[], tol: number) {
   expect(actual.length).toBe(expected.length);
@@ -45,9 +45,11 @@ describe('luminance coefficients per primaries', () => {
     // Pure green, code 255 (linear 1): the luminance is the green coefficient itself.
     const data = new Uint8Array([0, 255, 0]);
     const out = new Float64Array(1);
-    tileLuminance(out, { data, width: 1, height: 1, channels: 3 }, 0, 0, 1);
+    // A window of 1 and the identity order: the plain luminance.
+    const [one, identity] = [new Float64Array([1]), new Uint32Array([0])];
+    windowedTileLuminance(out, { data, width: 1, height: 1, channels: 3 }, 0, 0, 1, one, identity);
     expect(out[0]).toBeCloseTo(0.7152, 6); // ITU-R BT.709-6
-    tileLuminance(out, { data, width: 1, height: 1, channels: 3, gamut: 'display-p3' }, 0, 0, 1);
+    windowedTileLuminance(out, { data, width: 1, height: 1, channels: 3, gamut: 'display-p3' }, 0, 0, 1, one, identity);
     expect(out[0]).toBeCloseTo(0.691739, 5); // P3 matrix above (from memory)
   });
 });
