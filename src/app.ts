@@ -5,11 +5,14 @@ import type { Flight } from './lib/single-flight.js';
 import type { CacheEntry, CacheTier } from './cache/types.js';
 import type { Config } from './config.js';
 import { createFolderOrigin } from './origins/folder.js';
+import { createS3Origin } from './origins/s3.js';
 import { upstreamFromConfig, withUpstream } from './origins/upstream-route.js';
 import type { Origin } from './origins/types.js';
 import cachePlugin from './http/plugins/cache.js';
 import contextPlugin from './http/plugins/context.js';
 import ingestPlugin from './http/plugins/ingest.js';
+import ingestQueuePlugin from './http/plugins/ingest-queue.js';
+import callbacksPlugin from './http/plugins/callbacks.js';
 import { clientErrorHandler } from './http/plugins/client-errors.js';
 import stoppingPlugin from './http/plugins/stopping.js';
 import errorsPlugin, { sendProblem, toFoldwiseError } from './http/plugins/errors.js';
@@ -20,6 +23,9 @@ import pressurePlugin from './http/plugins/pressure.js';
 import redisPlugin, { redisSettings } from './http/plugins/redis.js';
 import renderPlugin from './http/plugins/rendition.js';
 import signingPlugin from './http/plugins/signing.js';
+import sourceIndexPlugin from './http/plugins/source-index.js';
+import deletionPlugin from './http/plugins/deletion.js';
+import deleteSourceRoutes from './http/routes/delete-source.js';
 import spectraPlugin from './http/plugins/spectra.js';
 import workerPoolPlugin from './http/plugins/worker-pool.js';
 import docsRoutes from './http/routes/docs.js';
@@ -89,9 +95,11 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     done(null, payload);
   });
 
-  const origin =
-    options.origin ??
-    withUpstream(createFolderOrigin(config.origin.sourceDir, { maxBytes: config.limits.maxSourceBytes }), upstreamFromConfig(config));
+  const { storeUrl, s3Endpoint } = config.origin;
+  const local = storeUrl
+    ? createS3Origin({ storeUrl, endpoint: s3Endpoint, maxBytes: config.limits.maxSourceBytes, retryAfterSeconds: config.pool.retryAfterSeconds })
+    : createFolderOrigin(config.origin.sourceDir, { maxBytes: config.limits.maxSourceBytes });
+  const origin = options.origin ?? withUpstream(local, upstreamFromConfig(config));
   await app.register(errorsPlugin);
   await app.register(stoppingPlugin, { retryAfterSeconds: config.pool.retryAfterSeconds });
   await app.register(openApiPlugin);
@@ -107,6 +115,7 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   });
   await app.register(workerPoolPlugin, { ...config.pool, rssCeilingBytes: config.pressure.maxRssBytes, runner: options.poolRunner });
   await app.register(memoryWatchPlugin, config.pressure);
+  await app.register(sourceIndexPlugin);
   await app.register(spectraPlugin);
   await app.register(renderPlugin);
   await app.register(signingPlugin, {
@@ -117,11 +126,15 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   });
 
   await app.register(ingestPlugin);
+  await app.register(callbacksPlugin);
+  await app.register(ingestQueuePlugin);
+  await app.register(deletionPlugin);
 
   await app.register(renditionRoutes);
   await app.register(aliasRiskRoutes);
   await app.register(ingestRoutes);
   await app.register(sourcesRoutes);
+  await app.register(deleteSourceRoutes);
   await app.register(healthRoutes);
   await app.register(metricsRoutes);
   await app.register(docsRoutes, { version: packageVersion });

@@ -20,6 +20,18 @@ export const configSchema = z.strictObject({
     requestTimeoutMs: z.number().int().min(0),
     /** A connection idle this long (no bytes either way) is closed. 0 switches it off. */
     idleTimeoutMs: z.number().int().min(0),
+    /**
+     * The address callers reach the service at (behind a load balancer or CDN), e.g.
+     * "https://img.example.org": manifests, srcset and callbacks carry absolute URLs under it.
+     * null = paths relative to the host the caller used.
+     */
+    publicUrl: z
+      .string()
+      .url()
+      .regex(/^https?:\/\/[^?#]*$/, 'publicUrl must be an http(s) URL without query or fragment')
+      .nullable()
+      .optional()
+      .transform((v) => v?.replace(/\/+$/, '') ?? null),
   }),
   origin: z.strictObject({
     sourceDir: z.string().min(1),
@@ -27,6 +39,14 @@ export const configSchema = z.strictObject({
     listing: z.boolean(),
     /** Generate the demo pictures into sourceDir before listening (npm start). */
     generateDemo: z.boolean(),
+    /**
+     * s3://bucket/prefix: sources and uploads in an S3-compatible object store instead of
+     * sourceDir (credentials and region from AWS_ACCESS_KEY_ID, AWS_SECRET_ACCESS_KEY,
+     * AWS_REGION). null = the folder origin.
+     */
+    storeUrl: z.string().regex(/^s3:\/\/[a-z0-9][a-z0-9.-]{1,61}[a-z0-9](\/.*)?$/, 'storeUrl must be s3://bucket[/prefix]').nullable().optional(),
+    /** Endpoint of an S3-compatible server, e.g. http://127.0.0.1:9000 (path-style addressing). */
+    s3Endpoint: z.string().url().nullable().optional(),
     /**
      * HTTP(S) upstreams, reached as /v1/renditions/~upstream/<host>[:port]/<path>. Only the
      * allowlisted origins are fetched; every resolved address must be public unless allowed.
@@ -162,6 +182,19 @@ export const configSchema = z.strictObject({
     maxJobs: positiveInt,
     /** Finished manifests kept so a repeated ingest does no work. */
     manifestCacheEntries: positiveInt,
+    /**
+     * With Redis (cache.redisUrl) async jobs live on a shared queue: finished jobs are kept this
+     * long for polls; a running job's lock lapses this long after its replica died, and another
+     * replica takes the job over; a job failing for a passing reason (5xx) runs at most
+     * jobAttempts times, with exponential backoff from 1 s.
+     */
+    jobResultSeconds: positiveInt,
+    jobLockMs: z.number().int().min(500),
+    jobAttempts: z.number().int().min(1).max(20),
+    /** Callback deliveries: attempts at most, the first retry's delay (doubling), one attempt's deadline. */
+    callbackAttempts: z.number().int().min(1).max(20),
+    callbackBaseDelayMs: positiveInt,
+    callbackTimeoutMs: positiveInt,
   }),
 });
 
@@ -179,6 +212,9 @@ export const envMap: Record<string, { path: string[]; parse: (v: string) => unkn
   FOLDWISE_CACHE_DIR: { path: ['cache', 'dir'], parse: (v) => v },
   FOLDWISE_REDIS_URL: { path: ['cache', 'redisUrl'], parse: (v) => v },
   FOLDWISE_SPOOL_DIR: { path: ['pool', 'spoolDir'], parse: (v) => v },
+  FOLDWISE_PUBLIC_URL: { path: ['server', 'publicUrl'], parse: (v) => v },
+  FOLDWISE_STORE_URL: { path: ['origin', 'storeUrl'], parse: (v) => v },
+  FOLDWISE_S3_ENDPOINT: { path: ['origin', 's3Endpoint'], parse: (v) => v },
   FOLDWISE_UPSTREAM_HOSTS: {
     path: ['origin', 'upstream', 'allowHosts'],
     parse: (v) => v.split(',').map((h) => h.trim()).filter((h) => h.length > 0),

@@ -44,6 +44,8 @@ export interface IngestOptions {
 export interface IngestWork {
   key: string;
   compute: () => Promise<Manifest>;
+  /** The stored source and options, for work handed to another replica (the job queue). */
+  spec?: { source: string; options: IngestOptions };
 }
 
 /** One rendition the service made or found, for observers (metrics, tests). */
@@ -81,6 +83,11 @@ export class IngestService extends EventEmitter {
     this.query = compileRenditionQuery({ maxDimension: limits.maxDimension, kernelNames });
   }
 
+  /** Forgets the finished manifests of a source (it was deleted). */
+  forgetSource(sourceKey: string): void {
+    this.manifests.forgetWhere((m) => m.source.key === sourceKey);
+  }
+
   /** Whether the manifest for `key` is already made (a repeat answers at once). */
   isDone(key: string): boolean {
     return this.manifests.has(key);
@@ -105,8 +112,9 @@ export class IngestService extends EventEmitter {
    * Uploaded bytes: refused when the origin is read-only. The work decodes them once: the
    * decode checks them (the rendition path's own limits) before they are stored under their
    * content key, and the same pixels serve every rung. `checkFirst` (the work may wait: an
-   * async job) checks them now as well, so bad bytes get their 4xx before any 202; that check
-   * keeps no pixels, so waiting work holds bytes, not rasters.
+   * async job, perhaps taken by another replica from the shared queue) checks and stores them
+   * now, so bad bytes get their 4xx before any 202 and the waiting work names a stored source;
+   * that check keeps no pixels, so waiting work holds bytes, not rasters.
    */
   async fromUpload(bytes: Buffer, options: IngestOptions, known?: string, checkFirst = false): Promise<IngestWork> {
     this.checkRendition(options);
@@ -117,7 +125,11 @@ export class IngestService extends EventEmitter {
     // `known`: the digest the caller already computed of these very bytes (the signing check).
     const digest = known ?? digestOf(bytes);
     const key = `upload:${digest}|${this.optionsKey(options)}`;
-    if (checkFirst && !this.isDone(key)) await this.check(bytes, digest);
+    if (checkFirst && !this.isDone(key)) {
+      // Waiting work (an async job, perhaps on another replica's queue) names a stored source.
+      const stored = await this.store(bytes, digest);
+      return { key, spec: { source: stored, options }, compute: () => this.buildFrom(stored, options) };
+    }
     return { key, compute: () => this.buildUpload(bytes, digest, options) };
   }
 
@@ -128,7 +140,13 @@ export class IngestService extends EventEmitter {
     return {
       key: `source:${identity.key}@${identity.version}|${this.optionsKey(options)}`,
       compute: () => this.buildFrom(identity.key, options),
+      spec: { source: identity.key, options },
     };
+  }
+
+  /** Work another replica prepared (a queued job): the source is already stored. */
+  fromQueued(key: string, source: string, options: IngestOptions): IngestWork {
+    return { key, compute: () => this.buildFrom(source, options), spec: { source, options } };
   }
 
   private optionsKey(options: IngestOptions): string {
@@ -154,13 +172,16 @@ export class IngestService extends EventEmitter {
     return loadSource(upload, identity.key, this.config.limits, new StageClock(this.render.observe), undefined, ladderWish);
   }
 
-  /** Checks the bytes now (a decode within its own lease); only the verdict is kept. */
-  private async check(bytes: Buffer, digest: string): Promise<void> {
+  /** Checks the bytes now (a decode within its own lease) and stores them; only the format is kept. */
+  private async store(bytes: Buffer, digest: string): Promise<string> {
     const lease = await admitDecode(this.render.pool, bytes, this.config.limits);
     // The raster is unreachable before the lease ends (and collected then).
-    await this.decodeUpload(bytes, digest)
+    const ext = await this.decodeUpload(bytes, digest)
       .then((loaded) => extensionOf(loaded.decoded.format))
       .finally(() => lease.release());
+    const sourceKey = keyFor(digest, ext, { prefix: this.config.ingest.keyPrefix, digestChars: this.config.ingest.digestChars });
+    await this.write(sourceKey, bytes);
+    return sourceKey;
   }
 
   /** The upload's one decode, under the ladder's lease: checked, stored, then every rung rendered from it. */
@@ -171,13 +192,19 @@ export class IngestService extends EventEmitter {
     try {
       const { decoded } = await this.decodeUpload(bytes, digest);
       const sourceKey = keyFor(digest, extensionOf(decoded.format), { prefix: ingest.keyPrefix, digestChars: ingest.digestChars });
-      await storeOnce(this.config.origin.sourceDir, sourceKey, bytes);
+      await this.write(sourceKey, bytes);
       // The stored file's identity (the cache keys' version), asked of the origin, not read back.
       const identity = await this.render.origin.identify(sourceKey);
       return await this.build(sourceKey, { identity, decoded }, options, concurrency);
     } finally {
       lease.release();
     }
+  }
+
+  /** Writes an upload's bytes under their content key: to the object store, or the folder. */
+  private async write(sourceKey: string, bytes: Buffer): Promise<void> {
+    const origin = this.render.origin;
+    await (origin.write ? origin.write(sourceKey, bytes) : storeOnce(this.config.origin.sourceDir, sourceKey, bytes));
   }
 
   private async buildFrom(sourceKey: string, options: IngestOptions): Promise<Manifest> {
@@ -219,7 +246,7 @@ export class IngestService extends EventEmitter {
       const r = await renderRendition({ ...this.render, decoded: loaded, admitted: true }, sourceKey, queryFor(step.width, format));
       this.emit('rendition', { source: sourceKey, width: step.width, format, cache: r.cache, bytes: r.entry.body.length } satisfies RenditionEvent);
       return {
-        url: renditionUrl(sourceKey, step.width, format, this.config.signing.keys[0], extra),
+        url: renditionUrl(sourceKey, step.width, format, this.config.signing.keys[0], extra, this.config.server.publicUrl),
         width: step.width,
         height: step.height,
         format,

@@ -26,6 +26,8 @@ import { type Stage, StageClock, type StageTiming } from './timings.js';
 /** Everything a render needs; no Fastify request, so ingest and the CLI can call it too. */
 export interface RenderContext {
   origin: Origin;
+  /** Told of each rendition about to be stored, by its source's key (the index deletion uses). */
+  onStored?: (source: string, key: string) => void;
   cache: TieredCache;
   flight: Flight<CacheEntry>;
   pool: RenderPool;
@@ -201,6 +203,8 @@ export async function renderRendition(
     // The source changed between identify and read: file the bytes under what was read.
     const storeKey = read.version === identity.version ? key : renditionKey(read, canonical, fmt);
     if (storeKey !== key) ctx.identities?.forget(path);
+    // Noted before it is stored: a crash in between leaves a key with nothing behind it, never the reverse.
+    ctx.onStored?.(read.key, storeKey);
     await clock.time('cache', () => ctx.cache.set(storeKey, made));
     return made;
   }, ctx.signal);

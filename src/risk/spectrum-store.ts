@@ -24,6 +24,8 @@ export interface SpectrumStoreOptions {
   shared?: SharedValues | null;
   /** Called when a shared-tier write fails (the analysis is still served). */
   onSharedError?: (error: unknown) => void;
+  /** Told of each analysis about to be stored in the shared tier, by its source's key (for deletion). */
+  onShared?: (source: string, key: string) => void;
 }
 
 /** Where a spectrum came from. */
@@ -57,6 +59,11 @@ export class SpectrumStore {
     return analyzeSpectrum(raster);
   }
 
+  /** Forgets every version's analysis of a source from L1 (it was deleted). */
+  forget(sourceKey: string): void {
+    for (const key of [...this.lru.keys()]) if (key.endsWith(`:${sourceKey}`)) this.lru.delete(key);
+  }
+
   /** The spectrum of a source version when this process has it at hand (L1), else undefined. */
   known(identity: SourceIdentity): SourceSpectrum | undefined {
     return this.lru.get(this.keyOf(identity));
@@ -72,7 +79,10 @@ export class SpectrumStore {
     if (known) return known;
     const s = this.analyse(raster);
     this.remember(key, raster, s);
-    if (key && this.options.shared) this.options.shared.setValue(key, s).catch((e) => this.options.onSharedError?.(e));
+    if (key && identity && this.options.shared) {
+      this.options.onShared?.(identity.key, key);
+      this.options.shared.setValue(key, s).catch((e) => this.options.onSharedError?.(e));
+    }
     return s;
   }
 
@@ -103,7 +113,10 @@ export class SpectrumStore {
         return made;
       });
       this.remember(key, undefined, s);
-      await this.options.shared?.setValue(key, s).catch((e) => this.options.onSharedError?.(e));
+      if (this.options.shared) {
+        this.options.onShared?.(identity.key, key);
+        await this.options.shared.setValue(key, s).catch((e) => this.options.onSharedError?.(e));
+      }
       return s;
     });
     return { spectrum: value, from };

@@ -53,6 +53,12 @@ export function ingestQuerySchema(maxDimension: number) {
     prefilter: z.string().max(32).optional().meta({ description: 'As for a rendition: auto (default), none, or a Gaussian sigma in source px.' }),
     kernel: z.string().max(32).optional().meta({ description: 'As for a rendition: auto (default) or a kernel name.' }),
     light: z.string().max(32).optional().meta({ description: 'As for a rendition: linear (default) or encoded.' }),
+    callback: z
+      .string()
+      .min(1)
+      .max(2048)
+      .optional()
+      .meta({ description: 'URL POSTed the outcome (signed JSON) when the job ends; on the upstream allowlist. Implies an asynchronous job.' }),
     // The very signature parameter of the rendition query (one definition of its syntax).
     signature: renditionQueryShape({ maxDimension, kernelNames: [] }).signature,
   });

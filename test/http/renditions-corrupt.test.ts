@@ -12,7 +12,8 @@ const timing = (res: { headers: Record<string, unknown> }) => String(res.headers
 
 /** Files (entries) the disk tier holds, temporary folder excluded. */
 async function diskEntries(dir: string): Promise<string[]> {
-  const subs = (await readdir(dir).catch(() => [] as string[])).filter((s) => s !== 'tmp');
+  // The disk tier's entry folders (two hex digits), as DiskTier reads them; not tmp/ or .by-source/.
+  const subs = (await readdir(dir).catch(() => [] as string[])).filter((s) => /^[0-9a-f]{2}$/.test(s));
   return (await Promise.all(subs.map((s) => readdir(join(dir, s))))).flat();
 }
 

@@ -44,7 +44,7 @@ describe('planRendition', () => {
 
   it('is null when the spectrum is wanted and not at hand (the streamed path then decodes first)', () => {
     expect(planRendition(source, query.parse({ width: '256' }), limits, () => undefined)).toBeNull();
-    expect(planRendition(source, query.parse({ width: '1024' }), limits, () => undefined)?.plan.x.scale).toBe(0.5);
+    expect(planRendition(source, query.parse({ width: '1024', enlarge: 'allowed' }), limits, () => undefined)?.plan.x.scale).toBe(0.5);
   });
 
   it('refuses a canvas past the output limit', () => {

@@ -15,6 +15,7 @@ async function renderPlugin(app: FastifyInstance): Promise<void> {
   const { metrics } = app;
   app.decorate('renderContext', {
     origin: app.origin,
+    onStored: (source, key) => app.noteCached(source, key),
     identities: new IdentityMemo(app.origin, app.config.cache.identityTtlMs),
     cache: app.renditionCache.cache,
     flight: app.renditionCache.flight,
@@ -29,5 +30,5 @@ async function renderPlugin(app: FastifyInstance): Promise<void> {
 export default fp(renderPlugin, {
   name: 'foldwise-render',
   fastify: '5.x',
-  dependencies: ['foldwise-context', 'foldwise-metrics', 'foldwise-cache', 'foldwise-worker-pool', 'foldwise-spectra'],
+  dependencies: ['foldwise-context', 'foldwise-metrics', 'foldwise-cache', 'foldwise-worker-pool', 'foldwise-spectra', 'foldwise-source-index'],
 });

@@ -20,8 +20,9 @@ async function spectraPlugin(app: FastifyInstance, opts: SpectraPluginOptions): 
     maxBytes: opts.maxBytes ?? 64 * 1024 * 1024,
     shared: app.sharedRedis?.tier ?? null,
     onSharedError: (err) => app.log.warn({ err }, 'storing a spectrum in the shared tier failed'),
+    onShared: (source, key) => app.noteCached(source, key),
   });
   app.decorate('spectra', store);
 }
 
-export default fp(spectraPlugin, { name: 'foldwise-spectra', fastify: '5.x', dependencies: ['foldwise-redis'] });
+export default fp(spectraPlugin, { name: 'foldwise-spectra', fastify: '5.x', dependencies: ['foldwise-redis', 'foldwise-source-index'] });
