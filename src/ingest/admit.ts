@@ -13,9 +13,12 @@ export interface LadderLease {
   concurrency: number;
 }
 
-/** Admits the decode alone (the upload's check that its bytes are an image within the limits). */
+/**
+ * Admits the decode alone (the upload's check that its bytes are an image within the limits):
+ * the ladder's decode, every frame of an animation (ladderWish), as the build will decode it.
+ */
 export async function admitDecode(pool: RenderPool, bytes: Buffer, limits: Limits): Promise<Lease> {
-  const h = await readHeader(bytes, decodeLimits(limits));
+  const h = await readHeader(bytes, decodeLimits(limits), ladderWish);
   return pool.admit(decodeCost(h), `decoding a ${h.width}x${h.height} ${8 * h.bytesPerSample}-bit upload`);
 }
 
