@@ -71,7 +71,7 @@ export const configSchema = z.strictObject({
     maxPixels: positiveInt,
     maxSourceBytes: positiveInt,
     maxOutputPixels: positiveInt,
-    /** Most animation frames a source may declare (only the first is rendered). */
+    /** Most animation frames a source may declare (each is rendered; maxPixels counts them all). */
     maxFrames: positiveInt,
     /** Largest upload accepted by POST /v1/ingest, in bytes. */
     maxUploadBytes: positiveInt,

@@ -5,7 +5,7 @@
  * in linear light.
  */
 import { webpWithoutIcc } from '../codec/webp-icc.js';
-import { hexColour, linearMeanColour } from '../core/index.js';
+import { frameOf, hexColour, linearMeanColour } from '../core/index.js';
 import { renderRendition, type RenderContext } from '../rendition/service.js';
 import type { LoadedSource } from '../rendition/source.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
@@ -35,13 +35,20 @@ export async function makePlaceholder(
   loaded: LoadedSource,
   parse: (raw: RawQuery) => RenditionQuery,
 ): Promise<Placeholder> {
-  const { raster } = loaded.decoded;
+  const { identity, decoded } = loaded;
+  const frames = decoded.animation?.frames ?? 1;
+  // An animation's placeholder is its first frame as a still (still=1, so its cache entry is
+  // not the animated rendition's), rendered from a view of the decoded frames: no second decode.
+  const { animation: _frames, ...still } = decoded;
+  const raster = frames > 1 ? frameOf(decoded.raster, frames, 0) : decoded.raster;
+  const given: LoadedSource = frames > 1 ? { identity, decoded: { ...still, raster, wish: { ...decoded.wish, frames: 0 } } } : loaded;
   // Never wider than the source (the default enlargement cap would clamp it anyway).
   const width = Math.min(placeholderWidth, raster.width);
-  const query = parse({ width: String(width), format: 'webp', quality: String(placeholderQuality) });
-  const r = await renderRendition({ ...render, decoded: loaded, admitted: true }, sourceKey, query);
+  const query = parse({ width: String(width), format: 'webp', quality: String(placeholderQuality), ...(frames > 1 ? { still: '1' } : {}) });
+  const r = await renderRendition({ ...render, decoded: given, admitted: true }, sourceKey, query);
   // The rendition carries an sRGB profile (~500 bytes); inline, untagged sRGB says the same.
-  const body = webpWithoutIcc(r.entry.body);
+  // A Display P3 rendition keeps its profile: untagged, its colours would be read as sRGB.
+  const body = raster.gamut ? r.entry.body : webpWithoutIcc(r.entry.body);
   return {
     dataUri: `data:image/webp;base64,${body.toString('base64')}`,
     width,

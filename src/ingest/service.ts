@@ -10,7 +10,8 @@ import { FoldwiseError } from '../errors.js';
 import { sourceFormats } from '../codec/formats.js';
 import type { Origin } from '../origins/types.js';
 import { renderRendition, type RenderContext } from '../rendition/service.js';
-import { decodeSource, type LoadedSource, loadSource, readSource } from '../rendition/source.js';
+import { decodeSource, ladderWish, type LoadedSource, loadSource, readSource } from '../rendition/source.js';
+import { frameOf } from '../core/index.js';
 import { StageClock } from '../rendition/timings.js';
 import type { SpectrumStore } from '../risk/spectrum-store.js';
 import type { IngestFormat } from '../schemas/ingest.js';
@@ -168,7 +169,7 @@ export class IngestService extends EventEmitter {
       identify: async () => identity,
     };
     // Observed as the render path's `decode` stage (/metrics counts an upload's decodes).
-    return loadSource(upload, identity.key, this.config.limits, new StageClock(this.render.observe));
+    return loadSource(upload, identity.key, this.config.limits, new StageClock(this.render.observe), undefined, ladderWish);
   }
 
   /** Checks the bytes now (a decode within its own lease) and stores them; only the format is kept. */
@@ -213,7 +214,7 @@ export class IngestService extends EventEmitter {
     const { limits, ingest } = this.config;
     const { lease, concurrency } = await admitLadder(this.render.pool, read.bytes, limits, { ...options, formats, concurrency: ingest.concurrency });
     try {
-      return await this.build(sourceKey, await decodeSource(read, limits, new StageClock()), options, concurrency);
+      return await this.build(sourceKey, await decodeSource(read, limits, new StageClock(), ladderWish), options, concurrency);
     } finally {
       lease.release();
     }
@@ -221,7 +222,9 @@ export class IngestService extends EventEmitter {
 
   private async build(sourceKey: string, loaded: LoadedSource, options: IngestOptions, concurrency: number): Promise<Manifest> {
     const { identity, decoded } = loaded;
-    const { raster } = decoded;
+    // An animation's ladder and risk are those of its first frame; its renditions stay animated.
+    const frames = decoded.animation?.frames ?? 1;
+    const raster = frames > 1 ? frameOf(decoded.raster, frames, 0) : decoded.raster;
     const formats = options.formats ?? this.config.ingest.formats;
     const widths = ladderFor(raster.width, options.widths);
     const extra = options.rendition ?? {};
@@ -253,7 +256,7 @@ export class IngestService extends EventEmitter {
       };
     });
     const placeholder = await makePlaceholder(this.render, sourceKey, loaded, (raw) => this.query.parse(raw));
-    const source = { key: sourceKey, width: raster.width, height: raster.height };
+    const source = { key: sourceKey, width: raster.width, height: raster.height, ...(frames > 1 ? { frames } : {}) };
     return assembleManifest(source, formats, renditions, writeWarnings(steps), { sizes: options.sizes, placeholder, transparent: loaded.decoded.hasAlpha });
   }
 }

@@ -8,8 +8,7 @@ import type { SourceIdentity } from '../origins/types.js';
  */
 // 5: the baseline JPEG encoder and the content cut-off, which two branches each called 4.
 // 6: fit defaults to contain (was cover), so a URL with both sides and no fit gets new bytes.
-// 7: this session's merges together: enlargement capped (limits.enlargement), the default
-//    kernel (bandlimit) limits ringing, wide gamut and animations kept, the negotiated-bytes rule.
+// 7: this session: enlargement cap; ringing limiter; wide gamut as P3; animations kept; negotiated-bytes rule.
 export const pipelineVersion = 'fw-pipeline-7';
 
 // Hits ask for the same few keys over and over; hashing is most of a hit's key cost. The memo

@@ -4,9 +4,10 @@ import type { CacheEntry } from '../cache/types.js';
 import type { Limits } from '../config.js';
 import { formatPlanHeader } from '../core/index.js';
 import type { PixelRaster, Plan } from '../core/types.js';
-import { encodeImage } from '../codec/encode.js';
 import { formatSpecs, type OutputFormat } from '../codec/formats.js';
-import { negotiateFormat } from '../codec/negotiate.js';
+import { negotiateAnimated, negotiateFormat } from '../codec/negotiate.js';
+import type { Animation } from '../codec/decode.js';
+import { frameOf, renderFrames } from '../core/index.js';
 import type { Origin, SourceIdentity } from '../origins/types.js';
 import { canonicalQuery } from '../schemas/canonical.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
@@ -17,8 +18,9 @@ import { renditionKey, strongEtag } from './key.js';
 import { checkRequestedSize, clampedHeader, type PlannedRendition, planRendition, type SourceSpectra } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
 import { admitRendition } from './admit.js';
-import { decodeSource, type LoadedSource, type ReadSource, readSource } from './source.js';
+import { decodeSource, type LoadedSource, type ReadSource, readSource, servesWish, wishOf } from './source.js';
 import { resampleWhileDecoding } from './streamed.js';
+import { encodeSmallest, fallbackFormat } from './smallest.js';
 import { type Stage, StageClock, type StageTiming } from './timings.js';
 
 /** Everything a render needs; no Fastify request, so ingest and the CLI can call it too. */
@@ -73,14 +75,16 @@ interface Resampled {
   plan: Plan;
   hasAlpha: boolean;
   identity: SourceIdentity;
+  /** Set when the source's frames were kept: the raster stacks the resampled frames. */
+  animation?: Animation;
   /** limits.renderTimeoutMs from the end of planning: covers resample and encode. */
   deadline: AbortSignal;
 }
 
-/** The caller's decoded source when it is the version asked for. */
-function givenSource(ctx: RenditionContextInternal): LoadedSource | undefined {
+/** The caller's decoded source when it is the version asked for, decoded as the query wishes. */
+function givenSource(ctx: RenditionContextInternal, q: RenditionQuery): LoadedSource | undefined {
   const given = ctx.decoded;
-  return given && given.identity.key === ctx.asked.key && given.identity.version === ctx.asked.version ? given : undefined;
+  return given && servesWish(given.decoded, wishOf(q)) && given.identity.key === ctx.asked.key && given.identity.version === ctx.asked.version ? given : undefined;
 }
 
 /** The given source, else `read` decoded now (or resampled while it decodes: streamed). */
@@ -89,7 +93,7 @@ async function decodedSource(ctx: RenditionContextInternal, source: LoadedSource
   const read = source;
   const streamed = await resampleWhileDecoding(ctx, read, q);
   if (streamed) return { ...streamed, hasAlpha: false, identity: read.identity };
-  return decodeSource(read, ctx.limits, ctx.clock);
+  return decodeSource(read, ctx.limits, ctx.clock, wishOf(q));
 }
 
 /**
@@ -101,13 +105,21 @@ async function resampleSource(ctx: RenditionContextInternal, read: LoadedSource 
   ctx.signal?.throwIfAborted();
   if ('raster' in source) return source;
   const { decoded, identity } = source;
-  const src = decoded.raster;
+  const { animation } = decoded;
+  const frames = animation?.frames ?? 1;
+  const whole = decoded.raster;
+  // An animation is planned on one frame, and its content-adaptive prefilter comes from the
+  // first frame's spectrum (the alias-risk report says so).
+  const src = frames > 1 ? frameOf(whole, frames, 0) : whole;
   const { spectra } = ctx;
   const { layout, plan } = planRendition(src, q, ctx.limits, spectra && (() => spectra.ofRaster(src, identity)));
   const deadline = AbortSignal.timeout(ctx.limits.renderTimeoutMs);
   const stop = ctx.signal ? AbortSignal.any([ctx.signal, deadline]) : deadline;
-  const raster = await ctx.clock.time('resample', () => ctx.pool.resample(src, plan, stop));
-  return { raster, layout, plan, hasAlpha: decoded.hasAlpha, identity, deadline };
+  const raster = await ctx.clock.time('resample', () =>
+    frames > 1 ? renderFrames(whole, frames, (f) => ctx.pool.resample(f, plan, stop)) : ctx.pool.resample(whole, plan, stop),
+  );
+  if (whole.gamut) raster.gamut = whole.gamut;
+  return { raster, layout, plan, hasAlpha: decoded.hasAlpha, identity, deadline, ...(animation ? { animation } : {}) };
 }
 
 async function produce(
@@ -117,7 +129,7 @@ async function produce(
   accept: string | undefined,
 ): Promise<{ entry: CacheEntry; identity: SourceIdentity }> {
   // The origin read comes before admission: a slow upstream holds no memory budget.
-  const given = givenSource(ctx);
+  const given = givenSource(ctx, q);
   const source = given ?? (await readSource(ctx.origin, path, ctx.limits, ctx.clock, ctx.signal));
   ctx.signal?.throwIfAborted();
   const lease = ctx.admitted ? undefined : await admitRendition(ctx, given ? given.decoded : source as ReadSource, q, accept);
@@ -126,10 +138,12 @@ async function produce(
   try {
     const done = await resampleSource(ctx, source, q);
     const { raster, layout, plan, deadline } = done;
-    const format: OutputFormat = q.format === undefined ? negotiateFormat(accept, done.hasAlpha) : q.format;
-    const encoding = encodeImage(raster, { format, quality: q.quality, background: q.background, canvas: layout.canvas });
+    const negotiated = done.animation ? negotiateAnimated(accept) : negotiateFormat(accept, done.hasAlpha);
+    const fallback = fallbackFormat(done.animation !== undefined, done.hasAlpha);
+    const options = { quality: q.quality, background: q.background, canvas: layout.canvas, animation: done.animation };
+    const encoding = encodeSmallest(raster, options, q.format ?? negotiated, q.format === undefined, fallback);
     ended = encoding.catch(() => undefined);
-    const body = await ctx.clock.time('encode', () =>
+    const { body, format } = await ctx.clock.time('encode', () =>
       withDeadline(encoding, deadline, () => ctx.pool.refusal('ERR_RENDER_TIMEOUT', 'encoding took longer than allowed')),
     );
     return { entry: entryOf(body, format, plan, clampedHeader(layout, q, ctx.limits)), identity: done.identity };

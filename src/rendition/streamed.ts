@@ -4,7 +4,7 @@ import { probeSpooledDecode, SpoolWriteError } from '../codec/spool-decode.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import { type PlannedRendition, planRendition, type SourceSpectra } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
-import { decodeLimits, type ReadSource } from './source.js';
+import { decodeLimits, type ReadSource, wishOf } from './source.js';
 import type { StageClock } from './timings.js';
 
 /**
@@ -47,7 +47,7 @@ export interface StreamedRendition extends PlannedRendition {
 export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSource, q: RenditionQuery): Promise<StreamedRendition | null> {
   const spool = ctx.pool.spool;
   if (!spool) return null;
-  const probe = await ctx.clock.time('decode', () => probeSpooledDecode(source.bytes, decodeLimits(ctx.limits)));
+  const probe = await ctx.clock.time('decode', () => probeSpooledDecode(source.bytes, decodeLimits(ctx.limits), wishOf(q)));
   if (!probe || probe.width * probe.height < STREAM_MIN_PIXELS) return null;
   // With prefilter=auto the adaptive filter needs the source's spectrum already at hand (an
   // earlier rendition of the same version analysed it); else the pixels come first (null).

@@ -51,5 +51,7 @@ export function riskBody(path: string, spectrum: SourceSpectrum, a: AssessedRend
     recommendedSigma: report.recommendedSigma,
     reason: report.reason,
     analysis: { tileSize: spectrum.tileSize, tiles: spectrum.tiles },
+    // Only for an animated source, so a still's report keeps its bytes.
+    ...(spectrum.frames ? { animation: { frames: spectrum.frames, analysed: 'first frame' as const } } : {}),
   };
 }

@@ -56,7 +56,8 @@ export async function assessSource(ctx: RiskContext, path: string, q: RenditionQ
     const header = await readHeader(read.bytes, decodeLimits(render.limits));
     const lease = await render.pool.admit(2 * decodeCost(header), `analysing a ${header.width}x${header.height} source`);
     try {
-      const { decoded } = await decodeSource(read, render.limits, clock);
+      // The source's own gamut (luminance with its primaries' coefficients); an animation's first frame.
+      const { decoded } = await decodeSource(read, render.limits, clock, { gamut: 'source', frames: 0 });
       const start = performance.now();
       const s = analyse(decoded.raster);
       analyseMs = performance.now() - start;

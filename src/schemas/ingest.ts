@@ -30,7 +30,7 @@ export function ingestQuerySchema(maxDimension: number) {
       .meta({ description: 'Comma list of widths; default 160..2560 capped at the source width.' }),
     formats: commaList('formats', z.enum(ingestFormats, 'formats: each must be webp, avif, jpeg or png'), ingestFormats.length)
       .optional()
-      .meta({ description: 'Comma list of formats; default ingest.formats (webp,jpeg).' }),
+      .meta({ description: 'Comma list of formats; default ingest.formats (avif,jpeg: measured, see README).' }),
     digest: z
       .string()
       .regex(/^[0-9a-f]{64}$/, 'digest must be the SHA-256 of the upload as 64 lowercase hex characters')
@@ -79,6 +79,11 @@ export const manifestSchema = z
       key: z.string().meta({ description: 'Path of the source in the folder origin.' }),
       width: z.number().int(),
       height: z.number().int(),
+      frames: z
+        .number()
+        .int()
+        .optional()
+        .meta({ description: 'Present when the source is animated: its frame count. WebP and GIF renditions keep every frame; other formats show the first. Widths and risk come from the first frame.' }),
     }),
     renditions: z.array(
       z.object({

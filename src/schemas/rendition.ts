@@ -6,8 +6,10 @@ import { hexColour } from './colour.js';
 import { decimal, digits, parseQuery, type RawQuery } from './query.js';
 
 export const fitModes = ['contain', 'cover', 'fill', 'scale-down'] as const satisfies readonly Fit[];
-export const formatChoices = ['jpeg', 'png', 'webp', 'avif'] as const;
+export const formatChoices = ['jpeg', 'png', 'webp', 'avif', 'gif'] as const;
 export const lightModes = ['linear', 'encoded'] as const;
+/** Values of CSS's `color-gamut` media feature (Media Queries Level 4), plus `source`. */
+export const gamutChoices = ['source', 'srgb', 'p3', 'rec2020'] as const;
 export const enlargeModes = ['limited', 'allowed'] as const;
 export type OutputFormatChoice = (typeof formatChoices)[number];
 
@@ -84,6 +86,16 @@ export function renditionQueryShape(o: RenditionQueryOptions) {
       .enum(lightModes, { error: 'light must be linear or encoded' })
       .default('linear')
       .meta({ description: 'Resample in linear light, or in the encoded values (legacy match).' }),
+    gamut: z
+      .enum(gamutChoices, { error: enumError('gamut', gamutChoices) })
+      .default('source')
+      .meta({
+        description:
+          "The rendition's colour space, named as CSS's color-gamut media feature. source (default), p3 and rec2020 keep a wide-gamut source wide, as Display P3 (a profile wider than P3 is converted to it); srgb converts every source to sRGB. An sRGB source stays sRGB.",
+      }),
+    still: digits('still', 1, 100_000)
+      .optional()
+      .meta({ description: 'One frame of an animated source as a still picture (for posters), counted from 1. Left out, an animation stays animated.' }),
     enlarge: z
       .enum(enlargeModes, { error: 'enlarge must be limited or allowed' })
       .default('limited')

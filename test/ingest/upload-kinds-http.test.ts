@@ -108,7 +108,7 @@ describe('server.publicUrl', () => {
     expect(res.statusCode).toBe(200);
     const m = res.json();
     for (const r of m.renditions) expect(r.url).toBe(`https://img.textile-shop.test/v1/renditions/${m.source.key}?width=${r.width}&format=${r.format}`);
-    expect(m.srcset.webp.split(', ')[0]).toBe(`https://img.textile-shop.test/v1/renditions/${m.source.key}?width=80&format=webp 80w`);
+    expect(m.srcset.avif.split(', ')[0]).toBe(`https://img.textile-shop.test/v1/renditions/${m.source.key}?width=80&format=avif 80w`);
     expect(m.src.startsWith('https://img.textile-shop.test/v1/renditions/')).toBe(true);
   });
 });

@@ -1,5 +1,9 @@
 import type { PixelRaster } from '../types.js';
+import { displayP3Space, rgbToRgb, srgbSpace } from './primaries.js';
 import { linearToSrgb8, srgbToLinear8, srgbToLinear16 } from './srgb.js';
+
+// Display P3 -> sRGB in linear light (SMPTE RP 177 matrices of both spaces' primaries; same white).
+const p3ToSrgb = rgbToRgb(displayP3Space, srgbSpace);
 
 /**
  * The mean colour of a raster in linear light, as 8-bit sRGB codes [r, g, b]: each pixel's
@@ -10,6 +14,8 @@ import { linearToSrgb8, srgbToLinear8, srgbToLinear16 } from './srgb.js';
  *
  * Contract: reads `raster` (8- or 16-bit sRGB codes, 1..4 channels, alpha last when present,
  * not premultiplied); allocates nothing per pixel. A fully transparent raster gives black.
+ * A Display P3 raster (same transfer function) has its mean taken to sRGB's primaries,
+ * clipped to sRGB's gamut: the colour is for CSS, whose hex colours are sRGB.
  */
 export function linearMeanColour(raster: PixelRaster): [number, number, number] {
   const { data, channels } = raster;
@@ -30,7 +36,15 @@ export function linearMeanColour(raster: PixelRaster): [number, number, number] 
     weight += a;
   }
   if (!(weight > 0)) return [0, 0, 0];
-  return [linearToSrgb8(r / weight), linearToSrgb8(g / weight), linearToSrgb8(b / weight)];
+  const mean = [r / weight, g / weight, b / weight];
+  const [lr, lg, lb] = raster.gamut === 'display-p3' && channels >= 3 ? toSrgb(mean) : mean;
+  return [linearToSrgb8(lr), linearToSrgb8(lg), linearToSrgb8(lb)];
+}
+
+/** Linear Display P3 to linear sRGB, each clipped to [0, 1]. */
+function toSrgb([r, g, b]: number[]): number[] {
+  const m = p3ToSrgb;
+  return [0, 3, 6].map((i) => Math.min(1, Math.max(0, m[i] * r + m[i + 1] * g + m[i + 2] * b)));
 }
 
 /** `#rrggbb` of three 8-bit codes (lower case, as CSS writes hex colours). */

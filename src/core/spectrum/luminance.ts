@@ -1,18 +1,19 @@
 /**
  * Linear-light luminance of one square tile of a decoded raster.
  *
- * Codes are decoded with the exact sRGB curve (IEC 61966-2-1:1999) and weighted with the
- * luminance coefficients of the sRGB / Rec. 709 primaries (ITU-R BT.709-6, item 3.2:
- * Y = 0.2126 R + 0.7152 G + 0.0722 B). Alpha multiplies the result (premultiplied), because
+ * Codes are decoded with the exact sRGB curve (IEC 61966-2-1:1999; Display P3 shares it) and
+ * weighted with the luminance coefficients of the raster's primaries: sRGB / Rec. 709
+ * (ITU-R BT.709-6, item 3.2: Y = 0.2126 R + 0.7152 G + 0.0722 B), or Display P3's, derived
+ * from SMPTE EG 432-1's primaries as SMPTE RP 177 does (primaries.ts). Alpha multiplies the result (premultiplied), because
  * premultiplied values are what the resampler filters.
  */
 import { srgbToLinear16, srgbToLinear8 } from '../color/index.js';
+import { displayP3Space, luminanceCoefficients } from '../color/primaries.js';
 import type { PixelRaster } from '../types.js';
 
 // ITU-R BT.709-6 luminance coefficients (also IEC 61966-2-1, which shares the primaries).
-const KR = 0.2126;
-const KG = 0.7152;
-const KB = 0.0722;
+const rec709: readonly [number, number, number] = [0.2126, 0.7152, 0.0722];
+const p3 = luminanceCoefficients(displayP3Space);
 
 /**
  * Write the luminance of the size x size tile whose top-left corner is (x0, y0), times the
@@ -35,6 +36,7 @@ export function windowedTileLuminance(
   const wide = data instanceof Uint16Array;
   const lut = wide ? srgbToLinear16 : srgbToLinear8;
   const alphaScale = wide ? 1 / 65535 : 1 / 255;
+  const [KR, KG, KB] = src.gamut === 'display-p3' ? p3 : rec709;
   let sum = 0;
   for (let y = 0; y < size; y++) {
     let p = ((y0 + y) * width + x0) * channels;

@@ -119,5 +119,6 @@ export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
     mean: count > 0 ? meanSum / count : 0,
     coarse: count > 0 ? Math.max(0, meanSquares / count - (meanSum / count) ** 2) : 0,
     grid: { columns: layout.columns, rows: layout.rows, bins, binSize: BIN, power: grid },
+    ...(src.sourceFrames !== undefined && src.sourceFrames > 1 ? { frames: src.sourceFrames } : {}),
   };
 }

@@ -67,8 +67,13 @@ describe('the pages a browser meets', () => {
       expect(all).toContain(`/inspect?source=${path}&width=320`);
     }
     expect(body).toMatch(/<form class="try" method="get" action="\/inspect">/);
-    const tile = await get(`/v1/renditions/${sources[0]}?width=240&height=160&fit=cover&density=2`, 'image/webp,*/*');
-    expect([tile.statusCode, tile.headers['content-type']]).toEqual([200, 'image/webp']);
+    const url = `/v1/renditions/${sources[0]}?width=240&height=160&fit=cover&density=2`;
+    const tile = await get(url, 'image/webp,*/*');
+    // The negotiated WebP, unless it is larger than the JPEG: then the JPEG (src/rendition/smallest.ts).
+    const [webp, jpeg] = [(await get(`${url}&format=webp`)).rawPayload, (await get(`${url}&format=jpeg`)).rawPayload];
+    const [type, expected] = webp.length < jpeg.length ? ['image/webp', webp] : ['image/jpeg', jpeg];
+    expect([tile.statusCode, tile.headers['content-type']]).toEqual([200, type]);
+    expect(tile.rawPayload.equals(expected as Buffer)).toBe(true);
   });
 
   it('/docs has a section for every operation of the OpenAPI document, with its parameters', async () => {
