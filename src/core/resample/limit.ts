@@ -13,24 +13,24 @@ import type { WeightTable } from './weights.js';
 let limiting = true;
 
 /**
- * The clamp's range is the lobe's [lo, hi] widened by RING_SLACK of hi - lo above, and below
- * by the smaller of that and RING_FLOOR of lo itself (linear light: a dark ground may darken by
- * a quarter of its own light at most, not by a share of the step, so it never turns black).
- * Where the lobe is flat (the far side of an edge, the ground between pinstripes) the clamp is
- * exact, so no halo or black trough survives; where the lobe spans an edge the step may
- * overshoot by at most RING_SLACK (4.2 % at the worst phase after 8-bit rounding, against
- * 7.8 % unclamped); a texture's crest or trough between two source samples, which the samples'
- * own range would clip (by up to 1 - cos(pi f) of its amplitude at f cycles per source px),
- * keeps its height through the passband: with 3 % and 3 % of lo the zone plate's passband
- * fell to -39.0 dB at 2x and -38.3 dB at 5.33x (crests and troughs clipped); with 5 % and 25 %
- * it is -40.9 and -42.1 dB (-45.1 and -43.5 unclamped), `npm run fidelity`.
+ * The clamp's range is the lobe's [lo, hi] widened above by RING_SLACK of hi - lo (RING_CREST
+ * where a crest lies inside the lobe), and below by the same share but at most RING_FLOOR of lo
+ * itself (linear light: a dark ground may darken by a quarter of its own light at most, not by
+ * a share of the step, so it never turns black). Where the lobe is flat (the far side of an
+ * edge, the ground between pinstripes) the clamp is exact, so no halo or black trough
+ * survives; where the lobe spans an edge, one end sample sits on each plateau, so the step may
+ * overshoot by RING_SLACK at most (2.6 % at the worst phase after 8-bit rounding, 7.8 %
+ * unclamped). A texture's crest or trough between two source samples, which the samples' own
+ * range would clip (by up to 1 - cos(pi f) of its amplitude at f cycles per source px), has
+ * both end samples below (above) it and gets RING_CREST: with 3 % everywhere and 3 % of lo the
+ * zone plate's passband was -39.0 dB at 2x and -38.3 dB at 5.33x (crests and troughs clipped);
+ * with these it is -41.4 and -43.0 dB (-45.1 and -43.5 unclamped), `npm run fidelity`.
  */
 export const RING_SLACK = 0.03;
 
 /**
- * The share of hi - lo a crest (or trough) may pass the lobe's range by, where the lobe's
- * maximum (minimum) lies strictly inside it, both end samples below (above) it: a texture's
- * crest between samples, not the plateau of an edge, whose end sample reaches the extreme.
+ * The share of hi - lo a crest (trough) may pass the lobe's range by where both end samples
+ * lie below hi (above lo): a texture's crest between samples, not an edge's plateau.
  */
 export const RING_CREST = 0.08;
 
