@@ -17,7 +17,8 @@ import { kaiserSinc, type KaiserSincDesign } from './designed.js';
  * plate that lowers the 8x residual from -38.4 to -39.0 dB for 1 % less at 0.8x. Measured
  * with scripts/fidelity.ts: residual -41.5 / -41.5 / -40.9 / -39.0 dB at 2 / 4 / 5.33 / 8x,
  * passband -45 dB, 89-90 % at 0.8x, 1.5 % overshoot, all without the ringing clamp (limit.ts), which
- * brings the worst-phase overshoot from 7.8 to 2.5 % for -40.1 dB residual and 86.7 % at 2x. Lanczos-3 stretched passes about 7 % at
+ * brings the worst-phase overshoot from 7.8 to 2.6 % for -40.9 dB residual and -41.4 / -43.0 dB
+ * passband at 2 / 5.33x. Lanczos-3 stretched passes about 7 % at
  * 1.3x and keeps about 82 % at 0.8x, which is why it is not the default.
  */
 export const BANDLIMIT_DESIGN: KaiserSincDesign = { cutoff: 0.49, radius: 5, beta: 5 };

@@ -16,7 +16,7 @@ type DecodeReduce = (
 ) => void;
 type Limit = (
   dst: number, dstBase: number, dstStep: number, src: number, srcBase: number, srcStep: number,
-  lanes: number, lobe: number, o0: number, o1: number, slack: number,
+  lanes: number, lobe: number, o0: number, o1: number, slack: number, crest: number, floorShare: number,
 ) => void;
 type Quantise = (dst: number, src: number, n: number, thresholds: number, start: number, shift: number, base: number) => void;
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { centralLobes, limitRinging, RING_SLACK } from '../../../src/core/resample/limit.js';
+import { centralLobes, limitRinging, RING_CREST, RING_FLOOR, RING_SLACK } from '../../../src/core/resample/limit.js';
 import { finalTable } from '../../../src/core/resample/axis-table.js';
 import { resampleAxis } from '../../../src/core/resample/separable.js';
 import type { AxisPlan } from '../../../src/core/types.js';
@@ -59,5 +59,20 @@ describe('ringing limiter (clamp to the central lobe, resample/limit.ts)', () =>
     expect(out[0]).toBeCloseTo(0.02, 7);
     const lobes = centralLobes({ srcLen: 6, dstLen: 1, taps: 6, start: Int32Array.from([0]), weights: Float32Array.from([-0.1, 0.2, 0.5, 0.4, -0.05, 0.05]), centre: Float64Array.from([2.5]) });
     expect(Array.from(lobes)).toEqual([1, 3]);
+  });
+  it('gives a crest or trough inside the lobe RING_CREST of the span, an edge plateau RING_SLACK', () => {
+    const one = (src: number[], v: number) => {
+      const out = Float32Array.from([v]);
+      limitRinging(out, 0, 1, Float32Array.from(src), 0, 1, 1, Int32Array.from([0, src.length]), 0, 1);
+      return out[0];
+    };
+    // A crest between samples (both ends lower): 1.0 + 0.08 * 0.8.
+    expect(one([0.2, 0.9, 1.0, 0.9, 0.3], 1.2)).toBeCloseTo(1 + RING_CREST * 0.8, 6);
+    // An edge: the last sample sits on the upper plateau, so 1.0 + 0.03 * 0.8.
+    expect(one([0.2, 0.5, 1.0, 1.0, 1.0], 1.2)).toBeCloseTo(1 + RING_SLACK * 0.8, 6);
+    // A trough inside the lobe: 0.4 - min(0.08 * 0.6, 0.25 * 0.4).
+    expect(one([1, 0.5, 0.4, 0.5, 1], 0)).toBeCloseTo(0.4 - Math.min(RING_CREST * 0.6, RING_FLOOR * 0.4), 6);
+    // A dark ground between two light lines: at most a quarter of its own light darker.
+    expect(one([1, 0.02, 0.02, 0.02, 1], 0)).toBeCloseTo(0.02 * (1 - RING_FLOOR), 6);
   });
 });
