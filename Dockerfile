@@ -17,6 +17,7 @@ RUN npm ci --no-audit --no-fund --ignore-scripts && npm rebuild esbuild
 COPY tsconfig.json tsconfig.build.json ./
 COPY src ./src
 COPY tools/demo ./tools/demo
+COPY scripts/bundle-inspector.mjs ./scripts/
 RUN npm run build && npm prune --omit=dev --no-audit --no-fund --ignore-scripts
 
 FROM node:24-bookworm-slim AS runtime
@@ -31,7 +32,7 @@ COPY --from=build /app/dist ./dist
 COPY package.json ./
 COPY bin ./bin
 COPY config ./config
-# The /inspect page's HTML, CSS and client script (compiled by esbuild on first request).
+# The /inspect page's HTML, CSS and icon (its script is bundled at build time: dist/inspector).
 COPY src/inspector ./src/inspector
 RUN mkdir -p /data/images /data/cache && chown -R node:node /data
 # The official Node image's unprivileged user (uid 1000).

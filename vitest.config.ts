@@ -13,12 +13,14 @@ const unit = [
   'test/docs/readme.test.ts',
   'test/ingest/{jobs,ladder,store}.test.ts',
   'test/inspect/zoom.test.ts',
-  'test/codec/{decode,decode-layouts,decode-refusals,encode,negotiate,spool-parity}.test.ts',
+  'test/http/pages/accept.test.ts',
+  'test/codec/{decode,decode-layouts,decode-refusals,encode,negotiate,spool-parity,webp-icc}.test.ts',
   'test/lib/single-flight.test.ts',
   'test/origins/{address-guard,folder}.test.ts',
   'test/pool/spool/rows.test.ts',
-  'test/rendition/{identity,key,timings}.test.ts',
+  'test/rendition/{identity,key,plan,timings}.test.ts',
   'test/risk/warnings.test.ts',
+  'test/schemas/colour.test.ts',
   'test/security/signing.test.ts',
 ];
 

@@ -280,3 +280,79 @@ export function quantise8(dst: i32, src: i32, n: i32, thresholds: i32, start: i3
     store<u8>(<usize>(dst + i), code);
   }
 }
+
+/**
+ * The ringing limiter (src/core/resample/limit.ts): each output sample is clamped to the range
+ * [lo, hi] of the inputs under its central lobe, widened above by `slack` times hi - lo, or
+ * `crest` times it where both end samples lie below hi (a crest inside the lobe, not an edge's
+ * plateau); below likewise, but by at most `floorShare` times lo, so a dark ground stays its
+ * own colour. lobe = [first input, count] per output (i32 pairs).
+ * f32x4 pmin and pmax over lanes (one instruction each; min and max carry NaN and -0 rules
+ * that cost several), so no branch depends on the data. Pixels are stored lane by
+ * lane: a whole-vector store would clamp the next pixel's lanes with this pixel's range.
+ */
+@inline function clampTo(v: v128, lo: v128, hi: v128, a: v128, b: v128, vs: v128, vc: v128, vf: v128): v128 {
+  const span = f32x4.sub(hi, lo);
+  const up = f32x4.mul(v128.bitselect(vc, vs, f32x4.lt(f32x4.pmax(a, b), hi)), span);
+  const down = f32x4.mul(v128.bitselect(vc, vs, f32x4.gt(f32x4.pmin(a, b), lo)), span);
+  const below = f32x4.sub(lo, f32x4.pmin(down, f32x4.mul(vf, lo)));
+  return f32x4.pmin(f32x4.add(hi, up), f32x4.pmax(below, v));
+}
+
+export function limit(
+  dst: i32, dstBase: i32, dstStep: i32, src: i32, srcBase: i32, srcStep: i32,
+  lanes: i32, lobe: i32, o0: i32, o1: i32, slack: f32, crest: f32, floorShare: f32,
+): void {
+  const sb = <usize>(srcStep << 2);
+  const vec = lanes > 4 ? lanes & ~3 : 0;
+  const vs = f32x4.splat(slack);
+  const vc = f32x4.splat(crest);
+  const vf = f32x4.splat(floorShare);
+  for (let o = o0; o < o1; o++) {
+    const first = load<i32>(addr(lobe, 2 * o));
+    const n = load<i32>(addr(lobe, 2 * o + 1));
+    const d = addr(dst, dstBase + o * dstStep);
+    const s = addr(src, srcBase + first * srcStep);
+    const end = <usize>(n - 1) * sb;
+    if (lanes <= 4) {
+      const a = v128.load(s), b = v128.load(s + end);
+      let lo = f32x4.pmin(a, b), hi = f32x4.pmax(a, b);
+      for (let k = 1; k < n - 1; k++) {
+        const x = v128.load(s + <usize>k * sb);
+        lo = f32x4.pmin(lo, x);
+        hi = f32x4.pmax(hi, x);
+      }
+      storeLanes(d, clampTo(v128.load(d), lo, hi, a, b, vs, vc, vf), lanes);
+      continue;
+    }
+    for (let i = 0; i < vec; i += 4) {
+      const j = <usize>(i << 2);
+      const a = v128.load(s + j), b = v128.load(s + end + j);
+      let lo = f32x4.pmin(a, b), hi = f32x4.pmax(a, b);
+      for (let k = 1; k < n - 1; k++) {
+        const x = v128.load(s + <usize>k * sb + j);
+        lo = f32x4.pmin(lo, x);
+        hi = f32x4.pmax(hi, x);
+      }
+      v128.store(d + j, clampTo(v128.load(d + j), lo, hi, a, b, vs, vc, vf));
+    }
+    for (let i = vec; i < lanes; i++) {
+      const j = <usize>(i << 2);
+      const a = load<f32>(s + j), b = load<f32>(s + end + j);
+      let lo = b < a ? b : a, hi = a < b ? b : a;
+      for (let k = 1; k < n - 1; k++) {
+        const x = load<f32>(s + <usize>k * sb + j);
+        lo = x < lo ? x : lo;
+        hi = hi < x ? x : hi;
+      }
+      const span = hi - lo;
+      const up = ((a < b ? b : a) < hi ? crest : slack) * span;
+      const down = ((b < a ? b : a) > lo ? crest : slack) * span;
+      const own = floorShare * lo;
+      const v = load<f32>(d + j);
+      const below = lo - (own < down ? own : down);
+      const ceil = hi + up;
+      store<f32>(d + j, v < below ? below : v > ceil ? ceil : v);
+    }
+  }
+}

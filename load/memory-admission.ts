@@ -3,7 +3,7 @@
  * with the default memory budget. Three scenarios, each bounded (a fixed number of requests):
  *   one     one 8192x8192 16-bit RGBA PNG (all zero, ~0.5 MB) at width=320&format=png
  *   ingest  four different such PNGs posted to /v1/ingest?widths=320 at once
- *   avif    twelve ?width=8100&height=4880&format=avif of a 2400x1600 picture at once
+ *   avif    twelve ?width=8100&height=4880&format=avif&enlarge=allowed of a 2400x1600 picture at once
  * For each it prints the status counts, peak RSS plus spool bytes (/dev/shm), the RSS 10 s after
  * the end against the idle RSS, and the seconds until /readyz is 200 again.
  * Targets (issue 18): peak RSS + spool <= 1.5 GiB, recovery <= 10 s.
@@ -90,7 +90,7 @@ try {
   );
   await scenario(
     'avif',
-    Array.from({ length: 12 }, () => () => fetch(`${server.url}/v1/renditions/ramp.jpg?width=8100&height=4880&format=avif`)),
+    Array.from({ length: 12 }, () => () => fetch(`${server.url}/v1/renditions/ramp.jpg?width=8100&height=4880&format=avif&enlarge=allowed`)),
   );
   const budget = /foldwise_memory_budget_bytes (\d+)/.exec(await (await fetch(`${server.url}/metrics`)).text())?.[1];
   printTable(`memory admission (budget ${mib(Number(budget)).toFixed(0)} MiB, target peak <= 1536 MiB, recovery <= 10 s)`, [

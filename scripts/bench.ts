@@ -49,7 +49,7 @@ const encodeJpeg = (out: PixelRaster) =>
 async function ourPipeline(jpeg: Buffer, w: number, h: number, where: 'in-process' | 'pool', encoder: 'plain' | 'service' = 'plain'): Promise<Buffer> {
   const src = await decodeRaw(jpeg);
   const out = where === 'in-process' ? ourResample(src, w, h) : await pool.resample(src, planOf(src, w, h));
-  return encoder === 'plain' ? encodeJpeg(out) : encodeImage(out, { format: 'jpeg', quality: 82, background: '#ffffff' });
+  return encoder === 'plain' ? encodeJpeg(out) : encodeImage(out, { format: 'jpeg', quality: 82, background: { r: 255, g: 255, b: 255 } });
 }
 
 /**
@@ -62,7 +62,7 @@ async function streamedPipeline(jpeg: Buffer, w: number, h: number, encoder: 'pl
   const file = pool.spool.path();
   try {
     const out = await pool.resampleSpooled(file, probe, probe.write(file), planOf(probe, w, h));
-    return encoder === 'plain' ? encodeJpeg(out) : encodeImage(out, { format: 'jpeg', quality: 82, background: '#ffffff' });
+    return encoder === 'plain' ? encodeJpeg(out) : encodeImage(out, { format: 'jpeg', quality: 82, background: { r: 255, g: 255, b: 255 } });
   } finally {
     await pool.spool.remove(file);
   }

@@ -6,6 +6,7 @@
  *   dist/cli/index.js   the CLI (bin/foldwise.js runs it when it is not older than src/), and
  *                       beside it the chunks each command loads when it runs
  *   dist/pool/worker.js the piscina worker entry, where src/pool/render-pool.ts looks for it
+ *   dist/inspector/client.js  the /inspect page's browser script (scripts/bundle-inspector.mjs)
  *
  * Packages stay external (sharp is native; the rest load from node_modules as usual). The
  * layout is the one `npm run build` (tsc) writes, and each module's `import.meta.url` is
@@ -16,6 +17,7 @@ import { build } from 'esbuild';
 import { readFile } from 'node:fs/promises';
 import { dirname, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { bundleInspector } from './bundle-inspector.mjs';
 
 const root = dirname(dirname(fileURLToPath(import.meta.url)));
 const src = `${root}/src`;
@@ -50,4 +52,5 @@ await Promise.all([
   build({ ...common, entryPoints: [`${src}/pool/worker.ts`], outfile: `${root}/dist/pool/worker.js`, plugins: [tscLayoutUrls(`${root}/dist/pool`)] }),
   // The demo generator, where the server looks for it in a build (src/server.ts), for `foldwise serve`.
   build({ ...common, entryPoints: [`${root}/tools/demo/index.ts`], outfile: `${root}/dist/demo/tools/demo/index.js` }),
+  bundleInspector(root),
 ]);

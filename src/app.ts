@@ -5,11 +5,14 @@ import type { Flight } from './lib/single-flight.js';
 import type { CacheEntry, CacheTier } from './cache/types.js';
 import type { Config } from './config.js';
 import { createFolderOrigin } from './origins/folder.js';
+import { createS3Origin } from './origins/s3.js';
 import { upstreamFromConfig, withUpstream } from './origins/upstream-route.js';
 import type { Origin } from './origins/types.js';
 import cachePlugin from './http/plugins/cache.js';
 import contextPlugin from './http/plugins/context.js';
 import ingestPlugin from './http/plugins/ingest.js';
+import ingestQueuePlugin from './http/plugins/ingest-queue.js';
+import callbacksPlugin from './http/plugins/callbacks.js';
 import { clientErrorHandler } from './http/plugins/client-errors.js';
 import stoppingPlugin from './http/plugins/stopping.js';
 import errorsPlugin, { sendProblem, toFoldwiseError } from './http/plugins/errors.js';
@@ -20,17 +23,23 @@ import pressurePlugin from './http/plugins/pressure.js';
 import redisPlugin, { redisSettings } from './http/plugins/redis.js';
 import renderPlugin from './http/plugins/rendition.js';
 import signingPlugin from './http/plugins/signing.js';
+import sourceIndexPlugin from './http/plugins/source-index.js';
+import deletionPlugin from './http/plugins/deletion.js';
+import deleteSourceRoutes from './http/routes/delete-source.js';
 import spectraPlugin from './http/plugins/spectra.js';
 import workerPoolPlugin from './http/plugins/worker-pool.js';
 import docsRoutes from './http/routes/docs.js';
 import healthRoutes from './http/routes/health.js';
+import homeRoutes from './http/routes/home.js';
 import ingestRoutes from './http/routes/ingest.js';
 import inspectRoutes from './http/routes/inspect.js';
 import metricsRoutes from './http/routes/metrics.js';
 import renditionRoutes from './http/routes/renditions.js';
 import aliasRiskRoutes from './http/routes/alias-risk.js';
 import sourcesRoutes from './http/routes/sources.js';
+import clientHintsPlugin from './http/plugins/client-hints.js';
 import { signingRequired } from './security/signing.js';
+import type { BandRunner } from './pool/runner.js';
 
 export interface BuildOptions {
   config: Config;
@@ -42,6 +51,8 @@ export interface BuildOptions {
   flight?: Flight<CacheEntry>;
   /** pino options, or false for none; default JSON logs at config.server.logLevel. */
   logger?: FastifyServerOptions['logger'];
+  /** How the render pool runs its band tasks (src/pool/runner.ts); default piscina's run. For fault tests. */
+  poolRunner?: BandRunner;
 }
 
 const packageVersion = (
@@ -84,12 +95,15 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     done(null, payload);
   });
 
-  const origin =
-    options.origin ??
-    withUpstream(createFolderOrigin(config.origin.sourceDir, { maxBytes: config.limits.maxSourceBytes }), upstreamFromConfig(config));
+  const { storeUrl, s3Endpoint } = config.origin;
+  const local = storeUrl
+    ? createS3Origin({ storeUrl, endpoint: s3Endpoint, maxBytes: config.limits.maxSourceBytes, retryAfterSeconds: config.pool.retryAfterSeconds })
+    : createFolderOrigin(config.origin.sourceDir, { maxBytes: config.limits.maxSourceBytes });
+  const origin = options.origin ?? withUpstream(local, upstreamFromConfig(config));
   await app.register(errorsPlugin);
   await app.register(stoppingPlugin, { retryAfterSeconds: config.pool.retryAfterSeconds });
   await app.register(openApiPlugin);
+  await app.register(clientHintsPlugin);
   await app.register(metricsPlugin);
   await app.register(contextPlugin, { config, origin });
   await app.register(pressurePlugin, config.pressure);
@@ -99,8 +113,9 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
     sharedTier: options.sharedTier ?? app.sharedRedis?.tier,
     flight: options.flight ?? app.sharedRedis?.flight,
   });
-  await app.register(workerPoolPlugin, { ...config.pool, rssCeilingBytes: config.pressure.maxRssBytes });
+  await app.register(workerPoolPlugin, { ...config.pool, rssCeilingBytes: config.pressure.maxRssBytes, runner: options.poolRunner });
   await app.register(memoryWatchPlugin, config.pressure);
+  await app.register(sourceIndexPlugin);
   await app.register(spectraPlugin);
   await app.register(renderPlugin);
   await app.register(signingPlugin, {
@@ -111,14 +126,19 @@ export async function build(options: BuildOptions): Promise<FastifyInstance> {
   });
 
   await app.register(ingestPlugin);
+  await app.register(callbacksPlugin);
+  await app.register(ingestQueuePlugin);
+  await app.register(deletionPlugin);
 
   await app.register(renditionRoutes);
   await app.register(aliasRiskRoutes);
   await app.register(ingestRoutes);
   await app.register(sourcesRoutes);
+  await app.register(deleteSourceRoutes);
   await app.register(healthRoutes);
   await app.register(metricsRoutes);
   await app.register(docsRoutes, { version: packageVersion });
   await app.register(inspectRoutes);
+  await app.register(homeRoutes, { version: packageVersion });
   return app;
 }

@@ -10,6 +10,8 @@ export const configSchema = z.strictObject({
     host: z.string().min(1),
     port: z.number().int().min(0).max(65535),
     logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']),
+    /** json: one JSON object per line (for machines); pretty: readable lines; auto: pretty on a terminal. */
+    logFormat: z.enum(['auto', 'json', 'pretty']),
     trustProxy: z.boolean(),
     /**
      * Deadline for receiving a whole request (headers and body), against clients that send
@@ -18,6 +20,18 @@ export const configSchema = z.strictObject({
     requestTimeoutMs: z.number().int().min(0),
     /** A connection idle this long (no bytes either way) is closed. 0 switches it off. */
     idleTimeoutMs: z.number().int().min(0),
+    /**
+     * The address callers reach the service at (behind a load balancer or CDN), e.g.
+     * "https://img.example.org": manifests, srcset and callbacks carry absolute URLs under it.
+     * null = paths relative to the host the caller used.
+     */
+    publicUrl: z
+      .string()
+      .url()
+      .regex(/^https?:\/\/[^?#]*$/, 'publicUrl must be an http(s) URL without query or fragment')
+      .nullable()
+      .optional()
+      .transform((v) => v?.replace(/\/+$/, '') ?? null),
   }),
   origin: z.strictObject({
     sourceDir: z.string().min(1),
@@ -25,6 +39,14 @@ export const configSchema = z.strictObject({
     listing: z.boolean(),
     /** Generate the demo pictures into sourceDir before listening (npm start). */
     generateDemo: z.boolean(),
+    /**
+     * s3://bucket/prefix: sources and uploads in an S3-compatible object store instead of
+     * sourceDir (credentials and region from AWS_ACCESS_KEY_ID, AWS_SECRET_ACCESS_KEY,
+     * AWS_REGION). null = the folder origin.
+     */
+    storeUrl: z.string().regex(/^s3:\/\/[a-z0-9][a-z0-9.-]{1,61}[a-z0-9](\/.*)?$/, 'storeUrl must be s3://bucket[/prefix]').nullable().optional(),
+    /** Endpoint of an S3-compatible server, e.g. http://127.0.0.1:9000 (path-style addressing). */
+    s3Endpoint: z.string().url().nullable().optional(),
     /**
      * HTTP(S) upstreams, reached as /v1/renditions/~upstream/<host>[:port]/<path>. Only the
      * allowlisted origins are fetched; every resolved address must be public unless allowed.
@@ -49,7 +71,7 @@ export const configSchema = z.strictObject({
     maxPixels: positiveInt,
     maxSourceBytes: positiveInt,
     maxOutputPixels: positiveInt,
-    /** Most animation frames a source may declare (only the first is rendered). */
+    /** Most animation frames a source may declare (each is rendered; maxPixels counts them all). */
     maxFrames: positiveInt,
     /** Largest upload accepted by POST /v1/ingest, in bytes. */
     maxUploadBytes: positiveInt,
@@ -57,6 +79,14 @@ export const configSchema = z.strictObject({
     decodeTimeoutMs: positiveInt,
     /** Deadline for resampling and encoding one rendition. */
     renderTimeoutMs: positiveInt,
+    /**
+     * Enlargement caps, in output px per source px: `default` for every rendition (1: never
+     * beyond the source, as the upload hook's ladder), `allowed` for one asked with
+     * enlarge=allowed. Past the cap the rendition is made smaller, never refused.
+     */
+    enlargement: z
+      .strictObject({ default: z.number().min(1).max(16), allowed: z.number().min(1).max(16) })
+      .refine((e) => e.allowed >= e.default, 'allowed must be at least default'),
   }),
   pool: z.strictObject({
     /** Worker threads; 0 = one per available core. */
@@ -152,6 +182,19 @@ export const configSchema = z.strictObject({
     maxJobs: positiveInt,
     /** Finished manifests kept so a repeated ingest does no work. */
     manifestCacheEntries: positiveInt,
+    /**
+     * With Redis (cache.redisUrl) async jobs live on a shared queue: finished jobs are kept this
+     * long for polls; a running job's lock lapses this long after its replica died, and another
+     * replica takes the job over; a job failing for a passing reason (5xx) runs at most
+     * jobAttempts times, with exponential backoff from 1 s.
+     */
+    jobResultSeconds: positiveInt,
+    jobLockMs: z.number().int().min(500),
+    jobAttempts: z.number().int().min(1).max(20),
+    /** Callback deliveries: attempts at most, the first retry's delay (doubling), one attempt's deadline. */
+    callbackAttempts: z.number().int().min(1).max(20),
+    callbackBaseDelayMs: positiveInt,
+    callbackTimeoutMs: positiveInt,
   }),
 });
 
@@ -164,10 +207,14 @@ type Json = Record<string, unknown>;
 export const envMap: Record<string, { path: string[]; parse: (v: string) => unknown }> = {
   HOST: { path: ['server', 'host'], parse: (v) => v },
   PORT: { path: ['server', 'port'], parse: (v) => (/^\d+$/.test(v) ? Number(v) : v) },
+  FOLDWISE_LOG_FORMAT: { path: ['server', 'logFormat'], parse: (v) => v },
   FOLDWISE_SOURCE_DIR: { path: ['origin', 'sourceDir'], parse: (v) => v },
   FOLDWISE_CACHE_DIR: { path: ['cache', 'dir'], parse: (v) => v },
   FOLDWISE_REDIS_URL: { path: ['cache', 'redisUrl'], parse: (v) => v },
   FOLDWISE_SPOOL_DIR: { path: ['pool', 'spoolDir'], parse: (v) => v },
+  FOLDWISE_PUBLIC_URL: { path: ['server', 'publicUrl'], parse: (v) => v },
+  FOLDWISE_STORE_URL: { path: ['origin', 'storeUrl'], parse: (v) => v },
+  FOLDWISE_S3_ENDPOINT: { path: ['origin', 's3Endpoint'], parse: (v) => v },
   FOLDWISE_UPSTREAM_HOSTS: {
     path: ['origin', 'upstream', 'allowHosts'],
     parse: (v) => v.split(',').map((h) => h.trim()).filter((h) => h.length > 0),

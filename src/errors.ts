@@ -54,6 +54,11 @@ export const errorCodes = {
   // Never sent: the client has gone. Logged as the outcome of work it abandoned (status 499, common practice).
   ERR_REQUEST_ABANDONED: { status: 499, title: 'The client closed the request before the answer' },
   ERR_MEMORY_STUCK: { status: 503, title: 'Memory stays above its ceiling with no work admitted; restart this replica' },
+  // Issue 13 (replicas): uploads as CMSs send them, the object store, deletion, callbacks.
+  ERR_INGEST_MULTIPART: { status: 400, title: 'A multipart upload must carry exactly one file' },
+  ERR_INGEST_QUEUE_DOWN: { status: 503, title: 'The job queue cannot be reached; retry later' },
+  ERR_STORE_FAILED: { status: 502, title: 'The object store failed; retry later' },
+  ERR_INGEST_CALLBACK_UNSIGNED: { status: 400, title: 'Callbacks need a signing key to sign their bodies' },
 } as const satisfies Record<string, { status: number; title: string }>;
 
 export type ErrorCode = keyof typeof errorCodes;

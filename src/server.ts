@@ -2,9 +2,13 @@
  * The process shell: configuration from files and environment, demo pictures on first run,
  * listening, and graceful shutdown. Everything else is in app.ts (testable without a socket).
  */
+import type { AddressInfo } from 'node:net';
 import { resolve } from 'node:path';
 import { build } from './app.js';
 import { ConfigError, loadConfig } from './config.js';
+import { warmStartPage } from './http/warm-start.js';
+import { pageUrl, serverLogger } from './logging.js';
+import { signingRequired } from './security/signing.js';
 import { installShutdown } from './shutdown.js';
 
 async function main(): Promise<void> {
@@ -19,12 +23,15 @@ async function main(): Promise<void> {
     const { ensureDemoImages } = (await import(demo.href)) as { ensureDemoImages(dir: string): Promise<string[]> };
     await ensureDemoImages(config.origin.sourceDir);
   }
-  const app = await build({ config });
+  const app = await build({ config, logger: serverLogger(config, process.stdout.isTTY === true) });
   installShutdown(app, { deadlineMs: config.shutdown.deadlineMs });
   await app.listen({ host: config.server.host, port: config.server.port });
   // /readyz says 503 until the render threads are warm: so does this line.
   await app.renderPool.warm();
-  app.log.info({ sourceDir: config.origin.sourceDir, cacheDir: config.cache.dir }, 'foldwise ready');
+  const url = pageUrl(app.server.address() as AddressInfo);
+  app.log.info({ url, sourceDir: config.origin.sourceDir, cacheDir: config.cache.dir }, `foldwise ready: open ${url} in a browser`);
+  // The demo's start page shows every picture: render its tiles now, before a browser asks.
+  if (config.origin.generateDemo && config.origin.listing && !signingRequired(config.signing)) void warmStartPage(app);
 }
 
 main().catch((error: unknown) => {

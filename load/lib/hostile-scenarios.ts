@@ -61,7 +61,7 @@ export const scenarios: Scenario[] = [
     title: 'twelve width=8100&height=4880 avif at once, then a flood at 64 connections',
     async run(c) {
       const tally = new Tally();
-      const big = (k: number) => `/v1/renditions/${c.src.large[k % c.src.large.length]}?width=${8100 - Math.floor(k / 12)}&height=4880&format=avif`;
+      const big = (k: number) => `/v1/renditions/${c.src.large[k % c.src.large.length]}?width=${8100 - Math.floor(k / 12)}&height=4880&format=avif&enlarge=allowed`;
       await Promise.all(Array.from({ length: 12 }, async (_, k) => tally.add(await send(c.url, big(k), { timeoutMs: c.clientTimeoutMs }))));
       const until = performance.now() + c.floodSeconds * 1000;
       await flood(64, until, async (n) => tally.add(await send(c.url, big(12 + n), { timeoutMs: c.clientTimeoutMs })));

@@ -8,6 +8,7 @@ import { copyFileSync, existsSync, mkdirSync, mkdtempSync, renameSync, writeFile
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import sharp from 'sharp';
+import { weaveRaw as weave } from '../../test/helpers/damage.js';
 import { makeSources } from './sources.js';
 
 export const BOMB_SIDE = 8192;
@@ -29,20 +30,6 @@ async function bomb(file: string, marked: number): Promise<void> {
   const canvas = sharp({ create: { width: BOMB_SIDE, height: BOMB_SIDE, channels: 4, background: { r: 0, g: 0, b: 0, alpha: 0 } } });
   const pixel = { input: Buffer.from([0, 0, 0, 1]), raw: { width: 1, height: 1, channels: 4 as const }, left: marked, top: 0 };
   await (marked > 0 ? canvas.composite([pixel]) : canvas).toColourspace('rgb16').png({ compressionLevel: 9 }).toFile(file);
-}
-
-/** A 1200 x 900 herringbone-like weave in two yarn colours, as raw RGB. */
-function weave(width: number, height: number): Buffer {
-  const out = Buffer.alloc(width * height * 3);
-  for (let y = 0, o = 0; y < height; y++) {
-    for (let x = 0; x < width; x++) {
-      const t = (Math.floor(x / 3 + Math.abs((y % 16) - 8)) & 1) === 1;
-      out[o++] = t ? 190 : 60;
-      out[o++] = t ? 170 : 80;
-      out[o++] = t ? 120 : 110;
-    }
-  }
-  return out;
 }
 
 /** Inverts one byte in 64 over the middle third (past the headers, inside the scan data). */

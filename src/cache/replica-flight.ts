@@ -1,22 +1,21 @@
 import type { RedisFlight } from './redis/lock.js';
-import type { RedisTier } from './redis/tier.js';
+import type { CacheEntry, CacheTier } from './types.js';
 import { type Flight, type FlightResult, SingleFlight } from '../lib/single-flight.js';
-import type { CacheEntry } from './types.js';
 
 /**
  * Single-flight in two layers: in-process first (concurrent requests on this replica share one
- * promise), then across replicas through a Redis lock. The work must resolve to the
- * CacheEntry it rendered: a replica that waited on another takes the holder's entry from the
- * shared tier instead of running the work. The caller stores what the work returns (the tiered
- * cache writes every tier), so the holder's store step here only makes sure the shared tier
- * has it before the waiters are woken.
+ * promise), then across replicas through a Redis lock. The work renders and stores the entry
+ * in every tier before it resolves (renderRendition: `ctx.cache.set` inside the flight), so
+ * the shared tier has it when the waiters are woken; a replica that waited on another takes
+ * the holder's entry from the shared tier instead of running the work. Each render is stored
+ * once, by the work: this flight only reads the tier.
  */
 export class ReplicaFlight implements Flight<CacheEntry> {
   private readonly local: SingleFlight<CacheEntry>;
 
   constructor(
     private readonly redis: RedisFlight,
-    private readonly tier: RedisTier,
+    private readonly tier: CacheTier,
     onJoin?: (key: string, waiters: number) => void,
   ) {
     this.local = new SingleFlight<CacheEntry>(onJoin);
@@ -28,7 +27,6 @@ export class ReplicaFlight implements Flight<CacheEntry> {
       const { entry } = await this.redis.run(key, {
         lookup: () => this.tier.get(key),
         produce: () => work(abandoned),
-        store: (e) => this.tier.set(key, e),
       });
       return entry;
     }, signal);

@@ -7,15 +7,22 @@ import sharp, { type Metadata, type Sharp, type SharpOptions } from 'sharp';
 sharp.cache(false);
 import { FoldwiseError } from '../errors.js';
 import { withinMs } from '../lib/deadline.js';
+import type { GamutName } from '../core/color/primaries.js';
 import { sourceFormats } from './formats.js';
+import { gifReachesTrailer } from './gif-blocks.js';
+import { isWideGamutProfile } from './icc.js';
+import { type Animation, animationOf, type DecodeWish, stillSrgb } from './wish.js';
 import { hasAcceptedSignature } from './signature.js';
+import { checkWebp, WebpDamage } from './webp/check.js';
+
+export { type Animation, type DecodeWish, stillSrgb } from './wish.js';
 
 export interface DecodeLimits {
   /** Most pixels (width x height of one frame) a source may have. */
   maxPixels: number;
   /** Longest side a source may have, in pixels. */
   maxDimension: number;
-  /** Most animation frames (pages) a source may declare; only the first is decoded. */
+  /** Most animation frames (pages) a source may declare. */
   maxFrames?: number;
   /** Deadline for the whole decode, in ms (ERR_LIMIT_DECODE_TIMEOUT past it). */
   timeoutMs?: number;
@@ -36,9 +43,15 @@ export interface Prepared {
   grey: boolean;
   greyAlpha8: boolean;
   hasAlpha: boolean;
+  /** The primaries of the decoded codes. */
+  gamut: GamutName;
+  /** Frames in the source (1 for a still). */
+  pages: number;
+  /** Set when every frame of an animated source is decoded. */
+  animation?: Animation;
 }
 
-export async function prepare(bytes: Buffer, limits: DecodeLimits): Promise<Prepared> {
+export async function prepare(bytes: Buffer, limits: DecodeLimits, wish: DecodeWish = stillSrgb): Promise<Prepared> {
   if (bytes.length === 0) throw new FoldwiseError('ERR_SOURCE_UNSUPPORTED', 'The source is empty.');
   const options: SharpOptions = {
     // 'warning', sharp's default: 'error' and 'truncated' let libjpeg's "Corrupt JPEG data:
@@ -55,24 +68,62 @@ export async function prepare(bytes: Buffer, limits: DecodeLimits): Promise<Prep
     throw classify(e, bytes);
   });
   const format = checkFormat(meta);
-  const [width, height] = checkLimits(meta, limits);
+  if (format === 'gif' && !gifReachesTrailer(bytes)) {
+    throw new FoldwiseError('ERR_SOURCE_CORRUPT', 'The GIF ends before its trailer: it is truncated.');
+  }
+  const pages = meta.pages ?? 1;
+  const animated = wish.frames === 'all' && pages > 1;
+  const [width, height] = checkLimits(meta, limits, animated ? pages : 1);
+  if (format === 'webp') await checkWebpOnce(bytes);
+  if (typeof wish.frames === 'number') {
+    if (wish.frames >= pages) throw new FoldwiseError('ERR_PARAM_INVALID', `still=${wish.frames + 1} asks for a frame the source lacks: it has ${pages}.`);
+    options.page = wish.frames;
+  } else if (animated) {
+    options.pages = -1;
+  }
+  const animation = animated ? animationOf(meta, pages) : undefined;
 
   const grey = meta.space === 'b-w' || meta.space === 'grey16';
   const deep = meta.depth !== 'uchar' && meta.depth !== 'char';
   // sharp's 8-bit 'b-w' output drops alpha, so 8-bit grey + alpha comes out as sRGB + alpha
   // (R = G = B) and is collapsed back to two channels below.
   const greyAlpha8 = grey && !deep && meta.hasAlpha;
+  // A wide profile kept: sharp's input transform (to sRGB for 8 bits) is skipped and the one
+  // output transform goes from the embedded profile straight to Display P3.
+  const wide = wish.gamut === 'source' && !grey && isWideGamutProfile(meta.icc);
+  if (wide) options.ignoreIcc = true;
   let pipeline = sharp(bytes, options).toColourspace(
     grey && !greyAlpha8 ? (deep ? 'grey16' : 'b-w') : deep ? 'rgb16' : 'srgb',
   );
   // For 16-bit RGB with a profile sharp converts to P3 and stops there; this converts on to
   // sRGB. Without an embedded profile the samples are taken as sRGB already (common
   // practice), and an output transform would wrongly treat them as P3.
-  if (deep && !grey && meta.icc) pipeline = pipeline.withIccProfile('srgb');
+  if (wide) pipeline = pipeline.withIccProfile('p3');
+  else if (deep && !grey && meta.icc) pipeline = pipeline.withIccProfile('srgb');
   // libvips stops the work itself too (whole seconds only), so a timed-out decode does not
   // keep a thread busy after the caller has been answered.
   if (limits.timeoutMs !== undefined) pipeline = pipeline.timeout({ seconds: Math.max(1, Math.ceil(limits.timeoutMs / 1000)) });
-  return { pipeline, format, width, height, deep, grey, greyAlpha8, hasAlpha: meta.hasAlpha === true };
+  const gamut: GamutName = wide ? 'display-p3' : 'srgb';
+  return { pipeline, format, width, height, deep, grey, greyAlpha8, hasAlpha: meta.hasAlpha === true, gamut, pages, animation };
+}
+
+/**
+ * libwebp decodes a VP8 stream with damaged DCT tokens into a garbled picture without any
+ * error (VP8 has no checksum), so WebP sources go through our own bitstream check first
+ * (src/codec/webp/check.ts). Memoised per buffer: the header read at admission and the decode
+ * that follows see the same bytes.
+ */
+const webpChecks = new WeakMap<Buffer, Promise<void>>();
+function checkWebpOnce(bytes: Buffer): Promise<void> {
+  let check = webpChecks.get(bytes);
+  if (!check) {
+    check = checkWebp(bytes).catch((e: unknown) => {
+      if (!(e instanceof WebpDamage)) throw e;
+      throw new FoldwiseError('ERR_SOURCE_CORRUPT', `The source image is corrupt: ${e.message}.`, { cause: e });
+    });
+    webpChecks.set(bytes, check);
+  }
+  return check;
 }
 
 function checkFormat(meta: Metadata): string {
@@ -88,30 +139,30 @@ function checkFormat(meta: Metadata): string {
   return 'avif';
 }
 
-/** The upright size, once checked against the limits. */
-function checkLimits(meta: Metadata, limits: DecodeLimits): [number, number] {
+/** The upright size of one frame, once checked against the limits (pixels counted over `frames`). */
+function checkLimits(meta: Metadata, limits: DecodeLimits, frames: number): [number, number] {
   const width = meta.autoOrient?.width ?? meta.width;
   const height = meta.autoOrient?.height ?? meta.height;
+  const pages = meta.pages ?? 1;
+  if (limits.maxFrames !== undefined && pages > limits.maxFrames) {
+    throw new FoldwiseError(
+      'ERR_LIMIT_SOURCE_FRAMES',
+      `The source has ${pages} frames; the limit is ${limits.maxFrames}.`,
+    );
+  }
   if (!(width > 0 && height > 0)) {
     throw new FoldwiseError('ERR_SOURCE_CORRUPT', 'The source header gives no size.');
   }
-  if (width * height > limits.maxPixels) {
-    throw new FoldwiseError(
-      'ERR_SOURCE_PIXELS_EXCEEDED',
-      `The source has ${width}x${height} pixels; the limit is ${limits.maxPixels} pixels.`,
-    );
+  if (width * height * frames > limits.maxPixels) {
+    const detail = frames > 1
+      ? `The source has ${frames} frames of ${width}x${height} pixels, ${width * height * frames} in all; the limit is ${limits.maxPixels} pixels, counted over every frame.`
+      : `The source has ${width}x${height} pixels; the limit is ${limits.maxPixels} pixels.`;
+    throw new FoldwiseError('ERR_SOURCE_PIXELS_EXCEEDED', detail);
   }
   if (Math.max(width, height) > limits.maxDimension) {
     throw new FoldwiseError(
       'ERR_LIMIT_SOURCE_DIMENSION',
       `The source is ${width}x${height}; no side may exceed ${limits.maxDimension} pixels.`,
-    );
-  }
-  const frames = meta.pages ?? 1;
-  if (limits.maxFrames !== undefined && frames > limits.maxFrames) {
-    throw new FoldwiseError(
-      'ERR_LIMIT_SOURCE_FRAMES',
-      `The source has ${frames} frames; the limit is ${limits.maxFrames}.`,
     );
   }
   return [width, height];

@@ -1,16 +1,21 @@
 import type { Channels, PixelRaster } from '../core/types.js';
+import { FoldwiseError } from '../errors.js';
 import { collapseGreyAlpha, dropOpaqueAlpha } from './channels.js';
-import { classify, type DecodeLimits, prepare, withinDecodeDeadline } from './decode-setup.js';
+import { type Animation, classify, type DecodeLimits, type DecodeWish, prepare, stillSrgb, withinDecodeDeadline } from './decode-setup.js';
 
-export type { DecodeLimits } from './decode-setup.js';
+export type { Animation, DecodeLimits, DecodeWish } from './decode-setup.js';
 
-/** A decoded source: sRGB-encoded samples, upright, first frame only. */
+/** A decoded source: samples in the sRGB transfer function, upright; one frame, or all stacked. */
 export interface DecodedImage {
   raster: PixelRaster;
   /** True when the raster carries an alpha channel that is not fully opaque. */
   hasAlpha: boolean;
   /** Source format as sharp names it, except AVIF which is reported as 'avif'. */
   format: string;
+  /** Set when every frame of an animated source was decoded, stacked top to bottom in the raster. */
+  animation?: Animation;
+  /** What the decode was asked to keep (a caller's decoded source serves only the same wish). */
+  wish: DecodeWish;
 }
 
 /**
@@ -19,9 +24,11 @@ export interface DecodedImage {
  * - EXIF orientation is applied, so the raster is upright.
  * - An embedded ICC profile is converted to sRGB, for 16-bit input too: sharp keeps 16-bit
  *   input in a wide (P3) working space unless the output is converted to sRGB explicitly.
+ *   With `wish.gamut` 'source', a wide RGB profile is converted to Display P3 instead and
+ *   the raster says so (`raster.gamut`).
  * - CMYK becomes sRGB; grey stays one channel (two with alpha); palettes are expanded.
  * - 16-bit sources stay 16-bit (Uint16Array); everything else is 8-bit.
- * - Animated sources give their first frame.
+ * - Animated sources give every frame (wish.frames 'all'), stacked, or the one asked for.
  * - An alpha channel that is fully opaque is dropped, so the rest of the pipeline need not
  *   premultiply and JPEG stays eligible.
  * - Limits are checked from the header before any pixel is decoded, and again by sharp.
@@ -29,12 +36,12 @@ export interface DecodedImage {
  *
  * @throws FoldwiseError ERR_SOURCE_UNSUPPORTED, ERR_SOURCE_CORRUPT, ERR_SOURCE_PIXELS_EXCEEDED
  */
-export async function decodeImage(bytes: Buffer, limits: DecodeLimits): Promise<DecodedImage> {
-  return withinDecodeDeadline(decodeWithin(bytes, limits), limits.timeoutMs);
+export async function decodeImage(bytes: Buffer, limits: DecodeLimits, wish: DecodeWish = stillSrgb): Promise<DecodedImage> {
+  return withinDecodeDeadline(decodeWithin(bytes, limits, wish), limits.timeoutMs);
 }
 
-async function decodeWithin(bytes: Buffer, limits: DecodeLimits): Promise<DecodedImage> {
-  const { pipeline, format, deep, greyAlpha8 } = await prepare(bytes, limits);
+async function decodeWithin(bytes: Buffer, limits: DecodeLimits, wish: DecodeWish): Promise<DecodedImage> {
+  const { pipeline, format, deep, greyAlpha8, gamut, animation, pages } = await prepare(bytes, limits, wish);
   const { data, info } = await pipeline
     .raw({ depth: deep ? 'ushort' : 'uchar' })
     .toBuffer({ resolveWithObject: true })
@@ -47,7 +54,13 @@ async function decodeWithin(bytes: Buffer, limits: DecodeLimits): Promise<Decode
   let raster: PixelRaster = { data: samples, width: info.width, height: info.height, channels };
   if (greyAlpha8 && channels === 4) raster = collapseGreyAlpha(raster);
   raster = dropOpaqueAlpha(raster);
-  return { raster, hasAlpha: raster.channels === 2 || raster.channels === 4, format };
+  if (gamut !== 'srgb') raster.gamut = gamut;
+  if (pages > 1) raster.sourceFrames = pages;
+  if (animation && raster.height % animation.frames !== 0) {
+    throw new FoldwiseError('ERR_SOURCE_CORRUPT', 'The animated source decoded to frames of unequal height.');
+  }
+  const hasAlpha = raster.channels === 2 || raster.channels === 4;
+  return { raster, hasAlpha, format, ...(animation ? { animation } : {}), wish };
 }
 
 /** Native-endian 16-bit view of sharp's output, copied only when the bytes are misaligned. */

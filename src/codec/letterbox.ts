@@ -1,5 +1,8 @@
 import type { Channels, PixelRaster } from '../core/types.js';
-import type { Rgba } from './background.js';
+import type { Rgb } from '../schemas/colour.js';
+
+/** A fill colour with its alpha, 0..1. */
+export type Rgba = Rgb & { alpha: number };
 
 /** Where a contained rendition sits on its letterbox canvas, in output pixels. */
 export interface CanvasPlacement {

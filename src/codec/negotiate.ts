@@ -12,17 +12,20 @@ import type { OutputFormat } from './formats.js';
  *   for opaque images and png before jpeg for images with alpha.
  * - Nothing acceptable (or no header at all): jpeg, or png when the image has alpha. RFC
  *   9110 allows a default instead of 406, and every browser decodes both.
+ * - An animation: WebP when the client names it with q > 0, else GIF (every browser decodes
+ *   it; sharp writes no animated AVIF).
  */
 
-const opaqueOrder: readonly OutputFormat[] = ['avif', 'webp', 'jpeg', 'png'];
-const alphaOrder: readonly OutputFormat[] = ['avif', 'webp', 'png', 'jpeg'];
+const opaqueOrder = ['avif', 'webp', 'jpeg', 'png'] as const;
+const alphaOrder = ['avif', 'webp', 'png', 'jpeg'] as const;
 const mediaType: Record<OutputFormat, string> = {
   avif: 'image/avif',
   webp: 'image/webp',
   jpeg: 'image/jpeg',
   png: 'image/png',
+  gif: 'image/gif',
 };
-const wildcardOk: Record<OutputFormat, boolean> = { avif: false, webp: false, jpeg: true, png: true };
+const wildcardOk: Record<OutputFormat, boolean> = { avif: false, webp: false, jpeg: true, png: true, gif: true };
 
 /** Media ranges beyond this many are ignored: a header is not a work queue. */
 const maxRanges = 64;
@@ -79,11 +82,11 @@ export function negotiateFormat(
   accept: string | undefined,
   hasAlpha: boolean,
 ): 'avif' | 'webp' | 'jpeg' | 'png' {
-  const order = hasAlpha ? alphaOrder : opaqueOrder;
+  const order: readonly ('avif' | 'webp' | 'jpeg' | 'png')[] = hasAlpha ? alphaOrder : opaqueOrder;
   const fallback = order[2];
   if (accept === undefined || accept.trim() === '') return fallback;
   const ranges = parseAccept(accept);
-  let chosen: OutputFormat | undefined;
+  let chosen: (typeof order)[number] | undefined;
   let chosenQ = 0;
   for (const format of order) {
     const q = qualityOf(format, ranges) ?? 0;
@@ -93,4 +96,10 @@ export function negotiateFormat(
     }
   }
   return chosen ?? fallback;
+}
+
+/** The output format of an animated source when `format` is absent: webp if named with q > 0, else gif. */
+export function negotiateAnimated(accept: string | undefined): 'webp' | 'gif' {
+  if (accept === undefined) return 'gif';
+  return (qualityOf('webp', parseAccept(accept)) ?? 0) > 0 ? 'webp' : 'gif';
 }

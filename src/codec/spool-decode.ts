@@ -1,4 +1,4 @@
-import { classify, type DecodeLimits, prepare, withinDecodeDeadline } from './decode-setup.js';
+import { classify, type DecodeLimits, type DecodeWish, prepare, stillSrgb, withinDecodeDeadline } from './decode-setup.js';
 
 /**
  * The spool file could not be written (folder gone, file system full), or not read back (out
@@ -39,12 +39,14 @@ export interface SpoolableSource {
 /**
  * Reads and checks the header of `bytes` as decodeImage does (same errors), and says how the
  * decode would be spooled; null for a source with alpha, whose opacity is known only after
- * the last row (decodeImage serves it, and drops an alpha that turns out opaque).
+ * the last row (decodeImage serves it, and drops an alpha that turns out opaque); null too for
+ * a source kept wide (Display P3) or animated, which decodeImage serves with their tags.
  */
-export async function probeSpooledDecode(bytes: Buffer, limits: DecodeLimits): Promise<SpoolableSource | null> {
+export async function probeSpooledDecode(bytes: Buffer, limits: DecodeLimits, wish: DecodeWish = stillSrgb): Promise<SpoolableSource | null> {
   // The header read is under the decode deadline too, as in decodeImage.
-  const { pipeline, format, width, height, deep, grey, hasAlpha } = await withinDecodeDeadline(prepare(bytes, limits), limits.timeoutMs);
-  if (hasAlpha) return null;
+  const p = await withinDecodeDeadline(prepare(bytes, limits, wish), limits.timeoutMs);
+  const { pipeline, format, width, height, deep, grey, hasAlpha } = p;
+  if (hasAlpha || p.gamut !== 'srgb' || p.animation) return null;
   let jobs: Promise<unknown> = Promise.resolve();
   const write = (path: string) => {
     const job = pipeline.toFile(path);

@@ -13,7 +13,7 @@ export async function warmCodecs(spoolFile?: string): Promise<void> {
   const side = 64;
   const data = new Uint8Array(side * side * 3);
   for (let i = 0; i < data.length; i++) data[i] = (i * 37) & 255;
-  const jpeg = await encodeImage({ data, width: side, height: side, channels: 3 }, { format: 'jpeg', background: '#ffffff' });
+  const jpeg = await encodeImage({ data, width: side, height: side, channels: 3 }, { format: 'jpeg', background: { r: 255, g: 255, b: 255 } });
   await decodeImage(jpeg, limits);
   const probe = spoolFile ? await probeSpooledDecode(jpeg, limits) : null;
   await probe?.write(spoolFile!);

@@ -2,6 +2,7 @@
  * Shared shapes of the pure core. Everything here is plain data on typed arrays: the core
  * never does I/O and never imports a Node built-in, so the worker threads can run it as is.
  */
+import type { GamutName } from './color/primaries.js';
 
 /** Interleaved samples: 1 grey, 2 grey+alpha, 3 RGB, 4 RGBA. */
 export type Channels = 1 | 2 | 3 | 4;
@@ -12,6 +13,13 @@ export interface PixelRaster {
   width: number;
   height: number;
   channels: Channels;
+  /**
+   * The primaries the codes refer to (both spaces use the sRGB transfer function); absent
+   * means sRGB. Display P3 rasters come from wide-gamut sources kept wide.
+   */
+  gamut?: GamutName;
+  /** Frames of the animated source these samples come from (absent: a still); reports say it. */
+  sourceFrames?: number;
 }
 
 /** A rectangle in source pixels; fractional on purpose (the cover crop is exact). */

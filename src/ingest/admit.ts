@@ -3,7 +3,7 @@ import { readHeader } from '../codec/header.js';
 import type { Lease } from '../pool/budget.js';
 import { decodeCost, outputCost, stagingCost } from '../pool/cost.js';
 import type { RenderPool } from '../pool/render-pool.js';
-import { decodeLimits } from '../rendition/source.js';
+import { decodeLimits, ladderWish } from '../rendition/source.js';
 import type { IngestFormat } from '../schemas/ingest.js';
 import { heightFor, ladderFor } from './ladder.js';
 
@@ -13,9 +13,12 @@ export interface LadderLease {
   concurrency: number;
 }
 
-/** Admits the decode alone (the upload's check that its bytes are an image within the limits). */
+/**
+ * Admits the decode alone (the upload's check that its bytes are an image within the limits):
+ * the ladder's decode, every frame of an animation (ladderWish), as the build will decode it.
+ */
 export async function admitDecode(pool: RenderPool, bytes: Buffer, limits: Limits): Promise<Lease> {
-  const h = await readHeader(bytes, decodeLimits(limits));
+  const h = await readHeader(bytes, decodeLimits(limits), ladderWish);
   return pool.admit(decodeCost(h), `decoding a ${h.width}x${h.height} ${8 * h.bytesPerSample}-bit upload`);
 }
 
@@ -31,7 +34,7 @@ export async function admitLadder(
   limits: Limits,
   opts: { widths?: readonly number[]; formats: readonly IngestFormat[]; concurrency: number },
 ): Promise<LadderLease> {
-  const h = await readHeader(bytes, decodeLimits(limits));
+  const h = await readHeader(bytes, decodeLimits(limits), ladderWish);
   const widest = Math.max(...ladderFor(h.width, opts.widths));
   const pixels = widest * heightFor(h.width, h.height, widest);
   const perRendition = stagingCost(h) + Math.max(...opts.formats.map((f) => outputCost(h, pixels, f)));

@@ -4,7 +4,11 @@
 import type { z } from 'zod';
 import type { IngestFormat, manifestSchema } from '../schemas/ingest.js';
 import { pickFallback, pictureHtml } from './html.js';
-import { buildSrcset, suggestSizes } from './srcset.js';
+import type { Placeholder } from './placeholder.js';
+import { buildSrcset } from './srcset.js';
+
+/** The html's sizes when the caller names none: the picture spans the viewport (issue 17). */
+export const defaultSizes = '100vw';
 
 export type Manifest = z.output<typeof manifestSchema>;
 export type ManifestRendition = Manifest['renditions'][number];
@@ -18,6 +22,7 @@ export function assembleManifest(
   formats: readonly IngestFormat[],
   renditions: readonly ManifestRendition[],
   warnings: readonly string[],
+  markup: { sizes?: string; placeholder: Placeholder; transparent: boolean },
 ): Manifest {
   const rank = (f: string): number => formats.indexOf(f as IngestFormat);
   const ordered = [...renditions]
@@ -29,10 +34,16 @@ export function assembleManifest(
     const own = ordered.filter((r) => r.format === format);
     if (own.length > 0) srcset[format] = buildSrcset(own);
   }
-  const largest = ordered.reduce((m, r) => Math.max(m, r.width), 0);
-  const sizes = suggestSizes(largest || source.width);
-  const fallback = pickFallback(ordered.filter((r) => r.format === formats[formats.length - 1]));
+  const { placeholder } = markup;
+  const sizes = markup.sizes ?? defaultSizes;
+  const last = ordered.filter((r) => r.format === formats[formats.length - 1]);
+  const fallback = pickFallback(last);
+  // The box: the widest rendition, whose aspect ratio is the source's to within its rounding.
+  const widest = last.at(-1) ?? { width: source.width, height: source.height };
+  const picture = fallback && { formats, srcset, sizes, fallback, box: { width: widest.width, height: widest.height } };
+  const html = picture ? pictureHtml(picture) : '';
+  // A transparent picture would show the placeholder through itself once loaded: no variant.
+  const htmlWithPlaceholder = picture && !markup.transparent ? pictureHtml({ ...picture, placeholder }) : html;
   const src = fallback?.url ?? '';
-  const html = fallback ? pictureHtml({ formats, srcset, sizes, fallback }) : '';
-  return { source, renditions: ordered, srcset, sizes, src, html, warnings: [...warnings] };
+  return { source, renditions: ordered, srcset, sizes, src, html, placeholder, htmlWithPlaceholder, warnings: [...warnings] };
 }

@@ -10,7 +10,8 @@ import { FoldwiseError } from '../errors.js';
 import { sourceFormats } from '../codec/formats.js';
 import type { Origin } from '../origins/types.js';
 import { renderRendition, type RenderContext } from '../rendition/service.js';
-import { decodeSource, type LoadedSource, loadSource, readSource } from '../rendition/source.js';
+import { decodeSource, ladderWish, type LoadedSource, loadSource, readSource } from '../rendition/source.js';
+import { frameOf } from '../core/index.js';
 import { StageClock } from '../rendition/timings.js';
 import type { SpectrumStore } from '../risk/spectrum-store.js';
 import type { IngestFormat } from '../schemas/ingest.js';
@@ -22,6 +23,7 @@ import { Gate } from '../lib/semaphore.js';
 import { JobTable } from './jobs.js';
 import { ladderFor } from './ladder.js';
 import { assembleManifest, type Manifest, type ManifestRendition } from './manifest.js';
+import { makePlaceholder } from './placeholder.js';
 import { OnceByKey } from '../lib/once-by-key.js';
 import { digestOf, keyFor, storeOnce } from './store.js';
 import { renditionUrl } from './urls.js';
@@ -34,12 +36,16 @@ export interface IngestOptions {
   formats?: readonly IngestFormat[];
   /** Rendition parameters for every rung (prefilter, kernel, light), as a rendition URL spells them. */
   rendition?: Readonly<Record<string, string>>;
+  /** The html's sizes attribute; default 100vw. */
+  sizes?: string;
 }
 
 /** Prepared ingest work: `key` identifies the manifest; `compute` builds it. */
 export interface IngestWork {
   key: string;
   compute: () => Promise<Manifest>;
+  /** The stored source and options, for work handed to another replica (the job queue). */
+  spec?: { source: string; options: IngestOptions };
 }
 
 /** One rendition the service made or found, for observers (metrics, tests). */
@@ -77,6 +83,11 @@ export class IngestService extends EventEmitter {
     this.query = compileRenditionQuery({ maxDimension: limits.maxDimension, kernelNames });
   }
 
+  /** Forgets the finished manifests of a source (it was deleted). */
+  forgetSource(sourceKey: string): void {
+    this.manifests.forgetWhere((m) => m.source.key === sourceKey);
+  }
+
   /** Whether the manifest for `key` is already made (a repeat answers at once). */
   isDone(key: string): boolean {
     return this.manifests.has(key);
@@ -98,11 +109,14 @@ export class IngestService extends EventEmitter {
   }
 
   /**
-   * Uploaded bytes: refused when the origin is read-only; decoded now (bad bytes fail here,
-   * before any 202, with the rendition path's own limits) and stored under their content key;
-   * the decoded pixels are not kept, so waiting work holds bytes on disk, not rasters.
+   * Uploaded bytes: refused when the origin is read-only. The work decodes them once: the
+   * decode checks them (the rendition path's own limits) before they are stored under their
+   * content key, and the same pixels serve every rung. `checkFirst` (the work may wait: an
+   * async job, perhaps taken by another replica from the shared queue) checks and stores them
+   * now, so bad bytes get their 4xx before any 202 and the waiting work names a stored source;
+   * that check keeps no pixels, so waiting work holds bytes, not rasters.
    */
-  async fromUpload(bytes: Buffer, options: IngestOptions, known?: string): Promise<IngestWork> {
+  async fromUpload(bytes: Buffer, options: IngestOptions, known?: string, checkFirst = false): Promise<IngestWork> {
     this.checkRendition(options);
     if (!this.config.ingest.writable) {
       throw new FoldwiseError('ERR_INGEST_READ_ONLY', 'uploads are switched off: the folder origin is read-only (ingest.writable)');
@@ -111,8 +125,12 @@ export class IngestService extends EventEmitter {
     // `known`: the digest the caller already computed of these very bytes (the signing check).
     const digest = known ?? digestOf(bytes);
     const key = `upload:${digest}|${this.optionsKey(options)}`;
-    const stored = this.isDone(key) ? undefined : await this.store(bytes, digest);
-    return { key, compute: async () => this.buildFrom(stored ?? (await this.store(bytes, digest)), options) };
+    if (checkFirst && !this.isDone(key)) {
+      // Waiting work (an async job, perhaps on another replica's queue) names a stored source.
+      const stored = await this.store(bytes, digest);
+      return { key, spec: { source: stored, options }, compute: () => this.buildFrom(stored, options) };
+    }
+    return { key, compute: () => this.buildUpload(bytes, digest, options) };
   }
 
   /** A source already in the origin: identified now (404 here), read and decoded by `compute`. */
@@ -122,12 +140,19 @@ export class IngestService extends EventEmitter {
     return {
       key: `source:${identity.key}@${identity.version}|${this.optionsKey(options)}`,
       compute: () => this.buildFrom(identity.key, options),
+      spec: { source: identity.key, options },
     };
+  }
+
+  /** Work another replica prepared (a queued job): the source is already stored. */
+  fromQueued(key: string, source: string, options: IngestOptions): IngestWork {
+    return { key, compute: () => this.buildFrom(source, options), spec: { source, options } };
   }
 
   private optionsKey(options: IngestOptions): string {
     const extra = new URLSearchParams(options.rendition ?? {}).toString();
-    return `${options.widths?.join(',') ?? 'ladder'}|${(options.formats ?? this.config.ingest.formats).join(',')}|${extra}`;
+    const formats = (options.formats ?? this.config.ingest.formats).join(',');
+    return `${options.widths?.join(',') ?? 'ladder'}|${formats}|${extra}|${options.sizes ?? ''}`;
   }
 
   /** Refuses, before any work, rendition parameters the rendition route would refuse (same codes). */
@@ -135,23 +160,51 @@ export class IngestService extends EventEmitter {
     this.query.parse({ width: '1', ...options.rendition });
   }
 
-  /** Validates the bytes with the rendition path's own loader (same limits) and stores them. */
-  private async store(bytes: Buffer, digest: string): Promise<string> {
+  /** Decodes the uploaded bytes with the rendition path's own loader (same limits). */
+  private decodeUpload(bytes: Buffer, digest: string): Promise<LoadedSource> {
     const identity = { key: `upload/${digest}`, version: digest };
     const upload: Origin = {
       name: 'upload',
       read: async () => ({ identity, bytes }),
       identify: async () => identity,
     };
+    // Observed as the render path's `decode` stage (/metrics counts an upload's decodes).
+    return loadSource(upload, identity.key, this.config.limits, new StageClock(this.render.observe), undefined, ladderWish);
+  }
+
+  /** Checks the bytes now (a decode within its own lease) and stores them; only the format is kept. */
+  private async store(bytes: Buffer, digest: string): Promise<string> {
     const lease = await admitDecode(this.render.pool, bytes, this.config.limits);
-    // Only the format is kept: the raster is unreachable before the lease ends (and collected then).
-    const format = await loadSource(upload, identity.key, this.config.limits, new StageClock())
-      .then((loaded) => loaded.decoded.format)
+    // The raster is unreachable before the lease ends (and collected then).
+    const ext = await this.decodeUpload(bytes, digest)
+      .then((loaded) => extensionOf(loaded.decoded.format))
       .finally(() => lease.release());
-    const { keyPrefix: prefix, digestChars } = this.config.ingest;
-    const sourceKey = keyFor(digest, extensionOf(format), { prefix, digestChars });
-    await storeOnce(this.config.origin.sourceDir, sourceKey, bytes);
+    const sourceKey = keyFor(digest, ext, { prefix: this.config.ingest.keyPrefix, digestChars: this.config.ingest.digestChars });
+    await this.write(sourceKey, bytes);
     return sourceKey;
+  }
+
+  /** The upload's one decode, under the ladder's lease: checked, stored, then every rung rendered from it. */
+  private async buildUpload(bytes: Buffer, digest: string, options: IngestOptions): Promise<Manifest> {
+    const { limits, ingest } = this.config;
+    const formats = options.formats ?? ingest.formats;
+    const { lease, concurrency } = await admitLadder(this.render.pool, bytes, limits, { ...options, formats, concurrency: ingest.concurrency });
+    try {
+      const { decoded } = await this.decodeUpload(bytes, digest);
+      const sourceKey = keyFor(digest, extensionOf(decoded.format), { prefix: ingest.keyPrefix, digestChars: ingest.digestChars });
+      await this.write(sourceKey, bytes);
+      // The stored file's identity (the cache keys' version), asked of the origin, not read back.
+      const identity = await this.render.origin.identify(sourceKey);
+      return await this.build(sourceKey, { identity, decoded }, options, concurrency);
+    } finally {
+      lease.release();
+    }
+  }
+
+  /** Writes an upload's bytes under their content key: to the object store, or the folder. */
+  private async write(sourceKey: string, bytes: Buffer): Promise<void> {
+    const origin = this.render.origin;
+    await (origin.write ? origin.write(sourceKey, bytes) : storeOnce(this.config.origin.sourceDir, sourceKey, bytes));
   }
 
   private async buildFrom(sourceKey: string, options: IngestOptions): Promise<Manifest> {
@@ -161,7 +214,7 @@ export class IngestService extends EventEmitter {
     const { limits, ingest } = this.config;
     const { lease, concurrency } = await admitLadder(this.render.pool, read.bytes, limits, { ...options, formats, concurrency: ingest.concurrency });
     try {
-      return await this.build(sourceKey, await decodeSource(read, limits, new StageClock()), options, concurrency);
+      return await this.build(sourceKey, await decodeSource(read, limits, new StageClock(), ladderWish), options, concurrency);
     } finally {
       lease.release();
     }
@@ -169,7 +222,9 @@ export class IngestService extends EventEmitter {
 
   private async build(sourceKey: string, loaded: LoadedSource, options: IngestOptions, concurrency: number): Promise<Manifest> {
     const { identity, decoded } = loaded;
-    const { raster } = decoded;
+    // An animation's ladder and risk are those of its first frame; its renditions stay animated.
+    const frames = decoded.animation?.frames ?? 1;
+    const raster = frames > 1 ? frameOf(decoded.raster, frames, 0) : decoded.raster;
     const formats = options.formats ?? this.config.ingest.formats;
     const widths = ladderFor(raster.width, options.widths);
     const extra = options.rendition ?? {};
@@ -191,7 +246,7 @@ export class IngestService extends EventEmitter {
       const r = await renderRendition({ ...this.render, decoded: loaded, admitted: true }, sourceKey, queryFor(step.width, format));
       this.emit('rendition', { source: sourceKey, width: step.width, format, cache: r.cache, bytes: r.entry.body.length } satisfies RenditionEvent);
       return {
-        url: renditionUrl(sourceKey, step.width, format, this.config.signing.keys[0], extra),
+        url: renditionUrl(sourceKey, step.width, format, this.config.signing.keys[0], extra, this.config.server.publicUrl),
         width: step.width,
         height: step.height,
         format,
@@ -200,8 +255,9 @@ export class IngestService extends EventEmitter {
         risk: { level: step.level, score: step.score },
       };
     });
-    const source = { key: sourceKey, width: raster.width, height: raster.height };
-    return assembleManifest(source, formats, renditions, writeWarnings(steps));
+    const placeholder = await makePlaceholder(this.render, sourceKey, loaded, (raw) => this.query.parse(raw));
+    const source = { key: sourceKey, width: raster.width, height: raster.height, ...(frames > 1 ? { frames } : {}) };
+    return assembleManifest(source, formats, renditions, writeWarnings(steps), { sizes: options.sizes, placeholder, transparent: loaded.decoded.hasAlpha });
   }
 }
 

@@ -23,12 +23,3 @@ export function buildSrcset(candidates: readonly SrcsetCandidate[]): string {
     .map(([w, url]) => `${url} ${w}w`)
     .join(', ');
 }
-
-/**
- * A default `sizes` suggestion: the image spans the viewport on screens narrower than its
- * natural width and keeps its natural width (in CSS pixels) above it. Page authors who know
- * their layout should replace it; it is a safe starting point, not a measurement.
- */
-export function suggestSizes(largestWidth: number): string {
-  return `(max-width: ${largestWidth}px) 100vw, ${largestWidth}px`;
-}

@@ -10,15 +10,20 @@ function encodeKey(key: string): string {
   return key.split('/').map(encodeURIComponent).join('/');
 }
 
-/** `extra`: the rendition parameters the upload asked for (prefilter, kernel, light), in that order. */
+/**
+ * `extra`: the rendition parameters the upload asked for (prefilter, kernel, light), in that
+ * order. `publicUrl` (server.publicUrl, no trailing slash) makes the URL absolute; the
+ * signature covers the path and query only, so the same signature holds behind any host.
+ */
 export function renditionUrl(
   sourceKey: string,
   width: number,
   format: string,
   signingKey?: string,
   extra: Readonly<Record<string, string>> = {},
+  publicUrl: string | null = null,
 ): string {
   const path = `${renditionsPrefix}${encodeKey(sourceKey)}`;
   const query: Record<string, string> = { width: String(width), format, ...extra };
-  return signingKey ? signUrl(path, query, signingKey) : `${path}?${new URLSearchParams(query)}`;
+  return (publicUrl ?? '') + (signingKey ? signUrl(path, query, signingKey) : `${path}?${new URLSearchParams(query)}`);
 }

@@ -27,6 +27,11 @@ export class OnceByKey<T extends {}> {
     return { value, reused };
   }
 
+  /** Forgets the finished results `drop` picks (e.g. every manifest of a deleted source). */
+  forgetWhere(drop: (value: T) => boolean): void {
+    for (const [key, value] of this.done.entries()) if (drop(value)) this.done.delete(key);
+  }
+
   /** Whether `key` has a finished result. */
   has(key: string): boolean {
     return this.done.has(key);

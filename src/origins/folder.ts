@@ -1,5 +1,5 @@
 import { constants, type Dirent } from 'node:fs';
-import { open, readdir, realpath, stat } from 'node:fs/promises';
+import { lstat, open, readdir, realpath, stat, unlink } from 'node:fs/promises';
 import { join, relative, sep } from 'node:path';
 import { FoldwiseError } from '../errors.js';
 import { hasSourceExtension } from '../codec/formats.js';
@@ -75,6 +75,16 @@ export function createFolderOrigin(root: string, options: FolderOriginOptions = 
       } finally {
         await handle.close();
       }
+    },
+
+    async remove(path: string): Promise<boolean> {
+      const { key, file } = await resolve(path);
+      const s = await lstat(file).catch(() => undefined);
+      if (!s?.isFile()) return false;
+      await unlink(file).catch((e: unknown) => {
+        if ((e as NodeJS.ErrnoException).code !== 'ENOENT') throw notFound(key, e);
+      });
+      return true;
     },
 
     async list(): Promise<SourceListing[]> {

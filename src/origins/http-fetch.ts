@@ -54,7 +54,7 @@ async function resolveWithin(hostname: string, opts: HopOptions): Promise<Resolv
   }
 }
 
-async function pickAddress(hostname: string, opts: HopOptions): Promise<ResolvedAddress> {
+export async function pickAddress(hostname: string, opts: HopOptions): Promise<ResolvedAddress> {
   const family = isIP(hostname);
   const addresses = family !== 0 ? [{ address: hostname, family }] : await resolveWithin(hostname, opts);
   if (addresses.length === 0) throw new FoldwiseError('ERR_UPSTREAM_FAILED', `upstream host ${hostname} has no address`);
@@ -70,7 +70,7 @@ async function pickAddress(hostname: string, opts: HopOptions): Promise<Resolved
 }
 
 /** A lookup that always answers the one address already checked (no second DNS query). */
-function pinned(target: ResolvedAddress): LookupFunction {
+export function pinned(target: ResolvedAddress): LookupFunction {
   return ((_host: string, options: { all?: boolean }, callback: (...args: unknown[]) => void) => {
     if (options && options.all) callback(null, [{ address: target.address, family: target.family }]);
     else callback(null, target.address, target.family);

@@ -24,4 +24,8 @@ export interface Origin {
   read(path: string, signal?: AbortSignal): Promise<SourceBytes>;
   identify(path: string, signal?: AbortSignal): Promise<SourceIdentity>;
   list?(): Promise<SourceListing[]>;
+  /** Deletes a source; false when there was none. Origins that cannot delete leave it out. */
+  remove?(path: string): Promise<boolean>;
+  /** Stores bytes under a path unless the same size is there (content-addressed uploads); whether it wrote. */
+  write?(path: string, bytes: Uint8Array): Promise<boolean>;
 }

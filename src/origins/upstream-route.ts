@@ -47,5 +47,13 @@ export function withUpstream(local: Origin, upstream: Origin | undefined): Origi
     },
   };
   if (local.list) origin.list = local.list.bind(local);
+  if (local.write) origin.write = local.write.bind(local);
+  if (local.remove) {
+    const remove = local.remove.bind(local);
+    origin.remove = async (path) => {
+      if (pick(path)[0] !== local) throw new FoldwiseError('ERR_SOURCE_PATH_INVALID', 'Upstream sources cannot be deleted here.');
+      return remove(path);
+    };
+  }
   return origin;
 }

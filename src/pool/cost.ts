@@ -7,12 +7,13 @@ import type { SourceHeader } from '../codec/header.js';
  * for the coders' buffers): growth of the process's peak RSS (VmHWM) over one `toBuffer()`
  * with sharp's cache off and one libvips thread. jpeg 40 MiB (7.0 B/px), png 5 MiB (0.8),
  * webp 108 MiB (18.8), avif 274 MiB (48.0). Rounded up, with the output buffer included.
+ * GIF (libimagequant + cgif) is not measured: taken as WebP's, per output pixel of all frames.
  */
-export const ENCODER_BYTES_PER_PIXEL: Record<OutputFormat, number> = { jpeg: 8, png: 2, webp: 20, avif: 50 };
+export const ENCODER_BYTES_PER_PIXEL: Record<OutputFormat, number> = { jpeg: 8, png: 2, webp: 20, avif: 50, gif: 20 };
 
-/** The raster a decode gives, in bytes. */
-export function rasterBytes(h: Pick<SourceHeader, 'width' | 'height' | 'channels' | 'bytesPerSample'>): number {
-  return h.width * h.height * h.channels * h.bytesPerSample;
+/** The raster a decode gives, in bytes (every frame of an animation, stacked). */
+export function rasterBytes(h: Pick<SourceHeader, 'width' | 'height' | 'channels' | 'bytesPerSample' | 'frames'>): number {
+  return h.width * h.height * (h.frames ?? 1) * h.channels * h.bytesPerSample;
 }
 
 /**
@@ -37,8 +38,9 @@ export function stagingCost(h: SourceHeader): number {
  * (the canvas, or 16 -> 8 bits for lossy formats), and the encoder's working set.
  */
 export function outputCost(h: SourceHeader, outputPixels: number, format: OutputFormat): number {
-  const raster = outputPixels * h.channels * h.bytesPerSample;
-  return 2 * raster + outputPixels * ENCODER_BYTES_PER_PIXEL[format];
+  const pixels = outputPixels * (h.frames ?? 1);
+  const raster = pixels * h.channels * h.bytesPerSample;
+  return 2 * raster + pixels * ENCODER_BYTES_PER_PIXEL[format];
 }
 
 /** The whole job: decode in memory (or spool), the staging copy, resample and encode. */

@@ -6,15 +6,16 @@ import type { AdaptiveFilter, PixelRaster, Plan } from '../core/types.js';
 import type { SourceSpectrum } from '../core/risk/index.js';
 import type { Analysed } from './analysis.js';
 import { type ErrorCode, FoldwiseError } from '../errors.js';
-import type { ResampleTask, SharedRaster, SpooledRaster } from './worker.js';
+import type { BandOutcome, ResampleTask, SharedRaster, SpooledRaster } from './worker.js';
 import { type Lease, MemoryBudget, type MemoryState } from './budget.js';
 import { resolveMemoryBudget } from './budget-default.js';
 import { HAND_BACK_MIN_BYTES, handBack } from './hand-back.js';
 import { StagingBuffers } from './staging.js';
 import { SpoolWriteError } from '../codec/spool-decode.js';
 import { warmCodecs } from '../codec/warm.js';
-import { FILE_WRONG, READ_FAILED, type SpoolShape, STOPPED, WRITING, WRITTEN } from './spool/rows.js';
+import { SpoolReadError, type SpoolShape, STOPPED, WRITING, WRITTEN } from './spool/rows.js';
 import { SpoolDir } from './spool/dir.js';
+import { type BandPiscina, type BandRunner, piscinaRunner, type RunBand } from './runner.js';
 
 export interface RenderPoolOptions {
   /** Worker threads; 0 = one per available core. */
@@ -30,6 +31,8 @@ export interface RenderPoolOptions {
   rssCeilingBytes?: number;
   /** Spool folder for decodes resampled as they arrive ('auto', a path, or 'off'); default 'off'. */
   spoolDir?: string;
+  /** How band tasks are run on the threads (runner.ts); default piscina's run. Fault tests inject one. */
+  runner?: BandRunner;
 }
 
 /**
@@ -94,7 +97,8 @@ export class RenderPool {
   private readonly budget: MemoryBudget;
   private spooled = 0;
   private readonly rssCeiling: number;
-  private readonly piscina: Piscina<ResampleTask, number>;
+  private readonly piscina: BandPiscina;
+  private readonly runBand: RunBand;
   private warming?: Promise<void>;
   private isWarm = false;
   private closing?: Promise<void>;
@@ -116,7 +120,7 @@ export class RenderPool {
       maxWaitMs: opts.maxWaitMs ?? 4000,
       retryAfterSeconds: opts.retryAfterSeconds,
     });
-    this.piscina = new Piscina<ResampleTask, number>({
+    this.piscina = new Piscina<ResampleTask, BandOutcome>({
       filename: workerFile,
       minThreads: this.threads,
       maxThreads: this.threads,
@@ -129,6 +133,7 @@ export class RenderPool {
       atomics: 'disabled',
       execArgv: fromSource ? ['--import', tsxLoader] : [],
     });
+    this.runBand = (opts.runner ?? piscinaRunner)(this.piscina);
   }
 
   /** Most jobs in flight (running + waiting) before refusals start. */
@@ -202,7 +207,7 @@ export class RenderPool {
   /**
    * Resamples `src` by `plan` in the pool; big outputs are split into two bands of rows. The
    * plan may be a function of the source staged in shared memory (the content-adaptive plan
-   * asks the pool to analyse it first, src/risk/adaptive.ts), so the pixels are copied once.
+   * asks the pool to analyse it first, src/risk/service.ts), so the pixels are copied once.
    */
   async resample(src: PixelRaster, plan: Plan | ((staged: SharedRaster) => Promise<Plan>), signal?: AbortSignal): Promise<PixelRaster> {
     // A closed piscina would start fresh threads for a late task: refuse it here instead.
@@ -258,12 +263,8 @@ export class RenderPool {
       await bands.catch(() => undefined);
       // A failed decode stops the workers: report the decode's error.
       if (decodeFailure !== undefined) throw decodeFailure;
-      const cause = e instanceof FoldwiseError ? e.cause : e;
-      const message = cause instanceof Error ? cause.message : '';
       // A spool file that cannot be read, or is not what was written, says nothing of the source.
-      if (!(e instanceof FoldwiseError && e.code !== 'ERR_RENDER_FAILED') && (message.includes(READ_FAILED) || message.includes(FILE_WRONG))) {
-        throw new SpoolWriteError(`the spool file ${path} could not be read back`, { cause });
-      }
+      if (e instanceof SpoolReadError) throw new SpoolWriteError(`the spool file ${path} could not be read back`, { cause: e });
       throw e instanceof FoldwiseError ? e : new FoldwiseError('ERR_RENDER_FAILED', 'resampling failed', { cause: e });
     } finally {
       signal?.removeEventListener('abort', stop);
@@ -333,7 +334,8 @@ export class RenderPool {
     if (signal?.aborted) relay();
     signal?.addEventListener('abort', relay, { once: true });
     try {
-      return (await this.piscina.run(task as ResampleTask, { name, signal: own.signal })) as T;
+      // Named tasks answer their own types, not a band's outcome.
+      return (await this.piscina.run(task as ResampleTask, { name, signal: own.signal })) as unknown as T;
     } catch (e) {
       if (signal?.aborted && signal.reason instanceof FoldwiseError) throw signal.reason;
       if (signal?.aborted) throw this.refusal('ERR_RENDER_TIMEOUT', `the ${name} task took longer than allowed`, e);
@@ -364,10 +366,13 @@ export class RenderPool {
       const relay = () => own.abort(signal?.reason);
       if (signal?.aborted) relay();
       signal?.addEventListener('abort', relay, { once: true });
-      const runs = bands.map((rows) => this.piscina.run({ src: shared, plan, rows, out }, { signal: own.signal }));
+      const runs = bands.map((rows) => this.runBand({ src: shared, plan, rows, out }, { signal: own.signal }));
       const settled = await Promise.allSettled(runs).finally(() => signal?.removeEventListener('abort', relay));
       const failed = settled.find((r) => r.status === 'rejected');
       if (failed) throw failed.reason;
+      for (const r of settled as PromiseFulfilledResult<BandOutcome>[]) {
+        if (r.value.kind === 'spool') throw new SpoolReadError(r.value.fault, r.value.detail);
+      }
     } catch (e) {
       // piscina rejects with its AbortError for our deadline, and with its own abort or
       // "Terminating worker thread" when it is closed under a task: neither is a failed render.
@@ -375,6 +380,8 @@ export class RenderPool {
       if (signal?.aborted && signal.reason instanceof FoldwiseError) throw signal.reason;
       if (signal?.aborted) throw this.refusal('ERR_RENDER_TIMEOUT', 'resampling took longer than allowed', e);
       if (this.closing) throw this.stopping(e);
+      // The spool file's own faults go to resampleSpooled as they are (the caller decodes in memory).
+      if (e instanceof SpoolReadError && e.fault !== 'stopped') throw e;
       throw new FoldwiseError('ERR_RENDER_FAILED', 'resampling failed', { cause: e });
     }
     const data = shared.depth === 16 ? new Uint16Array(out) : new Uint8Array(out);

@@ -9,7 +9,7 @@ import { renderRaster } from '../core/index.js';
 import { simdKernels } from '../core/simd/index.js';
 import type { Channels, PixelRaster, Plan } from '../core/types.js';
 import { HAND_BACK_MIN_BYTES, handBack } from './hand-back.js';
-import { SpoolRows } from './spool/rows.js';
+import { type SpoolFault, SpoolReadError, SpoolRows } from './spool/rows.js';
 
 // Named tasks (piscina's `name`): the analysis and decision of prefilter=auto, the warm start.
 export { adaptTask as adapt, analyseTask as analyse } from './analysis.js';
@@ -47,6 +47,13 @@ export interface ResampleTask {
   out: SharedArrayBuffer;
 }
 
+/**
+ * What a band task answers across the thread boundary: its rows done, or why the spool file
+ * could not be read (a typed outcome: the pool never reads error messages to tell them apart).
+ * Anything else a task throws is a failed render.
+ */
+export type BandOutcome = { kind: 'done'; rows: number } | { kind: 'spool'; fault: SpoolFault; detail: string };
+
 /** The first `length` samples of `buffer` (a reused buffer may be longer than the raster). */
 function view(buffer: SharedArrayBuffer, depth: 8 | 16, length: number): Uint8Array | Uint16Array {
   return depth === 16 ? new Uint16Array(buffer, 0, length) : new Uint8Array(buffer, 0, length);
@@ -68,15 +75,21 @@ function render(src: SharedRaster | SpooledRaster, plan: Plan, rows: [number, nu
   }
 }
 
-/** Renders rows [from, to) of the plan's output into `out`; returns the number of rows done. */
-export default function resample(task: ResampleTask): number {
+/** Renders rows [from, to) of the plan's output into `out`. */
+export default function resample(task: ResampleTask): BandOutcome {
   const { src, plan, rows, out } = task;
-  const band = render(src, plan, rows);
+  let band: PixelRaster;
+  try {
+    band = render(src, plan, rows);
+  } catch (e) {
+    if (e instanceof SpoolReadError) return { kind: 'spool', fault: e.fault, detail: e.message };
+    throw e;
+  }
   const outSamples = plan.targetWidth * plan.targetHeight * src.channels;
   view(out, src.depth, outSamples).set(band.data, rows[0] * plan.targetWidth * src.channels);
   // This thread's handle on a large shared source would keep it mapped until the thread next
   // collects garbage, which an idle thread may not do for minutes: collect after this task
   // (once piscina has let go of it; pool.ts keeps its threads off Atomics.wait for that).
   if ('buffer' in src && src.buffer.byteLength >= HAND_BACK_MIN_BYTES) handBack();
-  return band.height;
+  return { kind: 'done', rows: band.height };
 }

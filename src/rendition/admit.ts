@@ -5,10 +5,11 @@ import { readHeader, type SourceHeader } from '../codec/header.js';
 import { negotiateFormat } from '../codec/negotiate.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import type { Lease } from '../pool/budget.js';
-import { decodeCost, outputCost, renditionCost, stagingCost } from '../pool/cost.js';
-import { planRendition } from './plan.js';
+import { decodeCost, ENCODER_BYTES_PER_PIXEL, outputCost, renditionCost, stagingCost } from '../pool/cost.js';
+import { fallbackFormat } from './smallest.js';
+import { layoutOf } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
-import { decodeLimits, type ReadSource } from './source.js';
+import { decodeLimits, type ReadSource, wishOf } from './source.js';
 import { STREAM_MIN_PIXELS } from './streamed.js';
 import type { StageClock } from './timings.js';
 
@@ -31,9 +32,15 @@ function formatFor(q: RenditionQuery, accept: string | undefined, hasAlpha: bool
   return q.format === undefined ? negotiateFormat(accept, hasAlpha) : q.format;
 }
 
+/** A negotiated format is encoded alongside its fallback (smallest.ts): that encoder's bytes too. */
+function fallbackEncoder(h: SourceHeader, q: RenditionQuery, pixels: number): number {
+  if (q.format !== undefined) return 0; // (an over-estimate when Accept picks a fallback itself)
+  return pixels * (h.frames ?? 1) * ENCODER_BYTES_PER_PIXEL[fallbackFormat((h.frames ?? 1) > 1, h.hasAlpha)];
+}
+
 /** Output pixels of the query on this source (the canvas when there is one). */
 function outputPixels(h: SourceHeader, q: RenditionQuery, limits: Limits): number {
-  const { layout } = planRendition(h, q, limits);
+  const layout = layoutOf(h, q, limits);
   const box = layout.canvas ?? { width: layout.targetWidth, height: layout.targetHeight };
   return box.width * box.height;
 }
@@ -51,14 +58,17 @@ export async function admitRendition(
   accept: string | undefined,
 ): Promise<Lease> {
   if ('bytes' in source) {
-    const h = await ctx.clock.time('decode', () => readHeader(source.bytes, decodeLimits(ctx.limits)));
-    const streamed = ctx.pool.spool !== null && !h.hasAlpha && h.width * h.height >= STREAM_MIN_PIXELS;
-    const bytes = renditionCost(h, outputPixels(h, q, ctx.limits), formatFor(q, accept, h.hasAlpha), streamed);
+    const h = await ctx.clock.time('decode', () => readHeader(source.bytes, decodeLimits(ctx.limits), wishOf(q)));
+    const streamed = ctx.pool.spool !== null && !h.hasAlpha && (h.frames ?? 1) === 1 && h.width * h.height >= STREAM_MIN_PIXELS;
+    const pixels = outputPixels(h, q, ctx.limits);
+    const bytes = renditionCost(h, pixels, formatFor(q, accept, h.hasAlpha), streamed) + fallbackEncoder(h, q, pixels);
     // Streamed, the source is in a spool file, not in this process's buffers.
     const held = streamed ? 0 : decodeCost(h) + stagingCost(h);
-    return ctx.pool.admit(bytes, `a ${h.width}x${h.height} ${8 * h.bytesPerSample}-bit ${h.channels}-channel source`, ctx.signal, held);
+    const frames = (h.frames ?? 1) > 1 ? ` of ${h.frames} frames (pixels counted over every frame)` : '';
+    return ctx.pool.admit(bytes, `a ${h.width}x${h.height} ${8 * h.bytesPerSample}-bit ${h.channels}-channel source${frames}`, ctx.signal, held);
   }
   const h = headerOf(source.raster, source.hasAlpha);
-  const bytes = stagingCost(h) + outputCost(h, outputPixels(h, q, ctx.limits), formatFor(q, accept, h.hasAlpha));
+  const pixels = outputPixels(h, q, ctx.limits);
+  const bytes = stagingCost(h) + outputCost(h, pixels, formatFor(q, accept, h.hasAlpha)) + fallbackEncoder(h, q, pixels);
   return ctx.pool.admit(bytes, `a rendition of a ${h.width}x${h.height} source`, ctx.signal, stagingCost(h));
 }

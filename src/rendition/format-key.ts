@@ -1,5 +1,5 @@
 import { LRUCache } from 'lru-cache';
-import { negotiateFormat } from '../codec/negotiate.js';
+import { negotiateAnimated, negotiateFormat } from '../codec/negotiate.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 
 // Browsers send a handful of distinct Accept headers, so a small memo answers nearly every
@@ -9,12 +9,12 @@ const choices = new LRUCache<string, string>({
   sizeCalculation: (value, accept) => 2 * (accept.length + value.length) + 64,
 });
 
-/** What an absent format may give for this Accept header: the choice for opaque and for alpha images. */
+/** What an absent format may give for this Accept header: the choice for opaque, alpha and animated images. */
 function acceptChoices(accept: string | undefined): string {
-  if (accept === undefined) return `${negotiateFormat(undefined, false)}/${negotiateFormat(undefined, true)}`;
+  if (accept === undefined) return `${negotiateFormat(undefined, false)}/${negotiateFormat(undefined, true)}/${negotiateAnimated(undefined)}`;
   let known = choices.get(accept);
   if (known === undefined) {
-    known = `${negotiateFormat(accept, false)}/${negotiateFormat(accept, true)}`;
+    known = `${negotiateFormat(accept, false)}/${negotiateFormat(accept, true)}/${negotiateAnimated(accept)}`;
     choices.set(accept, known);
   }
   return known;

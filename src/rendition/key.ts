@@ -8,7 +8,8 @@ import type { SourceIdentity } from '../origins/types.js';
  */
 // 5: the baseline JPEG encoder and the content cut-off, which two branches each called 4.
 // 6: fit defaults to contain (was cover), so a URL with both sides and no fit gets new bytes.
-export const pipelineVersion = 'fw-pipeline-6';
+// 7: this session: enlargement cap; ringing limiter; wide gamut as P3; animations kept; negotiated-bytes rule.
+export const pipelineVersion = 'fw-pipeline-7';
 
 // Hits ask for the same few keys over and over; hashing is most of a hit's key cost. The memo
 // maps the exact hashed text to its digest (so it cannot answer for different inputs) and is

@@ -3,7 +3,7 @@ import type { SourceIdentity } from '../origins/types.js';
 import type { SharedRaster, SpooledRaster } from '../pool/worker.js';
 
 /**
- * prefilter=auto's content-adaptive filter as the render path asks for it; src/risk/adaptive.ts
+ * prefilter=auto's content-adaptive filter as the render path asks for it; src/risk/service.ts
  * answers, with the spectrum store and the pool's threads (never the event loop).
  */
 export interface AdaptivePrefilter {

@@ -4,9 +4,10 @@ import type { CacheEntry } from '../cache/types.js';
 import type { Limits } from '../config.js';
 import { formatPlanHeader } from '../core/index.js';
 import type { PixelRaster, Plan } from '../core/types.js';
-import { encodeImage } from '../codec/encode.js';
 import { formatSpecs, type OutputFormat } from '../codec/formats.js';
-import { negotiateFormat } from '../codec/negotiate.js';
+import { negotiateAnimated, negotiateFormat } from '../codec/negotiate.js';
+import type { Animation } from '../codec/decode.js';
+import { frameOf, renderFrames, stackFrames } from '../core/index.js';
 import type { Origin, SourceIdentity } from '../origins/types.js';
 import { canonicalQuery } from '../schemas/canonical.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
@@ -14,18 +15,21 @@ import { withDeadline } from '../lib/deadline.js';
 import { formatKey } from './format-key.js';
 import type { IdentityMemo } from './identity.js';
 import { renditionKey, strongEtag } from './key.js';
-import { checkRequestedSize, type PlannedRendition, planRendition } from './plan.js';
+import { checkRequestedSize, clampedHeader, type PlannedRendition, planRendition } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
 import type { SharedRaster } from '../pool/worker.js';
 import { admitRendition } from './admit.js';
-import { decodeSource, type LoadedSource, type ReadSource, readSource } from './source.js';
+import { decodeSource, type LoadedSource, type ReadSource, readSource, servesWish, wishOf } from './source.js';
 import { resampleWhileDecoding } from './streamed.js';
 import { type AdaptivePrefilter, shrinks } from './prefilter.js';
+import { encodeSmallest, fallbackFormat } from './smallest.js';
 import { type Stage, StageClock, type StageTiming } from './timings.js';
 
 /** Everything a render needs; no Fastify request, so ingest and the CLI can call it too. */
 export interface RenderContext {
   origin: Origin;
+  /** Told of each rendition about to be stored, by its source's key (the index deletion uses). */
+  onStored?: (source: string, key: string) => void;
   cache: TieredCache;
   flight: Flight<CacheEntry>;
   pool: RenderPool;
@@ -37,8 +41,9 @@ export interface RenderContext {
   /** Short-lived memo of source identities (hits then skip the origin); default ask the origin. */
   identities?: IdentityMemo;
   /**
-   * Content-adaptive prefilter (alias-risk analysis, src/risk/adaptive.ts), asked only when
+   * Content-adaptive prefilter (alias-risk analysis, src/risk/service.ts), asked only when
    * prefilter=auto and the plan shrinks; it analyses and decides in the pool's threads.
+   * Without it prefilter=auto is the kernel's own.
    */
   adaptive?: AdaptivePrefilter;
   /**
@@ -73,14 +78,16 @@ interface Resampled {
   plan: Plan;
   hasAlpha: boolean;
   identity: SourceIdentity;
+  /** Set when the source's frames were kept: the raster stacks the resampled frames. */
+  animation?: Animation;
   /** limits.renderTimeoutMs from the end of planning: covers resample and encode. */
   deadline: AbortSignal;
 }
 
-/** The caller's decoded source when it is the version asked for. */
-function givenSource(ctx: RenditionContextInternal): LoadedSource | undefined {
+/** The caller's decoded source when it is the version asked for, decoded as the query wishes. */
+function givenSource(ctx: RenditionContextInternal, q: RenditionQuery): LoadedSource | undefined {
   const given = ctx.decoded;
-  return given && given.identity.key === ctx.asked.key && given.identity.version === ctx.asked.version ? given : undefined;
+  return given && servesWish(given.decoded, wishOf(q)) && given.identity.key === ctx.asked.key && given.identity.version === ctx.asked.version ? given : undefined;
 }
 
 /** The given source, else `read` decoded now (or resampled while it decodes: streamed). */
@@ -89,7 +96,7 @@ async function decodedSource(ctx: RenditionContextInternal, source: LoadedSource
   const read = source;
   const streamed = await resampleWhileDecoding(ctx, read, q);
   if (streamed) return { ...streamed, hasAlpha: false, identity: read.identity };
-  return decodeSource(read, ctx.limits, ctx.clock);
+  return decodeSource(read, ctx.limits, ctx.clock, wishOf(q));
 }
 
 /**
@@ -101,21 +108,36 @@ async function resampleSource(ctx: RenditionContextInternal, read: LoadedSource 
   ctx.signal?.throwIfAborted();
   if ('raster' in source) return source;
   const { decoded, identity } = source;
-  const src = decoded.raster;
-  const first = planRendition(src, q, ctx.limits);
-  const adaptive = q.prefilter === 'auto' && shrinks(first.plan) ? ctx.adaptive : undefined;
+  const { animation } = decoded;
+  const frames = animation?.frames ?? 1;
+  const whole = decoded.raster;
+  // An animation is planned on one frame, and its content-adaptive prefilter comes from the
+  // first frame's spectrum (the alias-risk report says so).
+  const src = frames > 1 ? frameOf(whole, frames, 0) : whole;
   const deadline = AbortSignal.timeout(ctx.limits.renderTimeoutMs);
   const stop = ctx.signal ? AbortSignal.any([ctx.signal, deadline]) : deadline;
-  let planned = first;
+  let planned = planRendition(src, q, ctx.limits);
+  const adaptive = q.prefilter === 'auto' && shrinks(planned.plan) ? ctx.adaptive : undefined;
   // The content-adaptive plan: from the kept spectrum, else the pool analyses the staged pixels.
-  const plan = !adaptive ? first.plan : async (staged: SharedRaster) => {
-    const known = await adaptive.known(first.plan, identity, stop);
-    const filter = known ? known.filter : await adaptive.analyse(staged, first.plan, identity, stop);
-    if (filter) planned = planRendition(src, q, ctx.limits, filter);
+  const plan = !adaptive ? planned.plan : async (staged: SharedRaster) => {
+    const decide = async (p: Plan) => {
+      const known = await adaptive.known(p, identity, stop);
+      return known ? known.filter : adaptive.analyse(staged, p, identity, stop);
+    };
+    planned = (await planRendition(src, q, ctx.limits, { decide })) ?? planned;
     return planned.plan;
   };
-  const raster = await ctx.clock.time('resample', () => ctx.pool.resample(src, plan, stop));
-  return { raster, layout: planned.layout, plan: planned.plan, hasAlpha: decoded.hasAlpha, identity, deadline };
+  const raster = await ctx.clock.time('resample', async () => {
+    if (frames === 1) return ctx.pool.resample(whole, plan, stop);
+    if (typeof plan !== 'function') return renderFrames(whole, frames, (f) => ctx.pool.resample(f, plan, stop));
+    // The first frame settles the plan (its spectrum decides); every other frame follows it.
+    const head = await ctx.pool.resample(src, plan, stop);
+    const rest = Array.from({ length: frames - 1 }, (_, i) => ctx.pool.resample(frameOf(whole, frames, i + 1), planned.plan, stop));
+    return stackFrames([head, ...(await Promise.all(rest))]);
+  });
+  if (whole.gamut) raster.gamut = whole.gamut;
+  const { layout } = planned;
+  return { raster, layout, plan: planned.plan, hasAlpha: decoded.hasAlpha, identity, deadline, ...(animation ? { animation } : {}) };
 }
 
 async function produce(
@@ -125,7 +147,7 @@ async function produce(
   accept: string | undefined,
 ): Promise<{ entry: CacheEntry; identity: SourceIdentity }> {
   // The origin read comes before admission: a slow upstream holds no memory budget.
-  const given = givenSource(ctx);
+  const given = givenSource(ctx, q);
   const source = given ?? (await readSource(ctx.origin, path, ctx.limits, ctx.clock, ctx.signal));
   ctx.signal?.throwIfAborted();
   const lease = ctx.admitted ? undefined : await admitRendition(ctx, given ? given.decoded : source as ReadSource, q, accept);
@@ -134,24 +156,28 @@ async function produce(
   try {
     const done = await resampleSource(ctx, source, q);
     const { raster, layout, plan, deadline } = done;
-    const format: OutputFormat = q.format === undefined ? negotiateFormat(accept, done.hasAlpha) : q.format;
-    const encoding = encodeImage(raster, { format, quality: q.quality, background: q.background, canvas: layout.canvas });
+    const negotiated = done.animation ? negotiateAnimated(accept) : negotiateFormat(accept, done.hasAlpha);
+    const fallback = fallbackFormat(done.animation !== undefined, done.hasAlpha);
+    const options = { quality: q.quality, background: q.background, canvas: layout.canvas, animation: done.animation };
+    const encoding = encodeSmallest(raster, options, q.format ?? negotiated, q.format === undefined, fallback);
     ended = encoding.catch(() => undefined);
-    const body = await ctx.clock.time('encode', () =>
+    const { body, format } = await ctx.clock.time('encode', () =>
       withDeadline(encoding, deadline, () => ctx.pool.refusal('ERR_RENDER_TIMEOUT', 'encoding took longer than allowed')),
     );
-    return { entry: entryOf(body, format, plan), identity: done.identity };
+    return { entry: entryOf(body, format, plan, clampedHeader(layout, q, ctx.limits)), identity: done.identity };
   } finally {
     void ended.then(() => lease?.release());
   }
 }
 
-function entryOf(body: Buffer, format: OutputFormat, plan: Plan): CacheEntry {
+function entryOf(body: Buffer, format: OutputFormat, plan: Plan, clamped: string | undefined): CacheEntry {
+  const headers: Record<string, string> = { 'rendition-plan': formatPlanHeader(plan) };
+  if (clamped) headers['rendition-clamped'] = clamped;
   return {
     body,
     contentType: formatSpecs[format].contentType,
     etag: strongEtag(body),
-    headers: { 'rendition-plan': formatPlanHeader(plan) },
+    headers,
     createdAt: Date.now(),
   };
 }
@@ -195,6 +221,8 @@ export async function renderRendition(
     // The source changed between identify and read: file the bytes under what was read.
     const storeKey = read.version === identity.version ? key : renditionKey(read, canonical, fmt);
     if (storeKey !== key) ctx.identities?.forget(path);
+    // Noted before it is stored: a crash in between leaves a key with nothing behind it, never the reverse.
+    ctx.onStored?.(read.key, storeKey);
     await clock.time('cache', () => ctx.cache.set(storeKey, made));
     return made;
   }, ctx.signal);

@@ -1,5 +1,5 @@
 import type { Limits } from '../config.js';
-import type { AdaptiveFilter, PixelRaster } from '../core/types.js';
+import type { PixelRaster, Plan } from '../core/types.js';
 import { probeSpooledDecode, SpoolWriteError } from '../codec/spool-decode.js';
 import type { SourceIdentity } from '../origins/types.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
@@ -8,7 +8,7 @@ import type { RenderPool } from '../pool/render-pool.js';
 import { type SpoolShape, WRITTEN } from '../pool/spool/rows.js';
 import type { SpooledRaster } from '../pool/worker.js';
 import { type AdaptivePrefilter, shrinks } from './prefilter.js';
-import { decodeLimits, type ReadSource } from './source.js';
+import { decodeLimits, type ReadSource, wishOf } from './source.js';
 import type { StageClock } from './timings.js';
 
 /**
@@ -41,10 +41,14 @@ export interface StreamedRendition extends PlannedRendition {
  * without the content-adaptive filter while the analysis waits for the decode to end.
  */
 async function streamPlan(ctx: StreamContext, first: PlannedRendition, size: { width: number; height: number }, q: RenditionQuery, identity: SourceIdentity, signal: AbortSignal): Promise<{ planned: PlannedRendition; provisional: boolean }> {
-  if (q.prefilter !== 'auto' || !ctx.adaptive || !shrinks(first.plan)) return { planned: first, provisional: false };
-  const known = await ctx.adaptive.known(first.plan, identity, signal);
-  if (!known) return { planned: first, provisional: true };
-  return { planned: known.filter ? planRendition(size, q, ctx.limits, known.filter) : first, provisional: false };
+  const { adaptive } = ctx;
+  if (q.prefilter !== 'auto' || !adaptive || !shrinks(first.plan)) return { planned: first, provisional: false };
+  const decide = async (plan: Plan) => {
+    const known = await adaptive.known(plan, identity, signal);
+    return known ? known.filter : null;
+  };
+  const planned = await planRendition(size, q, ctx.limits, { decide });
+  return planned ? { planned, provisional: false } : { planned: first, provisional: true };
 }
 
 /** The spool file as a source whose decode has ended (the analysis reads it after the decode). */
@@ -79,7 +83,7 @@ function written(path: string, probe: SpoolShape & { channels: 1 | 3 }): Spooled
 export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSource, q: RenditionQuery): Promise<StreamedRendition | null> {
   const spool = ctx.pool.spool;
   if (!spool) return null;
-  const probe = await ctx.clock.time('decode', () => probeSpooledDecode(source.bytes, decodeLimits(ctx.limits)));
+  const probe = await ctx.clock.time('decode', () => probeSpooledDecode(source.bytes, decodeLimits(ctx.limits), wishOf(q)));
   if (!probe || probe.width * probe.height < STREAM_MIN_PIXELS) return null;
   const deadline = AbortSignal.timeout(ctx.limits.decodeTimeoutMs + ctx.limits.renderTimeoutMs);
   const stop = ctx.signal ? AbortSignal.any([ctx.signal, deadline]) : deadline;
@@ -92,17 +96,20 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
   // and the rows spooled meanwhile are resampled at once when it ends.
   const decoding = probe.write(file);
   decoding.catch(() => undefined);
-  let analysing: Promise<AdaptiveFilter | undefined> | undefined;
+  let analysing: Promise<PlannedRendition | null> | undefined;
   try {
     const { planned, provisional } = await streamPlan(ctx, first, probe, q, source.identity, stop);
     // Once the last row is written, the new source's analysis, while the render finishes.
-    if (provisional) analysing = decoding.then(() => ctx.adaptive!.analyse(written(file, probe), planned.plan, source.identity, stop));
+    const { adaptive } = ctx;
+    if (provisional && adaptive) {
+      const decide = (plan: Plan) => adaptive.analyse(written(file, probe), plan, source.identity, stop);
+      analysing = decoding.then(() => planRendition(probe, q, ctx.limits, { decide }));
+    }
     analysing?.catch(() => undefined);
     const raster = await ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, decoding, planned.plan, stop));
     // What the analysis adds after the render (timed as `plan`; absent when none ran).
-    const filter = analysing && (await ctx.clock.time('plan', () => analysing));
-    if (!filter) return { ...planned, raster, deadline };
-    const adapted = planRendition(probe, q, ctx.limits, filter);
+    const adapted = analysing && (await ctx.clock.time('plan', () => analysing));
+    if (!adapted?.adaptive) return { ...planned, raster, deadline };
     const again = await ctx.clock.time('resample', () => ctx.pool.resampleSpooled(file, probe, decoding, adapted.plan, stop));
     return { ...adapted, raster: again, deadline };
   } catch (e) {

@@ -4,29 +4,19 @@
  * cached spectrum.
  */
 import type { Limits } from '../config.js';
-import type { RenditionLayout } from '../core/layout/index.js';
-import { formatPlanHeader } from '../core/index.js';
-import { adaptiveFilter, assessRisk, type RiskReport, type SourceSpectrum } from '../core/risk/index.js';
-import type { AdaptiveFilter, Plan } from '../core/types.js';
-import { planRendition } from '../rendition/plan.js';
+import { formatPlanHeader, planResponseOf } from '../core/index.js';
+import { assessRisk, type RiskReport, type SourceSpectrum } from '../core/risk/index.js';
+import { type PlannedRendition, planRendition } from '../rendition/plan.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
-import { planResponseOf } from './adaptive.js';
 
-export interface AssessedRendition {
-  layout: RenditionLayout;
-  plan: Plan;
-  /** What prefilter=auto changed for this source (per-axis cut-off factors), if anything. */
-  adaptive?: AdaptiveFilter;
+export interface AssessedRendition extends PlannedRendition {
   report: RiskReport;
 }
 
 /** Plans the query on the analysed source as the render path does, then assesses it. */
 export function assessRendition(spectrum: SourceSpectrum, q: RenditionQuery, limits: Limits): AssessedRendition {
-  const source = { width: spectrum.width, height: spectrum.height };
-  const first = planRendition(source, q, limits);
-  const adaptive = q.prefilter === 'auto' ? adaptiveFilter(spectrum, first.plan, planResponseOf(first.plan)) : undefined;
-  const { layout, plan } = adaptive ? planRendition(source, q, limits, adaptive) : first;
-  return { layout, plan, adaptive, report: assessRisk(spectrum, plan, planResponseOf(plan), q.density) };
+  const planned = planRendition({ width: spectrum.width, height: spectrum.height }, q, limits, () => spectrum);
+  return { ...planned, report: assessRisk(spectrum, planned.plan, planResponseOf(planned.plan), q.density) };
 }
 
 /** The JSON body of GET /v1/alias-risk/{source}. */
@@ -61,5 +51,7 @@ export function riskBody(path: string, spectrum: SourceSpectrum, a: AssessedRend
     recommendedSigma: report.recommendedSigma,
     reason: report.reason,
     analysis: { tileSize: spectrum.tileSize, tiles: spectrum.tiles },
+    // Only for an animated source, so a still's report keeps its bytes.
+    ...(spectrum.frames ? { animation: { frames: spectrum.frames, analysed: 'first frame' as const } } : {}),
   };
 }

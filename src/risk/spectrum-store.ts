@@ -27,6 +27,8 @@ export interface SpectrumStoreOptions {
   onSharedError?: (error: unknown) => void;
   /** Runs one analysis; default analyzeSpectrum in this thread (the app gives the pool's). */
   analyser?: (raster: PixelRaster) => Promise<SourceSpectrum>;
+  /** Told of each analysis about to be stored in the tiers below L1, by its source's key (for deletion). */
+  onShared?: (source: string, key: string) => void;
 }
 
 /**
@@ -83,6 +85,11 @@ export class SpectrumStore {
     return this.options.analyser?.(raster) ?? Promise.resolve(analyzeSpectrum(raster));
   }
 
+  /** Forgets every version's analysis of a source from L1 (it was deleted). */
+  forget(sourceKey: string): void {
+    for (const key of [...this.lru.keys()]) if (key.endsWith(`:${sourceKey}`)) this.lru.delete(key);
+  }
+
   /**
    * The spectrum of a raster already in memory (an upload's): L1 by identity, or this raster's
    * earlier analysis, or the tiers below L1, or a new one now (kept in L1 and, in the
@@ -97,17 +104,20 @@ export class SpectrumStore {
     }
     const s = await this.analyse(raster);
     this.remember(key, raster, s);
-    if (key) void this.store(key, s);
+    if (identity) void this.store(identity, s);
     return s;
   }
 
   /**
    * Writes an analysis to every tier below L1 (sources of SHARED_MIN_PIXELS or more);
-   * failures are reported, never thrown.
+   * failures are reported, never thrown. The source index is told first (onShared), so a
+   * deletion finds the key.
    */
-  private store(key: string, s: SourceSpectrum): Promise<void> {
+  private store(identity: SourceIdentity, s: SourceSpectrum): Promise<void> {
     const tiers = this.options.tiers ?? [];
     if (tiers.length === 0 || s.width * s.height < SHARED_MIN_PIXELS) return Promise.resolve();
+    const key = this.keyOf(identity);
+    this.options.onShared?.(identity.key, key);
     const entry = entryOf(key, s);
     const write = Promise.all(tiers.map((t) => t.set(key, entry).catch((e: unknown) => this.options.onSharedError?.(e)))).then(() => undefined);
     this.writes.add(write);
@@ -151,7 +161,7 @@ export class SpectrumStore {
     const key = this.keyOf(identity);
     this.analyses++;
     this.lru.set(key, s);
-    return this.store(key, s);
+    return this.store(identity, s);
   }
 
   /**
@@ -181,7 +191,7 @@ export class SpectrumStore {
         return made;
       });
       this.remember(key, undefined, s);
-      await this.store(key, s);
+      await this.store(identity, s);
       return s;
     });
     return { spectrum: value, from };

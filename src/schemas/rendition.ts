@@ -2,11 +2,15 @@ import { z } from 'zod';
 import { type Fit, parsePosition } from '../core/layout/index.js';
 import { renamedKernels } from '../core/kernels/index.js';
 import { FoldwiseError } from '../errors.js';
+import { hexColour } from './colour.js';
 import { decimal, digits, parseQuery, type RawQuery } from './query.js';
 
 export const fitModes = ['contain', 'cover', 'fill', 'scale-down'] as const satisfies readonly Fit[];
-export const formatChoices = ['jpeg', 'png', 'webp', 'avif'] as const;
+export const formatChoices = ['jpeg', 'png', 'webp', 'avif', 'gif'] as const;
 export const lightModes = ['linear', 'encoded'] as const;
+/** Values of CSS's `color-gamut` media feature (Media Queries Level 4), plus `source`. */
+export const gamutChoices = ['source', 'srgb', 'p3', 'rec2020'] as const;
+export const enlargeModes = ['limited', 'allowed'] as const;
 export type OutputFormatChoice = (typeof formatChoices)[number];
 
 /** Old spellings of enum values, per parameter, and what a 400 says about each (names the new one). */
@@ -24,14 +28,6 @@ function enumError(name: string, values: readonly string[]) {
   };
 }
 
-const hex = /^#?([0-9a-f]{3}|[0-9a-f]{6})$/i;
-
-/** "#abc", "abc", "#aabbcc" or "aabbcc" -> "#aabbcc" (lower case). */
-function normaliseHex(text: string): string {
-  const h = text.replace(/^#/, '').toLowerCase();
-  return `#${h.length === 3 ? [...h].map((c) => c + c).join('') : h}`;
-}
-
 /** Compile-time options of the rendition query: limits and the core's kernel table. */
 export interface RenditionQueryOptions {
   maxDimension: number;
@@ -45,7 +41,9 @@ export interface RenditionQueryOptions {
 export function renditionQueryShape(o: RenditionQueryOptions) {
   const kernels = ['auto', ...o.kernelNames] as [string, ...string[]];
   return {
-    width: digits('width', 1, o.maxDimension).optional().meta({ description: 'Target width in CSS pixels.' }),
+    width: digits('width', 1, o.maxDimension)
+      .optional()
+      .meta({ description: 'Target width in CSS pixels; on /v1/renditions also the keyword hinted (with slot): the width from Client Hints.' }),
     height: digits('height', 1, o.maxDimension).optional().meta({ description: 'Target height in CSS pixels.' }),
     density: decimal('density', 0.5, 4)
       .default(1)
@@ -70,12 +68,9 @@ export function renditionQueryShape(o: RenditionQueryOptions) {
       .optional()
       .meta({ description: 'Output format. Left out, it is negotiated on Accept and the answer sends Vary: Accept.' }),
     quality: digits('quality', 1, 100).optional().meta({ description: 'Encoder quality; default per format.' }),
-    background: z
-      .string()
-      .regex(hex, 'background must be a hex colour: #rgb or #rrggbb (write # as %23, or leave it out)')
-      .transform(normaliseHex)
-      .default('#ffffff')
-      .meta({ description: 'Colour of contain bars and of alpha flattened into JPEG.' }),
+    background: hexColour('background must be a hex colour: #rgb or #rrggbb (write # as %23, or leave it out)', '#ffffff')
+      // prefault keeps no default in the JSON schema: the OpenAPI text states it here.
+      .meta({ description: 'Colour of contain bars and of alpha flattened into JPEG.', default: '#ffffff' }),
     kernel: z
       .enum(kernels, { error: enumError('kernel', kernels) })
       .default('auto')
@@ -91,6 +86,23 @@ export function renditionQueryShape(o: RenditionQueryOptions) {
       .enum(lightModes, { error: 'light must be linear or encoded' })
       .default('linear')
       .meta({ description: 'Resample in linear light, or in the encoded values (legacy match).' }),
+    gamut: z
+      .enum(gamutChoices, { error: enumError('gamut', gamutChoices) })
+      .default('source')
+      .meta({
+        description:
+          "The rendition's colour space, named as CSS's color-gamut media feature. source (default), p3 and rec2020 keep a wide-gamut source wide, as Display P3 (a profile wider than P3 is converted to it); srgb converts every source to sRGB. An sRGB source stays sRGB.",
+      }),
+    still: digits('still', 1, 100_000)
+      .optional()
+      .meta({ description: 'One frame of an animated source as a still picture (for posters), counted from 1. Left out, an animation stays animated.' }),
+    enlarge: z
+      .enum(enlargeModes, { error: 'enlarge must be limited or allowed' })
+      .default('limited')
+      .meta({
+        description:
+          'limited (default): at most limits.enlargement.default x the source (1: never beyond it); allowed: up to limits.enlargement.allowed x. Past the cap the rendition is made smaller (same shape) and the answer says so in Rendition-Clamped.',
+      }),
     signature: z
       .string()
       .regex(/^[A-Za-z0-9_-]{1,256}$/, 'signature must be URL-safe base64')

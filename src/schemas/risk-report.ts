@@ -45,5 +45,9 @@ export const riskReportSchema = z
     grid: z.object({}).loose().meta({ description: 'Per region (columns x rows, row-major): margins, the visibility of the false patterns there in threshold units (1.0 = just visible; the map); cells and folded, the folded energy (score 0..1 and share of the region energy).' }),
     recommendedSigma: pair('Gaussian sigma (source px) that brings the folded energy under -40 dB; softens everything.'),
     reason: z.string(),
+    animation: z
+      .object({ frames: z.number().int(), analysed: z.literal('first frame') })
+      .optional()
+      .meta({ description: 'Present when the source is animated: its frame count, and which frame the analysis read (the first; every frame is resampled with the same plan).' }),
   })
   .meta({ title: 'AliasRiskReport' });

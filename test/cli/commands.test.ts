@@ -103,18 +103,24 @@ describe('foldwise warm', () => {
     const first = await runCli(['warm', join(dir, 'shop'), '--widths', '30,60', '--formats', 'webp'], { env });
     expect(first.code).toBe(0);
     expect(first.stderr).toMatch(/warm \|[=]+\| 2\/2 files \| 4 renditions \| ETA \d+s \|/);
-    expect(first.stdout).toMatch(/^ {2}files {4}2$/m);
-    expect(first.stdout).toMatch(/^ {2}done {5}4 renditions rendered$/m);
-    expect(first.stdout).toMatch(/^ {2}skipped {2}0 already cached$/m);
-    expect(first.stdout).toMatch(/^ {2}failed {3}0 files$/m);
+    // The summary table: a header, one row per file, a total row; numbers aligned right.
+    const lines = first.stdout.split('\n');
+    expect(lines[0]).toMatch(/^ {2}file +rendered {2}cached +bytes {2}warnings {2}result$/);
+    expect(lines[1]).toMatch(/^ {2}-+ {2}-{8} {2}-{6} {2}-+ {2}-{8} {2}-+$/);
+    const row = (name: string) => lines.find((l) => l.startsWith(`  ${name} `)) ?? '';
+    expect(row('fabrics/stripe.png')).toMatch(/^ {2}fabrics\/stripe\.png +2 +0 +[\d.]+ (B|KiB) +\d+ {2}ok$/);
+    expect(row('label.png')).toMatch(/^ {2}label\.png +2 +0 +[\d.]+ (B|KiB) +\d+ {2}ok$/);
+    expect(row('2 files')).toMatch(/^ {2}2 files +4 +0 +[\d.]+ (B|KiB) +\d+ {2}2 ok, 0 failed, \d+\.\d s$/);
+    // Each column starts at the same place on every row (the header's "cached" ends where the numbers do).
+    const end = lines[0].indexOf('cached') + 'cached'.length;
+    for (const name of ['fabrics/stripe.png', 'label.png', '2 files']) expect(row(name)[end - 1], name).toBe('0');
     expect((await readdir(join(dir, 'cache'), { recursive: true })).length).toBeGreaterThan(0);
 
     // A new process: only the disk tier remembers, and it has every rendition.
     const second = await runCli(['warm', join(dir, 'shop'), '--widths', '30,60', '--formats', 'webp', '--no-progress'], { env });
     expect(second.code).toBe(0);
     expect(second.stderr).toBe('');
-    expect(second.stdout).toMatch(/^ {2}done {5}0 renditions rendered$/m);
-    expect(second.stdout).toMatch(/^ {2}skipped {2}4 already cached$/m);
+    expect(second.stdout).toMatch(/^ {2}2 files +0 +4 +0 B +\d+ {2}2 ok, 0 failed, /m);
   });
 
   it('counts a corrupt file as failed and exits 1', async () => {
@@ -123,8 +129,8 @@ describe('foldwise warm', () => {
     await writeFile(join(bad, 'torn.png'), (await gratingPng(64, 64)).subarray(0, 60));
     const r = await runCli(['warm', bad, '--widths', '30', '--no-progress'], { env });
     expect(r.code).toBe(1);
-    expect(r.stdout).toMatch(/^ {2}failed {3}1 files$/m);
-    expect(r.stdout).toContain('! torn.png: ');
+    expect(r.stdout).toMatch(/^ {2}torn\.png +0 +0 +0 B +0 {2}failed: \S/m);
+    expect(r.stdout).toMatch(/^ {2}1 files +0 +0 +0 B +0 {2}0 ok, 1 failed, /m);
     expect(r.stderr).toContain('1 of 1 files failed');
   });
 });

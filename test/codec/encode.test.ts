@@ -7,8 +7,10 @@ import { formatSpecs, type OutputFormat } from '../../src/codec/formats.js';
 import { pngChunkTypes } from './fixtures.js';
 
 const limits = { maxPixels: 40_000_000, maxDimension: 20_000 };
+const white = { r: 255, g: 255, b: 255 };
+const green = { r: 0, g: 255, b: 0 };
 const formats = Object.keys(formatSpecs) as OutputFormat[];
-const sharpName: Record<OutputFormat, string> = { jpeg: 'jpeg', png: 'png', webp: 'webp', avif: 'heif' };
+const sharpName: Record<OutputFormat, string> = { jpeg: 'jpeg', png: 'png', webp: 'webp', avif: 'heif', gif: 'gif' };
 
 /** A smooth colour ramp: lossy codecs keep it within a few codes. */
 function gradient(width: number, height: number): PixelRaster {
@@ -58,7 +60,7 @@ async function sharpSrgbProfile(): Promise<Buffer> {
 describe('encodeImage', () => {
   it.each(formats)('%s: round trip, tagged sRGB, nothing else attached', async (format) => {
     const raster = gradient(64, 48);
-    const out = await encodeImage(raster, { format, background: '#ffffff' });
+    const out = await encodeImage(raster, { format, background: white });
     const meta = await sharp(out).metadata();
     expect(meta.format).toBe(sharpName[format]);
     expect([meta.width, meta.height]).toEqual([64, 48]);
@@ -72,6 +74,9 @@ describe('encodeImage', () => {
       // pHYs (pixel density, §11.3.5.3) is the only other chunk libvips writes; it says
       // nothing about the picture's origin.
       expect(chunks.filter((c) => !['IHDR', 'sRGB', 'IDAT', 'IEND', 'pHYs'].includes(c))).toEqual([]);
+    } else if (format === 'gif') {
+      // GIF89a has no colour tag; browsers show its codes as sRGB (common practice).
+      expect(meta.icc).toBeUndefined();
     } else {
       expect(meta.icc?.equals(await sharpSrgbProfile())).toBe(true);
     }
@@ -79,8 +84,9 @@ describe('encodeImage', () => {
     let worst = 0;
     for (let i = 0; i < raster.data.length; i++) worst = Math.max(worst, Math.abs(back.raster.data[i] - raster.data[i]));
     // Lossless PNG is exact; the lossy codecs at their default quality stay close on a ramp
-    // (common practice: a few codes).
-    expect(worst).toBeLessThanOrEqual(format === 'png' ? 0 : 12);
+    // (common practice: a few codes); GIF's 256-colour palette dithers single pixels further
+    // (Floyd-Steinberg spreads the error; measured 16), but not past two palette steps.
+    expect(worst).toBeLessThanOrEqual(format === 'png' ? 0 : format === 'gif' ? 24 : 12);
   });
 
   it('never lets EXIF, GPS or XMP from a source reach any output', async () => {
@@ -101,7 +107,7 @@ describe('encodeImage', () => {
 
     const { raster } = await decodeImage(withGps, limits);
     for (const format of formats) {
-      const out = await encodeImage(raster, { format, background: '#ffffff' });
+      const out = await encodeImage(raster, { format, background: white });
       const meta = await sharp(out).metadata();
       expect(meta.exif).toBeUndefined();
       expect(meta.xmp).toBeUndefined();
@@ -113,18 +119,18 @@ describe('encodeImage', () => {
 
   it('writes a 16-bit raster as a 16-bit PNG, exactly, grey staying grey', async () => {
     const rgb = Uint16Array.from({ length: 4 * 3 * 3 }, (_, i) => (i * 5003 + 1001) % 65536);
-    const png = await encodeImage({ data: rgb, width: 4, height: 3, channels: 3 }, { format: 'png', background: '#fff' });
+    const png = await encodeImage({ data: rgb, width: 4, height: 3, channels: 3 }, { format: 'png', background: white });
     expect((await sharp(png).metadata()).depth).toBe('ushort');
     expect(Array.from((await decodeImage(png, limits)).raster.data)).toEqual(Array.from(rgb));
     const grey = Uint16Array.from({ length: 6 }, (_, i) => i * 11111 + 7);
-    const g = await encodeImage({ data: grey, width: 3, height: 2, channels: 1 }, { format: 'png', background: '#fff' });
+    const g = await encodeImage({ data: grey, width: 3, height: 2, channels: 1 }, { format: 'png', background: white });
     const back = await decodeImage(g, limits);
     expect([back.raster.channels, Array.from(back.raster.data)]).toEqual([1, Array.from(grey)]);
   });
 
   it('rounds a 16-bit raster to 8 bits for lossy formats (v / 257, to nearest)', async () => {
     const flat = new Uint16Array(16 * 16 * 3).fill(32896 + 128); // 128.5 x 257 -> rounds to 129
-    const jpeg = await encodeImage({ data: flat, width: 16, height: 16, channels: 3 }, { format: 'jpeg', quality: 100, background: '#fff' });
+    const jpeg = await encodeImage({ data: flat, width: 16, height: 16, channels: 3 }, { format: 'jpeg', quality: 100, background: white });
     const back = await decodeImage(jpeg, limits);
     expect(back.raster.data).toBeInstanceOf(Uint8Array);
     expect(Math.abs(back.raster.data[0] - 129)).toBeLessThanOrEqual(1);
@@ -132,7 +138,7 @@ describe('encodeImage', () => {
 
   it('letterboxes an opaque raster with the background colour', async () => {
     const red: PixelRaster = { data: new Uint8Array(4 * 2 * 3).fill(0).map((_, i) => (i % 3 === 0 ? 255 : 0)), width: 4, height: 2, channels: 3 };
-    const png = await encodeImage(red, { format: 'png', background: '#00ff00', canvas: { width: 6, height: 6, left: 1, top: 3 } });
+    const png = await encodeImage(red, { format: 'png', background: green, canvas: { width: 6, height: 6, left: 1, top: 3 } });
     const { raster } = await decodeImage(png, limits);
     expect([raster.width, raster.height, raster.channels]).toEqual([6, 6, 3]);
     const at = (x: number, y: number) => Array.from(raster.data.subarray((y * 6 + x) * 3, (y * 6 + x) * 3 + 3));
@@ -146,20 +152,12 @@ describe('encodeImage', () => {
   it('letterboxes a raster with alpha with transparent bars where the format has alpha', async () => {
     const half: PixelRaster = { data: new Uint8Array(2 * 2 * 4).fill(200), width: 2, height: 2, channels: 4 };
     for (const format of ['png', 'webp'] as const) {
-      const out = await encodeImage(half, { format, background: '#00ff00', canvas: { width: 4, height: 2, left: 2, top: 0 } });
+      const out = await encodeImage(half, { format, background: green, canvas: { width: 4, height: 2, left: 2, top: 0 } });
       const { data, info } = await sharp(out).raw().toBuffer({ resolveWithObject: true });
       expect(info.channels).toBe(4);
       expect(data[3]).toBe(0); // a bar pixel: transparent
       expect(Math.abs(data[3 * 4 + 3] - 200)).toBeLessThanOrEqual(2); // a picture pixel keeps its alpha
     }
-  });
-
-  it('makes transparent bars for an opaque raster when asked for "transparent"', async () => {
-    const grey: PixelRaster = { data: new Uint8Array(4).fill(90), width: 2, height: 2, channels: 1 };
-    const png = await encodeImage(grey, { format: 'png', background: 'transparent', canvas: { width: 2, height: 4, left: 0, top: 1 } });
-    const { raster, hasAlpha } = await decodeImage(png, limits);
-    expect([raster.channels, hasAlpha]).toEqual([2, true]);
-    expect(Array.from(raster.data)).toEqual([0, 0, 0, 0, 90, 255, 90, 255, 90, 255, 90, 255, 0, 0, 0, 0]);
   });
 
   it('flattens alpha onto the background for JPEG, in encoded values as browsers composite', async () => {
@@ -168,7 +166,7 @@ describe('encodeImage', () => {
     const w = 16;
     const data = new Uint8Array(w * w * 4);
     for (let i = 0; i < w * w; i++) data.set(i < (w * w) / 2 ? [0, 0, 0, 0] : [0, 0, 0, 128], i * 4);
-    const jpeg = await encodeImage({ data, width: w, height: w, channels: 4 }, { format: 'jpeg', quality: 100, background: '#ffffff' });
+    const jpeg = await encodeImage({ data, width: w, height: w, channels: 4 }, { format: 'jpeg', quality: 100, background: white });
     const { raster } = await decodeImage(jpeg, limits);
     expect(raster.channels).toBe(3);
     expect(Math.abs(raster.data[(4 * w + 8) * 3] - 255)).toBeLessThanOrEqual(2); // transparent -> white
@@ -178,8 +176,8 @@ describe('encodeImage', () => {
   it('follows the quality setting', async () => {
     const raster = gradient(128, 128);
     for (const format of ['jpeg', 'webp', 'avif'] as const) {
-      const low = await encodeImage(raster, { format, quality: 10, background: '#fff' });
-      const high = await encodeImage(raster, { format, quality: 95, background: '#fff' });
+      const low = await encodeImage(raster, { format, quality: 10, background: white });
+      const high = await encodeImage(raster, { format, quality: 95, background: white });
       expect(low.length).toBeLessThan(high.length);
     }
   });
@@ -187,7 +185,7 @@ describe('encodeImage', () => {
   it('writes baseline JPEG with Huffman tables fitted to the picture, 4:2:0 below quality 90 and 4:4:4 from 90', async () => {
     const raster = gradient(64, 48);
     for (const [quality, subsampling] of [[82, '4:2:0'], [89, '4:2:0'], [90, '4:4:4']] as const) {
-      const jpeg = await encodeImage(raster, { format: 'jpeg', quality, background: '#fff' });
+      const jpeg = await encodeImage(raster, { format: 'jpeg', quality, background: white });
       const { markers, dcLuminanceCounts } = jpegSegments(jpeg);
       // ITU-T T.81 Table B.1: SOF0 (0xC0) is baseline DCT, SOF2 (0xC2) progressive.
       expect(markers.filter((m) => m >= 0xc0 && m <= 0xcf && m !== 0xc4 && m !== 0xc8 && m !== 0xcc)).toEqual([0xc0]);
@@ -202,15 +200,13 @@ describe('encodeImage', () => {
     [{ quality: 0 }, 'ERR_PARAM_INVALID'],
     [{ quality: 101 }, 'ERR_PARAM_INVALID'],
     [{ quality: 50.5 }, 'ERR_PARAM_INVALID'],
-    [{ background: 'red' }, 'ERR_PARAM_INVALID'],
-    [{ background: '#12345' }, 'ERR_PARAM_INVALID'],
   ])('refuses %j', async (bad, code) => {
-    await expect(encodeImage(gradient(4, 4), { format: 'jpeg', background: '#fff', ...bad })).rejects.toMatchObject({ code });
+    await expect(encodeImage(gradient(4, 4), { format: 'jpeg', background: white, ...bad })).rejects.toMatchObject({ code });
   });
 
   it('refuses a canvas the raster does not fit (a caller bug, not a request error)', async () => {
     await expect(
-      encodeImage(gradient(8, 8), { format: 'png', background: '#fff', canvas: { width: 8, height: 8, left: 1, top: 0 } }),
+      encodeImage(gradient(8, 8), { format: 'png', background: white, canvas: { width: 8, height: 8, left: 1, top: 0 } }),
     ).rejects.toThrow(RangeError);
   });
 });

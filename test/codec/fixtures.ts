@@ -87,3 +87,66 @@ export function p3ToSrgb(rgb: readonly number[]): number[] {
   const lin = rgb.map(srgbToLinear);
   return p3ToSrgbLinear.map((row) => linearToSrgb(row.reduce((s, v, k) => s + v * lin[k], 0)));
 }
+
+/**
+ * An ICC v2 display profile of Adobe RGB (1998) built from its specification alone: the
+ * RGB-to-XYZ matrix of §4.3.4.1 (D65) adapted to the ICC's D50 connection space with the
+ * Bradford transform (ICC.1 Annex E; matrix from memory), and the transfer function 563/256,
+ * which a `curv` gamma (u8Fixed8Number) holds exactly. Tags: desc, wtpt, rXYZ/gXYZ/bXYZ,
+ * rTRC/gTRC/bTRC (ICC.1 §9.2, matrix/TRC model).
+ */
+export function adobeRgbProfile(): Buffer {
+  const m = [
+    [0.57667, 0.18556, 0.18823],
+    [0.29734, 0.62736, 0.07529],
+    [0.02703, 0.07069, 0.99134],
+  ];
+  const bradford = [
+    [0.8951, 0.2664, -0.1614],
+    [-0.7502, 1.7135, 0.0367],
+    [0.0389, -0.0685, 1.0296],
+  ];
+  const d65 = [0.95047, 1, 1.08883];
+  const d50 = [0.96422, 1, 0.82521];
+  const cone = (w: number[]) => bradford.map((row) => row.reduce((s, v, k) => s + v * w[k], 0));
+  const [s65, s50] = [cone(d65), cone(d50)];
+  const adapt = mul(mul(invert(bradford), s50.map((v, i) => [0, 1, 2].map((j) => (i === j ? v / s65[i] : 0)))), bradford);
+  const d50m = mul(adapt, m);
+  const xyz = (v: number[]) => {
+    const b = Buffer.alloc(20);
+    b.write('XYZ ', 0, 'latin1');
+    v.forEach((x, k) => b.writeInt32BE(Math.round(x * 65536), 8 + 4 * k));
+    return b;
+  };
+  const curv = Buffer.from([0x63, 0x75, 0x72, 0x76, 0, 0, 0, 0, 0, 0, 0, 1, 0x02, 0x33, 0, 0]); // gamma 563/256
+  const text = 'Adobe RGB (1998) test profile';
+  const desc = Buffer.alloc(12 + text.length + 1 + 8 + 3 + 67);
+  desc.write('desc', 0, 'latin1');
+  desc.writeUInt32BE(text.length + 1, 8);
+  desc.write(text, 12, 'latin1');
+  const col = (j: number) => xyz([0, 1, 2].map((i) => d50m[i][j]));
+  const tags: [string, Buffer][] = [
+    ['desc', desc], ['wtpt', xyz(d50)], ['rXYZ', col(0)], ['gXYZ', col(1)], ['bXYZ', col(2)],
+    ['rTRC', curv], ['gTRC', curv], ['bTRC', curv],
+  ];
+  const tableEnd = 128 + 4 + 12 * tags.length;
+  let at = tableEnd;
+  const table = Buffer.alloc(4 + 12 * tags.length);
+  table.writeUInt32BE(tags.length, 0);
+  const bodies: Buffer[] = [];
+  tags.forEach(([sig, data], i) => {
+    const padded = Buffer.concat([data, Buffer.alloc((4 - (data.length % 4)) % 4)]);
+    table.write(sig, 4 + 12 * i, 'latin1');
+    table.writeUInt32BE(at, 8 + 12 * i);
+    table.writeUInt32BE(data.length, 12 + 12 * i);
+    bodies.push(padded);
+    at += padded.length;
+  });
+  const header = Buffer.alloc(128);
+  header.writeUInt32BE(at, 0);
+  header.writeUInt32BE(0x02100000, 8); // version 2.1
+  header.write('mntrRGB XYZ ', 12, 'latin1');
+  header.write('acsp', 36, 'latin1');
+  d50.forEach((v, k) => header.writeInt32BE(Math.round(v * 65536), 68 + 4 * k)); // PCS illuminant
+  return Buffer.concat([header, table, ...bodies]);
+}

@@ -3,6 +3,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { demoImages, encodeDemo, ensureDemoImages } from '../../tools/demo/index.js';
+import { demoExtras } from '../../tools/demo/extras.js';
 import { decodeImage } from '../../src/codec/decode.js';
 
 const limits = { maxPixels: 40_000_000, maxDimension: 20_000 };
@@ -19,7 +20,7 @@ afterAll(async () => {
 
 describe('demo pictures', () => {
   it('are all made, under the documented names', () => {
-    expect(paths).toEqual(demoImages.map((d) => d.path));
+    expect(paths).toEqual([...demoImages.map((d) => d.path), ...demoExtras.map((d) => d.path)]);
     expect(paths).toEqual(
       expect.arrayContaining(['fabrics/pinstripe.png', 'fabrics/herringbone.jpg', 'shop/brick-front.jpg', 'labels/care-label.png', 'products/scarf.png']),
     );
@@ -35,7 +36,7 @@ describe('demo pictures', () => {
   );
 
   it('decode as the format their name says, big enough to alias when shrunk', async () => {
-    for (const path of paths) {
+    for (const path of demoImages.map((d) => d.path)) {
       const { raster, format, hasAlpha } = await decodeImage(await readFile(join(first, path)), limits);
       expect(format).toBe(path.endsWith('.png') ? 'png' : 'jpeg');
       expect(Math.max(raster.width, raster.height)).toBeGreaterThanOrEqual(1600);
@@ -73,5 +74,15 @@ describe('demo pictures', () => {
     const stripe = power(1 / 13.2);
     for (const f of [0.03, 0.05, 0.065, 0.09, 0.11]) expect(stripe).toBeGreaterThan(20 * power(f));
     expect(1 / 13.2).toBeGreaterThan(1 / 16);
+  });
+});
+
+describe('demo extras', () => {
+  it('the yarn shot is Display P3 with colours beyond sRGB; the swatch is animated', async () => {
+    const yarn = await readFile(join(first, 'products/dyed-yarn-p3.jpg'));
+    const kept = await decodeImage(yarn, limits, { gamut: 'source', frames: 0 });
+    expect(kept.raster.gamut).toBe('display-p3');
+    const swatch = await decodeImage(await readFile(join(first, 'products/swatch-turn.gif')), limits, { gamut: 'source', frames: 'all' });
+    expect(swatch.animation).toEqual({ frames: 6, delays: [120, 120, 120, 120, 120, 120], loop: 0 });
   });
 });

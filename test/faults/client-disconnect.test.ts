@@ -12,14 +12,15 @@ import type { SingleFlight } from '../../src/lib/single-flight.js';
 import type { CacheEntry } from '../../src/cache/types.js';
 import { build, type TestApp } from '../helpers/build.js';
 import { at, pixels, writePng } from '../helpers/images.js';
-import { tapNextRun, until } from './pool-tap.js';
+import { PoolTap, until } from './pool-tap.js';
 
 let t: TestApp;
+const tap = new PoolTap();
 let port = 0;
 let serverClosedSockets = 0;
 
 beforeAll(async () => {
-  t = await build();
+  t = await build({ poolRunner: tap.runner });
   await writePng(t.sourceDir, 'flat.png', 48, 32, 3, () => [60, 120, 180]);
   await t.app.listen({ port: 0, host: '127.0.0.1' });
   port = (t.app.server.address() as AddressInfo).port;
@@ -28,20 +29,6 @@ beforeAll(async () => {
 afterAll(() => t.close());
 
 describe('a client disconnects mid-render', () => {
-  /** Holds the next resample task at the pool's door until `release` is called. */
-  function holdNextTask() {
-    let started!: () => void;
-    const reachedPool = new Promise<void>((r) => (started = r));
-    let release!: () => void;
-    const gate = new Promise<void>((r) => (release = r));
-    tapNextRun(t.app.renderPool, async (original, task, options) => {
-      started();
-      await gate;
-      return original(task, options);
-    });
-    return { reachedPool, release };
-  }
-
   function connect(url: string) {
     const req = http.request({ host: '127.0.0.1', port, path: url, agent: false });
     req.on('error', () => undefined); // the abort below surfaces here; expected
@@ -50,7 +37,7 @@ describe('a client disconnects mid-render', () => {
   }
 
   it('alone, its render is aborted: nothing is cached, the memory and the flight are released', async () => {
-    const held = holdNextTask();
+    const held = tap.holdNext();
     const url = '/v1/renditions/flat.png?width=24&format=png';
     const req = connect(url);
     await held.reachedPool;
@@ -70,7 +57,7 @@ describe('a client disconnects mid-render', () => {
   });
 
   it('while another caller waits, the render completes into the cache for it', async () => {
-    const held = holdNextTask();
+    const held = tap.holdNext();
     const url = '/v1/renditions/flat.png?width=20&format=png';
     const flight = t.app.renditionCache.flight as SingleFlight<CacheEntry>;
     const leaving = connect(url);

@@ -1,35 +1,63 @@
 /**
- * Test-side access to the render pool's piscina instance, to inject faults into the real
- * pool (kill a worker mid-task, run a crashing module, hold a task) without any hook in
- * production code. Each tap affects the next call only and then restores the pool.
+ * A fault test's hand on the render pool, injected (build's `poolRunner`, src/pool/runner.ts),
+ * not patched in: replace the next band task (kill a worker mid-task, run a crashing module,
+ * hold a task), see the pool's threads, wait for a new one. A replacement affects the next
+ * task only; the tasks after it run as usual.
  */
-import type { Piscina } from 'piscina';
-import type { RenderPool } from '../../src/pool/render-pool.js';
+import { type BandPiscina, type BandRunner, piscinaRunner, type RunBand } from '../../src/pool/runner.js';
+import type { ResampleTask } from '../../src/pool/worker.js';
 
-type Run = Piscina['run'];
+type Options = Parameters<RunBand>[1];
+export type Replacement = (original: RunBand, task: ResampleTask, options: Options) => ReturnType<RunBand>;
 
-function piscinaOf(pool: RenderPool): Piscina {
-  return (pool as unknown as { piscina: Piscina }).piscina;
-}
+export class PoolTap {
+  private piscina?: BandPiscina;
+  private next?: Replacement;
 
-/** Replaces the next `run` call with `replacement(original, task, options)`. */
-export function tapNextRun(pool: RenderPool, replacement: (original: Run, task: unknown, options: Parameters<Run>[1]) => ReturnType<Run>): void {
-  const p = piscinaOf(pool);
-  const original = p.run.bind(p) as Run;
-  p.run = ((task: unknown, options?: Parameters<Run>[1]) => {
-    p.run = original;
-    return replacement(original, task, options);
-  }) as Run;
-}
+  /** Pass as `build({ poolRunner: tap.runner })`. */
+  readonly runner: BandRunner = (piscina) => {
+    this.piscina = piscina;
+    const original = piscinaRunner(piscina);
+    return (task, options) => {
+      const replacement = this.next;
+      this.next = undefined;
+      return replacement ? replacement(original, task, options) : original(task, options);
+    };
+  };
 
-/** Resolves when the pool next reports a worker thread ready (piscina's 'workerCreate'). */
-export function nextWorkerReady(pool: RenderPool): Promise<void> {
-  return new Promise((resolve) => piscinaOf(pool).once('workerCreate', () => resolve()));
-}
+  /** Runs the next band task through `replacement(original, task, options)`. */
+  nextRun(replacement: Replacement): void {
+    this.next = replacement;
+  }
 
-/** The pool's live worker threads. */
-export function workersOf(pool: RenderPool) {
-  return piscinaOf(pool).threads;
+  /** Holds the next band task at the pool's door: `reachedPool` once it is there, it runs after `release()`. */
+  holdNext(): { reachedPool: Promise<void>; release: () => void } {
+    let started!: () => void;
+    const reachedPool = new Promise<void>((r) => (started = r));
+    let release!: () => void;
+    const gate = new Promise<void>((r) => (release = r));
+    this.nextRun(async (original, task, options) => {
+      started();
+      await gate;
+      return original(task, options);
+    });
+    return { reachedPool, release };
+  }
+
+  /** Resolves when the pool next reports a worker thread ready (piscina's 'workerCreate'). */
+  nextWorkerReady(): Promise<void> {
+    return new Promise((resolve) => this.pool().once('workerCreate', () => resolve()));
+  }
+
+  /** The pool's live worker threads. */
+  workers() {
+    return this.pool().threads;
+  }
+
+  private pool(): BandPiscina {
+    if (!this.piscina) throw new Error('the tap is not in a pool: build({ poolRunner: tap.runner })');
+    return this.piscina;
+  }
 }
 
 /**

@@ -14,7 +14,7 @@ import { build, type TestApp } from '../helpers/build.js';
 import { eventCount, gatedOrigin } from '../helpers/gated-origin.js';
 import { at, pixels, writePng } from '../helpers/images.js';
 import { memoryEntries } from '../security/cache-probe.js';
-import { nextWorkerReady, tapNextRun, until } from './pool-tap.js';
+import { PoolTap, until } from './pool-tap.js';
 
 const hangModule = fileURLToPath(new URL('./hang-worker.ts', import.meta.url));
 const retryAfterSeconds = 3;
@@ -31,9 +31,10 @@ function expectRetryableRefusal(res: Response, code: string): void {
 
 describe('the render deadline aborts a real pool task', () => {
   let t: TestApp;
+  const tap = new PoolTap();
   beforeAll(async () => {
     // Long enough for the tiny recovery render on a busy machine; the held task waits it out.
-    t = await build({ config: { limits: { renderTimeoutMs: 1000 }, pool: { retryAfterSeconds } } });
+    t = await build({ poolRunner: tap.runner, config: { limits: { renderTimeoutMs: 1000 }, pool: { retryAfterSeconds } } });
     await writePng(t.sourceDir, 'flat.png', 48, 32, 3, () => [90, 140, 200]);
   });
   afterAll(() => t.close());
@@ -42,13 +43,13 @@ describe('the render deadline aborts a real pool task', () => {
     let ran = false;
     // The real task is swapped for one that never ends; only the deadline's abort, through
     // piscina (which terminates the thread), can settle it.
-    tapNextRun(t.app.renderPool, (original, task, options) => {
+    tap.nextRun((original, task, options) => {
       ran = true;
       return original(task, { ...options, filename: hangModule });
     });
     const before = memoryEntries(t.app);
     // The aborted task's thread is terminated; its replacement reports ready when it has started.
-    const replaced = nextWorkerReady(t.app.renderPool);
+    const replaced = tap.nextWorkerReady();
     const res = await t.app.inject({ url: '/v1/renditions/flat.png?width=24&format=png' });
     expect(ran).toBe(true);
     expectRetryableRefusal(res, 'ERR_RENDER_TIMEOUT');
@@ -95,15 +96,16 @@ describe('the pool closes under a render (shutdown)', () => {
 
 describe('piscina refuses a task because it is closing', () => {
   let t: TestApp;
+  const tap = new PoolTap();
   beforeAll(async () => {
-    t = await build({ config: { pool: { retryAfterSeconds } } });
+    t = await build({ poolRunner: tap.runner, config: { pool: { retryAfterSeconds } } });
     await writePng(t.sourceDir, 'flat.png', 48, 32, 3, () => [90, 140, 200]);
   });
   afterAll(() => t.close());
 
   it('its abort is answered 503 ERR_SERVICE_STOPPING, not 500 ERR_RENDER_FAILED', async () => {
     // The close starts between our check and piscina's run, as when shutdown races a render.
-    tapNextRun(t.app.renderPool, (original, task, options) => {
+    tap.nextRun((original, task, options) => {
       void t.app.renderPool.close();
       return original(task, options);
     });

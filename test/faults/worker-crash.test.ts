@@ -5,13 +5,15 @@
  */
 import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { ResampleTask } from '../../src/pool/worker.js';
 import { build, type TestApp } from '../helpers/build.js';
 import { at, pixels, writePng } from '../helpers/images.js';
 import { memoryEntries } from '../security/cache-probe.js';
-import { tapNextRun, until, workersOf } from './pool-tap.js';
+import { PoolTap, until } from './pool-tap.js';
 
 const crashModule = fileURLToPath(new URL('./crash-worker.ts', import.meta.url));
 let t: TestApp;
+const tap = new PoolTap();
 
 const entries = () => memoryEntries(t.app);
 
@@ -32,20 +34,20 @@ async function expectRecovered(width: number): Promise<void> {
   const img = await pixels(res.rawPayload);
   // A flat field stays flat under any normalised resampler (CHECKS.md invariant).
   expect(at(img, 1, 1)).toEqual([90, 140, 200]);
-  expect(workersOf(t.app.renderPool).length).toBeGreaterThanOrEqual(1);
+  expect(tap.workers().length).toBeGreaterThanOrEqual(1);
 }
 
 beforeAll(async () => {
-  t = await build();
+  t = await build({ poolRunner: tap.runner });
   await writePng(t.sourceDir, 'flat.png', 48, 32, 3, () => [90, 140, 200]);
 });
 afterAll(() => t.close());
 
 describe('a render worker crashes', () => {
   it('killed from outside while running a task (as by a fatal native error)', async () => {
-    tapNextRun(t.app.renderPool, (original, task, options) => {
+    tap.nextRun((original, task, options) => {
       const running = original(task, options);
-      for (const w of workersOf(t.app.renderPool)) void w.terminate();
+      for (const w of tap.workers()) void w.terminate();
       return running;
     });
     await expectCleanFailure('/v1/renditions/flat.png?width=24&format=png');
@@ -53,14 +55,14 @@ describe('a render worker crashes', () => {
   });
 
   it('exits from inside the thread (process.exit in a worker)', async () => {
-    tapNextRun(t.app.renderPool, (original, task, options) => original({ ...(task as object), mode: 'exit' }, { ...options, filename: crashModule }));
+    tap.nextRun((original, task, options) => original({ ...task, mode: 'exit' } as ResampleTask, { ...options, filename: crashModule }));
     await expectCleanFailure('/v1/renditions/flat.png?width=20&format=png');
     await expectRecovered(20);
   });
 
   it('throws an uncaught exception outside the task', async () => {
-    tapNextRun(t.app.renderPool, (original, task, options) =>
-      original({ ...(task as object), mode: 'throw-later' }, { ...options, filename: crashModule }),
+    tap.nextRun((original, task, options) =>
+      original({ ...task, mode: 'throw-later' } as ResampleTask, { ...options, filename: crashModule }),
     );
     await expectCleanFailure('/v1/renditions/flat.png?width=16&format=png');
     await expectRecovered(16);

@@ -50,3 +50,29 @@ export function withFrameSize(jpeg: Buffer, width: number, height: number): Buff
   }
   throw new Error('no SOF0 marker in this JPEG');
 }
+
+/**
+ * A twill-like weave in two yarn colours, 8-bit RGB (the picture of load:hostile's damaged
+ * files): lossy WebP of it at quality 90 with every 64th byte of the middle third inverted is
+ * decoded by libwebp without any error, unlike the gratings above.
+ */
+export function weaveRaw(width: number, height: number): Buffer {
+  const out = Buffer.alloc(width * height * 3);
+  for (let y = 0, o = 0; y < height; y++) {
+    for (let x = 0; x < width; x++) {
+      const t = (Math.floor(x / 3 + Math.abs((y % 16) - 8)) & 1) === 1;
+      out[o++] = t ? 190 : 60;
+      out[o++] = t ? 170 : 80;
+      out[o++] = t ? 120 : 110;
+    }
+  }
+  return out;
+}
+
+/** The weave as a lossy WebP with every 64th byte of its middle third inverted (XOR 0xff). */
+export async function silentlyDamagedWebp(width = 1200, height = 900): Promise<Buffer> {
+  const webp = await sharp(weaveRaw(width, height), { raw: { width, height, channels: 3 } }).webp({ quality: 90 }).toBuffer();
+  const copy = Buffer.from(webp);
+  for (let i = Math.floor(copy.length / 3); i < Math.floor((2 * copy.length) / 3); i += 64) copy[i] ^= 0xff;
+  return copy;
+}

@@ -3,16 +3,23 @@ import type { Origin } from '../../src/origins/types.js';
 
 /**
  * Wraps an origin so reads wait until the test opens the gate, and counts them. Emits 'read'
- * when a read starts, so tests synchronise on events rather than on time.
+ * when a read starts, so tests synchronise on events rather than on time. With
+ * `identify: true` identifications wait at the gate too, and emit 'identify'.
  */
-export function gatedOrigin(inner: Origin) {
+export function gatedOrigin(inner: Origin, gates: { identify?: boolean } = {}) {
   const events = new EventEmitter();
   let open!: () => void;
   let gate = new Promise<void>((resolve) => (open = resolve));
   const state = { reads: 0 };
   const origin: Origin = {
     name: `gated:${inner.name}`,
-    identify: (path, signal) => inner.identify(path, signal),
+    async identify(path, signal) {
+      if (gates.identify) {
+        events.emit('identify', path);
+        await gate;
+      }
+      return inner.identify(path, signal);
+    },
     async read(path, signal) {
       state.reads += 1;
       events.emit('read', path);

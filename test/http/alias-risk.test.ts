@@ -84,7 +84,7 @@ describe('GET /v1/alias-risk/{source}', () => {
   });
 
   it('documents the per-pattern fields in the OpenAPI document', async () => {
-    const doc = (await get('/docs')).json();
+    const doc = (await get('/docs/openapi.json')).json();
     const schema = doc.paths['/v1/alias-risk/{source}'].get.responses['200'].content['application/json'].schema;
     const pattern = schema.properties.patterns.items.properties;
     const names = ['kind', 'frequency', 'apparent', 'cyclesPerDegree', 'contrast', 'threshold', 'margin', 'description'];

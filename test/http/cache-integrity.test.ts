@@ -10,7 +10,8 @@ import { writePng } from '../helpers/images.js';
 const cacheOf = (res: { headers: Record<string, unknown> }) => /cache;desc="([^"]+)"/.exec(String(res.headers['server-timing']))?.[1];
 
 async function entryFiles(dir: string): Promise<string[]> {
-  const subs = (await readdir(dir)).filter((s) => s !== 'tmp');
+  // The disk tier's entry folders (two hex digits), as DiskTier reads them; not tmp/ or .by-source/.
+  const subs = (await readdir(dir)).filter((s) => /^[0-9a-f]{2}$/.test(s));
   return (await Promise.all(subs.map(async (s) => (await readdir(join(dir, s))).map((f) => join(dir, s, f))))).flat();
 }
 

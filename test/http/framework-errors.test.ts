@@ -58,9 +58,10 @@ describe('framework errors as problem+json', () => {
     expect(problem(a).code).toBe('ERR_REQUEST_MALFORMED');
   });
 
-  // Node 24's HTTP server resets the socket on oversize headers before the 431 body can be
-  // read; on Node 20 the problem body arrives. Open: answer it on 24 as well.
-  it.skipIf(Number(process.versions.node.split('.')[0]) >= 24)('oversize headers: 431 ERR_REQUEST_HEADERS_TOO_LARGE', async () => {
+  // The server answers, then reads and drops the rest of the request before it closes
+  // (src/http/plugins/client-errors.ts): closing at once with 48 KiB unread sent a reset,
+  // which Node 24's client reported before the answer.
+  it('oversize headers: 431 ERR_REQUEST_HEADERS_TOO_LARGE', async () => {
     // Node's default header limit is 16 KiB (--max-http-header-size; from memory); 64 KiB is past it.
     const a = await raw(`GET /healthz HTTP/1.1\r\nHost: 127.0.0.1\r\nX-Filler: ${'a'.repeat(64 * 1024)}\r\n\r\n`);
     expect(a.status).toBe(431);

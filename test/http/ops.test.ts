@@ -70,8 +70,8 @@ describe('operational endpoints', () => {
     expect(text).toMatch(/foldwise_process_resident_memory_bytes/);
   });
 
-  it('/docs is an OpenAPI 3.1 document generated from the zod schemas', async () => {
-    const doc = (await t.app.inject({ url: '/docs' })).json();
+  it('/docs/openapi.json is an OpenAPI 3.1 document generated from the zod schemas', async () => {
+    const doc = (await t.app.inject({ url: '/docs/openapi.json' })).json();
     expect(doc.openapi).toBe('3.1.0');
     const op = doc.paths['/v1/renditions/{source}'].get;
     const params = Object.fromEntries(op.parameters.map((p: { name: string }) => [p.name, p]));
@@ -83,12 +83,12 @@ describe('operational endpoints', () => {
     expect(params.fit.schema.enum).toEqual(['contain', 'cover', 'fill', 'scale-down']);
     expect(params.kernel.schema.enum).toContain('lanczos-3');
     expect(op.responses['400'].content['application/problem+json'].schema).toEqual({ $ref: '#/components/schemas/Problem' });
-    for (const path of ['/v1/sources', '/healthz', '/readyz', '/metrics', '/docs/errors']) expect(Object.keys(doc.paths[path] ?? {}), path).toContain('get');
+    for (const path of ['/', '/v1/sources', '/healthz', '/readyz', '/metrics', '/docs', '/docs/errors', '/docs/errors.json']) expect(Object.keys(doc.paths[path] ?? {}), path).toContain('get');
     expect(doc.components.schemas.Problem.properties.code.enum).toContain('ERR_PARAM_UNKNOWN');
   });
 
-  it('/docs/errors lists every code with status and title', async () => {
-    const { errors } = (await t.app.inject({ url: '/docs/errors' })).json();
+  it('/docs/errors.json lists every code with status and title', async () => {
+    const { errors } = (await t.app.inject({ url: '/docs/errors.json' })).json();
     expect(errors).toContainEqual({ code: 'ERR_SOURCE_NOT_FOUND', status: 404, title: 'Source not found' });
   });
 

@@ -63,18 +63,23 @@ describe('/readyz during a miss flood', () => {
   });
 });
 
+/** /v1/sources once the app sheds load: a bounded wait for under-pressure's first sample (it starts at zero). */
+async function shedding(t: TestApp) {
+  let shed = await t.app.inject({ url: '/v1/sources' });
+  for (let i = 0; i < 500 && shed.statusCode !== 503; i++) {
+    await new Promise<void>((resolve) => setImmediate(resolve));
+    shed = await t.app.inject({ url: '/v1/sources' });
+  }
+  expect(shed.statusCode).toBe(503);
+  return shed;
+}
+
 describe('/readyz under load shedding', () => {
   it('is not shed (the replica still serves hits), while other routes are', async () => {
     // A heap limit of one byte: every sample is over it, so shedding is on from the first sample.
     const t = await build({ config: { pressure: { maxHeapUsedBytes: 1, sampleIntervalMs: 5 } } });
     try {
-      let shed = await t.app.inject({ url: '/v1/sources' });
-      // Bounded wait for under-pressure's first sample (it starts at zero).
-      for (let i = 0; i < 500 && shed.statusCode !== 503; i++) {
-        await new Promise<void>((resolve) => setImmediate(resolve));
-        shed = await t.app.inject({ url: '/v1/sources' });
-      }
-      expect(shed.statusCode).toBe(503);
+      const shed = await shedding(t);
       expect(shed.json().code).toBe('ERR_OVERLOADED');
       const ready = await t.app.inject({ url: '/readyz' });
       expect(ready.statusCode).toBe(200);
@@ -95,12 +100,7 @@ describe('/readyz under load shedding', () => {
     await first.close();
     const t = await build({ sourceDir: own, config: { ...cache, pressure: { maxHeapUsedBytes: 1, sampleIntervalMs: 5 } } });
     try {
-      let shed = await t.app.inject({ url: '/v1/sources' });
-      for (let i = 0; i < 500 && shed.statusCode !== 503; i++) {
-        await new Promise<void>((resolve) => setImmediate(resolve));
-        shed = await t.app.inject({ url: '/v1/sources' });
-      }
-      expect(shed.statusCode).toBe(503);
+      await shedding(t);
       const hit = await t.app.inject({ url: '/v1/renditions/weave.png?width=32&format=png' });
       expect(hit.statusCode).toBe(200);
       expect(cacheOf(hit)).toBe('hit-disk');

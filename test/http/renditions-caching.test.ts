@@ -14,6 +14,13 @@ describe('GET /v1/renditions: HTTP caching, negotiation and the cache tiers', ()
     t = await build();
     await writePng(t.sourceDir, 'flat.png', 40, 20, 3, (x) => [x * 6, 100, 200]);
     await writePng(t.sourceDir, 'cutout.png', 40, 20, 4, (x) => [200, 50, 50, x < 20 ? 255 : 0]);
+    // Smooth ramps at 100 px, where WebP and AVIF beat JPEG and PNG: a negotiated format larger
+    // than its fallback answers the fallback (src/rendition/smallest.ts), as 10 px flat.png does.
+    await writePng(t.sourceDir, 'ramp.png', 400, 200, 3, (x, y) => [Math.round((255 * x) / 399), Math.round((255 * y) / 199), 128]);
+    // The cutout's ramps carry a little hashed noise (a woven texture), which lossless PNG pays for.
+    const noise = (x: number, y: number) => (((x * 73856093) ^ (y * 19349663)) >>> 0) % 41 - 20;
+    const ramp = (v: number, x: number, y: number) => Math.min(255, Math.max(0, Math.round(v) + noise(x, y)));
+    await writePng(t.sourceDir, 'ramp-cutout.png', 400, 200, 4, (x, y) => [ramp((255 * x) / 399, x, y), ramp((255 * y) / 199, y, x), 128, x < 200 ? 255 : 0]);
   });
   afterAll(() => t.close());
 
@@ -74,25 +81,25 @@ describe('GET /v1/renditions: HTTP caching, negotiation and the cache tiers', ()
   });
 
   it.each([
-    ['image/avif,image/webp,*/*', 'flat.png', 'image/avif'],
-    ['image/webp,*/*;q=0.8', 'flat.png', 'image/webp'],
-    ['image/avif;q=0.5,image/webp;q=0.9', 'flat.png', 'image/webp'],
-    ['image/jpeg,*/*;q=0.1', 'flat.png', 'image/jpeg'],
-    ['', 'flat.png', 'image/jpeg'],
-    ['image/png,image/jpeg;q=0.9', 'cutout.png', 'image/png'],
-    ['*/*', 'cutout.png', 'image/png'],
-    ['image/webp,*/*', 'cutout.png', 'image/webp'],
+    ['image/avif,image/webp,*/*', 'ramp.png', 'image/avif'],
+    ['image/webp,*/*;q=0.8', 'ramp.png', 'image/webp'],
+    ['image/avif;q=0.5,image/webp;q=0.9', 'ramp.png', 'image/webp'],
+    ['image/jpeg,*/*;q=0.1', 'ramp.png', 'image/jpeg'],
+    ['', 'ramp.png', 'image/jpeg'],
+    ['image/png,image/jpeg;q=0.9', 'ramp-cutout.png', 'image/png'],
+    ['*/*', 'ramp-cutout.png', 'image/png'],
+    ['image/webp,*/*', 'ramp-cutout.png', 'image/webp'],
   ])('no format, Accept "%s" on %s -> %s, Vary: Accept', async (accept, name, type) => {
     const headers: Record<string, string> = accept ? { accept } : {};
-    const res = await get('width=10', headers, name);
+    const res = await get('width=100', headers, name);
     expect(res.statusCode).toBe(200);
     expect(res.headers['content-type']).toBe(type);
     expect(res.headers.vary).toBe('Accept');
   });
 
   it('different Accept classes never share a cached body', async () => {
-    const avif = await get('width=11', { accept: 'image/avif,*/*' });
-    const jpeg = await get('width=11', { accept: 'image/jpeg' });
+    const avif = await get('width=101', { accept: 'image/avif,*/*' }, 'ramp.png');
+    const jpeg = await get('width=101', { accept: 'image/jpeg' }, 'ramp.png');
     expect(avif.headers['content-type']).toBe('image/avif');
     expect(jpeg.headers['content-type']).toBe('image/jpeg');
     expect(cacheOf(jpeg)).toBe('miss');

@@ -2,7 +2,7 @@ import { readdir, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { build, type TestApp } from '../helpers/build.js';
-import { encodeGrating, flipMiddleThird, truncated, withFrameSize } from '../helpers/damage.js';
+import { encodeGrating, flipMiddleThird, silentlyDamagedWebp, truncated, withFrameSize } from '../helpers/damage.js';
 
 // Damaged sources through HTTP: a 422 ERR_SOURCE_CORRUPT problem every time, on the in-memory
 // path (spooling off) and the spooled one (prefilter=none on a source over 1 MP streams), and
@@ -12,7 +12,8 @@ const timing = (res: { headers: Record<string, unknown> }) => String(res.headers
 
 /** Files (entries) the disk tier holds, temporary folder excluded. */
 async function diskEntries(dir: string): Promise<string[]> {
-  const subs = (await readdir(dir).catch(() => [] as string[])).filter((s) => s !== 'tmp');
+  // The disk tier's entry folders (two hex digits), as DiskTier reads them; not tmp/ or .by-source/.
+  const subs = (await readdir(dir).catch(() => [] as string[])).filter((s) => /^[0-9a-f]{2}$/.test(s));
   return (await Promise.all(subs.map((s) => readdir(join(dir, s))))).flat();
 }
 
@@ -34,6 +35,8 @@ describe('damaged sources through HTTP', () => {
     files['cut.jpg'] = truncated(jpeg, 0.6);
     files['liar.jpg'] = withFrameSize(jpeg, 8000, 8000);
     files['cut.tif'] = truncated(tiff, 0.6);
+    files['tokens.webp'] = await silentlyDamagedWebp(); // libwebp decodes it without an error
+    files['tail.webp'] = Buffer.concat([webp, Buffer.from('trailing bytes')]);
     files['good.jpg'] = jpeg;
     for (const t of [streamed, inMemory]) {
       for (const [name, bytes] of Object.entries(files)) await writeFile(join(t.sourceDir, name), bytes);
@@ -41,7 +44,7 @@ describe('damaged sources through HTTP', () => {
   });
   afterAll(() => Promise.all([streamed.close(), inMemory.close()]));
 
-  const damaged = ['flipped.jpg', 'flipped.webp', 'cut.jpg', 'liar.jpg', 'cut.tif'];
+  const damaged = ['flipped.jpg', 'flipped.webp', 'tokens.webp', 'tail.webp', 'cut.jpg', 'liar.jpg', 'cut.tif'];
 
   it.each(damaged)('%s: 422 ERR_SOURCE_CORRUPT, twice (not cached), with or without spooling', async (name) => {
     for (const t of [inMemory, streamed]) {

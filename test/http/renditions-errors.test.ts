@@ -52,7 +52,7 @@ describe('GET /v1/renditions: refusals', () => {
     ['density above 4', 'width=10&density=5', 'ERR_PARAM_INVALID'],
     ['bad fit', 'width=10&fit=stretch', 'ERR_PARAM_INVALID'],
     ['bad position', 'width=10&position=middle%20nowhere', 'ERR_PARAM_INVALID'],
-    ['bad format', 'width=10&format=gif', 'ERR_PARAM_INVALID'],
+    ['bad format', 'width=10&format=tiff', 'ERR_PARAM_INVALID'],
     ['quality 0', 'width=10&quality=0', 'ERR_PARAM_INVALID'],
     ['quality 101', 'width=10&quality=101', 'ERR_PARAM_INVALID'],
     ['bad background', 'width=10&background=red', 'ERR_PARAM_INVALID'],

@@ -112,8 +112,8 @@ describe('GET /v1/renditions: fit, position, size and density', () => {
     expect(down.width).toBeLessThanOrEqual(100);
   });
 
-  it('upscales when asked (cover)', async () => {
-    const img = await image('width=400');
+  it('enlarges when the request allows it (enlarge=allowed)', async () => {
+    const img = await image('width=400&enlarge=allowed');
     expect([img.width, img.height]).toEqual([400, 200]);
     near(at(img, 10, 10), RED);
   });

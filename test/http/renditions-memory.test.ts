@@ -3,7 +3,7 @@
  * refused with 413 and its numbers, one that fits is served without the admitted bytes ever
  * passing the budget, a job that cannot get room in time gets 503 with Retry-After, and a
  * client that leaves while its job waits frees its place. Jobs are held at the pool's door
- * (pool-tap.ts) and the tests wait on the pool's counters, never on sleeps.
+ * (pool-tap.ts, injected as the pool's runner) and the tests wait on the pool's counters, never on sleeps.
  */
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
@@ -12,7 +12,7 @@ import { join } from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { build, type TestApp } from '../helpers/build.js';
-import { tapNextRun, until } from '../faults/pool-tap.js';
+import { PoolTap, until } from '../faults/pool-tap.js';
 
 const MiB = 2 ** 20;
 const BUDGET = 128 * MiB;
@@ -26,28 +26,16 @@ async function zeros16(side: number): Promise<Buffer> {
 }
 
 let t: TestApp;
+const tap = new PoolTap();
 let port = 0;
 beforeAll(async () => {
-  t = await build({ config: { pool: { memoryBudgetBytes: BUDGET, maxWaitMs: 60_000 } } });
+  t = await build({ poolRunner: tap.runner, config: { pool: { memoryBudgetBytes: BUDGET, maxWaitMs: 60_000 } } });
   await writeFile(join(t.sourceDir, 'bomb.png'), await zeros16(8192));
   await writeFile(join(t.sourceDir, 'small.png'), await zeros16(2048));
   await t.app.listen({ port: 0, host: '127.0.0.1' });
   port = (t.app.server.address() as AddressInfo).port;
 });
 afterAll(() => t.close());
-
-function holdNextTask() {
-  let started!: () => void;
-  const reachedPool = new Promise<void>((r) => (started = r));
-  let release!: () => void;
-  const gate = new Promise<void>((r) => (release = r));
-  tapNextRun(t.app.renderPool, async (original, task, options) => {
-    started();
-    await gate;
-    return original(task, options);
-  });
-  return { reachedPool, release };
-}
 
 describe('admission by memory', () => {
   it('an 8192x8192 16-bit RGBA PNG over the budget: 413 ERR_SOURCE_TOO_COSTLY with the numbers, nothing admitted', async () => {
@@ -74,7 +62,7 @@ describe('admission by memory', () => {
   });
 
   it('a client that leaves while its job waits for memory frees its place in line', async () => {
-    const held = holdNextTask();
+    const held = tap.holdNext();
     const first = t.app.inject({ url: '/v1/renditions/small.png?width=300&format=png' });
     await held.reachedPool;
     const req = http.request({ host: '127.0.0.1', port, path: '/v1/renditions/small.png?width=310&format=png', agent: false });
@@ -92,17 +80,10 @@ describe('admission by memory', () => {
 
 describe('a bounded wait', () => {
   it('a job that cannot get room within maxWaitMs gets 503 ERR_OVERLOADED with Retry-After', async () => {
-    const quick = await build({ sourceDir: t.sourceDir, config: { pool: { memoryBudgetBytes: BUDGET, maxWaitMs: 0 } } });
+    const quickTap = new PoolTap();
+    const quick = await build({ sourceDir: t.sourceDir, poolRunner: quickTap.runner, config: { pool: { memoryBudgetBytes: BUDGET, maxWaitMs: 0 } } });
     try {
-      let started!: () => void;
-      const reachedPool = new Promise<void>((r) => (started = r));
-      let release!: () => void;
-      const gate = new Promise<void>((r) => (release = r));
-      tapNextRun(quick.app.renderPool, async (original, task, options) => {
-        started();
-        await gate;
-        return original(task, options);
-      });
+      const { reachedPool, release } = quickTap.holdNext();
       const first = quick.app.inject({ url: '/v1/renditions/small.png?width=200&format=png' });
       await reachedPool;
       const second = await quick.app.inject({ url: '/v1/renditions/small.png?width=210&format=png' });

@@ -23,8 +23,8 @@ describe('worker pool: split rendering', () => {
   });
 
   it.each([
-    ['upscale (rows split in two)', 'width=700&format=png'],
-    ['downscale to a big output', 'width=600&height=520&fit=fill&format=png'],
+    ['upscale (rows split in two)', 'width=700&format=png&enlarge=allowed'],
+    ['downscale to a big output', 'width=600&height=520&fit=fill&format=png&enlarge=allowed'],
     ['small output (one band)', 'width=64&format=png'],
   ])('%s: one worker and two workers give identical bytes', async (_what, q) => {
     const url = `/v1/renditions/grating.png?${q}`;

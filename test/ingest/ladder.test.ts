@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { DEFAULT_LADDER, heightFor, ladderFor } from '../../src/ingest/ladder.js';
-import { buildSrcset, suggestSizes } from '../../src/ingest/srcset.js';
+import { buildSrcset } from '../../src/ingest/srcset.js';
 import { parseSrcset, widthDescriptors } from './srcset-parse.js';
 
 describe('ladderFor', () => {
@@ -46,10 +46,5 @@ describe('buildSrcset', () => {
     // HTML Living Standard: a candidate URL must not start or end with a comma.
     expect(() => buildSrcset([{ url: ',/x', width: 1 }])).toThrow(RangeError);
     expect(() => buildSrcset([{ url: '/a b', width: 1 }])).toThrow(RangeError);
-  });
-
-  it('suggests sizes as a media condition then a fallback length', () => {
-    // HTML Living Standard, "sizes": comma list of <media-condition> <length>, last one bare.
-    expect(suggestSizes(1280)).toBe('(max-width: 1280px) 100vw, 1280px');
   });
 });

@@ -40,7 +40,7 @@ describe('POST /v1/ingest with image bytes', () => {
   it('lists one rendition per width and format, never wider than the source', () => {
     const widths = [80, 160, 240, 300];
     expect(manifest.renditions.map((r: any) => `${r.format}:${r.width}x${r.height}`)).toEqual(
-      ['webp', 'jpeg'].flatMap((f) => widths.map((w) => `${f}:${w}x${Math.round((w * 200) / 300)}`)),
+      ['avif', 'jpeg'].flatMap((f) => widths.map((w) => `${f}:${w}x${Math.round((w * 200) / 300)}`)),
     );
     for (const r of manifest.renditions) {
       expect(r.url).toBe(`/v1/renditions/${manifest.source.key}?width=${r.width}&format=${r.format}`);
@@ -50,12 +50,12 @@ describe('POST /v1/ingest with image bytes', () => {
       expect(r.risk.score).toBeGreaterThanOrEqual(0);
       expect(r.risk.score).toBeLessThanOrEqual(1);
     }
-    expect(manifest.sizes).toBe('(max-width: 300px) 100vw, 300px');
+    expect(manifest.sizes).toBe('100vw'); // issue 17: the default spans the viewport
     expect(manifest.warnings).toEqual([]);
   });
 
   it('gives a srcset per format that parses (HTML Living Standard) with ascending w descriptors', () => {
-    expect(Object.keys(manifest.srcset)).toEqual(['webp', 'jpeg']);
+    expect(Object.keys(manifest.srcset)).toEqual(['avif', 'jpeg']);
     for (const [format, srcset] of Object.entries(manifest.srcset as Record<string, string>)) {
       const parsed = parseSrcset(srcset);
       const widths = widthDescriptors(parsed);
@@ -74,8 +74,9 @@ describe('POST /v1/ingest with image bytes', () => {
     expect(manifest.html).toBe(
       [
         '<picture>',
-        `  <source type="image/webp" srcset="${esc(manifest.srcset.webp)}" sizes="${manifest.sizes}">`,
-        `  <img src="${esc(jpeg300.url)}" srcset="${esc(manifest.srcset.jpeg)}" sizes="${manifest.sizes}" width="300" height="200" alt="">`,
+        `  <source type="image/avif" srcset="${esc(manifest.srcset.avif)}" sizes="${manifest.sizes}">`,
+        `  <img src="${esc(jpeg300.url)}" srcset="${esc(manifest.srcset.jpeg)}" sizes="${manifest.sizes}" width="300" height="200"` +
+          ' loading="lazy" decoding="async" style="max-width:100%;height:auto" alt="">',
         '</picture>',
       ].join('\n'),
     );
@@ -132,5 +133,23 @@ describe('POST /v1/ingest with JSON naming a source', () => {
     expect(m.srcset).toEqual({
       png: '/v1/renditions/fabrics/ramp.png?width=100&format=png 100w, /v1/renditions/fabrics/ramp.png?width=200&format=png 200w',
     });
+  });
+});
+
+describe('POST /v1/ingest with an animated GIF', () => {
+  it('says the source is animated; WebP renditions keep every frame, AVIF and JPEG show the first', async () => {
+    const sharp = (await import('sharp')).default;
+    const frames = 3;
+    const data = new Uint8Array(120 * 80 * frames * 3).map((_, i) => 60 * Math.floor(i / (120 * 80 * 3)) + 40);
+    const gif = await sharp(data, { raw: { width: 120, height: 80 * frames, channels: 3, pageHeight: 80 } }).gif({ delay: [100, 100, 100] }).toBuffer();
+    const res = await upload(t.app, gif, '?widths=60,120&formats=webp,avif,jpeg');
+    expect(res.statusCode).toBe(200);
+    const m = res.json();
+    expect(m.source).toMatchObject({ width: 120, height: 80, frames: 3 });
+    for (const r of m.renditions) {
+      const got = await t.app.inject({ url: r.url });
+      const meta = await sharp(got.rawPayload).metadata();
+      expect([r.format, meta.pages ?? 1, r.height]).toEqual([r.format, r.format === 'webp' ? 3 : 1, (r.width * 80) / 120]);
+    }
   });
 });

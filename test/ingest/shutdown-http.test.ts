@@ -33,7 +33,7 @@ async function acceptedJob(deadlineMs: number) {
   const reading = once(gated.events, 'read');
   const res = await upload(t.app, await png(48, 32, rampCode(48)), '?widths=24&formats=png', { prefer: 'respond-async' });
   expect(res.statusCode).toBe(202);
-  await reading; // the job is running: it has asked the origin for its source
+  await reading; // the job is running: the upload is stored, and the job reads it back from the origin
   const handle = installShutdown(t.app, { deadlineMs, signals: [], exit: () => undefined });
   return { t, dir, gated, id: res.json().id as string, handle };
 }
@@ -42,7 +42,7 @@ describe('shutdown with async ingest jobs', () => {
   it('finishes a job accepted just before shutdown before close resolves', async () => {
     const { t, dir, gated, id, handle } = await acceptedJob(30_000);
     const closing = handle.shutdown('test');
-    // The source comes through only after the shutdown has begun: without the drain the pool
+    // The read comes through only after the shutdown has begun: without the drain the pool
     // would close under the job, and close would resolve with the job unfinished or failed.
     gated.release();
     expect(await closing).toBe(0);

@@ -1,3 +1,4 @@
+import { readFileSync } from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { kernelNames } from '../../src/core/index.js';
 import { legacyLook, pointSampling } from '../../src/inspector/copies.js';
@@ -25,9 +26,11 @@ describe('GET /inspect and its assets', () => {
     expect(res.body).toContain('inspect/assets/style.css');
   });
 
-  it('compiles the client script for the browser, once, with a strong validator', async () => {
+  it('serves the client script bundled at build time for the browser, with a strong validator', async () => {
     const first = await t.app.inject({ url: '/inspect/assets/client.js' });
     expect(first.statusCode).toBe(200);
+    // The bytes scripts/bundle-inspector.mjs wrote (made at start from the sources if stale), not a compile per process.
+    expect(first.rawPayload.equals(readFileSync(new URL('../../dist/inspector/client.js', import.meta.url)))).toBe(true);
     expect(first.headers['content-type']).toBe('text/javascript; charset=utf-8');
     // Bundled: no TypeScript-only syntax and no module imports left for the browser to fetch.
     expect(first.body).not.toMatch(/^import /m);

@@ -4,8 +4,8 @@
  * the limit or the declared length. No assertion here depends on how long anything took.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createHttpOrigin, type HttpOriginOptions } from '../../src/origins/http.js';
-import { codeOf, payload, startUpstream, type Upstream } from './upstream-server.js';
+import type { HttpOriginOptions } from '../../src/origins/http.js';
+import { codeOf, originFor, payload, startUpstream, type Upstream } from './upstream-server.js';
 
 let up: Upstream;
 let other: Upstream;
@@ -18,18 +18,8 @@ afterAll(async () => {
   await other.close();
 });
 
-function origin(over: Partial<HttpOriginOptions> = {}) {
-  return createHttpOrigin({
-    allowHosts: [`http://${up.base}`, `http://${other.base}`],
-    allowPrivate: true,
-    // Generous by default, so a slow shared CI machine cannot turn a prompt answer into a
-    // timeout; the two deadline tests below pass their own short `deadlines`.
-    timeouts: { connectMs: 5000, headersMs: 5000, bodyMs: 5000 },
-    maxBytes: 64 * 1024,
-    maxRedirects: 3,
-    ...over,
-  });
-}
+/** Both upstreams allowed; the two deadline tests below pass their own short `deadlines`. */
+const origin = (over: Partial<HttpOriginOptions> = {}) => originFor([up, other], over);
 
 /** Short deadlines for the tests that wait for one to pass (the upstream never finishes in time). */
 const deadlines = { timeouts: { connectMs: 5000, headersMs: 300, bodyMs: 300 } };

@@ -5,10 +5,10 @@
 import { EventEmitter } from 'node:events';
 import type http from 'node:http';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createHttpOrigin, type HttpOriginOptions } from '../../src/origins/http.js';
+import type { HttpOriginOptions } from '../../src/origins/http.js';
 import { HostLimit } from '../../src/origins/host-limit.js';
 import { eventCount } from '../helpers/gated-origin.js';
-import { codeOf, payload, payloadSha256, startUpstream, type Upstream } from './upstream-server.js';
+import { codeOf, originFor, payload, payloadSha256, startUpstream, type Upstream } from './upstream-server.js';
 
 const held: http.ServerResponse[] = [];
 const heldEvents = new EventEmitter();
@@ -36,16 +36,7 @@ afterAll(async () => {
   await other.close();
 });
 
-function origin(over: Partial<HttpOriginOptions> = {}) {
-  return createHttpOrigin({
-    allowHosts: [`http://${up.base}`, `http://${other.base}`],
-    allowPrivate: true,
-    timeouts: { connectMs: 5000, headersMs: 5000, bodyMs: 5000 },
-    maxBytes: 64 * 1024,
-    maxRedirects: 3,
-    ...over,
-  });
-}
+const origin = (over: Partial<HttpOriginOptions> = {}) => originFor([up, other], over);
 
 const requestsFor = (path: string, from: number) => up.requests.slice(from).filter((r) => r.endsWith(` ${path}`));
 

@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createHttpOrigin, type HttpOriginOptions } from '../../src/origins/http.js';
+import type { HttpOriginOptions } from '../../src/origins/http.js';
 import { parseAllowHosts } from '../../src/origins/http-allowlist.js';
-import { codeOf, payload, payloadSha256, startUpstream, type Upstream } from './upstream-server.js';
+import { codeOf, originFor, payload, payloadSha256, startUpstream, type Upstream } from './upstream-server.js';
 
 let up: Upstream;
 beforeAll(async () => {
@@ -11,16 +11,7 @@ afterAll(() => up.close());
 
 const timeouts = { connectMs: 2000, headersMs: 2000, bodyMs: 2000 };
 
-function origin(over: Partial<HttpOriginOptions> = {}) {
-  return createHttpOrigin({
-    allowHosts: [`http://${up.base}`],
-    allowPrivate: true,
-    timeouts,
-    maxBytes: 64 * 1024,
-    maxRedirects: 3,
-    ...over,
-  });
-}
+const origin = (over: Partial<HttpOriginOptions> = {}) => originFor([up], { timeouts, ...over });
 
 describe('http origin: reading', () => {
   it('reads an allowlisted source; the ETag is the version', async () => {

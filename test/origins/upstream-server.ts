@@ -5,6 +5,7 @@
 import { createHash } from 'node:crypto';
 import http from 'node:http';
 import { FoldwiseError } from '../../src/errors.js';
+import { createHttpOrigin, type HttpOriginOptions } from '../../src/origins/http.js';
 import type { AddressInfo, Socket } from 'node:net';
 
 export interface Upstream {
@@ -127,4 +128,20 @@ export async function codeOf(p: Promise<unknown>): Promise<string> {
     throw e;
   }
   throw new Error('expected a rejection');
+}
+
+/**
+ * An http origin allowed to reach these upstreams (loopback, so private addresses allowed):
+ * 64 KiB at most, three redirects, and deadlines generous enough that a slow shared CI
+ * machine cannot turn a prompt answer into a timeout (a test of a deadline passes its own).
+ */
+export function originFor(upstreams: Upstream[], over: Partial<HttpOriginOptions> = {}) {
+  return createHttpOrigin({
+    allowHosts: upstreams.map((u) => `http://${u.base}`),
+    allowPrivate: true,
+    timeouts: { connectMs: 5000, headersMs: 5000, bodyMs: 5000 },
+    maxBytes: 64 * 1024,
+    maxRedirects: 3,
+    ...over,
+  });
 }

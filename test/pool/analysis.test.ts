@@ -10,7 +10,7 @@ import { probeSpooledDecode } from '../../src/codec/spool-decode.js';
 import { analyseTask, tileRows } from '../../src/pool/analysis.js';
 import { RenderPool } from '../../src/pool/render-pool.js';
 import { WRITTEN } from '../../src/pool/spool/rows.js';
-import { planResponseOf } from '../../src/risk/adaptive.js';
+import { planResponseOf } from '../../src/core/index.js';
 
 const limits = { maxPixels: 50_000_000, maxDimension: 10_000 };
 const W = 1100;

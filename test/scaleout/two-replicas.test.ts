@@ -35,6 +35,15 @@ describe.skipIf(!redisBinary)('two replicas sharing one Redis', () => {
     expect(rb.rawPayload.equals(ra.rawPayload)).toBe(true);
   });
 
+  it('a render is sent to Redis once: the tiered cache stores it, the cross-replica flight only reads', async () => {
+    // prefilter=none: no spectrum analysis, which the shared tier would store too.
+    const stores = () => a.app.sharedRedis!.tier.counts.stores;
+    const before = stores();
+    const res = await a.app.inject('/v1/renditions/stripes.png?width=40&height=20&fit=fill&prefilter=none&format=png');
+    expect(res.statusCode).toBe(200);
+    expect(stores() - before).toBe(1);
+  });
+
   it('many distinct renditions asked of both concurrently: one render each', async () => {
     const widths = [20, 24, 30, 36, 40];
     const before = a.origin.reads + b.origin.reads;

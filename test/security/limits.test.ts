@@ -6,7 +6,7 @@ import { writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { tapNextRun } from '../faults/pool-tap.js';
+import { PoolTap } from '../faults/pool-tap.js';
 import { build, type TestApp } from '../helpers/build.js';
 import { writePng } from '../helpers/images.js';
 import { memoryEntries } from './cache-probe.js';
@@ -33,6 +33,8 @@ beforeAll(async () => {
         maxDimension: 1000,
         maxOutputPixels: 500 * 500,
         maxFrames: 4,
+        // Enlargement allowed far enough for the aspect-ratio case below to pass maxDimension.
+        enlargement: { default: 1, allowed: 16 },
       },
     },
   });
@@ -59,7 +61,8 @@ describe('limits, each with its own code', () => {
     refused('small.png?width=400&height=10&density=3&fit=fill', 422, 'ERR_LIMIT_OUTPUT_DIMENSION'));
   it('an output side that follows the aspect ratio past the limit', async () => {
     await writePng(t.sourceDir, 'tall.png', 4, 200, 3, () => [1, 2, 3]);
-    await refused('tall.png?width=100', 422, 'ERR_LIMIT_OUTPUT_DIMENSION');
+    // 4 x 200 at width 100 asks 25x; capped at 16x it is still 64 x 3200, past 1000.
+    await refused('tall.png?width=100&enlarge=allowed', 422, 'ERR_LIMIT_OUTPUT_DIMENSION');
   });
 
   it('the service still renders within the limits', async () => {
@@ -70,11 +73,12 @@ describe('limits, each with its own code', () => {
 
 describe('deadlines', () => {
   it('render: 503 ERR_RENDER_TIMEOUT when a resample task never finishes', async () => {
-    const held = await build({ config: { limits: { renderTimeoutMs: 50 } } });
+    const tap = new PoolTap();
+    const held = await build({ poolRunner: tap.runner, config: { limits: { renderTimeoutMs: 50 } } });
     try {
       await writePng(held.sourceDir, 'small.png', 64, 64, 3, () => [10, 20, 30]);
       // The held task honours only its abort signal, as a piscina task does when cancelled.
-      tapNextRun(held.app.renderPool, (_original, _task, options) =>
+      tap.nextRun((_original, _task, options) =>
         new Promise((_resolve, reject) => {
           const signal = options?.signal as AbortSignal;
           signal.addEventListener('abort', () => reject(signal.reason), { once: true });

@@ -6,6 +6,7 @@ import { careLabel } from './label.js';
 import { toBytes, type Picture } from './picture.js';
 import { foldedScarf } from './scarf.js';
 import { brickFront } from './shopfront.js';
+import { demoExtras } from './extras.js';
 
 /**
  * The demo pictures of our own small textile shop, made by seeded code: every run, on every
@@ -41,15 +42,19 @@ export async function encodeDemo(path: string, picture: Picture): Promise<Buffer
  * written to a temporary name and renamed, so a reader never sees half a picture.
  */
 export async function ensureDemoImages(dir: string): Promise<string[]> {
-  for (const image of demoImages) {
+  const all = [
+    ...demoImages.map((image) => ({ path: image.path, encode: () => encodeDemo(image.path, image.make()) })),
+    ...demoExtras,
+  ];
+  for (const image of all) {
     const target = join(dir, ...image.path.split('/'));
     const present = await stat(target).then((s) => s.isFile() && s.size > 0, () => false);
     if (present) continue;
     await mkdir(dirname(target), { recursive: true });
-    const bytes = await encodeDemo(image.path, image.make());
+    const bytes = await image.encode();
     const temporary = `${target}.${process.pid}.partial`;
     await writeFile(temporary, bytes);
     await rename(temporary, target);
   }
-  return demoImages.map((image) => image.path);
+  return all.map((image) => image.path);
 }

@@ -17,12 +17,14 @@ export interface FlightOptions {
 export type FlightRole = 'leader' | 'follower' | 'solo';
 
 export interface FlightWork {
-  /** Reads the shared tier (where the holder stores its result). */
+  /** Reads the shared tier (where the holder's result is stored). */
   lookup(): Promise<CacheEntry | undefined>;
-  /** Renders the entry. */
+  /**
+   * Renders the entry and stores it where `lookup` reads, before it resolves: the holder wakes
+   * the waiters once it has. The store is the caller's own, its one write path (renderRendition
+   * writes every tier), so nothing here stores a second time.
+   */
   produce(): Promise<CacheEntry>;
-  /** Stores it in the shared tier; called by the holder before waking the waiters. */
-  store(entry: CacheEntry): Promise<void>;
 }
 
 type WaitOutcome = CacheEntry | 'released' | 'deadline' | 'unavailable';
@@ -94,7 +96,6 @@ export class RedisFlight extends EventEmitter {
     let message = 'fail';
     try {
       const entry = await work.produce();
-      await work.store(entry).catch(() => {});
       message = 'done';
       return entry;
     } finally {

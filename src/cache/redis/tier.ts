@@ -3,9 +3,6 @@ import { packValue, unpackValue } from '../pack.js';
 import type { RedisLink } from './link.js';
 import type { CacheEntry, CacheTier } from '../types.js';
 
-const RECENT_MS = 5_000;
-const RECENT_MAX = 256;
-
 export interface RedisTierOptions {
   /** Time to live of every entry. */
   ttlSeconds: number;
@@ -30,8 +27,6 @@ export interface RedisTierCounts {
 export class RedisTier implements CacheTier {
   readonly name = 'redis';
   readonly counts: RedisTierCounts = { hits: 0, misses: 0, stores: 0, oversize: 0, errors: 0 };
-  /** key -> [etag, ms] of recent stores: the flight and the tiered cache both store a render. */
-  private readonly recent = new Map<string, [string, number]>();
 
   constructor(
     readonly link: RedisLink,
@@ -50,18 +45,12 @@ export class RedisTier implements CacheTier {
     return entry;
   }
 
+  /** Each render reaches here once: the tiered cache's store is the one write path. */
   async set(key: string, entry: CacheEntry): Promise<void> {
-    const seen = this.recent.get(key);
-    // A strong ETag names the bytes: the same entry stored a moment ago need not travel again.
-    if (seen && seen[0] === entry.etag && Date.now() - seen[1] < RECENT_MS) return;
-    if (await this.setBytes(key, encodeEntry(entry))) {
-      if (this.recent.size >= RECENT_MAX) this.recent.delete(this.recent.keys().next().value!);
-      this.recent.set(key, [entry.etag, Date.now()]);
-    }
+    await this.setBytes(key, encodeEntry(entry));
   }
 
   async delete(key: string): Promise<void> {
-    this.recent.delete(key);
     await this.tracked(this.link.call((c) => c.del(this.key(key))));
   }
 

@@ -10,7 +10,7 @@ import type { RenditionEvent } from '../../ingest/service.js';
 import type { IngestFormat } from '../../schemas/ingest.js';
 import { UsageError } from '../exit.js';
 import { widthList } from '../options.js';
-import { summaryTable, type WarmTally } from '../summary.js';
+import { failedCount, summaryTable, type WarmRow, type WarmTally } from '../summary.js';
 
 interface WarmOptions {
   widths?: number[];
@@ -48,12 +48,16 @@ export function registerWarm(program: Command): void {
         async ({ app, config }) => {
           const files = (await app.origin.list?.()) ?? [];
           if (files.length === 0) throw new Error(`no images found under ${root}`);
-          const t: WarmTally = { files: files.length, done: 0, skipped: 0, failed: [], bytes: 0, warnings: 0, ms: 0 };
+          const t: WarmTally = { rows: [], ms: 0 };
+          // The file being warmed: the ingest service reports each of its renditions.
+          let row: WarmRow = { path: '', rendered: 0, cached: 0, bytes: 0, warnings: 0 };
+          let renditions = 0;
           const onRendition = (e: RenditionEvent): void => {
+            renditions++;
             if (e.cache === 'miss') {
-              t.done++;
-              t.bytes += e.bytes;
-            } else t.skipped++;
+              row.rendered++;
+              row.bytes += e.bytes;
+            } else row.cached++;
           };
           app.ingest.on('rendition', onRendition);
           const bar = new SingleBar({
@@ -66,13 +70,15 @@ export function registerWarm(program: Command): void {
           const start = performance.now();
           for (const file of files) {
             if (o.progress) bar.update({ file: file.path });
+            row = { path: file.path, rendered: 0, cached: 0, bytes: 0, warnings: 0 };
             try {
               const work = await app.ingest.fromSource(file.path, { widths: o.widths, formats });
-              t.warnings += (await app.ingest.run(work).value).warnings.length;
+              row.warnings = (await app.ingest.run(work).value).warnings.length;
             } catch (e) {
-              t.failed.push({ path: file.path, reason: e instanceof Error ? e.message : String(e) });
+              row.error = e instanceof Error ? e.message : String(e);
             }
-            if (o.progress) bar.increment({ renditions: t.done + t.skipped });
+            t.rows.push(row);
+            if (o.progress) bar.increment({ renditions });
           }
           t.ms = performance.now() - start;
           if (o.progress) bar.stop();
@@ -81,6 +87,7 @@ export function registerWarm(program: Command): void {
         },
       );
       process.stdout.write(summaryTable(tally));
-      if (tally.failed.length > 0) throw new Error(`${tally.failed.length} of ${tally.files} files failed`);
+      const failed = failedCount(tally);
+      if (failed > 0) throw new Error(`${failed} of ${tally.rows.length} files failed`);
     });
 }

@@ -14,6 +14,11 @@ export interface Kernel {
   readonly stretch: boolean;
   /** Where the formula comes from, for the plan's reason and the docs. */
   readonly source: string;
+  /**
+   * Outputs are clamped to the range of the source samples under the central lobe
+   * (resample/limit.ts): no overshoot or dark halo at hard edges. Set on the default only.
+   */
+  readonly limitsRinging?: boolean;
   weight(x: number): number;
 }
 

@@ -16,14 +16,16 @@ import { kaiserSinc, type KaiserSincDesign } from './designed.js';
  * symmetric about it while the targets are not (0.8x must pass, 1.3x must stop); on the zone
  * plate that lowers the 8x residual from -38.4 to -39.0 dB for 1 % less at 0.8x. Measured
  * with scripts/fidelity.ts: residual -41.5 / -41.5 / -40.9 / -39.0 dB at 2 / 4 / 5.33 / 8x,
- * passband -45 dB, 89-90 % at 0.8x, 1.5 % overshoot. Lanczos-3 stretched passes about 7 % at
+ * passband -45 dB, 89-90 % at 0.8x, 1.5 % overshoot, all without the ringing clamp (limit.ts), which
+ * brings the worst-phase overshoot from 7.8 to 2.6 % for -40.9 dB residual and -41.4 / -43.0 dB
+ * passband at 2 / 5.33x. Lanczos-3 stretched passes about 7 % at
  * 1.3x and keeps about 82 % at 0.8x, which is why it is not the default.
  */
 export const BANDLIMIT_DESIGN: KaiserSincDesign = { cutoff: 0.49, radius: 5, beta: 5 };
 
 /** Every kernel the `kernel` parameter accepts, by name. One table, no other registry. */
 const ALL: readonly Kernel[] = [
-  kaiserSinc('bandlimit', BANDLIMIT_DESIGN, 'Kaiser-windowed sinc at the new Nyquist (designed)'),
+  { ...kaiserSinc('bandlimit', BANDLIMIT_DESIGN, 'Kaiser-windowed sinc at the new Nyquist (designed)'), limitsRinging: true },
   lanczos(3),
   lanczos(2),
   // Keys (1981) a = -0.5 equals Mitchell-Netravali B = 0, C = 0.5 (CHECKS.md).

@@ -20,6 +20,11 @@ export interface LayoutRequest {
   density: number;
   fit: Fit;
   position: Position;
+  /**
+   * Largest enlargement (output px per source px) the layout may reach; default unlimited.
+   * Past it the whole box shrinks by one factor, so the shape asked for is kept.
+   */
+  maxScale?: number;
 }
 
 export interface RenditionLayout {
@@ -30,6 +35,8 @@ export interface RenditionLayout {
   crop: CropRect;
   /** contain / scale-down with bars: the output box and where the picture sits in it. */
   canvas?: { width: number; height: number; left: number; top: number };
+  /** Set when maxScale shrank the box: the output size (canvas or target) the request asked for. */
+  clamped?: { width: number; height: number; scale: number };
 }
 
 const atLeastOne = (v: number) => Math.max(1, Math.round(v));
@@ -49,6 +56,9 @@ const atLeastOne = (v: number) => Math.max(1, Math.round(v));
  *   it by `position`. No canvas when the picture fills the box.
  * - scale-down: contain, but never larger than the source (CSS Images 3: "as if none or
  *   contain were specified, whichever would result in a smaller concrete object size").
+ * - maxScale: when the fit would enlarge the source's pixels more than this, the box shrinks
+ *   by one factor until it does not (same shape, same crop, fewer pixels) and `clamped`
+ *   says what was asked. The browser scales the smaller picture up at display for free.
  *
  * @throws RangeError for non-positive or non-finite sizes, density or positions outside 0..1.
  */
@@ -65,10 +75,36 @@ export function layoutRendition(src: { width: number; height: number }, req: Lay
     if (side !== undefined && !(side > 0 && Number.isFinite(side))) throw new RangeError('width and height must be positive.');
   }
   if (req.width === undefined && req.height === undefined) throw new RangeError('width or height is required.');
+  const limit = req.maxScale ?? Infinity;
+  if (!(limit >= 1)) throw new RangeError('maxScale must be at least 1.');
 
-  const full: CropRect = { x: 0, y: 0, width: sw, height: sh };
   const boxW = req.width === undefined ? undefined : req.width * req.density;
   const boxH = req.height === undefined ? undefined : req.height * req.density;
+  const asked = place(src, boxW, boxH, req);
+  const k = scaleOf(src, boxW, boxH, req.fit);
+  if (k <= limit) return asked;
+  // Shrink the box by limit / k, rounding down (a rounded-up pixel would enlarge past the limit).
+  const shrink = (side?: number) => (side === undefined ? undefined : Math.max(1, Math.floor((side * limit) / k + 1e-6)));
+  const askedBox = asked.canvas ?? { width: asked.targetWidth, height: asked.targetHeight };
+  return { ...place(src, shrink(boxW), shrink(boxH), req), clamped: { ...askedBox, scale: k } };
+}
+
+/**
+ * The enlargement a box asks of the source's pixels: one side given, that side's ratio; cover
+ * and fill, the larger ratio (the axis enlarged most); contain, the smaller; scale-down never
+ * more than 1 (CSS Images 3, object-fit).
+ */
+function scaleOf(src: { width: number; height: number }, boxW: number | undefined, boxH: number | undefined, fit: Fit): number {
+  const kx = boxW === undefined ? undefined : boxW / src.width;
+  const ky = boxH === undefined ? undefined : boxH / src.height;
+  const k = kx === undefined || ky === undefined ? (kx ?? ky!) : fit === 'contain' || fit === 'scale-down' ? Math.min(kx, ky) : Math.max(kx, ky);
+  return fit === 'scale-down' ? Math.min(k, 1) : k;
+}
+
+/** The layout of a box in output pixels (density already applied). */
+function place(src: { width: number; height: number }, boxW: number | undefined, boxH: number | undefined, req: LayoutRequest): RenditionLayout {
+  const { width: sw, height: sh } = src;
+  const full: CropRect = { x: 0, y: 0, width: sw, height: sh };
 
   if (boxW === undefined || boxH === undefined) {
     // One side: k from that side; scale-down caps k at 1 (never upscales).

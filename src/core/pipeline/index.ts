@@ -45,19 +45,22 @@ function simdArena(
   for (const [i, [tx, ty, a, b]] of passes.entries()) {
     // A fused first stage reads rows already reduced along x (reduced-rows.ts).
     counts.push(...streamLayout(fusedFloats > 0 && i === 0 ? tx.dstLen : w, lanes, fusedFloats > 0 && i === 0 ? null : tx, ty, a, b, true).sizes);
-    for (const t of [tx, ty]) counts.push(t.dstLen, t.weights.length);
+    for (const t of [tx, ty]) counts.push(t.dstLen, t.weights.length, t.lobe ? t.lobe.length : 0);
     w = tx.dstLen;
   }
   return arenaFor(k, arenaBytes(counts));
 }
 
-/** A copy of the table whose start and weights live in the arena, marked for the SIMD loops. */
+/** A copy of the table whose start, weights and lobes live in the arena, marked for the SIMD loops. */
 function placed(arena: Arena, t: WeightTable): WeightTable {
   const start = arena.ints(t.dstLen);
   start.set(t.start);
   const weights = arena.floats(t.weights.length);
   weights.set(t.weights);
-  return { ...t, start, weights, simd: simdKernels()! };
+  if (!t.lobe) return { ...t, start, weights, simd: simdKernels()! };
+  const lobe = arena.ints(t.lobe.length);
+  lobe.set(t.lobe);
+  return { ...t, start, weights, lobe, simd: simdKernels()! };
 }
 
 /** The reduce-by-2 tables of each pyramid level, (x, y); an axis with fewer levels is copied. */

@@ -3,6 +3,7 @@ import { findKernel } from '../kernels/index.js';
 import { stretchedFilter } from './filter.js';
 import { compensatedFilter } from './compensate.js';
 import { buildWeights, type WeightTable } from './weights.js';
+import { centralLobes } from './limit.js';
 
 /** Length of an axis after `levels` pyramid reductions (pixel i of a level sits at 2i below). */
 export function levelLength(n: number, levels: number): number {
@@ -50,7 +51,8 @@ export function finalTable(
       ? compensatedFilter(kernel, scale / cut, ax.sigma, ax.pyramidLevels)
       : stretchedFilter(kernel, stretch, ax.sigma);
   const origin = (crop0 + 0.5 * scale - 0.5) / unit;
-  const table = buildWeights(levelLength(srcLen, ax.pyramidLevels), dstLen, origin, step, filter);
+  const built = buildWeights(levelLength(srcLen, ax.pyramidLevels), dstLen, origin, step, filter);
+  const table = kernel.limitsRinging ? { ...built, lobe: centralLobes(built) } : built;
   cache.set(key, table);
   if (cache.size > CACHE_LIMIT) cache.delete(cache.keys().next().value!);
   return table;

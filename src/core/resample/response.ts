@@ -69,3 +69,6 @@ export function planResponse(plan: Plan, axis: 'x' | 'y', f: number): number {
   const levels = plan[axis].pyramidLevels;
   return tableResponse(planTable(plan, axis), f * 2 ** levels) * Math.abs(pyramidChainResponse(f, levels));
 }
+
+/** planResponse bound to one plan: the PlanResponse the risk model (core/risk) reads. */
+export const planResponseOf = (plan: Plan) => (axis: 'x' | 'y', f: number): number => planResponse(plan, axis, f);

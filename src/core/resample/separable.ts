@@ -1,3 +1,4 @@
+import { limitPass } from './limit.js';
 import type { WeightTable } from './weights.js';
 
 /**
@@ -12,6 +13,7 @@ import type { WeightTable } from './weights.js';
  * contiguous inner loop). Not in place: dst and src must be different arrays. Allocates nothing.
  * When the table was placed in the SIMD memory and both arrays live there too, the compiled
  * f32x4 twin of the loop runs (assembly/resample.ts); these scalar loops are its reference.
+ * A table with central lobes (limit.ts) then has each output clamped to its lobe's range.
  */
 export function resampleAxis(
   dst: Float32Array,
@@ -26,6 +28,15 @@ export function resampleAxis(
   o1: number,
 ): void {
   if (dst === src) throw new RangeError('resampleAxis works out of place: dst === src');
+  filterAxis(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, table, o0, o1);
+  if (table.lobe) limitPass(dst, dstBase, dstStep, src, srcBase, srcStep, lanes, table, o0, o1);
+}
+
+/** resampleAxis without the ringing limiter: the SIMD twin or the scalar loops. */
+function filterAxis(
+  dst: Float32Array, dstBase: number, dstStep: number, src: Float32Array, srcBase: number,
+  srcStep: number, lanes: number, table: WeightTable, o0: number, o1: number,
+): void {
   const k = table.simd;
   if (k && dst.buffer === k.memory.buffer && src.buffer === dst.buffer) {
     const d = dst.byteOffset, s = src.byteOffset;

@@ -28,8 +28,11 @@ export function streamLayout(
   const rows = o1 > o0 ? ty.start[o1 - 1] + ty.taps - ty.start[o0] : 0;
   const outRows = ty.dstLen;
   const inRows = outRows > 0 ? ty.start[outRows - 1] + ty.taps - ty.start[0] : 0;
-  const h = simd ? 1 : lanes;
-  const v = simd ? lanes / 4 : lanes;
+  // The ringing limiter clamps after each pass, so the two orders differ by more than rounding
+  // there: with it, the order is the SIMD one whether or not SIMD runs (same bytes either way).
+  const vector = simd || ty.lobe !== undefined || tx?.lobe !== undefined;
+  const h = vector ? 1 : lanes;
+  const v = vector ? lanes / 4 : lanes;
   const hFirstCost = inRows * dstW * taps * h + outRows * dstW * ty.taps * v;
   const vFirstCost = outRows * sourceWidth * ty.taps * v + outRows * dstW * taps * h;
   // With no x table (the source already has the output width) the rows go straight to the window.

@@ -24,6 +24,11 @@ export interface WeightTable {
    * in that memory too run the compiled f32x4 loops.
    */
   readonly simd?: SimdKernels;
+  /**
+   * Set when the kernel limits ringing (limit.ts): per output, [first input index, count] of
+   * the central lobe's taps; each output is clamped to the range of those inputs.
+   */
+  readonly lobe?: Int32Array;
 }
 
 /**

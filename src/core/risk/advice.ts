@@ -4,6 +4,8 @@
  * thumbnail stays a thumbnail): the width is said as a fact, for the reader to weigh.
  */
 import type { Plan } from '../types.js';
+import type { SourceSpectrum } from '../spectrum/index.js';
+import { VISIBLE_MARGIN } from './levels.js';
 import { CUT_MIN } from './cutoff.js';
 import type { VisiblePattern } from './visibility.js';
 
@@ -67,4 +69,40 @@ export function adviceFor(plan: Plan, visible: VisiblePattern[], auto: boolean, 
     });
   }
   return out;
+}
+
+/** Power of the spectrum cell nearest (fx, fy), centred order (welch.ts). */
+function cellPower(spec: SourceSpectrum, fx: number, fy: number): number {
+  const n = spec.tileSize;
+  const i = Math.round(fx * n + n / 2);
+  const j = Math.round(fy * n + n / 2);
+  return i >= 0 && i < n && j >= 0 && j < n ? spec.power[j * n + i] : 0;
+}
+
+/** The line's spacing k times wider (k = 2..4) when the source holds it at least as strongly: its fundamental. */
+function fundamentalOf(spec: SourceSpectrum, f: { fx: number; fy: number }): number | undefined {
+  const own = cellPower(spec, f.fx, f.fy);
+  for (let k = 4; k >= 2; k--) if (cellPower(spec, f.fx / k, f.fy / k) >= own) return k / Math.hypot(f.fx, f.fy);
+  return undefined;
+}
+
+/**
+ * What prefilter=auto's lowered cut-off evened out, for the reason: the coarsest line that would
+ * show without it (margin over the share the plan passes >= 1), and the width from which it shows
+ * cleanly. A harmonic of coarser stripes is named as those stripes' sharpest detail.
+ */
+export function evenedWords(spec: SourceSpectrum, plan: Plan, patterns: VisiblePattern[]): string {
+  const size = (p: VisiblePattern) => Math.hypot(p.frequency.fx, p.frequency.fy);
+  let best: VisiblePattern | undefined;
+  for (const p of patterns) {
+    if (p.source !== 'line' || p.kind === 'clean' || !(p.passed > 1e-6 && p.passed < 0.5)) continue;
+    if (p.margin / p.passed >= VISIBLE_MARGIN && (!best || size(p) < size(best))) best = p;
+  }
+  if (!best) return '';
+  const width = cleanWidth(plan, best.frequency);
+  const base = fundamentalOf(spec, best.frequency);
+  if (base !== undefined) {
+    return `: the sharpest detail of the stripes ${base.toFixed(1)} source px apart is evened out at this width (the stripes stay); it shows cleanly from ${width} px wide`;
+  }
+  return `: ${lineWords(best)} become an even tone at this width; they show cleanly from ${width} px wide`;
 }

@@ -5,7 +5,7 @@
  */
 import type { AdaptiveFilter, Plan } from '../types.js';
 import type { SourceSpectrum } from '../spectrum/index.js';
-import { adviceFor, type Advice } from './advice.js';
+import { adviceFor, evenedWords, type Advice } from './advice.js';
 import { cropRatio, cropWeights } from './crop.js';
 import { viewingAt, type Viewing } from './csf.js';
 import { autoCutoff, CUT_MIN, sampledGain } from './cutoff.js';
@@ -125,7 +125,7 @@ export function assessRisk(spec: SourceSpectrum, plan: Plan, response: PlanRespo
   const left = whyLeft(plan, seen.margin);
   if (left) parts.push(left);
   const lowered = (plan.x.cutoff ?? 1) < 1 || (plan.y.cutoff ?? 1) < 1;
-  if (lowered) parts.push(`prefilter=auto lowered the cut-off to ${(plan.x.cutoff ?? 1).toFixed(2)}x, ${(plan.y.cutoff ?? 1).toFixed(2)}x`);
+  if (lowered) parts.push(`prefilter=auto lowered the cut-off to ${(plan.x.cutoff ?? 1).toFixed(2)}x, ${(plan.y.cutoff ?? 1).toFixed(2)}x${evenedWords(spec, plan, seen.patterns)}`);
   return {
     nyquist: setup.nyquist,
     scale: setup.scale,

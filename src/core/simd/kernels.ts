@@ -14,6 +14,10 @@ type DecodeReduce = (
   dst: number, dstBase: number, dstStep: number, src: number, lut: number, pairs: number,
   lanes: number, a: number, b: number, c: number, o0: number, o1: number,
 ) => void;
+type Limit = (
+  dst: number, dstBase: number, dstStep: number, src: number, srcBase: number, srcStep: number,
+  lanes: number, lobe: number, o0: number, o1: number, slack: number, crest: number, floorShare: number,
+) => void;
 type Quantise = (dst: number, src: number, n: number, thresholds: number, start: number, shift: number, base: number) => void;
 
 /** The part of the WebAssembly JS API used here (the project's lib settings carry no DOM types). */
@@ -39,6 +43,7 @@ export interface SimdKernels {
   readonly decode16: Decode;
   readonly decodeReduce5: DecodeReduce;
   readonly quantise8: Quantise;
+  readonly limit: Limit;
 }
 
 let enabled = true;
@@ -54,8 +59,8 @@ function instantiate(): SimdKernels | null {
   const memory = new wasm.Memory({ initial: 2 });
   const inst = new wasm.Instance(new wasm.Module(bytes), { env: { memory } });
   const e = inst.exports as unknown as Omit<SimdKernels, 'memory'>;
-  const { across, pixels, reduce5, across5, decode8, decode16, decodeReduce5, quantise8 } = e;
-  return { memory, across, pixels, reduce5, across5, decode8, decode16, decodeReduce5, quantise8 };
+  const { across, pixels, reduce5, across5, decode8, decode16, decodeReduce5, quantise8, limit } = e;
+  return { memory, across, pixels, reduce5, across5, decode8, decode16, decodeReduce5, quantise8, limit };
 }
 
 /** The SIMD kernels of this thread, or null when disabled or unsupported. */

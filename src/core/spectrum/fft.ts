@@ -15,6 +15,8 @@ export interface FftPlan {
   readonly sin: Float64Array;
   /** Pairs (i, j), i < j, that the bit-reversal permutation swaps, flattened. */
   readonly swaps: Uint32Array;
+  /** Entry k is k with its log2(size) bits reversed: where sample k goes before the stages. */
+  readonly rev: Uint32Array;
 }
 
 const plans = new Map<number, FftPlan>();
@@ -36,12 +38,14 @@ export function fftPlan(size: number): FftPlan {
   }
   const bits = Math.round(Math.log2(size));
   const pairs: number[] = [];
+  const rev = new Uint32Array(size);
   for (let k = 0; k < size; k++) {
     let r = 0;
     for (let b = 0, v = k; b < bits; b++, v >>= 1) r = (r << 1) | (v & 1);
+    rev[k] = r;
     if (k < r) pairs.push(k, r);
   }
-  const plan: FftPlan = { size, cos, sin, swaps: Uint32Array.from(pairs) };
+  const plan: FftPlan = { size, cos, sin, swaps: Uint32Array.from(pairs), rev };
   plans.set(size, plan);
   return plan;
 }
@@ -52,7 +56,6 @@ export function fftPlan(size: number): FftPlan {
  * as one radix-2^2 pass (half the loads and stores of two radix-2 passes, the same twiddles).
  */
 export function fftInPlace(plan: FftPlan, re: Float64Array, im: Float64Array, offset: number): void {
-  const n = plan.size;
   const swaps = plan.swaps;
   for (let p = 0; p < swaps.length; p += 2) {
     const a = offset + swaps[p];
@@ -64,6 +67,15 @@ export function fftInPlace(plan: FftPlan, re: Float64Array, im: Float64Array, of
     im[a] = im[b];
     im[b] = ti;
   }
+  fftStages(plan, re, im, offset);
+}
+
+/**
+ * The butterfly stages of fftInPlace alone, for samples already in bit-reversed order
+ * (sample k at offset + plan.rev[k]); the output is in natural order. Allocates nothing.
+ */
+export function fftStages(plan: FftPlan, re: Float64Array, im: Float64Array, offset: number): void {
+  const n = plan.size;
   const end = offset + n;
   let h = 1;
   if (n >= 4) {
@@ -169,32 +181,5 @@ function pairPass(
       re[a] += tr;
       im[a] += ti;
     }
-  }
-}
-
-/** Transpose a square n x n row-major array in place. */
-function transpose(a: Float64Array, n: number): void {
-  for (let y = 0; y < n; y++) {
-    for (let x = y + 1; x < n; x++) {
-      const i = y * n + x;
-      const j = x * n + y;
-      const t = a[i];
-      a[i] = a[j];
-      a[j] = t;
-    }
-  }
-}
-
-/**
- * Forward 2-D FFT of a size x size complex array, row-major, in place. Rows, then the columns
- * as rows of the transpose (contiguous access is about three times faster than strided
- * columns here), then transposed back. Allocates nothing.
- */
-export function fft2d(plan: FftPlan, re: Float64Array, im: Float64Array): void {
-  const n = plan.size;
-  for (let pass = 0; pass < 2; pass++) {
-    for (let r = 0; r < n; r++) fftInPlace(plan, re, im, r * n);
-    transpose(re, n);
-    transpose(im, n);
   }
 }

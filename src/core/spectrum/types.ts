@@ -23,6 +23,8 @@ export interface SourceSpectrum {
   coarse: number;
   /** Mean linear luminance over the tiles (optional: spectra stored before it was kept lack it). */
   mean?: number;
+  /** Frames of an animated source (absent: a still); the analysis read the first frame. */
+  frames?: number;
   /** Per-region spectra for the risk grid, each `bins` x `bins` cells; a cell sums binSize^2 full cells. */
   grid: { columns: number; rows: number; bins: number; binSize: number; power: Float32Array };
 }

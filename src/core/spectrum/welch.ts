@@ -6,8 +6,9 @@
  * Each tile's windowed mean is removed first, so no DC leaks into the low bins.
  */
 import type { PixelRaster } from '../types.js';
-import { fft2d, fftPlan } from './fft.js';
-import { tileLuminance } from './luminance.js';
+import { fftPlan } from './fft.js';
+import { fft2dBitReversed } from './fft2d.js';
+import { windowedTileLuminance } from './luminance.js';
 import { accumulatePacked } from './periodogram.js';
 import { layoutTiles, type TileLayout } from './tiles.js';
 import type { SourceSpectrum } from './types.js';
@@ -22,30 +23,22 @@ const BIN = 1 << BIN_SHIFT;
 interface Scratch {
   re: Float64Array;
   im: Float64Array;
-  lum: Float64Array;
 }
 const scratches = new Map<number, Scratch>();
 
 function scratchFor(t: number): Scratch {
   let s = scratches.get(t);
   if (!s) {
-    s = { re: new Float64Array(t * t), im: new Float64Array(t * t), lum: new Float64Array(t * t) };
+    s = { re: new Float64Array(t * t), im: new Float64Array(t * t) };
     scratches.set(t, s);
   }
   return s;
 }
 
-/** Windowed luminance of tile `k` into `dst`; returns its windowed mean. */
-function loadTile(dst: Float64Array, lum: Float64Array, src: PixelRaster, layout: TileLayout, k: number): number {
+/** Windowed luminance of tile `k` into `dst`, bit-reversed on both axes; returns its windowed mean. */
+function loadTile(dst: Float64Array, src: PixelRaster, layout: TileLayout, k: number, rev: Uint32Array): number {
   const t = layout.tileSize;
-  const w2 = window2d(t);
-  tileLuminance(lum, src, layout.corners[2 * k], layout.corners[2 * k + 1], t);
-  let sum = 0;
-  for (let i = 0; i < t * t; i++) {
-    const v = lum[i] * w2[i];
-    dst[i] = v;
-    sum += v;
-  }
+  const sum = windowedTileLuminance(dst, src, layout.corners[2 * k], layout.corners[2 * k + 1], t, window2d(t), rev);
   return sum / ((t / 2) * (t / 2)); // sum of the 2-D periodic Hann window is (T/2)^2
 }
 
@@ -88,7 +81,7 @@ export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
   const power = new Float64Array(t * t);
   const regionPower = new Float64Array(regions * bins * bins);
   const perRegion = new Int32Array(regions);
-  const { re, im, lum } = scratchFor(t);
+  const { re, im } = scratchFor(t);
   const plan = fftPlan(Math.max(1, t));
   // U = sum of the squared 2-D window = (3T/8)^2 (periodic Hann, Welch 1967); the 1/4 undoes
   // the packing of two real tiles into one complex transform.
@@ -99,12 +92,12 @@ export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
   for (let k = 0; k < count; k += 2) {
     const ra = layout.region[k];
     const rb = k + 1 < count ? layout.region[k + 1] : -1;
-    const ma = loadTile(re, lum, src, layout, k);
-    const mb = rb >= 0 ? loadTile(im, lum, src, layout, k + 1) : 0;
+    const ma = loadTile(re, src, layout, k, plan.rev);
+    const mb = rb >= 0 ? loadTile(im, src, layout, k + 1, plan.rev) : 0;
     if (rb < 0) im.fill(0);
     meanSum += ma + mb;
     meanSquares += ma * ma + mb * mb;
-    fft2d(plan, re, im);
+    fft2dBitReversed(plan, re, im);
     removeMeans(re, im, t, ma, mb);
     perRegion[ra]++;
     if (rb >= 0) perRegion[rb]++;
@@ -126,5 +119,6 @@ export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
     mean: count > 0 ? meanSum / count : 0,
     coarse: count > 0 ? Math.max(0, meanSquares / count - (meanSum / count) ** 2) : 0,
     grid: { columns: layout.columns, rows: layout.rows, bins, binSize: BIN, power: grid },
+    ...(src.sourceFrames !== undefined && src.sourceFrames > 1 ? { frames: src.sourceFrames } : {}),
   };
 }

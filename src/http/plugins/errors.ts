@@ -1,6 +1,9 @@
 import type { FastifyError, FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import fp from 'fastify-plugin';
 import { errorCodes, type ErrorCode, FoldwiseError, isFoldwiseError } from '../../errors.js';
+import { prefersHtml } from '../pages/accept.js';
+import { problemPage } from '../pages/errors.js';
+import { asPage } from '../pages/html.js';
 
 /** RFC 9457 problem details plus our stable `code` and the request id for support. */
 export interface Problem {
@@ -50,7 +53,10 @@ export function toFoldwiseError(error: unknown): FoldwiseError {
   return new FoldwiseError('ERR_INTERNAL', undefined, { cause: error });
 }
 
-/** Sends `error` as problem details; a 5xx never shows its message, only its title. */
+/**
+ * Sends `error` as problem details; a 5xx never shows its message, only its title. A client
+ * that weighs text/html above JSON (a browser navigating) gets the same fields as a page.
+ */
 export function sendProblem(request: FastifyRequest, reply: FastifyReply, error: FoldwiseError): FastifyReply {
   const { title } = errorCodes[error.code];
   const body: Problem = {
@@ -62,8 +68,9 @@ export function sendProblem(request: FastifyRequest, reply: FastifyReply, error:
     requestId: String(request.id),
   };
   for (const [k, v] of Object.entries(error.headers ?? {})) reply.header(k, v);
-  // Never let an error be cached as if it were the rendition.
+  // Never let an error be cached as if it were the rendition (nor one form for the other).
   reply.header('cache-control', 'no-store');
+  if (prefersHtml(request.headers.accept)) return asPage(reply.code(error.status)).send(problemPage(body));
   return reply.code(error.status).type(problemContentType).send(body);
 }
 

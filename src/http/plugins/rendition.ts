@@ -2,7 +2,7 @@ import type { FastifyInstance } from 'fastify';
 import fp from 'fastify-plugin';
 import { IdentityMemo } from '../../rendition/identity.js';
 import type { RenderContext } from '../../rendition/service.js';
-import { adaptivePrefilter } from '../../risk/adaptive.js';
+import { adaptivePrefilter } from '../../risk/service.js';
 
 declare module 'fastify' {
   interface FastifyInstance {
@@ -16,6 +16,7 @@ async function renderPlugin(app: FastifyInstance): Promise<void> {
   const { metrics } = app;
   app.decorate('renderContext', {
     origin: app.origin,
+    onStored: (source, key) => app.noteCached(source, key),
     identities: new IdentityMemo(app.origin, app.config.cache.identityTtlMs),
     cache: app.renditionCache.cache,
     flight: app.renditionCache.flight,
@@ -30,5 +31,5 @@ async function renderPlugin(app: FastifyInstance): Promise<void> {
 export default fp(renderPlugin, {
   name: 'foldwise-render',
   fastify: '5.x',
-  dependencies: ['foldwise-context', 'foldwise-metrics', 'foldwise-cache', 'foldwise-worker-pool', 'foldwise-spectra'],
+  dependencies: ['foldwise-context', 'foldwise-metrics', 'foldwise-cache', 'foldwise-worker-pool', 'foldwise-spectra', 'foldwise-source-index'],
 });

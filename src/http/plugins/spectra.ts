@@ -26,10 +26,16 @@ async function spectraPlugin(app: FastifyInstance, opts: SpectraPluginOptions): 
     onSharedError: (err) => app.log.warn({ err }, 'a cache tier failed to read or store a spectrum'),
     // In the pool's threads: the event loop never waits through an analysis.
     analyser: (raster) => app.renderPool.analyseRaster(raster),
+    // Noted by source, so a deletion removes the kept analysis from every tier too.
+    onShared: (source, key) => app.noteCached(source, key),
   });
   app.decorate('spectra', store);
   // Analyses still being written go to the tiers before they close.
   app.addHook('preClose', () => store.settled());
 }
 
-export default fp(spectraPlugin, { name: 'foldwise-spectra', fastify: '5.x', dependencies: ['foldwise-cache', 'foldwise-worker-pool'] });
+export default fp(spectraPlugin, {
+  name: 'foldwise-spectra',
+  fastify: '5.x',
+  dependencies: ['foldwise-cache', 'foldwise-worker-pool', 'foldwise-source-index'],
+});

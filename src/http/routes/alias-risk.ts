@@ -1,87 +1,41 @@
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import { formatPlanHeader, kernelNames } from '../../core/index.js';
 import { strongEtag } from '../../rendition/key.js';
-import { checkRequestedSize } from '../../rendition/plan.js';
-import { renderRendition } from '../../rendition/service.js';
-import { readHeader } from '../../codec/header.js';
-import { decodeCost } from '../../pool/cost.js';
-import { decodeLimits, decodeSource, readSource } from '../../rendition/source.js';
-import { serverTiming, StageClock } from '../../rendition/timings.js';
-import { decodeRgb, encodePng, riskMap, spectrumPicture } from '../../risk/pictures/index.js';
-import { planResponseOf } from '../../risk/adaptive.js';
-import { assessRendition, riskBody } from '../../risk/report.js';
+import { serverTiming } from '../../rendition/timings.js';
+import { assessSource, riskAnswer } from '../../risk/service.js';
 import { compileAliasRiskQuery } from '../../schemas/alias-risk.js';
 import { jsonBody, problemResponses, queryParameters } from '../../schemas/openapi.js';
 import { riskReportSchema } from '../../schemas/risk-report.js';
 import { aliasRiskPrefix } from '../../schemas/paths.js';
-import { compileRenditionQuery } from '../../schemas/rendition.js';
 import { matchesIfNoneMatch } from './conditional.js';
 import { sourcePathOf } from './path.js';
 
-/** Width of the source preview under view=map (output px): enough to read a 8 x 6 grid. */
-const MAP_WIDTH = 640;
-
 /**
  * GET /v1/alias-risk/{source}: the alias risk of the rendition the same query would produce,
- * from the source's spectrum (analysed once per source version, src/risk/spectrum-store.ts), as JSON
- * or as a picture (view=map, view=spectrum).
+ * from the source's spectrum (src/risk/service.ts), as JSON or as a picture (view=map,
+ * view=spectrum).
  */
 export default async function aliasRiskRoutes(app: FastifyInstance): Promise<void> {
-  const { config, renderContext: ctx, spectra } = app;
-  const options = { maxDimension: config.limits.maxDimension, kernelNames };
-  const query = compileAliasRiskQuery(options);
-  const previewQuery = compileRenditionQuery(options);
+  const { config } = app;
+  const risk = { render: app.renderContext, spectra: app.spectra };
+  const query = compileAliasRiskQuery({ maxDimension: config.limits.maxDimension, kernelNames });
   const plainCache = `public, max-age=${config.http.maxAgeSeconds}`;
 
   async function handler(request: FastifyRequest, reply: FastifyReply) {
     const path = sourcePathOf(request.url, aliasRiskPrefix);
     const q = query.parse(request.query as Record<string, unknown>);
-    checkRequestedSize(q, ctx.limits);
-    const clock = new StageClock(ctx.observe);
-    const identity = await clock.time('origin', () => ctx.identities?.identify(path) ?? ctx.origin.identify(path));
-    let analyseMs = 0;
-    const { spectrum, from } = await spectra.get(identity, async (analyse) => {
-      // Read before admission; admitted for the decode and as much again for the analysis (an allowance).
-      const read = await readSource(ctx.origin, path, ctx.limits, clock);
-      const header = await readHeader(read.bytes, decodeLimits(ctx.limits));
-      const lease = await ctx.pool.admit(2 * decodeCost(header), `analysing a ${header.width}x${header.height} source`);
-      try {
-        const { decoded } = await decodeSource(read, ctx.limits, clock);
-        const start = performance.now();
-        const s = await analyse(decoded.raster);
-        analyseMs = performance.now() - start;
-        return s;
-      } finally {
-        lease.release();
-      }
-    });
-    const start = performance.now();
-    const assessed = assessRendition(spectrum, q, ctx.limits);
-    const assessMs = performance.now() - start;
-
-    let body: Buffer;
-    if (q.view === 'json') {
-      body = Buffer.from(JSON.stringify(riskBody(path, spectrum, assessed)));
-      reply.type('application/json; charset=utf-8');
-    } else if (q.view === 'spectrum') {
-      body = await encodePng(spectrumPicture(spectrum, assessed.report, planResponseOf(assessed.plan)));
-      reply.type('image/png');
-    } else {
-      const width = String(Math.min(MAP_WIDTH, spectrum.width));
-      const preview = await renderRendition(ctx, path, previewQuery.parse({ width, format: 'jpeg' }));
-      const picture = riskMap(await decodeRgb(preview.entry.body), assessed.report, spectrum, assessed.plan.crop);
-      body = await encodePng(picture);
-      reply.type('image/png');
-    }
+    const a = await assessSource(risk, path, q);
+    const { body, type } = await riskAnswer(risk, a, q.view);
     const etag = strongEtag(body);
     reply
+      .type(type)
       .header('etag', etag)
       // Signed URLs: the signing plugin makes this a year and immutable.
       .header('cache-control', plainCache)
-      .header('rendition-plan', formatPlanHeader(assessed.plan))
+      .header('rendition-plan', formatPlanHeader(a.assessed.plan))
       .header(
         'server-timing',
-        `${serverTiming(`spectrum-${from}`, clock.timings)}, analyze;dur=${analyseMs.toFixed(2)}, assess;dur=${assessMs.toFixed(2)}`,
+        `${serverTiming(`spectrum-${a.from}`, a.clock.timings)}, analyze;dur=${a.analyseMs.toFixed(2)}, assess;dur=${a.assessMs.toFixed(2)}`,
       );
     if (matchesIfNoneMatch(request.headers['if-none-match'], etag)) return reply.code(304).send();
     return reply.header('content-length', body.length).send(body);

@@ -2,26 +2,45 @@ import type { FastifyInstance } from 'fastify';
 import { z } from 'zod';
 import { errorCodes } from '../../errors.js';
 import { jsonBody, openApiDocument } from '../../schemas/openapi.js';
+import { errorsPage } from '../pages/errors.js';
+import { asPage } from '../pages/html.js';
+import { referencePage } from '../pages/reference.js';
 
 const errorListSchema = z.object({
   errors: z.array(z.object({ code: z.string(), status: z.number().int(), title: z.string() })),
 });
 
+const htmlPage = (description: string) => ({ '200': { description, content: { 'text/html': {} } } });
+
 /**
- * GET /docs: the OpenAPI 3.1 document, generated from the zod schemas the routes validate with
- * (built on first request, when every route has registered). GET /docs/errors: every error
- * code with its status and title; problem `type`s point here.
+ * GET /docs: the API reference as a page, rendered from the OpenAPI 3.1 document at GET
+ * /docs/openapi.json, which is generated from the zod schemas the routes validate with (built
+ * on first request, when every route has registered). GET /docs/errors: every error code as a
+ * page with one anchor per code (problem `type`s point there); /docs/errors.json the same list.
  */
 export default async function docsRoutes(app: FastifyInstance, opts: { version: string }): Promise<void> {
   let doc: unknown;
+  let reference: string | undefined;
+  const document = () => (doc ??= openApiDocument(app.apiOperations, opts.version));
   app.get(
     '/docs',
+    { config: { openapi: { summary: 'The API reference (this document as a page)', tags: ['docs'], responses: htmlPage('The reference, HTML') } } },
+    async (_request, reply) => asPage(reply).header('cache-control', 'no-cache').send((reference ??= referencePage(document() as Parameters<typeof referencePage>[0]))),
+  );
+  app.get(
+    '/docs/openapi.json',
     { config: { openapi: { summary: 'This OpenAPI document', tags: ['docs'], responses: { '200': { description: 'OpenAPI 3.1 JSON' } } } } },
-    async () => (doc ??= openApiDocument(app.apiOperations, opts.version)),
+    async () => document(),
   );
   const errors = Object.entries(errorCodes).map(([code, v]) => ({ code, status: v.status, title: v.title }));
+  const errorsHtml = errorsPage();
   app.get(
     '/docs/errors',
+    { config: { openapi: { summary: 'Error codes, one anchor each (problem types point here)', tags: ['docs'], responses: htmlPage('Every error code, HTML') } } },
+    async (_request, reply) => asPage(reply).header('cache-control', 'no-cache').send(errorsHtml),
+  );
+  app.get(
+    '/docs/errors.json',
     { config: { openapi: { summary: 'Error codes', tags: ['docs'], responses: { '200': jsonBody('Every error code', errorListSchema) } } } },
     async () => ({ errors }),
   );

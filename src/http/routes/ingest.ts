@@ -1,9 +1,14 @@
 import type { IncomingMessage } from 'node:http';
+import multipart from '@fastify/multipart';
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
-import { errorCodes, FoldwiseError } from '../../errors.js';
+import { FoldwiseError } from '../../errors.js';
 import type { IngestWork } from '../../ingest/service.js';
 import { prefersAsync, readUpload } from '../../ingest/upload.js';
-import { toFoldwiseError } from '../plugins/errors.js';
+import { queueDown } from '../../ingest/queue-terms.js';
+import { checkCallbackUrl } from '../../ingest/callback.js';
+import { parseAllowHosts } from '../../origins/http-allowlist.js';
+import { jobStarter } from './ingest-jobs.js';
+import { multipartLimits, readMultipart } from './ingest-multipart.js';
 import { ingestQuerySchema, ingestSourceBody, jobSchema, manifestSchema } from '../../schemas/ingest.js';
 import { jsonBody, problemResponses, queryParameters } from '../../schemas/openapi.js';
 import { parseQuery } from '../../schemas/query.js';
@@ -13,15 +18,12 @@ import { checkSource, checkUpload, requireBinding } from '../../security/ingest-
 export const ingestPath = '/v1/ingest';
 export const jobsPrefix = '/v1/ingest/jobs/';
 
-/** A failure as a job shows it: code and a sentence; a 5xx shows only its title. */
-function jobError(e: unknown): { code: string; detail: string } {
-  const fw = toFoldwiseError(e);
-  return { code: fw.code, detail: fw.status >= 500 ? errorCodes[fw.code].title : fw.message };
-}
-
 function mediaTypeError(request: FastifyRequest): FoldwiseError {
   const type = request.headers['content-type'] ?? 'a body without Content-Type';
-  return new FoldwiseError('ERR_INGEST_MEDIA_TYPE', `cannot ingest ${type}: send image/* bytes or application/json {"source": "..."}`);
+  return new FoldwiseError(
+    'ERR_INGEST_MEDIA_TYPE',
+    `cannot ingest ${type}: send image/* or application/octet-stream bytes, multipart/form-data with one file field, or application/json {"source": "..."}`,
+  );
 }
 
 /**
@@ -35,9 +37,12 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
   const query = ingestQuerySchema(config.limits.maxDimension);
   const limit = config.limits.maxUploadBytes;
 
-  app.addContentTypeParser(/^image\/[a-z0-9.+-]+$/i, (request: FastifyRequest, payload: IncomingMessage) =>
-    readUpload(payload, request.headers['content-length'], limit),
-  );
+  const bytesParser = (request: FastifyRequest, payload: IncomingMessage) => readUpload(payload, request.headers['content-length'], limit);
+  app.addContentTypeParser(/^image\/[a-z0-9.+-]+$/i, bytesParser);
+  // Bytes of no declared type: the format is sniffed from the bytes, as for image/*.
+  app.addContentTypeParser('application/octet-stream', bytesParser);
+  // multipart/form-data: parsed lazily by the handler (readMultipart), one file within the limit.
+  await app.register(multipart, { limits: multipartLimits(limit) });
   // Fastify's built-in text/plain parser would read up to its body limit and answer 413; a text
   // upload is refused as the wrong type (415) before any of its body is read.
   app.removeContentTypeParser('text/plain');
@@ -59,31 +64,52 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
     requireBinding({ digest: raw.digest as string | undefined, source: raw.source as string | undefined });
   });
 
-  async function workOf(request: FastifyRequest): Promise<IngestWork> {
-    const q = parseQuery(query, request.query as Record<string, unknown>);
+  async function workOf(request: FastifyRequest): Promise<{ work: IngestWork; callback?: string }> {
+    const form = request.isMultipart() ? await readMultipart(request, limit) : undefined;
+    const raw = { ...(request.query as Record<string, unknown>) };
+    if (form && Object.keys(form.fields).length > 0) {
+      // Form fields are not covered by the URL's signature: a signed upload takes none.
+      if (signedRequests.has(request)) throw new FoldwiseError('ERR_INGEST_MULTIPART', 'a signed upload takes its parameters in the signed URL, not in form fields');
+      for (const [name, value] of Object.entries(form.fields)) raw[name] = name in raw ? [raw[name], value].flat() : value;
+    }
+    const q = parseQuery(query, raw);
     const rendition: Record<string, string> = {};
     for (const name of ['prefilter', 'kernel', 'light'] as const) if (q[name] !== undefined) rendition[name] = q[name];
-    const options = { widths: q.widths, formats: q.formats, rendition };
+    const options = { widths: q.widths, formats: q.formats, rendition, sizes: q.sizes };
     const binding = { digest: q.digest, source: q.source };
     if (signedRequests.has(request)) requireBinding(binding);
-    const body: unknown = request.body;
-    if (Buffer.isBuffer(body)) return ingest.fromUpload(body, options, checkUpload(body, binding));
+    const body: unknown = form ? form.bytes : request.body;
+    const callback = callbackOf(q.callback);
+    // A callback makes the job asynchronous, so its bytes are checked and stored before the 202.
+    const waits = callback !== undefined || prefersAsync(request.headers.prefer);
+    if (Buffer.isBuffer(body)) return { work: await ingest.fromUpload(body, options, checkUpload(body, binding), waits), callback };
     if (body === undefined || body === null) throw new FoldwiseError('ERR_INGEST_EMPTY', 'the request has no body: send image bytes or JSON naming a source');
     if (!/^application\/json\b/i.test(request.headers['content-type'] ?? '')) throw mediaTypeError(request);
     const parsed = ingestSourceBody.safeParse(body);
     if (!parsed.success) throw new FoldwiseError('ERR_REQUEST_INVALID', `JSON body: ${parsed.error.issues[0].message}`);
     checkSource(parsed.data.source, binding);
-    return ingest.fromSource(parsed.data.source, options);
+    return { work: await ingest.fromSource(parsed.data.source, options), callback };
+  }
+
+  const queue = app.ingestQueue;
+  const startJob = jobStarter(app);
+  const allowed = parseAllowHosts(config.origin.upstream.allowHosts);
+
+  /** The callback URL, when given: needs a key to sign with, and an allowlisted target. */
+  function callbackOf(text: string | undefined): string | undefined {
+    if (text === undefined) return undefined;
+    if (keys.length === 0) throw new FoldwiseError('ERR_INGEST_CALLBACK_UNSIGNED', 'a callback needs signing.keys: its body is signed with the first key');
+    return checkCallbackUrl(text, allowed).href;
   }
 
   async function post(request: FastifyRequest, reply: FastifyReply) {
-    const work = await workOf(request);
+    const { work, callback } = await workOf(request);
     reply.header('cache-control', 'no-store');
-    if (!prefersAsync(request.headers.prefer) || ingest.isDone(work.key)) {
+    // A callback makes the job asynchronous: its outcome goes to the callback either way.
+    if (!callback && (!prefersAsync(request.headers.prefer) || ingest.isDone(work.key))) {
       return reply.send(await ingest.run(work).value);
     }
-    if (!ingest.jobs.accepting) throw new FoldwiseError('ERR_SERVICE_STOPPING', 'the service is stopping and takes no new ingest jobs');
-    const job = ingest.jobs.start((started) => ingest.run(work, started).value, jobError);
+    const job = await startJob(work, callback);
     if (!job) {
       throw new FoldwiseError('ERR_INGEST_JOBS_FULL', `${config.ingest.maxJobs} ingest jobs are unfinished`, {
         headers: { 'retry-after': String(config.pool.retryAfterSeconds) },
@@ -103,7 +129,7 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
         openapi: {
           summary: 'Ingest a picture: rendition ladder, srcset, alias-risk warnings, pre-rendered cache',
           description:
-            'Body: image bytes (image/*, at most limits.maxUploadBytes) stored under a content-addressed key, or JSON {"source": "path/in/origin"}. With "Prefer: respond-async" the answer is 202 and Location names the job. With signing on, the signed query must name the body: digest (SHA-256 hex of the upload) or source (equal to the JSON body\'s source).',
+            'Body: image bytes (image/* or application/octet-stream; or multipart/form-data with one file field and optional fields named as the query parameters; at most limits.maxUploadBytes) stored under a content-addressed key, or JSON {"source": "path/in/origin"}. With "Prefer: respond-async" the answer is 202 and Location names the job. With signing on, the signed query must name the body: digest (SHA-256 hex of the upload) or source (equal to the JSON body\'s source).',
           tags: ['ingest'],
           parameters: [
             // Comma lists: OpenAPI style form with explode false.
@@ -111,7 +137,11 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
             { name: 'Prefer', in: 'header', required: false, description: 'respond-async (RFC 7240)', schema: { type: 'string' } },
           ],
           requestBody: {
-            content: { 'image/*': {}, 'application/json': { schema: { type: 'object', properties: { source: { type: 'string' } }, required: ['source'] } } },
+            content: {
+              'image/*': {},
+              'application/octet-stream': {},
+              'multipart/form-data': { schema: { type: 'object', properties: { file: { type: 'string', format: 'binary' } } } },
+              'application/json': { schema: { type: 'object', properties: { source: { type: 'string' } }, required: ['source'] } } },
           },
           responses: {
             '200': jsonBody('The manifest', manifestSchema),
@@ -132,12 +162,17 @@ export default async function ingestRoutes(app: FastifyInstance): Promise<void> 
           summary: 'State of an asynchronous ingest job, with its manifest once done',
           tags: ['ingest'],
           parameters: [{ name: 'id', in: 'path', required: true, schema: { type: 'string' } }],
-          responses: { '200': jsonBody('The job', jobSchema), ...problemResponses(404) },
+          responses: { '200': jsonBody('The job', jobSchema), ...problemResponses(404, 503) },
         },
       },
     },
     async (request: FastifyRequest<{ Params: { id: string } }>, reply) => {
-      const job = ingest.jobs.get(request.params.id);
+      const { id } = request.params;
+      const job = queue
+        ? await queue.get(id).catch((e: unknown) => {
+            throw queueDown(e, config.pool.retryAfterSeconds);
+          })
+        : ingest.jobs.get(id);
       if (!job) throw new FoldwiseError('ERR_INGEST_JOB_NOT_FOUND', 'no ingest job with this id (finished jobs are forgotten after a while)');
       const { result, ...rest } = job;
       return reply.header('cache-control', 'no-store').send({ ...rest, manifest: result });

@@ -1,8 +1,8 @@
 import { createHash } from 'node:crypto';
 import { existsSync } from 'node:fs';
-import { readFile } from 'node:fs/promises';
+import { readdir, readFile, stat } from 'node:fs/promises';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { fileURLToPath, pathToFileURL } from 'node:url';
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import { findKernel, kernelNames } from '../../core/kernels/index.js';
 import { FoldwiseError } from '../../errors.js';
@@ -48,20 +48,35 @@ function asset(body: Buffer, type: string): Asset {
   return { body, type, etag: `"${digest}"` };
 }
 
-/** Compiles the client TypeScript for the browser, once; esbuild loads only when first asked. */
-async function compileClient(dir: string): Promise<Asset> {
-  const { build } = await import('esbuild');
-  const result = await build({
-    entryPoints: [join(dir, 'client.ts')],
-    bundle: true,
-    format: 'esm',
-    platform: 'browser',
-    target: ['es2022'],
-    write: false,
-    logLevel: 'silent',
-    legalComments: 'none',
+/** Running from TypeScript sources (tsx, vitest), where the bundle may be missing or stale. */
+const fromSource = import.meta.url.endsWith('.ts');
+/** dist/inspector/client.js, from this file in src/http/routes/ or in dist/http/routes/. */
+const bundleFile = fileURLToPath(new URL(fromSource ? '../../../dist/inspector/client.js' : '../../inspector/client.js', import.meta.url));
+
+/** Whether the bundle is older than a file of src/inspector/ (or missing). */
+async function stale(dir: string): Promise<boolean> {
+  const built = await stat(bundleFile).catch(() => undefined);
+  if (!built) return true;
+  const names = await readdir(dir);
+  const times = await Promise.all(names.filter((n) => n.endsWith('.ts')).map((n) => stat(join(dir, n)).then((s) => s.mtimeMs)));
+  return times.some((t) => t > built.mtimeMs);
+}
+
+/**
+ * The client script, bundled at build time (scripts/bundle-inspector.mjs; `npm run build` and
+ * `npm install` make it), read at registration. From the sources a missing or stale bundle is
+ * made once, here, at start; a build without one is a packaging error, said at start.
+ */
+async function clientScript(dir: string): Promise<Asset> {
+  if (fromSource && (await stale(dir))) {
+    const script = pathToFileURL(join(dir, '..', '..', 'scripts', 'bundle-inspector.mjs')).href;
+    const { bundleInspector } = (await import(script)) as { bundleInspector: (root: string) => Promise<void> };
+    await bundleInspector(join(dir, '..', '..'));
+  }
+  const body = await readFile(bundleFile).catch(() => {
+    throw new Error(`the inspector's script ${bundleFile} is missing: run \`npm run build\` (or \`npm run build:cli\`)`);
   });
-  return asset(Buffer.from(result.outputFiles[0].contents), 'text/javascript; charset=utf-8');
+  return asset(body, 'text/javascript; charset=utf-8');
 }
 
 async function readAsset(dir: string, name: string, type: string): Promise<Asset> {
@@ -113,14 +128,16 @@ function send(request: FastifyRequest, reply: FastifyReply, file: Asset) {
 /**
  * GET /inspect: the page that shows the legacy look, the planned rendition and optionally point
  * sampling side by side with the alias-risk report; GET /inspect/assets/{style.css,client.js,icon.svg}: its stylesheet, script and icon.
- * Files are read and compiled on first request and kept in memory for the process lifetime.
+ * Files are read on first request (the script at registration: it is bundled at build time) and
+ * kept in memory for the process lifetime.
  */
 export default async function inspectRoutes(app: FastifyInstance): Promise<void> {
   const dir = inspectorDir();
+  const script = await clientScript(dir);
   const page = memo(() => readPage(dir));
   const assets: Record<string, () => Promise<Asset>> = {
     'style.css': memo(() => readAsset(dir, 'style.css', 'text/css; charset=utf-8')),
-    'client.js': memo(() => compileClient(dir)),
+    'client.js': async () => script,
     'icon.svg': memo(() => readAsset(dir, 'icon.svg', 'image/svg+xml')),
   };
 

@@ -12,8 +12,12 @@ export interface RenditionUrl {
 }
 
 export interface RenditionUrlReader {
-  /** Reads `url` (with Fastify's parse of its query string); throws what the checks throw. */
-  read(url: string, rawQuery: RawQuery): RenditionUrl;
+  /**
+   * Reads `url` (with Fastify's parse of its query string); throws what the checks throw.
+   * `memoKey` replaces the URL as the memo's key when the query is not the URL's alone (a
+   * width resolved from Client Hints: the URL and that width).
+   */
+  read(url: string, rawQuery: RawQuery, memoKey?: string): RenditionUrl;
   /** URLs remembered now. */
   readonly size: number;
 }
@@ -39,14 +43,15 @@ export function renditionUrlReader(
     sizeCalculation: (_value, url) => 2 * url.length + entryOverheadBytes,
   });
   return {
-    read(url, rawQuery) {
-      const known = memo.get(url);
+    read(url, rawQuery, memoKey = url) {
+      const known = memo.get(memoKey);
       if (known) return known;
       const path = sourcePathOf(url, prefix);
       const query = parse(rawQuery);
       Object.freeze(query.position);
+      Object.freeze(query.background);
       const request: RenditionUrl = Object.freeze({ path, query: Object.freeze(query), canonical: canonicalQuery(query) });
-      memo.set(url, request);
+      memo.set(memoKey, request);
       return request;
     },
     get size() {

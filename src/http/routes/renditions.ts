@@ -8,6 +8,7 @@ import { abandonSignal } from './abandon.js';
 import { matchesIfNoneMatch } from './conditional.js';
 import { renditionsPrefix } from '../../schemas/paths.js';
 import { renditionUrlReader } from './rendition-url.js';
+import { acceptCh, hintedVary, isHinted, resolveHinted } from './hints.js';
 
 /**
  * GET (and HEAD) /v1/renditions/{source}: validates the query, checks the signature when
@@ -21,7 +22,12 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
   const plainCache = `public, max-age=${config.http.maxAgeSeconds}`;
 
   async function handler(request: FastifyRequest, reply: FastifyReply) {
-    const { path, query: q, canonical } = requests.read(request.url, request.query as Record<string, unknown>);
+    const raw = request.query as Record<string, unknown>;
+    // width=hinted: the width comes from Client Hints (hints.ts); the memo keys on URL and width.
+    const hinted = isHinted(raw) ? resolveHinted(raw, request.headers, config.limits.maxDimension) : undefined;
+    const { path, query: q, canonical } = hinted
+      ? requests.read(request.url, hinted.raw, `${request.url}\n${hinted.width}`)
+      : requests.read(request.url, raw);
     const signal = abandonSignal(reply);
     const r = await renderRendition({ ...renderContext, signal, shedding: request.shedding }, path, q, request.headers.accept, canonical);
     reply
@@ -30,7 +36,10 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
       // signature before parsing, replaces this with a year and immutable.
       .header('cache-control', plainCache)
       .header('server-timing', serverTiming(r.cache, r.timings));
-    if (q.format === undefined) reply.header('vary', 'Accept');
+    const vary = [hinted ? hintedVary : '', q.format === undefined ? 'Accept' : ''].filter(Boolean).join(', ');
+    if (vary) reply.header('vary', vary);
+    reply.header('accept-ch', acceptCh);
+    if (hinted) reply.header('rendition-width', `${hinted.width};from=${hinted.from}`);
     for (const [k, v] of Object.entries(r.entry.headers)) reply.header(k, v);
     if (matchesIfNoneMatch(request.headers['if-none-match'], r.entry.etag)) return reply.code(304).send();
     return reply.type(r.entry.contentType).header('content-length', r.entry.body.length).send(r.entry.body);
@@ -49,10 +58,21 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
           parameters: [
             { name: 'source', in: 'path', required: true, description: 'Path under the origin root.', schema: { type: 'string' } },
             ...queryParameters(query.schema),
+            {
+              name: 'slot',
+              in: 'query',
+              required: false,
+              description:
+                'With width=hinted (required then): the picture\'s width in CSS px, as its sizes says. The width is Sec-CH-Width when sent, else slot x Sec-CH-DPR, else slot x density; a width from a header is rounded up to a fixed ladder of widths 10 % apart. The answer sends Vary: Sec-CH-Width, Sec-CH-DPR and Rendition-Width: <px>;from=<sec-ch-width|sec-ch-dpr|fallback>.',
+              schema: { type: 'integer', minimum: 1 },
+            },
+            { name: 'Sec-CH-Width', in: 'header', required: false, description: 'Client Hint (width=hinted): layout width in device px.', schema: { type: 'integer' } },
+            { name: 'Sec-CH-DPR', in: 'header', required: false, description: 'Client Hint (width=hinted): device pixel ratio.', schema: { type: 'number' } },
           ],
           responses: {
             '200': {
-              description: 'The rendition. Headers: ETag, Cache-Control, Vary (format absent), Server-Timing, Rendition-Plan.',
+              description:
+                'The rendition. Headers: ETag, Cache-Control, Vary (Accept when format is absent; Sec-CH-Width, Sec-CH-DPR with width=hinted), Accept-CH, Server-Timing, Rendition-Plan, Rendition-Clamped (when the enlargement cap shrank it), Rendition-Width (width=hinted).',
               content: { 'image/avif': {}, 'image/webp': {}, 'image/jpeg': {}, 'image/png': {} },
             },
             '304': { description: 'Not modified (If-None-Match matched the ETag).' },

@@ -39,10 +39,26 @@ export function headerMismatch(header: Uint8Array, shape: SpoolShape): string | 
   return null;
 }
 
-/** The file could not be opened or read (EMFILE, EIO, ...): it says nothing about the source. */
-export const READ_FAILED = 'spool read:';
-/** The file is not what was written for this render (wrong header, ends early). */
-export const FILE_WRONG = 'spool file:';
+/**
+ * Why a spool file's rows could not be read. 'unreadable': the file could not be opened or read
+ * (EMFILE, EIO, ...); 'wrong-file': it is not what was written for this render (wrong header,
+ * ends early); neither says anything about the source. 'stopped': the render was called off
+ * (the decode failed, a deadline passed).
+ */
+export type SpoolFault = 'unreadable' | 'wrong-file' | 'stopped';
+
+/** What SpoolRows throws; the worker returns it as a typed outcome (worker.ts: BandOutcome). */
+export class SpoolReadError extends Error {
+  constructor(
+    readonly fault: SpoolFault,
+    message: string,
+  ) {
+    super(message);
+    this.name = 'SpoolReadError';
+  }
+}
+
+const messageOf = (e: unknown) => (e as Error).message;
 
 /**
  * Source rows read from a spool file that libvips may still be writing (src/codec/spool-decode.ts),
@@ -50,8 +66,8 @@ export const FILE_WRONG = 'spool file:';
  * decoded. Rows are read straight from the file, a block of about 1 MiB at a time, into this
  * reader's own buffer (no copy of the whole source anywhere). A row not yet written is waited
  * for: Atomics.wait on `state` for a millisecond at a time, woken early when the pool marks
- * the writer WRITTEN or STOPPED. Throws once the render is STOPPED (decode failed, deadline),
- * when the file ends before a row once WRITTEN, and when it cannot be read. Synchronous: for
+ * the writer WRITTEN or STOPPED. Throws SpoolReadError once the render is STOPPED (decode
+ * failed, deadline), when the file ends before a row once WRITTEN, and when it cannot be read. Synchronous: for
  * worker threads, where blocking waits cost nothing else.
  */
 export class SpoolRows {
@@ -98,7 +114,7 @@ export class SpoolRows {
         this.count = Math.floor(got / this.rowBytes);
         return;
       }
-      if (settled === WRITTEN) throw new Error(`${FILE_WRONG} it ends before row ${y}`);
+      if (settled === WRITTEN) throw new SpoolReadError('wrong-file', `it ends before row ${y}`);
       this.wait();
     }
   }
@@ -110,8 +126,8 @@ export class SpoolRows {
         this.fd = openSync(this.path, 'r');
         break;
       } catch (e) {
-        if ((e as NodeJS.ErrnoException).code !== 'ENOENT') throw new Error(`${READ_FAILED} ${(e as Error).message}`);
-        if (settled === WRITTEN) throw new Error(`${FILE_WRONG} it was never made`);
+        if ((e as NodeJS.ErrnoException).code !== 'ENOENT') throw new SpoolReadError('unreadable', messageOf(e));
+        if (settled === WRITTEN) throw new SpoolReadError('wrong-file', 'it was never made');
       }
       this.wait();
     }
@@ -119,11 +135,11 @@ export class SpoolRows {
     for (;;) {
       const settled = this.settledState();
       if (this.read(header, 0) === HEADER_BYTES) break;
-      if (settled === WRITTEN) throw new Error(`${FILE_WRONG} it has no header`);
+      if (settled === WRITTEN) throw new SpoolReadError('wrong-file', 'it has no header');
       this.wait();
     }
     const wrong = headerMismatch(header, this.shape);
-    if (wrong) throw new Error(`${FILE_WRONG} ${wrong}`);
+    if (wrong) throw new SpoolReadError('wrong-file', wrong);
   }
 
   /** Bytes read at `position` (whatever the file holds there now). */
@@ -131,14 +147,14 @@ export class SpoolRows {
     try {
       return readSync(this.fd, into, 0, into.length, position);
     } catch (e) {
-      throw new Error(`${READ_FAILED} ${(e as Error).message}`);
+      throw new SpoolReadError('unreadable', messageOf(e));
     }
   }
 
   /** The writer's state, read before a read so that WRITTEN means the read saw all there is. */
   private settledState(): number {
     const s = Atomics.load(this.state, 0);
-    if (s === STOPPED) throw new Error('the source stopped arriving');
+    if (s === STOPPED) throw new SpoolReadError('stopped', 'the source stopped arriving');
     return s;
   }
 

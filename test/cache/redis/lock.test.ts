@@ -19,8 +19,8 @@ function replica(url: string, opts: { lockTtlMs?: number; waitDeadlineMs?: numbe
   let renders = 0;
   const work = (key: string, produce: () => Promise<CacheEntry>): FlightWork => ({
     lookup: () => tier.get(key),
-    produce: async () => { renders += 1; return produce(); },
-    store: (e) => tier.set(key, e),
+    // As renderRendition's work does: render, then store (its one write path) before resolving.
+    produce: async () => { renders += 1; const e = await produce(); await tier.set(key, e).catch(() => undefined); return e; },
   });
   return { link, tier, flight, work, renders: () => renders };
 }

@@ -64,11 +64,9 @@ describe.skipIf(!redisBinary)('RedisTier on a real redis-server', () => {
     expect(await tier.getValue('spectrum:a')).toEqual(analysis);
   });
 
-  it('does not send the same entry twice in a row (flight and tiered cache both store it)', async () => {
+  it('stores what it is given, each time: deciding that a render is stored once is the tiered cache\'s', async () => {
     const before = tier.counts.stores;
     await tier.set('twice', entry([5]));
-    await tier.set('twice', entry([5]));
-    expect(tier.counts.stores).toBe(before + 1);
     await tier.set('twice', { ...entry([6]), etag: '"fw1-y"' });
     expect(tier.counts.stores).toBe(before + 2);
     expect((await tier.get('twice'))?.etag).toBe('"fw1-y"');

@@ -112,3 +112,53 @@ describe('layoutRendition', () => {
     expect(() => layoutRendition(s, r)).toThrow(RangeError);
   });
 });
+
+// The enlargement cap (our policy, README "Enlargement"): past maxScale the box shrinks by one
+// factor. What each fit enlarges follows CSS Images 3 §5.5 (cover fills the box: the larger
+// ratio; contain fits inside it: the smaller ratio).
+describe('layoutRendition with maxScale', () => {
+  const small = { width: 200, height: 100 };
+
+  it('one side past the cap gets the source size, and says what was asked', () => {
+    const l = layoutRendition(small, req({ width: 4000, maxScale: 1 }));
+    expect([l.targetWidth, l.targetHeight]).toEqual([200, 100]);
+    expect(l.clamped).toEqual({ width: 4000, height: 2000, scale: 20 });
+    // density multiplies first: 150 x 2 = 300 px asked of a 200 px source.
+    const d = layoutRendition(small, req({ width: 150, density: 2, maxScale: 1 }));
+    expect([d.targetWidth, d.targetHeight, d.clamped?.width]).toEqual([200, 100, 300]);
+  });
+
+  it('at or below the cap nothing changes and nothing is reported', () => {
+    const at = layoutRendition(small, req({ width: 200, maxScale: 1 }));
+    expect(at).toEqual({ targetWidth: 200, targetHeight: 100, crop: { x: 0, y: 0, width: 200, height: 100 } });
+    const twice = layoutRendition(small, req({ width: 400, maxScale: 2 }));
+    expect([twice.targetWidth, twice.clamped]).toEqual([400, undefined]);
+  });
+
+  it('cover keeps the box shape and the crop, at no more than the cap', () => {
+    // 200x100 into 400x400 cover: k = max(2, 4) = 4; at cap 1 the box is 100x100, the crop the
+    // same centred 100x100 square of the source.
+    const l = layoutRendition(small, req({ width: 400, height: 400, maxScale: 1 }));
+    expect([l.targetWidth, l.targetHeight]).toEqual([100, 100]);
+    expect(l.crop).toEqual({ x: 50, y: 0, width: 100, height: 100 });
+    expect(l.clamped).toEqual({ width: 400, height: 400, scale: 4 });
+  });
+
+  it('contain shrinks the canvas with the picture; scale-down is never clamped', () => {
+    // 200x100 contained in 800x800: k = min(4, 8) = 4; cap 2 halves the box to 400x400.
+    const l = layoutRendition(small, req({ width: 800, height: 800, fit: 'contain', maxScale: 2 }));
+    expect([l.targetWidth, l.targetHeight]).toEqual([400, 200]);
+    expect(l.canvas).toEqual({ width: 400, height: 400, left: 0, top: 100 });
+    const sd = layoutRendition(small, req({ width: 800, height: 800, fit: 'scale-down', maxScale: 1 }));
+    expect([sd.targetWidth, sd.clamped]).toEqual([200, undefined]);
+  });
+
+  it('rounding never takes a side past the cap', () => {
+    for (const [w, h] of [[1001, 997], [333, 127], [7, 3]]) {
+      const l = layoutRendition({ width: w, height: h }, req({ width: 5000, height: 4001, maxScale: 1 }));
+      expect(l.targetWidth / l.crop.width).toBeLessThanOrEqual(1 + 1e-12);
+      expect(l.targetHeight / l.crop.height).toBeLessThanOrEqual(1 + 1e-12);
+    }
+    expect(() => layoutRendition(small, req({ width: 10, maxScale: 0.5 }))).toThrow(RangeError);
+  });
+});

@@ -33,16 +33,22 @@ describe('fidelity of the defaults on analytic patterns', () => {
     }
   });
 
-  // The step edge at the image centre (x = 255.5) falls midway between output pixels, the
-  // phase the target is stated for: <= 3 %. At other phases an output pixel can land on the
-  // ringing peak; any low-pass this sharp rings there, but never beyond the ideal low-pass's
-  // Gibbs overshoot of 8.95 % of the step (Wilbraham-Gibbs constant, from memory).
-  it('a step downscaled 4x overshoots <= 3 % centred, and less than Gibbs at any phase', () => {
+  // A step downscaled 4x at each of the four edge phases. Any low-pass this sharp rings at a
+  // hard edge (the ideal low-pass's Gibbs overshoot is 8.95 % of the step, Wilbraham-Gibbs
+  // constant, from memory); the default kernel's ringing limiter (resample/limit.ts) clamps
+  // each output to the range of the source under the central lobe, so the target of
+  // <= 3 % holds at the worst phase. Lanczos-3 asked by name has no limiter and rings beyond
+  // it at some phase, so the check discriminates.
+  it('a step downscaled 4x overshoots <= 3 % at every phase with the defaults, more with lanczos-3', () => {
+    let lanczos = 0;
     for (const edge of [256, 257, 258, 259]) {
       const st = step(512, 8, edge, 0.2, 0.8);
-      const over = overshoot(defaults(st.raster, 128, 2), st.at(0, 0), st.at(511, 0));
-      expect(over).toBeLessThanOrEqual(edge === 256 ? 0.03 : 0.0895);
+      expect(overshoot(defaults(st.raster, 128, 2), st.at(0, 0), st.at(511, 0))).toBeLessThanOrEqual(0.03);
+      const plan = makePlan({ sourceWidth: 512, sourceHeight: 8, targetWidth: 128, targetHeight: 2, kernel: 'lanczos-3', prefilter: 'none', light: 'linear' });
+      const out = { data: renderRaster(st.raster, plan).data as Uint8Array, width: 128, height: 2, sx: 4, sy: 4 };
+      lanczos = Math.max(lanczos, overshoot(out, st.at(0, 0), st.at(511, 0)));
     }
+    expect(lanczos).toBeGreaterThan(0.05);
   });
 
   it('1-px stripes halve to 188 +- 1 (CHECKS.md)', () => {

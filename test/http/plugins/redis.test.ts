@@ -42,7 +42,14 @@ describe.skipIf(!redisBinary)('redis plugin on a real redis-server', () => {
     let renders = 0;
     let release!: () => void;
     const gate = new Promise<void>((r) => (release = r));
-    const work = async () => { renders += 1; await gate; return entry('woven'); };
+    // The work stores its entry before it resolves, as a render does (renderRendition stores in
+    // every tier inside the flight); the flight itself only reads the shared tier.
+    const work = async () => {
+      renders += 1;
+      await gate;
+      await a.sharedRedis!.tier.set('k', entry('woven'));
+      return entry('woven');
+    };
     const leading = once(a.sharedRedis!.lock, 'leader');
     const onA = Array.from({ length: 10 }, () => a.sharedRedis!.flight.run('k', work));
     await leading;

@@ -3,7 +3,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { FILE_WRONG, headerMismatch, READ_FAILED, type SpoolShape as FeedShape, SpoolRows, STOPPED, WRITING, WRITTEN } from '../../../src/pool/spool/rows.js';
+import { headerMismatch, type SpoolShape as FeedShape, SpoolReadError, SpoolRows, STOPPED, WRITING, WRITTEN } from '../../../src/pool/spool/rows.js';
 
 let dir: string;
 let serial = 0;
@@ -96,6 +96,9 @@ function readRows(reader: SpoolRows, shape: FeedShape, from = 0): Buffer {
   return Buffer.concat(parts);
 }
 
+/** The typed fault of a file that is not what was written for the render. */
+const wrongFile = (message: string) => expect.objectContaining({ name: 'SpoolReadError', fault: 'wrong-file', message });
+
 describe('SpoolRows (a worker reading a spool file row by row)', () => {
   it.each([['8-bit RGB', rgb8, 11], ['16-bit grey', grey16, 12]] as const)('gives every row of a complete %s file exactly', async (_n, shape, seed) => {
     const samples = noise(size(shape) / (shape.depth / 8), shape.depth === 16, seed);
@@ -139,7 +142,7 @@ describe('SpoolRows (a worker reading a spool file row by row)', () => {
       }
       // Row 5 is not whole: once the render is called off the wait ends with an error.
       state[0] = STOPPED;
-      expect(() => reader.rowAt(5)).toThrow(/stopped arriving/);
+      expect(() => reader.rowAt(5)).toThrow(expect.objectContaining({ fault: 'stopped', message: 'the source stopped arriving' }));
     } finally {
       reader.close();
     }
@@ -151,23 +154,25 @@ describe('SpoolRows (a worker reading a spool file row by row)', () => {
     await writeFile(path, file.subarray(0, 64 + 10 * rowBytes(rgb8)));
     const reader = new SpoolRows(path, rgb8, writerState(WRITTEN));
     try {
-      expect(() => readRows(reader, rgb8)).toThrow(`${FILE_WRONG} it ends before row 10`);
+      expect(() => readRows(reader, rgb8)).toThrow(wrongFile('it ends before row 10'));
     } finally {
       reader.close();
     }
   });
 
   it('fails on a file never made once the writer has finished, and on a header for another shape', async () => {
-    expect(() => new SpoolRows(join(dir, 'never.v'), rgb8, writerState(WRITTEN)).rowAt(0)).toThrow(`${FILE_WRONG} it was never made`);
+    expect(() => new SpoolRows(join(dir, 'never.v'), rgb8, writerState(WRITTEN)).rowAt(0)).toThrow(wrongFile('it was never made'));
     const { path } = await vipsFile(rgb8, noise(size(rgb8), false, 16));
     const reader = new SpoolRows(path, { ...rgb8, height: 24 }, writerState(WRITTEN));
-    expect(() => reader.rowAt(0)).toThrow(`${FILE_WRONG} the file is 37x23, not 37x24`);
+    expect(() => reader.rowAt(0)).toThrow(wrongFile('the file is 37x23, not 37x24'));
     reader.close();
   });
 
   it('names a file it cannot open as a read failure (not a fault of the source)', async () => {
     const path = join(dir, `loop-${serial++}.v`);
     await symlink(path, path);
-    expect(() => new SpoolRows(path, rgb8, writerState(WRITING)).rowAt(0)).toThrow(new RegExp(`^${READ_FAILED} ELOOP`));
+    const read = () => new SpoolRows(path, rgb8, writerState(WRITING)).rowAt(0);
+    expect(read).toThrow(SpoolReadError);
+    expect(read).toThrow(expect.objectContaining({ fault: 'unreadable', message: expect.stringMatching(/^ELOOP/) }));
   });
 });

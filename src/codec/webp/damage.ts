@@ -1,0 +1,4 @@
+/** What a WebP bitstream check found wrong: the message says where (src/codec/webp/check.ts). */
+export class WebpDamage extends Error {
+  override name = 'WebpDamage';
+}

@@ -1,0 +1,68 @@
+import type { FastifyInstance } from 'fastify';
+import fp from 'fastify-plugin';
+import { PurgeBus } from '../../cache/purge-bus.js';
+import { FoldwiseError } from '../../errors.js';
+
+/** What a deletion did. */
+export interface Deletion {
+  source: string;
+  /** Whether the source itself was in the origin (false: only cached copies were left). */
+  removed: boolean;
+  /** Cache entries (renditions, analyses) deleted from every tier. */
+  entries: number;
+  /** Other replicas told, and how many confirmed before the answer. */
+  replicas: number;
+  confirmed: number;
+}
+
+declare module 'fastify' {
+  interface FastifyInstance {
+    /** Deletes a source and everything made from it, on every tier and every replica. */
+    deleteSource(path: string): Promise<Deletion>;
+  }
+}
+
+const CONFIRM_MS = 2000;
+
+/**
+ * Deletion of a source: the source from the origin first (no new render can start from it),
+ * then every key the source index holds for it from every tier of this replica (memory, then
+ * disk or Redis), its identity memo, spectrum and manifests; with Redis, the other replicas do
+ * the same for their memory on the purge message before this answers (or CONFIRM_MS passes).
+ */
+async function deletionPlugin(app: FastifyInstance): Promise<void> {
+  const { renderContext: ctx, renditionCache, spectra, ingest, sourceIndex } = app;
+  const forgetLocally = async (source: string, keys: string[]): Promise<void> => {
+    ctx.identities?.forget(source);
+    spectra.forget(source);
+    ingest.forgetSource(source);
+    const tiers = renditionCache.cache.tiers;
+    await Promise.all(tiers.flatMap((t) => keys.map((k) => t.delete?.(k))));
+  };
+  const shared = app.sharedRedis;
+  const bus = shared ? new PurgeBus(shared.tier.link, forgetLocally, (err) => app.log.warn({ err }, 'purge message failed')) : undefined;
+  if (bus) void bus.start();
+
+  app.decorate('deleteSource', async (path: string): Promise<Deletion> => {
+    const remove = app.origin.remove?.bind(app.origin);
+    if (!remove) throw new FoldwiseError('ERR_ORIGIN_DISABLED', 'this origin cannot delete sources');
+    const identity = await app.origin.identify(path).catch((e: unknown) => {
+      if (e instanceof FoldwiseError && e.code === 'ERR_SOURCE_NOT_FOUND') return undefined;
+      throw e;
+    });
+    const source = identity?.key ?? path;
+    const removed = await remove(path);
+    const keys = await sourceIndex.take(source);
+    await forgetLocally(source, keys);
+    ctx.identities?.forget(path);
+    const told = bus ? await bus.broadcast(source, keys, CONFIRM_MS) : { replicas: 0, confirmed: 0 };
+    if (!removed && keys.length === 0) throw new FoldwiseError('ERR_SOURCE_NOT_FOUND', `No source "${source}".`);
+    return { source, removed, entries: keys.length, ...told };
+  });
+}
+
+export default fp(deletionPlugin, {
+  name: 'foldwise-deletion',
+  fastify: '5.x',
+  dependencies: ['foldwise-render', 'foldwise-cache', 'foldwise-spectra', 'foldwise-ingest', 'foldwise-source-index'],
+});

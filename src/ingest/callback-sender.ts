@@ -1,0 +1,97 @@
+/**
+ * Sends job outcomes to callback URLs with retries and exponential backoff (1 s, 2 s, 4 s, …).
+ * With Redis the retries live on a BullMQ queue ("callbacks"), so they survive the death of
+ * the replica that started them; without Redis they are timers in this process (lost if it
+ * stops, which the README says). Emits 'delivered' (jobId, status) and 'gave-up' (jobId, error).
+ */
+import { EventEmitter } from 'node:events';
+import { type Job, Queue, Worker } from 'bullmq';
+import { connectionOf } from './queue-terms.js';
+
+export interface CallbackOutcome {
+  job: string;
+  state: 'done' | 'failed';
+  finishedAt: string;
+  manifest?: unknown;
+  error?: { code: string; detail: string };
+}
+
+export interface SenderSettings {
+  attempts: number;
+  baseDelayMs: number;
+  /** Redis URL and key prefix for the shared retry queue; absent = in-process timers. */
+  shared?: { url: string; prefix: string };
+}
+
+type Deliver = (url: string, body: string) => Promise<number>;
+
+interface Delivery {
+  url: string;
+  body: string;
+  job: string;
+}
+
+export class CallbackSender extends EventEmitter {
+  private readonly queue?: Queue;
+  private readonly worker?: Worker;
+  private readonly timers = new Set<NodeJS.Timeout>();
+
+  constructor(
+    private readonly deliver: Deliver,
+    private readonly settings: SenderSettings,
+  ) {
+    super();
+    if (!settings.shared) return;
+    const connection = connectionOf(settings.shared.url);
+    const prefix = settings.shared.prefix;
+    this.queue = new Queue('callbacks', { connection: { ...connection, enableOfflineQueue: false }, prefix });
+    this.worker = new Worker('callbacks', async (job: Job) => {
+      const d = job.data as Delivery;
+      return this.deliver(d.url, d.body);
+    }, { connection: { ...connection, maxRetriesPerRequest: null }, prefix, concurrency: 4 });
+    this.queue.on('error', (e: Error) => this.emit('redis-error', e));
+    this.worker.on('error', (e: Error) => this.emit('redis-error', e));
+    this.worker.on('completed', (job: Job) => this.emit('delivered', (job.data as Delivery).job, job.returnvalue));
+    this.worker.on('failed', (job: Job | undefined, e: Error) => {
+      if (job?.finishedOn) this.emit('gave-up', (job.data as Delivery).job, e);
+    });
+  }
+
+  /** Queues the delivery of `outcome` to `url` (once per job id on the shared queue). */
+  async send(url: string, outcome: CallbackOutcome): Promise<void> {
+    const delivery: Delivery = { url, body: JSON.stringify(outcome), job: outcome.job };
+    const { attempts, baseDelayMs } = this.settings;
+    if (this.queue) {
+      await this.queue.add('callback', delivery, {
+        jobId: `${outcome.job}-callback`,
+        attempts,
+        backoff: { type: 'exponential', delay: baseDelayMs },
+        removeOnComplete: { age: 3600 },
+        removeOnFail: { age: 24 * 3600 },
+      });
+      return;
+    }
+    this.attempt(delivery, 1);
+  }
+
+  private attempt(d: Delivery, n: number): void {
+    this.deliver(d.url, d.body).then(
+      (status) => this.emit('delivered', d.job, status),
+      (e: unknown) => {
+        if (n >= this.settings.attempts) return void this.emit('gave-up', d.job, e);
+        const timer = setTimeout(() => {
+          this.timers.delete(timer);
+          this.attempt(d, n + 1);
+        }, this.settings.baseDelayMs * 2 ** (n - 1));
+        timer.unref();
+        this.timers.add(timer);
+      },
+    );
+  }
+
+  async close(): Promise<void> {
+    for (const t of this.timers) clearTimeout(t);
+    await this.worker?.close();
+    await this.queue?.close();
+  }
+}

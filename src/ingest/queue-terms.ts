@@ -1,0 +1,45 @@
+/**
+ * The queue's terms: job ids, BullMQ states in the API's words, failures as BullMQ stores
+ * them, the connection settings from a Redis URL, and the error while Redis is away.
+ */
+import { createHash } from 'node:crypto';
+import { FoldwiseError } from '../errors.js';
+import type { JobState } from './jobs.js';
+
+/** The job's id: a digest of the work key and callback, so equal work is one job. */
+export function jobIdOf(work: { key: string; callback?: string }): string {
+  return `j${createHash('sha256').update(`${work.key}\n${work.callback ?? ''}`).digest('hex').slice(0, 32)}`;
+}
+
+/** BullMQ's states in the job vocabulary of the API. */
+export const stateOf: Record<string, JobState> = { completed: 'done', failed: 'failed', active: 'running' };
+
+/** A failure as a job keeps it: "CODE: detail" (the message BullMQ stores). */
+export function encodeFailure(e: { code: string; detail: string }): string {
+  return `${e.code}: ${e.detail}`;
+}
+
+export function decodeFailure(reason: string | undefined): { code: string; detail: string } {
+  const m = /^(ERR_[A-Z0-9_]+): ([\s\S]*)$/.exec(reason ?? '');
+  return m ? { code: m[1], detail: m[2] } : { code: 'ERR_INTERNAL', detail: 'Internal error' };
+}
+
+/** ioredis connection settings from a redis:// URL. */
+export function connectionOf(url: string) {
+  const u = new URL(url);
+  return {
+    host: u.hostname,
+    port: Number(u.port || 6379),
+    username: u.username ? decodeURIComponent(u.username) : undefined,
+    password: u.password ? decodeURIComponent(u.password) : undefined,
+    db: u.pathname.length > 1 ? Number(u.pathname.slice(1)) : undefined,
+  };
+}
+
+/** The error a route answers while the queue's Redis is away. */
+export function queueDown(cause: unknown, retryAfterSeconds: number): FoldwiseError {
+  return new FoldwiseError('ERR_INGEST_QUEUE_DOWN', 'the job queue (Redis) cannot be reached; retry later', {
+    cause,
+    headers: { 'retry-after': String(retryAfterSeconds) },
+  });
+}
