@@ -72,7 +72,8 @@ function rasterOf(src: SharedRaster | SpooledRaster): PixelRaster {
   const { buffer, width, height, channels, depth } = src;
   const length = width * height * channels;
   const data = depth === 16 ? new Uint16Array(buffer, 0, length) : new Uint8Array(buffer, 0, length);
-  return { data, width, height, channels };
+  // A wide-gamut source's luminance takes its own primaries' coefficients (spectrum/luminance.ts).
+  return src.gamut ? { data, width, height, channels, gamut: src.gamut } : { data, width, height, channels };
 }
 
 /** The piscina task: analyse, then decide for the plan. */

@@ -77,7 +77,9 @@ function share(raster: PixelRaster, staging: StagingBuffers): SharedRaster {
   const depth = raster.data instanceof Uint16Array ? 16 : 8;
   const buffer = staging.take(raster.data.byteLength);
   (depth === 16 ? new Uint16Array(buffer) : new Uint8Array(buffer)).set(raster.data);
-  return { buffer, width: raster.width, height: raster.height, channels: raster.channels, depth };
+  const shared: SharedRaster = { buffer, width: raster.width, height: raster.height, channels: raster.channels, depth };
+  if (raster.gamut) shared.gamut = raster.gamut;
+  return shared;
 }
 
 /**

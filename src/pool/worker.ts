@@ -25,6 +25,8 @@ export interface SharedRaster {
   height: number;
   channels: Channels;
   depth: 8 | 16;
+  /** The samples' primaries when not sRGB (a wide-gamut source kept wide): the analysis weighs luminance by them. */
+  gamut?: PixelRaster['gamut'];
 }
 
 /** A raster whose rows are in a spool file being written (src/codec/spool-decode.ts). */

@@ -68,6 +68,19 @@ describe('the analysis in the pool (src/pool/analysis.ts)', () => {
     expect(got.filter).toEqual(expected);
   });
 
+  it('a wide-gamut source staged in shared memory keeps its primaries: luminance by the P3 coefficients', () => {
+    // A red-only grating: its luminance weight differs between Rec. 709 and Display P3 primaries.
+    const side = 256;
+    const data = new Uint8Array(side * side * 3);
+    for (let i = 0; i < side * side; i++) data[i * 3] = Math.round(127.5 + 100 * Math.cos(2 * Math.PI * 0.2 * (i % side)));
+    const buffer = new SharedArrayBuffer(data.byteLength);
+    new Uint8Array(buffer).set(data);
+    const wide = { data, width: side, height: side, channels: 3 as const, gamut: 'display-p3' as const };
+    const got = analyseTask({ src: { buffer, width: side, height: side, channels: 3, depth: 8, gamut: 'display-p3' } });
+    expect(got.spectrum).toEqual(analyzeSpectrum(wide));
+    expect(got.spectrum.power).not.toEqual(analyzeSpectrum({ data, width: side, height: side, channels: 3 }).power);
+  });
+
   it('in the pool, from shared memory and from the spool file alike; warm() reaches every thread first', async () => {
     const pool = new RenderPool({ threads: 2, maxQueue: 4, retryAfterSeconds: 1 });
     try {
