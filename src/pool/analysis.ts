@@ -72,8 +72,12 @@ function rasterOf(src: SharedRaster | SpooledRaster): PixelRaster {
   const { buffer, width, height, channels, depth } = src;
   const length = width * height * channels;
   const data = depth === 16 ? new Uint16Array(buffer, 0, length) : new Uint8Array(buffer, 0, length);
-  // A wide-gamut source's luminance takes its own primaries' coefficients (spectrum/luminance.ts).
-  return src.gamut ? { data, width, height, channels, gamut: src.gamut } : { data, width, height, channels };
+  const raster: PixelRaster = { data, width, height, channels };
+  // A wide-gamut source's luminance takes its own primaries' coefficients (spectrum/luminance.ts);
+  // an animation's frame count goes into the spectrum, for the report.
+  if (src.gamut) raster.gamut = src.gamut;
+  if (src.sourceFrames !== undefined) raster.sourceFrames = src.sourceFrames;
+  return raster;
 }
 
 /** The piscina task: analyse, then decide for the plan. */

@@ -79,6 +79,7 @@ function share(raster: PixelRaster, staging: StagingBuffers): SharedRaster {
   (depth === 16 ? new Uint16Array(buffer) : new Uint8Array(buffer)).set(raster.data);
   const shared: SharedRaster = { buffer, width: raster.width, height: raster.height, channels: raster.channels, depth };
   if (raster.gamut) shared.gamut = raster.gamut;
+  if (raster.sourceFrames !== undefined) shared.sourceFrames = raster.sourceFrames;
   return shared;
 }
 

@@ -27,6 +27,8 @@ export interface SharedRaster {
   depth: 8 | 16;
   /** The samples' primaries when not sRGB (a wide-gamut source kept wide): the analysis weighs luminance by them. */
   gamut?: PixelRaster['gamut'];
+  /** Frames of the animated source (its first frame staged): the analysis reports them. */
+  sourceFrames?: number;
 }
 
 /** A raster whose rows are in a spool file being written (src/codec/spool-decode.ts). */
