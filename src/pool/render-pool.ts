@@ -7,51 +7,19 @@ import type { SourceSpectrum } from '../core/risk/index.js';
 import type { Analysed } from './analysis.js';
 import { type ErrorCode, FoldwiseError } from '../errors.js';
 import type { BandOutcome, ResampleTask, SharedRaster, SpooledRaster } from './worker.js';
-import { type Lease, MemoryBudget, type MemoryState } from './budget.js';
+import { type Lease, MemoryBudget } from './budget.js';
+import { type PoolMemory, queuePerThread, type RenderPoolOptions, runningPerThread } from './options.js';
+import { ownSignal } from './tasks.js';
+import { warmThreads } from './warm-start.js';
 import { resolveMemoryBudget } from './budget-default.js';
 import { HAND_BACK_MIN_BYTES, handBack } from './hand-back.js';
-import { StagingBuffers } from './staging.js';
+import { share, StagingBuffers } from './staging.js';
 import { SpoolWriteError } from '../codec/spool-decode.js';
-import { warmCodecs } from '../codec/warm.js';
 import { SpoolReadError, type SpoolShape, STOPPED, WRITING, WRITTEN } from './spool/rows.js';
 import { SpoolDir } from './spool/dir.js';
-import { type BandPiscina, type BandRunner, piscinaRunner, type RunBand } from './runner.js';
+import { type BandPiscina, piscinaRunner, type RunBand } from './runner.js';
 
-export interface RenderPoolOptions {
-  /** Worker threads; 0 = one per available core. */
-  threads: number;
-  /** Jobs allowed to wait for memory; null = `queuePerThread` per thread. */
-  maxQueue: number | null;
-  retryAfterSeconds: number;
-  /** The byte budget jobs are admitted against (src/pool/budget.ts); null or absent = sized to the container. */
-  memoryBudgetBytes?: number | null;
-  /** Longest wait for room in the budget before 503; default 4 s. */
-  maxWaitMs?: number;
-  /** Last-resort guard: above this RSS a new job is refused (503) while others still run; 0 or absent = off. */
-  rssCeilingBytes?: number;
-  /** Spool folder for decodes resampled as they arrive ('auto', a path, or 'off'); default 'off'. */
-  spoolDir?: string;
-  /** How band tasks are run on the threads (runner.ts); default piscina's run. Fault tests inject one. */
-  runner?: BandRunner;
-}
-
-/**
- * The default wait line, per worker thread. Waiting jobs hold no pixels (their source is read,
- * not decoded), so memory is bounded by the budget rather than by this line; a short line
- * turns overload into a prompt 503 with Retry-After instead of long waits.
- */
-export const queuePerThread = 2;
-
-/** Jobs holding memory at once, per worker thread: one resampling while another decodes or encodes. */
-export const runningPerThread = 2;
-
-/** The pool's memory as /readyz, /metrics and tests read it. */
-export interface PoolMemory extends MemoryState {
-  /** Bytes of spool files of decodes in progress (/dev/shm), part of admittedBytes. */
-  spoolBytes: number;
-  /** Idle staging buffers kept for reuse (at most `threads` of at most 64 MiB each). */
-  stagingIdleBytes: number;
-}
+export { type PoolMemory, queuePerThread, type RenderPoolOptions, runningPerThread } from './options.js';
 
 /** Running from TypeScript sources (tsx, vitest): workers need tsx's loader too. */
 const fromSource = import.meta.url.endsWith('.ts');
@@ -72,16 +40,6 @@ const STREAM_SPLIT_SHRINK = 4;
 // Idle source buffers kept for reuse are at most this big each (a 16 MP RGBA source); larger
 // sources get a fresh buffer (staging.ts), handed back to the system when their job ends.
 const STAGING_MAX_BYTES = HAND_BACK_MIN_BYTES;
-
-function share(raster: PixelRaster, staging: StagingBuffers): SharedRaster {
-  const depth = raster.data instanceof Uint16Array ? 16 : 8;
-  const buffer = staging.take(raster.data.byteLength);
-  (depth === 16 ? new Uint16Array(buffer) : new Uint8Array(buffer)).set(raster.data);
-  const shared: SharedRaster = { buffer, width: raster.width, height: raster.height, channels: raster.channels, depth };
-  if (raster.gamut) shared.gamut = raster.gamut;
-  if (raster.sourceFrames !== undefined) shared.sourceFrames = raster.sourceFrames;
-  return shared;
-}
 
 /**
  * The CPU side of rendering: a piscina pool of worker threads running the core, behind
@@ -302,24 +260,10 @@ export class RenderPool {
    * what /readyz waits for. Rejects only when the pool closes first.
    */
   warm(): Promise<void> {
-    this.warming ??= this.warmUp().then(() => {
+    this.warming ??= warmThreads(this.threads, (task) => this.task('warm', task), this.spool).then(() => {
       this.isWarm = true;
     });
     return this.warming;
-  }
-
-  private async warmUp(): Promise<void> {
-    const arrived = new SharedArrayBuffer(4);
-    const threads = Array.from({ length: this.threads }, () => this.task('warm', { arrived, threads: this.threads }));
-    // sharp's codecs in this thread too, through the spool folder when there is one (a failure
-    // there is the render's to meet: a spool write that fails falls back to decoding in memory).
-    const file = this.spool?.path();
-    try {
-      await Promise.all([warmCodecs(file).catch(() => undefined), ...threads]);
-    } finally {
-      await Promise.allSettled(threads);
-      if (file) await this.spool?.remove(file);
-    }
   }
 
   /** Whether warm() has resolved. */
@@ -330,12 +274,7 @@ export class RenderPool {
   /** Runs a named task of worker.ts, with the same refusals as a render's bands. */
   private async task<T>(name: string, task: object, signal?: AbortSignal): Promise<T> {
     if (this.closing) throw this.stopping();
-    // As in runBands: piscina's listener on a long-lived signal would hold the task (and a
-    // staged source) until the signal goes; a signal of the task's own lives as long as it.
-    const own = new AbortController();
-    const relay = () => own.abort(signal?.reason);
-    if (signal?.aborted) relay();
-    signal?.addEventListener('abort', relay, { once: true });
+    const own = ownSignal(signal);
     try {
       // Named tasks answer their own types, not a band's outcome.
       return (await this.piscina.run(task as ResampleTask, { name, signal: own.signal })) as unknown as T;
@@ -345,7 +284,7 @@ export class RenderPool {
       if (this.closing) throw this.stopping(e);
       throw new FoldwiseError('ERR_RENDER_FAILED', `the ${name} task failed`, { cause: e });
     } finally {
-      signal?.removeEventListener('abort', relay);
+      own.unlink();
     }
   }
 
@@ -363,14 +302,10 @@ export class RenderPool {
     try {
       // Every band settles before the render does, failed or not: a band still queued or running
       // would otherwise outlive the render's admission permit in piscina's bounded queue.
-      // piscina's abort listener holds the task (and its source) as long as the signal lives,
-      // 20 s for a deadline: give it a signal of this call's own, unlinked when the bands end.
-      const own = new AbortController();
-      const relay = () => own.abort(signal?.reason);
-      if (signal?.aborted) relay();
-      signal?.addEventListener('abort', relay, { once: true });
+      // A signal of this call's own (tasks.ts), unlinked when the bands end.
+      const own = ownSignal(signal);
       const runs = bands.map((rows) => this.runBand({ src: shared, plan, rows, out }, { signal: own.signal }));
-      const settled = await Promise.allSettled(runs).finally(() => signal?.removeEventListener('abort', relay));
+      const settled = await Promise.allSettled(runs).finally(own.unlink);
       const failed = settled.find((r) => r.status === 'rejected');
       if (failed) throw failed.reason;
       for (const r of settled as PromiseFulfilledResult<BandOutcome>[]) {

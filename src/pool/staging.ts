@@ -1,3 +1,6 @@
+import type { PixelRaster } from '../core/types.js';
+import type { SharedRaster } from './worker.js';
+
 /**
  * Reused SharedArrayBuffers for the sources handed to the worker threads. A fresh buffer of a
  * 12 MP source costs its page faults and zeroing on every render, about four times the copy
@@ -40,4 +43,15 @@ export class StagingBuffers {
   get idleBytes(): number {
     return this.idle.reduce((sum, b) => sum + b.byteLength, 0);
   }
+}
+
+/** Copies a raster into a staging buffer (its primaries and frame count noted), for the worker threads. */
+export function share(raster: PixelRaster, staging: StagingBuffers): SharedRaster {
+  const depth = raster.data instanceof Uint16Array ? 16 : 8;
+  const buffer = staging.take(raster.data.byteLength);
+  (depth === 16 ? new Uint16Array(buffer) : new Uint8Array(buffer)).set(raster.data);
+  const shared: SharedRaster = { buffer, width: raster.width, height: raster.height, channels: raster.channels, depth };
+  if (raster.gamut) shared.gamut = raster.gamut;
+  if (raster.sourceFrames !== undefined) shared.sourceFrames = raster.sourceFrames;
+  return shared;
 }
