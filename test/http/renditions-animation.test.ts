@@ -127,6 +127,31 @@ describe('animated sources through HTTP', () => {
     expect(res.json().detail).toContain('9 frames');
   });
 
+  it('counts every frame in the memory budget: an animation that can never fit is a 413 naming its frames', async () => {
+    // 24 frames of 1024x1024 (different greys: the GIF writer merges identical frames) decode to
+    // 24 x 1024 x 1024 x 4 bytes (libvips gives GIFs an alpha channel) = 96 MiB before any
+    // working copy: past a 64 MiB budget, while one frame (4 MiB) would fit.
+    const [n, w] = [24, 1024];
+    const greys = new Uint8Array(w * w * n * 3);
+    for (let f = 0; f < n; f++) greys.fill(10 * f, f * w * w * 3, (f + 1) * w * w * 3);
+    const big = await sharp(greys, { raw: { width: w, height: w * n, channels: 3, pageHeight: w } }).gif({ effort: 1 }).toBuffer();
+    const small = await build({ config: { pool: { memoryBudgetBytes: 64 * 2 ** 20 } } });
+    try {
+      await writeFile(join(small.sourceDir, 'bolts.gif'), big);
+      const res = await small.app.inject({ url: '/v1/renditions/bolts.gif?width=64&format=gif' });
+      expect(res.statusCode).toBe(413);
+      const body = res.json();
+      expect(body.code).toBe('ERR_SOURCE_TOO_COSTLY');
+      expect(body.detail).toContain(`a ${w}x${w} 8-bit 4-channel source of ${n} frames (pixels counted over every frame)`);
+      expect(body.detail).toMatch(/budget is 64 MiB/);
+      // The same file as a still needs one frame's memory and renders.
+      const still = await small.app.inject({ url: '/v1/renditions/bolts.gif?width=64&still=1&format=png' });
+      expect(still.statusCode).toBe(200);
+    } finally {
+      await small.close();
+    }
+  });
+
   it('a truncated animated GIF is a clear 422, not a shorter animation', async () => {
     const res = await t.app.inject({ url: '/v1/renditions/cut.gif?width=16&format=gif' });
     expect(res.statusCode).toBe(422);
