@@ -4,7 +4,7 @@
  * back it answers at once while the client is still reconnecting, and a command sent then
  * fails ("Stream isn't writeable", the offline queue being off). Its `close` sends QUIT, which
  * fails the same way on such a client, and a worker's close waits for its blocking connection,
- * which may never come back from a Redis that was killed under it.
+ * which may not be back (or is still between reconnect attempts) when the replica stops.
  */
 import type { Queue, Worker } from 'bullmq';
 
@@ -29,5 +29,16 @@ export async function closeWithin(target: Queue | Worker, ms: number, close: () 
   const late = new Promise<'late'>((resolve) => (timer = setTimeout(() => resolve('late'), Math.max(0, ms))));
   const outcome = await Promise.race([close().then(() => 'closed' as const, () => 'failed' as const), late]);
   clearTimeout(timer);
-  if (outcome !== 'closed') await target.disconnect().catch(() => undefined);
+  if (outcome !== 'closed') await drop(target);
+}
+
+/**
+ * Drops the connections without waiting for them to end: BullMQ's `disconnect` waits for an
+ * 'end' event that a client between reconnect attempts never emits (it has no socket to close),
+ * and ends a worker's blocking connection only after that wait. Dropping cancels the next
+ * reconnect attempt, so nothing keeps retrying after the stop.
+ */
+async function drop(target: Queue | Worker): Promise<void> {
+  const { client, blockingClient } = target.backend;
+  for (const pending of [client, blockingClient]) (await pending?.catch(() => undefined))?.disconnect();
 }
