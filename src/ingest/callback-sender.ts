@@ -6,6 +6,7 @@
  */
 import { EventEmitter } from 'node:events';
 import { type Job, Queue, Worker } from 'bullmq';
+import { closeWithin } from './queue-link.js';
 import { connectionOf } from './queue-terms.js';
 
 export interface CallbackOutcome {
@@ -19,8 +20,11 @@ export interface CallbackOutcome {
 export interface SenderSettings {
   attempts: number;
   baseDelayMs: number;
-  /** Redis URL and key prefix for the shared retry queue; absent = in-process timers. */
-  shared?: { url: string; prefix: string };
+  /**
+   * Redis URL and key prefix for the shared retry queue; absent = in-process timers.
+   * `closeMs`: the longest a close waits for Redis (away, or just back) before dropping it.
+   */
+  shared?: { url: string; prefix: string; closeMs: number };
 }
 
 type Deliver = (url: string, body: string) => Promise<number>;
@@ -91,7 +95,8 @@ export class CallbackSender extends EventEmitter {
 
   async close(): Promise<void> {
     for (const t of this.timers) clearTimeout(t);
-    await this.worker?.close();
-    await this.queue?.close();
+    const ms = this.settings.shared?.closeMs ?? 0;
+    if (this.worker) await closeWithin(this.worker, ms);
+    if (this.queue) await closeWithin(this.queue, ms);
   }
 }

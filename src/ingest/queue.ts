@@ -9,6 +9,7 @@
 import { EventEmitter } from 'node:events';
 import { type Job, Queue, UnrecoverableError, Worker } from 'bullmq';
 import type { JobView } from './jobs.js';
+import { closeWithin, queueReady } from './queue-link.js';
 import { connectionOf, decodeFailure, encodeFailure, jobIdOf, stateOf } from './queue-terms.js';
 import type { Manifest } from './manifest.js';
 import type { IngestOptions } from './service.js';
@@ -97,6 +98,8 @@ export class IngestQueue extends EventEmitter {
   }
 
   private async add(work: QueuedWork): Promise<JobView<Manifest> | undefined> {
+    // Redis just came back: wait for the reconnect (bounded by `submit`) rather than fail.
+    await queueReady(this.queue);
     const id = jobIdOf(work);
     const existing = await this.queue.getJob(id);
     if (existing && (await existing.getState()) === 'failed') await existing.remove();
@@ -118,15 +121,16 @@ export class IngestQueue extends EventEmitter {
     return this.running.size;
   }
 
-  /** Resolves once the queue's Redis connection is up (again). */
-  ready(): Promise<void> {
-    return this.queue.waitUntilReady();
+  /** Resolves once the queue's Redis connection is up (again): connected now, not once. */
+  async ready(): Promise<void> {
+    await this.queue.waitUntilReady();
+    await queueReady(this.queue);
   }
 
   /** The job as the API shows it; undefined when unknown or expired. */
   async get(id: string): Promise<JobView<Manifest> | undefined> {
     if (!/^j[0-9a-f]{32}$/.test(id)) return undefined;
-    const job = await this.bounded(this.queue.getJob(id));
+    const job = await this.bounded(queueReady(this.queue).then(() => this.queue.getJob(id)));
     return job ? this.bounded(this.view(job)) : undefined;
   }
 
@@ -170,10 +174,11 @@ export class IngestQueue extends EventEmitter {
     const handed: string[] = [];
     for (const [id, { job, token }] of this.running) {
       // Its lock released and first in line: another replica takes it at once.
-      await job.moveToWait(token).then(() => handed.push(id), () => undefined);
+      await this.bounded(job.moveToWait(token)).then(() => handed.push(id), () => undefined);
     }
-    await this.worker.close(true);
-    await this.queue.close();
+    // Redis may be away or just back: neither close may hold the shutdown past its wait.
+    await closeWithin(this.worker, this.settings.timeoutMs, () => this.worker.close(true));
+    await closeWithin(this.queue, this.settings.timeoutMs);
     return handed;
   }
 }

@@ -31,7 +31,9 @@ async function callbacksPlugin(app: FastifyInstance): Promise<void> {
     {
       attempts: config.ingest.callbackAttempts,
       baseDelayMs: config.ingest.callbackBaseDelayMs,
-      shared: config.cache.redisUrl ? { url: config.cache.redisUrl, prefix: `${config.redis.namespace}q` } : undefined,
+      shared: config.cache.redisUrl
+        ? { url: config.cache.redisUrl, prefix: `${config.redis.namespace}q`, closeMs: config.redis.connectTimeoutMs }
+        : undefined,
     },
   );
   const outcomes = new Counter({
