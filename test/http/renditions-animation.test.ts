@@ -81,6 +81,15 @@ describe('animated sources through HTTP', () => {
     out.means.forEach((m, f) => m.forEach((v, c) => expect(Math.abs(v - colours[f][c]), `frame ${f} channel ${c}`).toBeLessThanOrEqual(format === 'gif' ? 1 : 6)));
   });
 
+  it.each(['swatch.gif', 'swatch.webp'])('%s as WebP at quality 100: each frame within one code of its own colour', async (name) => {
+    // The issue's check (one code per frame) without lossy coding's own error in the way.
+    const res = await t.app.inject({ url: `/v1/renditions/${name}?width=16&format=webp&quality=100` });
+    expect(res.statusCode).toBe(200);
+    const out = await frames(res.rawPayload);
+    expect(out.pages).toBe(4);
+    out.means.forEach((m, f) => m.forEach((v, c) => expect(Math.abs(v - colours[f][c]), `frame ${f} channel ${c}`).toBeLessThanOrEqual(1)));
+  });
+
   it('negotiates GIF without WebP in Accept, and with it WebP unless the GIF is smaller; Vary: Accept', async () => {
     const gif = await t.app.inject({ url: '/v1/renditions/swatch.gif?width=16', headers: { accept: 'image/avif,image/*' } });
     expect(gif.headers['content-type']).toBe('image/gif');
