@@ -52,6 +52,10 @@ describe.skipIf(browserSkipReason)('/docs in chromium', () => {
     );
     expect([...new Set(drawn)].sort()).toEqual(expected);
     expect(await page.title()).toBe('API reference');
+    // Opening an operation shows its parameters (the deep link names it), still within the policy.
+    await page.click('.opblock-summary-path[data-path="/v1/renditions/{source}"]');
+    await page.waitForSelector('.opblock.is-open tr[data-param-name="width"]', { timeout: 30_000 });
+    expect(page.url()).toMatch(/\/docs#\/renditions\//);
     await page.screenshot({ path: join(tmpdir(), 'foldwise-docs.png'), fullPage: false });
     await page.close();
 
