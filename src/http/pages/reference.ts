@@ -1,97 +1,88 @@
 /**
- * GET /docs: the API reference, rendered here from the OpenAPI document the routes generate
- * (GET /docs/openapi.json), so the page and the JSON cannot disagree. One section per tag,
- * one card per operation: parameters, request body, responses with their fields.
+ * GET /docs: the API reference, drawn in the browser by Swagger UI (the `swagger-ui-dist`
+ * package) from GET /docs/openapi.json. Every file the page loads is served by this process
+ * under /docs/assets/ (src/http/routes/docs-assets.ts); nothing comes from elsewhere.
+ * Our part is the frame below, a start script (a file, so the page needs no inline script)
+ * and a few lines of CSS in the site's palette over the package's own stylesheet.
  */
-import type { Operation } from '../../schemas/openapi.js';
-import { esc, page } from './html.js';
-import { fieldTree, type Schema, typeLine } from './schema-view.js';
+import { esc } from './html.js';
 
-interface Doc {
-  info: { title: string; version: string; description?: string };
-  paths: Record<string, Record<string, Operation>>;
-  components?: { schemas?: Record<string, Schema> };
-}
-
-interface Parameter {
-  name: string;
-  in: string;
-  required?: boolean;
-  description?: string;
-  schema?: Schema;
-}
-
-interface Media {
-  schema?: Schema;
-}
-
-/** The anchor of an operation: `get-v1-renditions-source`. */
-export const operationId = (method: string, path: string) =>
-  `${method}-${path}`.replace(/[{}]/g, '').replace(/[^A-Za-z0-9]+/g, '-').replace(/-+$/, '').toLowerCase();
-
-/** Descriptions are plain text; blank lines split paragraphs. */
-const prose = (text: string | undefined) =>
-  text ? text.split(/\n\s*\n/).map((p) => `<p>${esc(p.trim())}</p>`).join('\n') : '';
-
-function parameters(list: Parameter[] | undefined): string {
-  if (!list?.length) return '';
-  const rows = list.map(
-    (p) =>
-      `<tr id="${esc(`param-${p.name}`)}"><td><code>${esc(p.name)}</code>${p.required ? ' <strong>required</strong>' : ''}</td><td>${esc(p.in)}</td><td>${typeLine(p.schema)}</td><td>${esc(p.description ?? '')}</td></tr>`,
-  );
-  return `<h4>Parameters</h4>
-<table><thead><tr><th scope="col">Name</th><th scope="col">In</th><th scope="col">Values</th><th scope="col">Meaning</th></tr></thead><tbody>${rows.join('')}</tbody></table>`;
-}
-
-function contents(content: Record<string, Media> | undefined): string {
-  if (!content) return '';
-  return Object.entries(content)
-    .map(([type, m]) => {
-      const tree = fieldTree(m.schema);
-      const ref = m.schema && typeof m.schema.$ref === 'string' ? ` (${typeLine(m.schema)})` : '';
-      return tree ? `<details><summary><code>${esc(type)}</code> fields</summary>${tree}</details>` : `<div><code>${esc(type)}</code>${ref}</div>`;
-    })
-    .join('');
-}
-
-function responses(list: Record<string, unknown>): string {
-  const rows = Object.entries(list).map(([status, r]) => {
-    const { description, content } = r as { description?: string; content?: Record<string, Media> };
-    return `<tr><td class="status s${status[0]}">${esc(status)}</td><td>${esc(description ?? '')}${contents(content)}</td></tr>`;
-  });
-  return `<h4>Responses</h4><table><tbody>${rows.join('')}</tbody></table>`;
-}
-
-function operation(method: string, path: string, op: Operation): string {
-  const body = op.requestBody as { description?: string; content?: Record<string, Media> } | undefined;
-  return `<section class="op" id="${operationId(method, path)}">
-<h3><span class="verb ${esc(method)}">${esc(method.toUpperCase())}</span> <code>${esc(path)}</code> <span>${esc(op.summary)}</span></h3>
-${prose(op.description)}
-${parameters(op.parameters as Parameter[] | undefined)}
-${body ? `<h4>Request body</h4>${prose(body.description)}${contents(body.content)}` : ''}
-${responses(op.responses)}
-</section>`;
-}
-
-export function referencePage(doc: Doc): string {
-  const byTag = new Map<string, string[]>();
-  const toc: string[] = [];
-  for (const [path, methods] of Object.entries(doc.paths)) {
-    for (const [method, op] of Object.entries(methods)) {
-      const tag = op.tags?.[0] ?? 'other';
-      (byTag.get(tag) ?? byTag.set(tag, []).get(tag))?.push(operation(method, path, op));
-      toc.push(`<li><a href="#${operationId(method, path)}">${esc(method.toUpperCase())} ${esc(path)}</a> \u2013 ${esc(op.summary)}</li>`);
-    }
-  }
-  const sections = [...byTag].map(([tag, ops]) => `<h2 id="tag-${esc(tag)}">${esc(tag)}</h2>\n${ops.join('\n')}`);
-  const schemas = Object.entries(doc.components?.schemas ?? {}).map(
-    ([name, s]) => `<section class="op" id="schema-${esc(name)}"><h3><code>${esc(name)}</code></h3>${fieldTree(s)}</section>`,
-  );
-  const body = `    <p>Version ${esc(doc.info.version)}. Generated from the same zod schemas the service validates with; the machine-readable form is <a href="/docs/openapi.json">/docs/openapi.json</a> (OpenAPI 3.1). Errors are listed under <a href="/docs/errors">error codes</a>.</p>
-    <ul class="toc">${toc.join('')}</ul>
-${sections.join('\n')}
-<h2 id="schemas">Shared schemas</h2>
-${schemas.join('\n')}
+/** The page's shell: our masthead, the package's stylesheet and bundle, our start script. */
+export const referencePage = (version: string): string => `<!doctype html>
+<html lang="en">
+<head>
+  <meta charset="utf-8">
+  <meta name="viewport" content="width=device-width, initial-scale=1">
+  <title>API reference</title>
+  <link rel="icon" href="/inspect/assets/icon.svg" type="image/svg+xml">
+  <link rel="stylesheet" href="/docs/assets/swagger-ui.css">
+  <link rel="stylesheet" href="/docs/assets/reference.css">
+</head>
+<body>
+  <header class="fw-band">
+    <a class="fw-mark" href="/"><img src="/inspect/assets/icon.svg" alt="" width="22" height="22"> foldwise ${esc(version)}</a>
+    <nav aria-label="Site"><a href="/">Start</a> <a href="/inspect">Inspector</a> <a href="/docs" aria-current="page">API reference</a> <a href="/docs/errors">Error codes</a> <a href="/docs/openapi.json">OpenAPI JSON</a></nav>
+  </header>
+  <main id="reference"><noscript>This reference is drawn by a script; the document itself is <a href="/docs/openapi.json">/docs/openapi.json</a>.</noscript></main>
+  <script src="/docs/assets/swagger-ui-bundle.js"></script>
+  <script src="/docs/assets/reference.js"></script>
+</body>
+</html>
 `;
-  return page({ title: 'API reference', current: '/docs', lede: esc(doc.info.description ?? ''), body });
-}
+
+/**
+ * The start script. `validatorUrl: null` keeps the page from asking a public validator
+ * about our document (the package's default); the rest are display choices.
+ */
+export const referenceScript = `'use strict';
+// Draws the API reference from this service's OpenAPI document (src/http/pages/reference.ts).
+globalThis.SwaggerUIBundle({
+  url: '/docs/openapi.json',
+  dom_id: '#reference',
+  deepLinking: true,
+  docExpansion: 'list',
+  defaultModelsExpandDepth: 0,
+  displayRequestDuration: true,
+  validatorUrl: null,
+  presets: [globalThis.SwaggerUIBundle.presets.apis],
+  layout: 'BaseLayout',
+});
+`;
+
+/** The site's palette (src/http/pages/site-css.ts) over the package's stylesheet, lightly. */
+export const referenceCss = `
+:root { --ink: #1d2326; --paper: #f6f5f2; --card: #ffffff; --accent: #2c5d73; --focus: #b3541e; --warp: #e4e1d8; --get: #2f6b3a; --post: #8a5a00; --del: #a3261c; }
+body { margin: 0; background: var(--paper); color: var(--ink); }
+.fw-band { display: flex; flex-wrap: wrap; align-items: center; gap: .5rem 2rem; padding: .8rem 1.5rem; background: var(--card);
+  font: 16px/1.55 system-ui, sans-serif; border-bottom: 3px solid transparent;
+  border-image: repeating-linear-gradient(90deg, var(--accent) 0 6px, var(--warp) 6px 9px) 3; }
+.fw-mark { display: inline-flex; align-items: center; gap: .5rem; font-weight: 700; color: var(--ink); text-decoration: none; }
+.fw-band nav { display: flex; flex-wrap: wrap; gap: .25rem 1.25rem; }
+.fw-band nav a { color: var(--accent); text-decoration: none; border-bottom: 2px solid transparent; }
+.fw-band nav a:hover, .fw-band nav a[aria-current="page"] { border-bottom-color: var(--focus); }
+.swagger-ui a, .swagger-ui .info a { color: var(--accent); }
+.swagger-ui .opblock.opblock-get { border-color: var(--get); background: rgba(47, 107, 58, .06); }
+.swagger-ui .opblock.opblock-get .opblock-summary-method { background: var(--get); }
+.swagger-ui .opblock.opblock-post { border-color: var(--post); background: rgba(138, 90, 0, .06); }
+.swagger-ui .opblock.opblock-post .opblock-summary-method { background: var(--post); }
+.swagger-ui .opblock.opblock-delete { border-color: var(--del); background: rgba(163, 38, 28, .06); }
+.swagger-ui .opblock.opblock-delete .opblock-summary-method { background: var(--del); }
+.swagger-ui .btn.execute { background: var(--accent); border-color: var(--accent); }
+`;
+
+/**
+ * The reference page's policy: the page policy (src/http/pages/html.ts) plus what Swagger UI
+ * needs, all from this origin: its bundle and our start script (script-src 'self'), fetching
+ * the document and "try it out" requests (connect-src 'self'), and the data: URIs its stylesheet
+ * draws icons with (img-src data:). No inline script, no eval, no other host.
+ */
+export const referencePolicy = [
+  "default-src 'none'",
+  "script-src 'self'",
+  "style-src 'self'",
+  "img-src 'self' data:",
+  "connect-src 'self'",
+  "form-action 'self'",
+  "base-uri 'none'",
+  "frame-ancestors 'none'",
+].join('; ');

@@ -1,7 +1,7 @@
 /**
- * The stylesheet of the server-made pages (start page, API reference, error codes, error
- * pages). The inspector's palette, so the pages read as one site; system fonts only, nothing
- * fetched from elsewhere. A module, not a file, so the CLI bundle carries it.
+ * The stylesheet of the server-made pages (start page, error codes, error pages; the API
+ * reference has its own, src/http/pages/reference.ts). The inspector's palette, so the pages
+ * read as one site; system fonts only, nothing fetched from elsewhere. A module, not a file, so the CLI bundle carries it.
  */
 export const siteCss = `
 :root {
@@ -50,17 +50,8 @@ table { border-collapse: collapse; width: 100%; background: var(--card); margin:
 th, td { text-align: left; vertical-align: top; padding: .4rem .6rem; border-bottom: 1px solid var(--line); }
 th { font-size: .85rem; color: var(--muted); font-weight: 600; }
 tr:target { background: #fbf3e6; }
-.toc { columns: 2 16rem; padding-left: 1.2rem; }
-.op { background: var(--card); border: 1px solid var(--line); border-radius: 6px; padding: .25rem 1rem 1rem; margin: 1rem 0; }
-.op:target { border-color: var(--focus); }
-.op h3 { display: flex; flex-wrap: wrap; gap: .5rem; align-items: baseline; }
-.verb { display: inline-block; min-width: 3.6rem; text-align: center; padding: .05rem .45rem; border-radius: 3px; color: #fff; font: 700 .8rem/1.6 ui-monospace, monospace; }
-.verb.get { background: var(--get); } .verb.post { background: var(--post); }
 .status { font-weight: 700; font-family: ui-monospace, monospace; }
 .status.s4 { color: var(--client); } .status.s5 { color: var(--server); } .status.s2, .status.s3 { color: var(--get); }
-details { margin: .25rem 0; } summary { cursor: pointer; color: var(--accent); }
-.fields { list-style: none; padding-left: 1rem; border-left: 2px solid var(--warp); margin: .25rem 0; }
-.fields li { margin: .2rem 0; }
 .problem { background: var(--card); border: 1px solid var(--line); border-left: 6px solid var(--server); border-radius: 6px; padding: .5rem 1.25rem 1rem; max-width: 48rem; }
 .problem.s4 { border-left-color: var(--client); }
 .problem dl { display: grid; grid-template-columns: max-content 1fr; gap: .25rem 1rem; }

@@ -4,7 +4,8 @@ import { errorCodes } from '../../errors.js';
 import { jsonBody, openApiDocument } from '../../schemas/openapi.js';
 import { errorsPage } from '../pages/errors.js';
 import { asPage } from '../pages/html.js';
-import { referencePage } from '../pages/reference.js';
+import { referencePage, referencePolicy } from '../pages/reference.js';
+import docsAssetRoutes from './docs-assets.js';
 
 const errorListSchema = z.object({
   errors: z.array(z.object({ code: z.string(), status: z.number().int(), title: z.string() })),
@@ -13,20 +14,21 @@ const errorListSchema = z.object({
 const htmlPage = (description: string) => ({ '200': { description, content: { 'text/html': {} } } });
 
 /**
- * GET /docs: the API reference as a page, rendered from the OpenAPI 3.1 document at GET
- * /docs/openapi.json, which is generated from the zod schemas the routes validate with (built
+ * GET /docs: the API reference as a page, drawn by Swagger UI (served from this process, see
+ * docs-assets.ts) from the OpenAPI 3.1 document at GET /docs/openapi.json, which is generated from the zod schemas the routes validate with (built
  * on first request, when every route has registered). GET /docs/errors: every error code as a
  * page with one anchor per code (problem `type`s point there); /docs/errors.json the same list.
  */
 export default async function docsRoutes(app: FastifyInstance, opts: { version: string }): Promise<void> {
   let doc: unknown;
-  let reference: string | undefined;
+  const reference = referencePage(opts.version);
   const document = () => (doc ??= openApiDocument(app.apiOperations, opts.version));
   app.get(
     '/docs',
-    { config: { openapi: { summary: 'The API reference (this document as a page)', tags: ['docs'], responses: htmlPage('The reference, HTML') } } },
-    async (_request, reply) => asPage(reply).header('cache-control', 'no-cache').send((reference ??= referencePage(document() as Parameters<typeof referencePage>[0]))),
+    { config: { openapi: { summary: 'The API reference (this document, drawn by Swagger UI)', tags: ['docs'], responses: htmlPage('The reference, HTML') } } },
+    async (_request, reply) => asPage(reply).header('content-security-policy', referencePolicy).header('cache-control', 'no-cache').send(reference),
   );
+  await app.register(docsAssetRoutes);
   app.get(
     '/docs/openapi.json',
     { config: { openapi: { summary: 'This OpenAPI document', tags: ['docs'], responses: { '200': { description: 'OpenAPI 3.1 JSON' } } } } },

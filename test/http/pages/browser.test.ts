@@ -39,7 +39,7 @@ const tilesLoaded = () =>
     (i) => i.complete && i.naturalWidth > 0,
   );
 
-describe.skipIf(browserSkipReason)('the start page and the docs in chromium', () => {
+describe.skipIf(browserSkipReason)('the start page and the error codes in chromium', () => {
   let t: TestApp;
   let browser: Browser;
   let base: string;
@@ -117,15 +117,8 @@ describe.skipIf(browserSkipReason)('the start page and the docs in chromium', ()
     expect(problems).toEqual([]);
   }, testMs);
 
-  it('/docs reads as a page: the contents lead to each operation; /docs/errors lands on a code', async () => {
+  it('/docs/errors lands on a code (/docs itself: reference-browser.test.ts)', async () => {
     const page = await open();
-    await page.goto(`${base}/docs`);
-    expect(await page.title()).toBe('API reference');
-    await page.click('.toc a[href="#get-v1-renditions-source"]');
-    expect(page.url()).toBe(`${base}/docs#get-v1-renditions-source`);
-    expect(await page.isVisible('#get-v1-renditions-source #param-width')).toBe(true);
-    await page.screenshot({ path: join(tmpdir(), 'foldwise-docs.png') });
-
     await page.goto(`${base}/docs/errors#ERR_SOURCE_NOT_FOUND`);
     const target = await page.evaluate(() => (globalThis as unknown as { document: { querySelector(s: string): { id: string } | null } }).document.querySelector(':target')?.id);
     expect(target).toBe('ERR_SOURCE_NOT_FOUND');

@@ -1,8 +1,8 @@
-import { mkdir, writeFile } from 'node:fs/promises';
+import { mkdir, readFile, writeFile } from 'node:fs/promises';
+import { createRequire } from 'node:module';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { errorCodes } from '../../../src/errors.js';
-import { operationId } from '../../../src/http/pages/reference.js';
 import { demoImages, encodeDemo } from '../../../tools/demo/index.js';
 import { build, type TestApp } from '../../helpers/build.js';
 
@@ -76,18 +76,41 @@ describe('the pages a browser meets', () => {
     expect(tile.rawPayload.equals(expected as Buffer)).toBe(true);
   });
 
-  it('/docs has a section for every operation of the OpenAPI document, with its parameters', async () => {
-    const doc = (await get('/docs/openapi.json')).json();
-    const body = (await get('/docs')).body;
-    const own = ids(body);
-    for (const [path, methods] of Object.entries<Record<string, { parameters?: Array<{ name: string }> }>>(doc.paths)) {
-      for (const [method, op] of Object.entries(methods)) {
-        expect(own.has(operationId(method, path)), `${method} ${path}`).toBe(true);
-        for (const p of op.parameters ?? []) expect(body).toContain(`<code>${p.name}</code>`);
-      }
+  it('/docs is a page that loads Swagger UI and its start script from this service only', async () => {
+    const res = await get('/docs', browser);
+    expect([res.statusCode, res.headers['content-type'], res.headers['cache-control']]).toEqual([200, 'text/html; charset=utf-8', 'no-cache']);
+    // The page policy, widened for this page only: scripts and fetches from this origin, data: icons.
+    expect(String(res.headers['content-security-policy']).split('; ')).toEqual([
+      "default-src 'none'", "script-src 'self'", "style-src 'self'", "img-src 'self' data:", "connect-src 'self'",
+      "form-action 'self'", "base-uri 'none'", "frame-ancestors 'none'",
+    ]);
+    expect((await get('/')).headers['content-security-policy']).not.toContain('script-src');
+    expect([...res.body.matchAll(/<script([^>]*)>/g)].map((m) => m[1])).toEqual([' src="/docs/assets/swagger-ui-bundle.js"', ' src="/docs/assets/reference.js"']);
+    expect(links(res.body)).toEqual(expect.arrayContaining(['/docs/assets/swagger-ui.css', '/docs/assets/reference.css']));
+    expect(res.body).not.toMatch(/https?:\/\//);
+  });
+
+  it.each([
+    // The package's files, byte for byte as npm installed them; ours, with the document's URL and no public validator.
+    ['swagger-ui-bundle.js', 'text/javascript; charset=utf-8', 'public, max-age=86400', 'swagger-ui-dist/swagger-ui-bundle.js'],
+    ['swagger-ui.css', 'text/css; charset=utf-8', 'public, max-age=86400', 'swagger-ui-dist/swagger-ui.css'],
+    ['reference.js', 'text/javascript; charset=utf-8', 'no-cache', undefined],
+    ['reference.css', 'text/css; charset=utf-8', 'no-cache', undefined],
+  ])('/docs/assets/%s is served with its type, caching and an ETag that revalidates', async (name, type, cache, file) => {
+    const res = await get(`/docs/assets/${name}`);
+    expect([res.statusCode, res.headers['content-type'], res.headers['cache-control'], res.headers['x-content-type-options']]).toEqual([200, type, cache, 'nosniff']);
+    if (file) expect(res.rawPayload.equals(await readFile(createRequire(import.meta.url).resolve(file)))).toBe(true);
+    else expect(res.body.length).toBeGreaterThan(200);
+    if (name === 'reference.js') expect(res.body).toMatch(/url: '\/docs\/openapi\.json'[\s\S]*validatorUrl: null/);
+    const again = await t.app.inject({ url: `/docs/assets/${name}`, headers: { 'if-none-match': String(res.headers.etag) } });
+    expect([again.statusCode, again.body]).toEqual([304, '']);
+  });
+
+  it('/docs/assets answers 404 for a file it does not serve, the package\'s other files included', async () => {
+    for (const name of ['index.html', 'swagger-initializer.js', '..%2Fpackage.json']) {
+      const res = await get(`/docs/assets/${name}`);
+      expect([res.statusCode, res.json().code], name).toEqual([404, 'ERR_NOT_FOUND']);
     }
-    expect(own.has('schema-Problem')).toBe(true);
-    expect(body).toContain('one of <code>contain</code>, <code>cover</code>, <code>fill</code>, <code>scale-down</code>');
   });
 
   it('/docs/errors has one anchor per code of the registry, with its status and title', async () => {
