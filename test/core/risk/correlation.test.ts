@@ -1,10 +1,11 @@
 import { describe, expect, it } from 'vitest';
 import { renderRaster } from '../../../src/core/index.js';
-import { analyzeSpectrum, assessRisk, contrastThreshold, CSS_PIXEL_DEGREES, levelOf, type SourceSpectrum } from '../../../src/core/risk/index.js';
+import { analyzeSpectrum, assessRisk, levelOf, type SourceSpectrum } from '../../../src/core/risk/index.js';
 import type { PixelRaster } from '../../../src/core/types.js';
 import { bandLimited, powerSpectrum, shiftedBandLimited, spearman } from './measure.js';
 import { checker, grating, greyRaster, linearOf, noise, zonePlate, type Pattern } from './patterns.js';
 import { naivePlan, responseOf, squarePlan } from './render-helpers.js';
+import { sensitivityWeightedPower } from './visible.js';
 
 const N = 512;
 
@@ -122,8 +123,6 @@ describe('reported folded fraction against alias energy measured in real renders
   });
 });
 
-const sinc = (x: number) => (x === 0 ? 1 : Math.sin(Math.PI * x) / (Math.PI * x));
-const sensitivity = (cyclesPerPixel: number) => 1 / contrastThreshold(cyclesPerPixel / CSS_PIXEL_DEGREES);
 
 /**
  * Measured visibility of the false patterns in a real render, in threshold units: the render
@@ -142,20 +141,7 @@ function measuredVisible(src: PixelRaster, out: PixelRaster, s: number, d: numbe
   const rendered = linearOf(out);
   const err = new Float64Array(m * m);
   for (let oy = 0; oy < m; oy++) for (let ox = 0; ox < m; ox++) err[oy * m + ox] = rendered[oy * m + ox] - ideal[oy * s * N + ox * s];
-  const pe = powerSpectrum(err, m);
-  const po = powerSpectrum(rendered, m);
-  let v = 0;
-  for (let j = 0; j < m; j++) {
-    const fy = (j < m / 2 ? j : j - m) / m;
-    for (let i = 0; i < m; i++) {
-      const fx = (i < m / 2 ? i : i - m) / m;
-      const f = Math.hypot(fx, fy);
-      v += pe[j * m + i] * sensitivity(f) ** 2;
-      const u = Math.max(Math.abs(fx), Math.abs(fy));
-      if (u >= 0.85 * 0.5) v += po[j * m + i] * Math.min(1, sinc(1 - u) / sinc(u)) ** 2 * sensitivity(f) ** 2;
-    }
-  }
-  return Math.sqrt(2 * v) / mean;
+  return Math.sqrt(2 * sensitivityWeightedPower(powerSpectrum(err, m), powerSpectrum(rendered, m), m)) / mean;
 }
 
 describe('predicted visibility against false patterns measured in real renders', () => {

@@ -77,8 +77,16 @@ export function measuredVisibility(out: Float64Array, ideal: Float64Array, m: nu
       shown[k] = (out[k] - own) * w[i] * w[j];
     }
   }
-  const pe = powerSpectrum(err, m);
-  const po = powerSpectrum(shown, m);
+  return Math.sqrt((2 * sensitivityWeightedPower(powerSpectrum(err, m), powerSpectrum(shown, m), m)) / w2) / mean;
+}
+
+/**
+ * The error's power spectrum `pe` weighted by the squared sensitivity at each output frequency
+ * (Mannos & Sakrison 1974 at the CSS reference pixel), plus the render's own power `po` between
+ * 0.85x and 1x Nyquist as square pixels show it (the beat: sinc(1 - u) / sinc(u) of it, at the
+ * carrier's sensitivity). m x m spectra, unshifted.
+ */
+export function sensitivityWeightedPower(pe: Float64Array, po: Float64Array, m: number): number {
   let v = 0;
   for (let j = 0; j < m; j++) {
     const fy = (j < m / 2 ? j : j - m) / m;
@@ -91,6 +99,6 @@ export function measuredVisibility(out: Float64Array, ideal: Float64Array, m: nu
       if (u >= 0.85 * 0.5) v += po[j * m + i] * Math.min(1, sinc(1 - u) / sinc(u)) ** 2 * s2;
     }
   }
-  return Math.sqrt((2 * v) / w2) / mean;
+  return v;
 }
 
