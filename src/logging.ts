@@ -21,7 +21,9 @@ export function serverLogger(config: Config, stdoutIsTty: boolean): FastifyServe
     level,
     transport: {
       target: 'pino-pretty',
-      options: { colorize: stdoutIsTty, singleLine: true, translateTime: 'SYS:HH:MM:ss.l', ignore: 'pid,hostname' },
+      // sync: the transport thread writes each line as it reads it, so nothing waits in its
+      // buffer when the process ends.
+      options: { sync: true, colorize: stdoutIsTty, singleLine: true, translateTime: 'SYS:HH:MM:ss.l', ignore: 'pid,hostname' },
     },
   };
 }
