@@ -1,4 +1,6 @@
 import type { FastifyInstance } from 'fastify';
+import type { Logger } from 'pino';
+import { withinMs } from './lib/deadline.js';
 
 export interface ShutdownOptions {
   /** Time allowed for in-flight requests (and renders) to finish before giving up. */
@@ -15,6 +17,22 @@ export interface ShutdownHandle {
   dispose(): void;
 }
 
+/** Longest wait for the log's last lines to be written before the process ends. */
+const flushLimitMs = 2_000;
+
+/**
+ * Waits (at most flushLimitMs) until the logger has handed its buffered lines on: the pretty
+ * printer runs in a transport thread that ends with the process, so lines logged just before
+ * exit were lost.
+ */
+function flushLog(app: FastifyInstance): Promise<void> {
+  const log = app.log as Partial<Pick<Logger, 'flush'>>;
+  if (typeof log.flush !== 'function') return Promise.resolve();
+  const flush = log.flush.bind(log);
+  const flushed = new Promise<void>((resolve) => flush(() => resolve()));
+  return withinMs(flushed, flushLimitMs, () => new Error('log flush timed out')).catch(() => undefined);
+}
+
 /**
  * Graceful shutdown for the process shell. On the first signal: stop accepting connections
  * (Fastify's close: the listener closes, idle keep-alive sockets are dropped, requests that
@@ -22,26 +40,6 @@ export interface ShutdownHandle {
  * hooks (accepted async ingest jobs drain first, then the worker pool, Redis). If that takes
  * longer than the deadline, exit 1 anyway. A second signal exits at once.
  */
-/** Longest wait for the log's last lines to be written before the process ends. */
-const flushLimitMs = 2_000;
-
-/**
- * Waits until the logger has handed its buffered lines on (the pretty printer runs in a
- * transport thread that ends with the process, so lines written just before exit were lost).
- */
-function flushLog(app: FastifyInstance): Promise<void> {
-  const log = app.log as FastifyInstance['log'] & { flush?: (cb: (err?: Error) => void) => void };
-  if (typeof log.flush !== 'function') return Promise.resolve();
-  return new Promise<void>((resolve) => {
-    const timer = setTimeout(resolve, flushLimitMs);
-    timer.unref();
-    log.flush?.(() => {
-      clearTimeout(timer);
-      resolve();
-    });
-  });
-}
-
 export function installShutdown(app: FastifyInstance, options: ShutdownOptions): ShutdownHandle {
   const signals = options.signals ?? ['SIGTERM', 'SIGINT'];
   const exit = options.exit ?? ((code: number) => process.exit(code));
@@ -68,15 +66,11 @@ export function installShutdown(app: FastifyInstance, options: ShutdownOptions):
           resolve(1);
         },
       );
-    })
-      .then(async (code) => {
-        await flushLog(app);
-        return code;
-      })
-      .then((code) => {
-        exit(code);
-        return code;
-      });
+    }).then(async (code) => {
+      await flushLog(app);
+      exit(code);
+      return code;
+    });
     return started;
   };
 

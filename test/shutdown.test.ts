@@ -89,4 +89,22 @@ describe('installShutdown', () => {
     process.emit('SIGINT', 'SIGINT');
     expect(codes).toEqual([1]);
   });
+
+  it('exits only after the logger has written what it holds', async () => {
+    const app = Fastify({ logger: false });
+    apps.push(app);
+    await app.ready();
+    // The logger's flush calls back when its buffered lines are written (pino's logger.flush).
+    const flushAsked = deferred<() => void>();
+    (app.log as unknown as { flush: (cb: () => void) => void }).flush = (cb) => flushAsked.resolve(cb);
+    const codes: number[] = [];
+    const handle = installShutdown(app, { deadlineMs: 30_000, signals: [], exit: (c) => codes.push(c) });
+    handles.push(handle);
+    const done = handle.shutdown('test');
+    const written = await flushAsked.promise;
+    expect(codes).toEqual([]);
+    written();
+    expect(await done).toBe(0);
+    expect(codes).toEqual([0]);
+  });
 });
