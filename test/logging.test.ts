@@ -54,13 +54,13 @@ describe('the server\u2019s log as a person and a machine see it', () => {
    * completion line, then stops the server with SIGTERM (sent to the process `server` names:
    * under script(1) the server is script's child); returns the log without colour codes.
    * Each wait is bounded (waitMs) and fails with the log so far; a server still running when
-   * the test ends, passed or failed, is killed. `lastLine` is the line awaited after SIGTERM.
+   * the test ends, passed or failed, is killed. `lastLine` is the line awaited after SIGTERM (null: none; undefined would take the default).
    */
   async function startAndStop(
     command: string,
     args: string[],
     server: (pid: number) => number = (pid) => pid,
-    lastLine: RegExp | undefined = /shutdown complete/,
+    lastLine: RegExp | null = /shutdown complete/,
   ) {
     const child = spawn(command, args, { env, stdio: ['ignore', 'pipe', 'pipe'] });
     const exited = new Promise<number | null>((resolve) => child.on('close', resolve));
@@ -115,7 +115,7 @@ describe('the server\u2019s log as a person and a machine see it', () => {
     const childOf = (pid: number) => Number(readFileSync(`/proc/${pid}/task/${pid}/children`, 'utf8').trim().split(' ')[0]);
     // script(1) may stop copying the terminal's output once its child has exited, so the last
     // line is not awaited here; -e passes on the server's exit code (0: a clean shutdown).
-    const { log, url, page } = await startAndStop(scriptPath, ['-qfec', serve, '/dev/null'], childOf, undefined);
+    const { log, url, page } = await startAndStop(scriptPath, ['-qfec', serve, '/dev/null'], childOf, null);
     expect(page.status).toBe(200);
     // "[20:34:52.281] INFO: foldwise ready: open http://127.0.0.1:PORT/ in a browser {"url":...}"
     const start = log.split(/\r?\n/).find((l) => l.includes('foldwise ready')) ?? '';
