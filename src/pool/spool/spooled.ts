@@ -7,7 +7,7 @@ import { SpoolReadError, type SpoolShape, STOPPED, WRITING, WRITTEN } from './ro
 /**
  * Resamples a source that a decoder is still writing to the spool file at `path`
  * (src/codec/spool-decode.ts, whose `written` is passed here): the workers read the rows
- * from the file as they appear (spool-rows.ts) and start on the top of the image while the
+ * from the file as they appear (rows.ts) and start on the top of the image while the
  * rest is decoded, so most of the resampling overlaps the decode, and no copy of the whole
  * source is made. The decode's own error (ERR_SOURCE_CORRUPT, ...) wins over the render's;
  * a spool file that cannot be read back, or is not what was written, gives SpoolWriteError
