@@ -7,56 +7,22 @@ import { EventEmitter } from 'node:events';
 import type { Config } from '../config.js';
 import { kernelNames } from '../core/index.js';
 import { FoldwiseError } from '../errors.js';
-import { sourceFormats } from '../codec/formats.js';
-import type { Origin } from '../origins/types.js';
-import { renderRendition, type RenderContext } from '../rendition/service.js';
-import { decodeSource, ladderWish, type LoadedSource, loadSource, readSource } from '../rendition/source.js';
-import { frameOf } from '../core/index.js';
+import type { RenderContext } from '../rendition/service.js';
+import { decodeSource, ladderWish, type LoadedSource, readSource } from '../rendition/source.js';
 import { StageClock } from '../rendition/timings.js';
 import type { SpectrumStore } from '../risk/spectrum-store.js';
-import type { IngestFormat } from '../schemas/ingest.js';
 import { compileRenditionQuery } from '../schemas/rendition.js';
 import { admitDecode, admitLadder } from './admit.js';
-import { assessLadder } from '../risk/ladder.js';
-import { mapBounded } from '../lib/bounded.js';
 import { Gate } from '../lib/semaphore.js';
 import { JobTable } from './jobs.js';
-import { ladderFor } from './ladder.js';
-import { assembleManifest, type Manifest, type ManifestRendition } from './manifest.js';
-import { makePlaceholder } from './placeholder.js';
+import type { Manifest } from './manifest.js';
 import { OnceByKey } from '../lib/once-by-key.js';
 import { digestOf, keyFor, storeOnce } from './store.js';
-import { renditionUrl } from './urls.js';
-import { writeWarnings } from '../risk/warnings.js';
+import { buildManifest } from './build.js';
+import { decodeUpload, extensionOf } from './upload-decode.js';
+import type { IngestOptions, IngestWork } from './work.js';
 
-export interface IngestOptions {
-  /** Widths to render; default the ladder capped at the source width. */
-  widths?: readonly number[];
-  /** Formats to render; default config.ingest.formats. */
-  formats?: readonly IngestFormat[];
-  /** Rendition parameters for every rung (prefilter, kernel, light), as a rendition URL spells them. */
-  rendition?: Readonly<Record<string, string>>;
-  /** The html's sizes attribute; default 100vw. */
-  sizes?: string;
-}
-
-/** Prepared ingest work: `key` identifies the manifest; `compute` builds it. */
-export interface IngestWork {
-  key: string;
-  compute: () => Promise<Manifest>;
-  /** The stored source and options, for work handed to another replica (the job queue). */
-  spec?: { source: string; options: IngestOptions };
-}
-
-/** One rendition the service made or found, for observers (metrics, tests). */
-export interface RenditionEvent {
-  source: string;
-  width: number;
-  format: IngestFormat;
-  /** 'miss' when rendered now (or joined a render in flight), else 'hit-<tier>'. */
-  cache: string;
-  bytes: number;
-}
+export type { IngestOptions, IngestWork, RenditionEvent } from './work.js';
 
 export class IngestService extends EventEmitter {
   readonly jobs: JobTable<Manifest>;
@@ -160,23 +126,12 @@ export class IngestService extends EventEmitter {
     this.query.parse({ width: '1', ...options.rendition });
   }
 
-  /** Decodes the uploaded bytes with the rendition path's own loader (same limits). */
-  private decodeUpload(bytes: Buffer, digest: string): Promise<LoadedSource> {
-    const identity = { key: `upload/${digest}`, version: digest };
-    const upload: Origin = {
-      name: 'upload',
-      read: async () => ({ identity, bytes }),
-      identify: async () => identity,
-    };
-    // Observed as the render path's `decode` stage (/metrics counts an upload's decodes).
-    return loadSource(upload, identity.key, this.config.limits, new StageClock(this.render.observe), undefined, ladderWish);
-  }
 
   /** Checks the bytes now (a decode within its own lease) and stores them; only the format is kept. */
   private async store(bytes: Buffer, digest: string): Promise<string> {
     const lease = await admitDecode(this.render.pool, bytes, this.config.limits);
     // The raster is unreachable before the lease ends (and collected then).
-    const ext = await this.decodeUpload(bytes, digest)
+    const ext = await decodeUpload(this.render, this.config.limits, bytes, digest)
       .then((loaded) => extensionOf(loaded.decoded.format))
       .finally(() => lease.release());
     const sourceKey = keyFor(digest, ext, { prefix: this.config.ingest.keyPrefix, digestChars: this.config.ingest.digestChars });
@@ -190,7 +145,7 @@ export class IngestService extends EventEmitter {
     const formats = options.formats ?? ingest.formats;
     const { lease, concurrency } = await admitLadder(this.render.pool, bytes, limits, { ...options, formats, concurrency: ingest.concurrency });
     try {
-      const { decoded } = await this.decodeUpload(bytes, digest);
+      const { decoded } = await decodeUpload(this.render, this.config.limits, bytes, digest);
       const sourceKey = keyFor(digest, extensionOf(decoded.format), { prefix: ingest.keyPrefix, digestChars: ingest.digestChars });
       await this.write(sourceKey, bytes);
       // The stored file's identity (the cache keys' version), asked of the origin, not read back.
@@ -220,50 +175,8 @@ export class IngestService extends EventEmitter {
     }
   }
 
-  private async build(sourceKey: string, loaded: LoadedSource, options: IngestOptions, concurrency: number): Promise<Manifest> {
-    const { identity, decoded } = loaded;
-    // An animation's ladder and risk are those of its first frame; its renditions stay animated.
-    const frames = decoded.animation?.frames ?? 1;
-    const raster = frames > 1 ? frameOf(decoded.raster, frames, 0) : decoded.raster;
-    const formats = options.formats ?? this.config.ingest.formats;
-    const widths = ladderFor(raster.width, options.widths);
-    const extra = options.rendition ?? {};
-    const queryFor = (width: number, format: IngestFormat) => this.query.parse({ width: String(width), format, ...extra });
-    // The render path's spectrum store: analysed once per source version, and the renders'
-    // content-adaptive prefilter below finds it there by identity.
-    const before = this.spectra.analyses;
-    const spectrum = await this.spectra.ofRaster(raster, identity);
-    if (this.spectra.analyses > before) this.emit('analysed', sourceKey);
-    const steps = assessLadder(
-      spectrum,
-      widths.map((width) => ({ width, query: queryFor(width, formats[0]) })),
-      this.config.limits,
-    );
-    const tasks = steps.flatMap((step) => formats.map((format) => ({ step, format })));
-    const renditions = await mapBounded(tasks, concurrency, async ({ step, format }): Promise<ManifestRendition> => {
-      // The source decoded above serves every miss of the ladder (no decode per rendition),
-      // within the ladder's lease.
-      const r = await renderRendition({ ...this.render, decoded: loaded, admitted: true }, sourceKey, queryFor(step.width, format));
-      this.emit('rendition', { source: sourceKey, width: step.width, format, cache: r.cache, bytes: r.entry.body.length } satisfies RenditionEvent);
-      return {
-        url: renditionUrl(sourceKey, step.width, format, this.config.signing.keys[0], extra, this.config.server.publicUrl),
-        width: step.width,
-        height: step.height,
-        format,
-        bytes: r.entry.body.length,
-        etag: r.entry.etag,
-        risk: { level: step.level, score: step.score },
-      };
-    });
-    const placeholder = await makePlaceholder(this.render, sourceKey, loaded, (raw) => this.query.parse(raw));
-    const source = { key: sourceKey, width: raster.width, height: raster.height, ...(frames > 1 ? { frames } : {}) };
-    return assembleManifest(source, formats, renditions, writeWarnings(steps), { sizes: options.sizes, placeholder, transparent: loaded.decoded.hasAlpha });
+  /** The manifest of a decoded source (build.ts), within the caller's lease. */
+  private build(sourceKey: string, loaded: LoadedSource, options: IngestOptions, concurrency: number): Promise<Manifest> {
+    return buildManifest({ config: this.config, render: this.render, spectra: this.spectra, query: this.query, events: this }, sourceKey, loaded, options, concurrency);
   }
-}
-
-/** The file extension a decoded format is stored under (the origin lists by extension). */
-function extensionOf(format: string): string {
-  const found = (sourceFormats[format] ?? (format === 'avif' ? sourceFormats.heif : undefined))?.extensions[0];
-  if (!found) throw new FoldwiseError('ERR_SOURCE_UNSUPPORTED', `uploads of ${format} images are not accepted`);
-  return found;
 }

@@ -1,67 +1,23 @@
-import type { Flight } from '../lib/single-flight.js';
-import type { TieredCache } from '../cache/tiered.js';
 import type { CacheEntry } from '../cache/types.js';
-import type { Limits } from '../config.js';
 import { formatPlanHeader } from '../core/index.js';
-import type { PixelRaster, Plan } from '../core/types.js';
+import type { Plan } from '../core/types.js';
 import { formatSpecs, type OutputFormat } from '../codec/formats.js';
 import { negotiateAnimated, negotiateFormat } from '../codec/negotiate.js';
-import type { Animation } from '../codec/decode.js';
-import { frameOf, renderFrames, stackFrames } from '../core/index.js';
-import type { Origin, SourceIdentity } from '../origins/types.js';
+import type { SourceIdentity } from '../origins/types.js';
 import { canonicalQuery } from '../schemas/canonical.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import { withDeadline } from '../lib/deadline.js';
 import { formatKey } from './format-key.js';
-import type { IdentityMemo } from './identity.js';
 import { renditionKey, strongEtag } from './key.js';
-import { checkRequestedSize, clampedHeader, type PlannedRendition, planRendition } from './plan.js';
-import type { RenderPool } from '../pool/render-pool.js';
-import type { SharedRaster } from '../pool/worker.js';
+import { checkRequestedSize, clampedHeader } from './plan.js';
 import { admitRendition } from './admit.js';
-import { decodeSource, type LoadedSource, type ReadSource, readSource, servesWish, wishOf } from './source.js';
-import { resampleWhileDecoding } from './streamed.js';
-import { type AdaptivePrefilter, shrinks } from './prefilter.js';
+import { type ReadSource, readSource } from './source.js';
 import { encodeSmallest, fallbackFormat } from './smallest.js';
-import { type Stage, StageClock, type StageTiming } from './timings.js';
+import { StageClock, type StageTiming } from './timings.js';
+import type { RenderContext, RenditionContextInternal } from './context.js';
+import { givenSource, resampleSource } from './resample.js';
 
-/** Everything a render needs; no Fastify request, so ingest and the CLI can call it too. */
-export interface RenderContext {
-  origin: Origin;
-  /** Told of each rendition about to be stored, by its source's key (the index deletion uses). */
-  onStored?: (source: string, key: string) => void;
-  cache: TieredCache;
-  flight: Flight<CacheEntry>;
-  pool: RenderPool;
-  limits: Limits;
-  /** Stage durations, for metrics. */
-  observe?: (stage: Stage, seconds: number) => void;
-  /** Cache outcome of each call: 'hit-<tier>' or 'miss'. */
-  onLookup?: (result: string) => void;
-  /** Short-lived memo of source identities (hits then skip the origin); default ask the origin. */
-  identities?: IdentityMemo;
-  /**
-   * Content-adaptive prefilter (alias-risk analysis, src/risk/service.ts), asked only when
-   * prefilter=auto and the plan shrinks; it analyses and decides in the pool's threads.
-   * Without it prefilter=auto is the kernel's own.
-   */
-  adaptive?: AdaptivePrefilter;
-  /**
-   * A source the caller has already read and decoded (the upload hook's ladder, the alias-risk
-   * preview): a miss renders from it instead of reading and decoding again, when it is the
-   * version of the path asked for.
-   */
-  decoded?: LoadedSource;
-  /**
-   * The caller holds a lease of the memory budget covering this render (the upload hook's
-   * ladder): the render is not admitted again.
-   */
-  admitted?: boolean;
-  /** Aborts when no one waits for the render any more (every caller gone): ERR_REQUEST_ABANDONED. */
-  signal?: AbortSignal;
-  /** The refusal a miss gets while the process sheds load (hits are still served), else null. */
-  shedding?: Error | null;
-}
+export type { RenderContext } from './context.js';
 
 export interface Rendition {
   entry: CacheEntry;
@@ -69,75 +25,6 @@ export interface Rendition {
   cache: string;
   timings: StageTiming[];
   key: string;
-}
-
-/** A rendition resampled and not yet encoded: what outlives the source's pixels. */
-interface Resampled {
-  raster: PixelRaster;
-  layout: PlannedRendition['layout'];
-  plan: Plan;
-  hasAlpha: boolean;
-  identity: SourceIdentity;
-  /** Set when the source's frames were kept: the raster stacks the resampled frames. */
-  animation?: Animation;
-  /** limits.renderTimeoutMs from the end of planning: covers resample and encode. */
-  deadline: AbortSignal;
-}
-
-/** The caller's decoded source when it is the version asked for, decoded as the query wishes. */
-function givenSource(ctx: RenditionContextInternal, q: RenditionQuery): LoadedSource | undefined {
-  const given = ctx.decoded;
-  return given && servesWish(given.decoded, wishOf(q)) && given.identity.key === ctx.asked.key && given.identity.version === ctx.asked.version ? given : undefined;
-}
-
-/** The given source, else `read` decoded now (or resampled while it decodes: streamed). */
-async function decodedSource(ctx: RenditionContextInternal, source: LoadedSource | ReadSource, q: RenditionQuery): Promise<LoadedSource | Resampled> {
-  if ('decoded' in source) return source;
-  const read = source;
-  const streamed = await resampleWhileDecoding(ctx, read, q);
-  if (streamed) return { ...streamed, hasAlpha: false, identity: read.identity };
-  return decodeSource(read, ctx.limits, ctx.clock, wishOf(q));
-}
-
-/**
- * The pixel-holding stages (decode, plan, resample), overlapped where they can be
- * (streamed.ts), else one after the other. The decoded source lives only in this frame.
- */
-async function resampleSource(ctx: RenditionContextInternal, read: LoadedSource | ReadSource, q: RenditionQuery): Promise<Resampled> {
-  const source = await decodedSource(ctx, read, q);
-  ctx.signal?.throwIfAborted();
-  if ('raster' in source) return source;
-  const { decoded, identity } = source;
-  const { animation } = decoded;
-  const frames = animation?.frames ?? 1;
-  const whole = decoded.raster;
-  // An animation is planned on one frame, and its content-adaptive prefilter comes from the
-  // first frame's spectrum (the alias-risk report says so).
-  const src = frames > 1 ? frameOf(whole, frames, 0) : whole;
-  const deadline = AbortSignal.timeout(ctx.limits.renderTimeoutMs);
-  const stop = ctx.signal ? AbortSignal.any([ctx.signal, deadline]) : deadline;
-  let planned = planRendition(src, q, ctx.limits);
-  const adaptive = q.prefilter === 'auto' && shrinks(planned.plan) ? ctx.adaptive : undefined;
-  // The content-adaptive plan: from the kept spectrum, else the pool analyses the staged pixels.
-  const plan = !adaptive ? planned.plan : async (staged: SharedRaster) => {
-    const decide = async (p: Plan) => {
-      const known = await adaptive.known(p, identity, stop);
-      return known ? known.filter : adaptive.analyse(staged, p, identity, stop);
-    };
-    planned = (await planRendition(src, q, ctx.limits, { decide })) ?? planned;
-    return planned.plan;
-  };
-  const raster = await ctx.clock.time('resample', async () => {
-    if (frames === 1) return ctx.pool.resample(whole, plan, stop);
-    if (typeof plan !== 'function') return renderFrames(whole, frames, (f) => ctx.pool.resample(f, plan, stop));
-    // The first frame settles the plan (its spectrum decides); every other frame follows it.
-    const head = await ctx.pool.resample(src, plan, stop);
-    const rest = Array.from({ length: frames - 1 }, (_, i) => ctx.pool.resample(frameOf(whole, frames, i + 1), planned.plan, stop));
-    return stackFrames([head, ...(await Promise.all(rest))]);
-  });
-  if (whole.gamut) raster.gamut = whole.gamut;
-  const { layout } = planned;
-  return { raster, layout, plan: planned.plan, hasAlpha: decoded.hasAlpha, identity, deadline, ...(animation ? { animation } : {}) };
 }
 
 async function produce(
@@ -180,12 +67,6 @@ function entryOf(body: Buffer, format: OutputFormat, plan: Plan, clamped: string
     headers,
     createdAt: Date.now(),
   };
-}
-
-interface RenditionContextInternal extends RenderContext {
-  clock: StageClock;
-  /** The identity renderRendition found for the path (the cache key's). */
-  asked: SourceIdentity;
 }
 
 /**
