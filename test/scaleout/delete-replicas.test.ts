@@ -29,6 +29,7 @@ beforeAll(async () => {
   const config = { cache: { redisUrl: server.url }, redis: { namespace: 'del:' }, signing: { keys: [key], required: false } };
   [a, b] = [await build({ sourceDir: dir, config }), await build({ sourceDir: dir, config })];
   await Promise.all([a.app.sharedRedis!.tier.link.ready(), b.app.sharedRedis!.tier.link.ready()]);
+  await Promise.all([a.app.purgeBus!.whenSubscribed(), b.app.purgeBus!.whenSubscribed()]);
 });
 afterAll(async () => {
   await Promise.all([a?.close(), b?.close()]);

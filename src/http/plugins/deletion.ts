@@ -19,6 +19,8 @@ declare module 'fastify' {
   interface FastifyInstance {
     /** Deletes a source and everything made from it, on every tier and every replica. */
     deleteSource(path: string): Promise<Deletion>;
+    /** The purge channel with Redis (readiness waits for its subscription); null without. */
+    purgeBus: PurgeBus | null;
   }
 }
 
@@ -42,6 +44,7 @@ async function deletionPlugin(app: FastifyInstance): Promise<void> {
   const shared = app.sharedRedis;
   const bus = shared ? new PurgeBus(shared.tier.link, forgetLocally, (err) => app.log.warn({ err }, 'purge message failed')) : undefined;
   if (bus) void bus.start();
+  app.decorate('purgeBus', bus ?? null);
 
   app.decorate('deleteSource', async (path: string): Promise<Deletion> => {
     const remove = app.origin.remove?.bind(app.origin);
