@@ -22,9 +22,10 @@ export interface SenderSettings {
   baseDelayMs: number;
   /**
    * Redis URL and key prefix for the shared retry queue; absent = in-process timers.
-   * `closeMs`: the longest a close waits for Redis (away, or just back) before dropping it.
+   * `closeMs`: the longest a close waits for Redis (away, or just back) before dropping it;
+   * `lockMs`: a delivery's lock (a replica that died mid-delivery holds it at most this long).
    */
-  shared?: { url: string; prefix: string; closeMs: number };
+  shared?: { url: string; prefix: string; closeMs: number; lockMs: number };
 }
 
 type Deliver = (url: string, body: string) => Promise<number>;
@@ -52,7 +53,14 @@ export class CallbackSender extends EventEmitter {
     this.worker = new Worker('callbacks', async (job: Job) => {
       const d = job.data as Delivery;
       return this.deliver(d.url, d.body);
-    }, { connection: { ...connection, maxRetriesPerRequest: null }, prefix, concurrency: 4 });
+    }, {
+      connection: { ...connection, maxRetriesPerRequest: null },
+      prefix,
+      concurrency: 4,
+      // A delivery whose replica died is taken over once its lock lapses (BullMQ's stalled check).
+      lockDuration: settings.shared.lockMs,
+      stalledInterval: settings.shared.lockMs,
+    });
     this.queue.on('error', (e: Error) => this.emit('redis-error', e));
     this.worker.on('error', (e: Error) => this.emit('redis-error', e));
     this.worker.on('completed', (job: Job) => this.emit('delivered', (job.data as Delivery).job, job.returnvalue));
@@ -61,13 +69,17 @@ export class CallbackSender extends EventEmitter {
     });
   }
 
-  /** Queues the delivery of `outcome` to `url` (once per job id on the shared queue). */
-  async send(url: string, outcome: CallbackOutcome): Promise<void> {
+  /**
+   * Queues the delivery of `outcome` to `url`. On the shared queue once per `once` (default
+   * the job id): the same key queued again (a job run again after its replica died) is the
+   * delivery already queued.
+   */
+  async send(url: string, outcome: CallbackOutcome, once = outcome.job): Promise<void> {
     const delivery: Delivery = { url, body: JSON.stringify(outcome), job: outcome.job };
     const { attempts, baseDelayMs } = this.settings;
     if (this.queue) {
       await this.queue.add('callback', delivery, {
-        jobId: `${outcome.job}-callback`,
+        jobId: `${once}-callback`,
         attempts,
         backoff: { type: 'exponential', delay: baseDelayMs },
         removeOnComplete: { age: 3600 },

@@ -5,6 +5,9 @@
  * check), and a replica that stops hands its unfinished jobs back to the queue. The work is
  * idempotent: the job id is derived from the work's key (content digest and options), so the
  * same upload twice is one job, and a job run twice renders into the same cache keys.
+ * A job's end is announced (its callback queued) inside the job, before BullMQ records the
+ * end: a replica that dies in between leaves the job to be run again and announced again
+ * (at least once; the callback queue keeps one delivery per job id), never ended unannounced.
  */
 import { EventEmitter } from 'node:events';
 import { type Job, Queue, UnrecoverableError, Worker } from 'bullmq';
@@ -43,6 +46,16 @@ export interface QueueSettings {
 
 const QUEUE = 'ingest';
 
+/** A job's end as it is announced: the manifest, or the failure that ends it for good. */
+export type JobEnd = { state: 'done'; manifest: Manifest } | { state: 'failed'; error: { code: string; detail: string } };
+
+/**
+ * Announces a job's end (queues its callback); a rejection makes the attempt fail, to be
+ * retried. `job.timestamp` (its creation) tells a run again of one job from a new job of the
+ * same work made after the first expired.
+ */
+export type Announce = (job: { id: string; timestamp: number }, work: QueuedWork, end: JobEnd) => Promise<void>;
+
 export class IngestQueue extends EventEmitter {
   /** False once stopping began: `submit` refuses new jobs. */
   accepting = true;
@@ -54,6 +67,7 @@ export class IngestQueue extends EventEmitter {
     private readonly settings: QueueSettings,
     run: (work: QueuedWork) => Promise<Manifest>,
     describe: (e: unknown) => { code: string; detail: string; status: number },
+    announce: Announce = async () => undefined,
   ) {
     super();
     const connection = connectionOf(settings.url);
@@ -64,16 +78,22 @@ export class IngestQueue extends EventEmitter {
       QUEUE,
       async (job: Job, token?: string) => {
         this.running.set(job.id!, { job, token });
+        const work = job.data as QueuedWork;
+        let manifest: Manifest;
         try {
-          return await run(job.data as QueuedWork);
+          manifest = await run(work);
         } catch (e) {
           const failure = describe(e);
           // A refusal (4xx: corrupt picture, bad parameters) fails for good; the rest is retried.
+          const final = failure.status < 500 || job.attemptsMade + 1 >= (job.opts.attempts ?? 1);
+          if (final) await announce({ id: job.id!, timestamp: job.timestamp }, work, { state: 'failed', error: { code: failure.code, detail: failure.detail } });
           throw failure.status < 500 ? new UnrecoverableError(encodeFailure(failure)) : new Error(encodeFailure(failure));
         } finally {
           this.running.delete(job.id!);
           if (this.running.size === 0) this.emit('idle');
         }
+        await announce({ id: job.id!, timestamp: job.timestamp }, work, { state: 'done', manifest });
+        return manifest;
       },
       {
         connection: { ...connection, maxRetriesPerRequest: null },
