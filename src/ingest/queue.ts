@@ -12,8 +12,9 @@
 import { EventEmitter } from 'node:events';
 import { type Job, Queue, UnrecoverableError, Worker } from 'bullmq';
 import type { JobView } from './jobs.js';
-import { closeWithin, queueReady } from './queue-link.js';
-import { connectionOf, decodeFailure, encodeFailure, jobIdOf, stateOf } from './queue-terms.js';
+import { closeWithin, queueReady, within } from './queue-link.js';
+import { connectionOf, encodeFailure, jobIdOf } from './queue-terms.js';
+import { resultExpired, viewOf } from './queue-view.js';
 import type { Manifest } from './manifest.js';
 import type { IngestOptions } from './service.js';
 
@@ -42,6 +43,8 @@ export interface QueueSettings {
   attempts: number;
   /** Longest wait for Redis when accepting or polling a job (it may be away). */
   timeoutMs: number;
+  /** The clock finished jobs age by (tests pass their own). */
+  now?: () => number;
 }
 
 const QUEUE = 'ingest';
@@ -122,8 +125,8 @@ export class IngestQueue extends EventEmitter {
     await queueReady(this.queue);
     const id = jobIdOf(work);
     const existing = await this.queue.getJob(id);
-    if (existing && (await existing.getState()) === 'failed') await existing.remove();
-    else if (existing) return this.view(existing);
+    if (existing && ((await existing.getState()) === 'failed' || this.expired(existing))) await existing.remove();
+    else if (existing) return viewOf(this.queue, existing);
     const counts = await this.queue.getJobCounts('waiting', 'active', 'delayed', 'prioritized');
     if (Object.values(counts).reduce((a, b) => a + b, 0) >= this.settings.maxJobs) return undefined;
     const job = await this.queue.add('ingest', work, {
@@ -133,7 +136,7 @@ export class IngestQueue extends EventEmitter {
       removeOnComplete: { age: this.settings.resultSeconds },
       removeOnFail: { age: this.settings.resultSeconds },
     });
-    return this.view(job);
+    return viewOf(this.queue, job);
   }
 
   /** Jobs this replica's worker runs now. */
@@ -151,30 +154,20 @@ export class IngestQueue extends EventEmitter {
   async get(id: string): Promise<JobView<Manifest> | undefined> {
     if (!/^j[0-9a-f]{32}$/.test(id)) return undefined;
     const job = await this.bounded(queueReady(this.queue).then(() => this.queue.getJob(id)));
-    return job ? this.bounded(this.view(job)) : undefined;
+    if (job && this.expired(job)) {
+      await this.bounded(job.remove()).catch(() => undefined);
+      return undefined;
+    }
+    return job ? this.bounded(viewOf(this.queue, job)) : undefined;
+  }
+
+  private expired(job: Job): boolean {
+    return resultExpired(job, this.settings.resultSeconds, this.settings.now?.() ?? Date.now());
   }
 
   /** BullMQ waits for a lost connection to return; a request must not wait that long. */
   private bounded<T>(work: Promise<T>): Promise<T> {
-    let timer: NodeJS.Timeout | undefined;
-    const late = new Promise<never>((_, reject) => {
-      timer = setTimeout(() => reject(new Error(`Redis did not answer within ${this.settings.timeoutMs} ms`)), this.settings.timeoutMs);
-    });
-    // A late answer after the timeout is dropped (its rejection too).
-    work.catch(() => undefined);
-    return Promise.race([work, late]).finally(() => clearTimeout(timer));
-  }
-
-  private async view(fetched: Job): Promise<JobView<Manifest>> {
-    let job = fetched;
-    const state = stateOf[await job.getState()] ?? 'queued';
-    // The job may have ended between its fetch and the state read: fetch it again for its result.
-    if ((state === 'done' || state === 'failed') && !job.finishedOn) job = (await this.queue.getJob(job.id!)) ?? job;
-    const view: JobView<Manifest> = { id: job.id!, state, createdAt: new Date(job.timestamp).toISOString() };
-    if (job.finishedOn && (state === 'done' || state === 'failed')) view.finishedAt = new Date(job.finishedOn).toISOString();
-    if (state === 'done') view.result = job.returnvalue as Manifest;
-    if (state === 'failed') view.error = decodeFailure(job.failedReason);
-    return view;
+    return within(work, this.settings.timeoutMs);
   }
 
   /**
