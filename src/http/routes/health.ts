@@ -52,10 +52,8 @@ export default async function healthRoutes(app: FastifyInstance): Promise<void> 
     },
     async (_req, reply) => {
       const pool = app.renderPool;
-      const dir = app.config.origin.sourceDir;
-      const originOk = await access(dir).then(() => true, () => false);
       const checks: Record<string, { ok: boolean; detail: string }> = {
-        origin: { ok: originOk, detail: originOk ? 'source folder reachable' : 'source folder missing' },
+        origin: await originCheck(app),
         stopping: { ok: !stopping, detail: stopping ? 'shutting down' : 'running' },
         warm: { ok: pool.warmed, detail: pool.warmed ? 'render threads warm' : 'render threads starting' },
       };
@@ -95,4 +93,16 @@ function purgeCheck(app: FastifyInstance): { check: { ok: boolean; detail: strin
   const detail = { live: 'subscribed to deletions', starting: 'subscribing to deletions', lost: 'not subscribed to deletions' }[state];
   const redisUp = app.sharedRedis?.health().status === 'up';
   return { check: { ok: state === 'live', detail }, blocks: state === 'starting' || (state === 'lost' && redisUp) };
+}
+
+/**
+ * The folder origin's folder must exist. An object store is not asked here: a store that fails
+ * answers each request 502 with Retry-After while hits are still served, and taking every
+ * replica out of the balancer for it would turn that into an outage.
+ */
+async function originCheck(app: FastifyInstance): Promise<{ ok: boolean; detail: string }> {
+  const { storeUrl, sourceDir } = app.config.origin;
+  if (storeUrl) return { ok: true, detail: `object store ${storeUrl}` };
+  const ok = await access(sourceDir).then(() => true, () => false);
+  return { ok, detail: ok ? 'source folder reachable' : 'source folder missing' };
 }
