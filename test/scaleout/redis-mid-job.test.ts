@@ -8,7 +8,7 @@
  * Tests wait on the origin's `read`, the queue's `idle` and `settled` events, never on time.
  */
 import { once } from 'node:events';
-import { mkdir, mkdtemp, rm } from 'node:fs/promises';
+import { mkdir, mkdtemp, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import sharp from 'sharp';
@@ -59,10 +59,12 @@ const post = (n: Node, payload: Buffer, async = true) =>
   });
 
 /** Holds the job at its origin read, kills Redis, lets the work end while Redis is away. */
-async function workWhileRedisIsAway(n: Node, server: RedisProcess, bytes: Buffer): Promise<string> {
+async function workWhileRedisIsAway(n: Node, server: RedisProcess, bytes: Buffer | { source: string }): Promise<string> {
   n.origin.close();
   const reading = once(n.origin, 'read');
-  const accepted = await post(n, bytes);
+  const accepted = Buffer.isBuffer(bytes)
+    ? await post(n, bytes)
+    : await n.app.inject({ method: 'POST', url: '/v1/ingest?widths=64', headers: { prefer: 'respond-async', 'content-type': 'application/json' }, payload: bytes });
   expect(accepted.statusCode).toBe(202);
   const { id } = accepted.json();
   await reading; // the job runs on this replica, held before its source is read
@@ -123,6 +125,28 @@ describe.skipIf(!redisBinary)('Redis going down mid-job', () => {
       const sync = await post(n, bytes, false);
       expect(sync.statusCode).toBe(200);
       expect(job.json().manifest).toEqual(sync.json());
+    } finally {
+      await n.close();
+      await server.stop();
+    }
+  });
+
+  it('with an append-only Redis, a job whose work failed for good while Redis was away is failed, with its code, when it returns', async () => {
+    await mkdir(join(dir, 'aof-failed'));
+    const server = await startRedis({ persistDir: join(dir, 'aof-failed') });
+    const sources = join(dir, 'sources-failed');
+    const n = await node(sources, server.url);
+    try {
+      // A PNG cut after its header: the decode refuses it (a 4xx, not retried).
+      await writeFile(join(sources, 'torn.png'), (await png(64, 64, rampCode(64))).subarray(0, 60));
+      const id = await workWhileRedisIsAway(n, server, { source: 'torn.png' });
+      const ended = settled(n, id);
+      await server.restart();
+      expect(await ended).toBe('failed');
+      const job = await n.app.inject(`/v1/ingest/jobs/${id}`);
+      expect(job.statusCode).toBe(200);
+      expect(job.json()).toMatchObject({ id, state: 'failed', error: { code: expect.stringMatching(/^ERR_SOURCE_/) } });
+      expect((await n.app.inject('/healthz')).statusCode).toBe(200);
     } finally {
       await n.close();
       await server.stop();
