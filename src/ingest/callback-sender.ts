@@ -5,7 +5,7 @@
  * stops, which the README says). Emits 'delivered' (jobId, status) and 'gave-up' (jobId, error).
  */
 import { EventEmitter } from 'node:events';
-import { type Job, Queue, Worker } from 'bullmq';
+import { DelayedError, type Job, Queue, Worker } from 'bullmq';
 import { closeWithin } from './queue-link.js';
 import { connectionOf } from './queue-terms.js';
 
@@ -37,6 +37,11 @@ interface Delivery {
 }
 
 export class CallbackSender extends EventEmitter {
+  /**
+   * On the shared queue, whether job `id`'s end is recorded: a callback queued inside its job
+   * waits (delayed again, no attempt spent) until a poll would show the same outcome.
+   */
+  ended: (id: string) => Promise<boolean> = async () => true;
   private readonly queue?: Queue;
   private readonly worker?: Worker;
   private readonly timers = new Set<NodeJS.Timeout>();
@@ -50,8 +55,12 @@ export class CallbackSender extends EventEmitter {
     const connection = connectionOf(settings.shared.url);
     const prefix = settings.shared.prefix;
     this.queue = new Queue('callbacks', { connection: { ...connection, enableOfflineQueue: false }, prefix });
-    this.worker = new Worker('callbacks', async (job: Job) => {
+    this.worker = new Worker('callbacks', async (job: Job, token?: string) => {
       const d = job.data as Delivery;
+      if (!(await this.ended(d.job))) {
+        await job.moveToDelayed(Date.now() + Math.min(settings.baseDelayMs, 100), token);
+        throw new DelayedError();
+      }
       return this.deliver(d.url, d.body);
     }, {
       connection: { ...connection, maxRetriesPerRequest: null },

@@ -1,5 +1,5 @@
 /**
- * A queued job as the API shows it, and when its result has expired.
+ * A queued job as the API shows it, whether its end is recorded, and when its result expires.
  */
 import type { Job, Queue } from 'bullmq';
 import type { JobView } from './jobs.js';
@@ -25,4 +25,10 @@ export async function viewOf(queue: Queue, fetched: Job): Promise<JobView<Manife
  */
 export function resultExpired(job: Job, resultSeconds: number, now: number): boolean {
   return job.finishedOn !== undefined && now - job.finishedOn >= resultSeconds * 1000;
+}
+
+/** Whether job `id`'s end is recorded (or it is gone). */
+export async function jobEnded(queue: Queue, id: string): Promise<boolean> {
+  const job = await queue.getJob(id);
+  return !job || ['completed', 'failed'].includes(await job.getState());
 }

@@ -13,8 +13,8 @@ import { EventEmitter } from 'node:events';
 import { type Job, Queue, UnrecoverableError, Worker } from 'bullmq';
 import type { JobView } from './jobs.js';
 import { closeWithin, queueReady, within } from './queue-link.js';
-import { connectionOf, encodeFailure, jobIdOf } from './queue-terms.js';
-import { resultExpired, viewOf } from './queue-view.js';
+import { type Announce, connectionOf, encodeFailure, jobIdOf } from './queue-terms.js';
+import { jobEnded, resultExpired, viewOf } from './queue-view.js';
 import type { Manifest } from './manifest.js';
 import type { IngestOptions } from './service.js';
 
@@ -48,16 +48,6 @@ export interface QueueSettings {
 }
 
 const QUEUE = 'ingest';
-
-/** A job's end as it is announced: the manifest, or the failure that ends it for good. */
-export type JobEnd = { state: 'done'; manifest: Manifest } | { state: 'failed'; error: { code: string; detail: string } };
-
-/**
- * Announces a job's end (queues its callback); a rejection makes the attempt fail, to be
- * retried. `job.timestamp` (its creation) tells a run again of one job from a new job of the
- * same work made after the first expired.
- */
-export type Announce = (job: { id: string; timestamp: number }, work: QueuedWork, end: JobEnd) => Promise<void>;
 
 export class IngestQueue extends EventEmitter {
   /** False once stopping began: `submit` refuses new jobs. */
@@ -150,6 +140,11 @@ export class IngestQueue extends EventEmitter {
     await queueReady(this.queue);
   }
 
+  /** Whether job `id`'s end is recorded (or it is gone): a poll shows its outcome. */
+  ended(id: string): Promise<boolean> {
+    return jobEnded(this.queue, id);
+  }
+
   /** The job as the API shows it; undefined when unknown or expired. */
   async get(id: string): Promise<JobView<Manifest> | undefined> {
     if (!/^j[0-9a-f]{32}$/.test(id)) return undefined;
@@ -161,9 +156,7 @@ export class IngestQueue extends EventEmitter {
     return job ? this.bounded(viewOf(this.queue, job)) : undefined;
   }
 
-  private expired(job: Job): boolean {
-    return resultExpired(job, this.settings.resultSeconds, this.settings.now?.() ?? Date.now());
-  }
+  private expired = (job: Job): boolean => resultExpired(job, this.settings.resultSeconds, this.settings.now?.() ?? Date.now());
 
   /** BullMQ waits for a lost connection to return; a request must not wait that long. */
   private bounded<T>(work: Promise<T>): Promise<T> {

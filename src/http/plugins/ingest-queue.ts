@@ -71,6 +71,8 @@ async function ingestQueuePlugin(app: FastifyInstance): Promise<void> {
     },
   });
   queue.on('settled', (_id: string, state: 'done' | 'failed') => settled.inc({ state }));
+  // A callback is delivered once the job's end is recorded, so a poll on receipt agrees with it.
+  app.callbacks.ended = (id) => queue.ended(id);
   // BullMQ reconnects by itself; the errors are logged, rate-limited by the link's own pace.
   queue.on('redis-error', (e: Error) => app.log.warn({ err: e.message }, 'ingest queue: Redis error'));
   app.decorate('ingestQueue', queue);
