@@ -54,7 +54,8 @@ async function deletionPlugin(app: FastifyInstance): Promise<void> {
     const remove = app.origin.remove?.bind(app.origin);
     if (!remove) throw new FoldwiseError('ERR_ORIGIN_DISABLED', 'this origin cannot delete sources');
     // Without Redis the other replicas would keep serving what this one deletes: refuse first.
-    if (bus && shared?.health().status !== 'up') {
+    const link = shared?.health();
+    if (bus && (link?.status !== 'up' || link.breaker === 'open')) {
       throw purgeDown('deleting needs Redis to reach every replica, and Redis cannot be reached; nothing was deleted');
     }
     const identity = await app.origin.identify(path).catch((e: unknown) => {
