@@ -59,6 +59,7 @@ export const errorCodes = {
   ERR_INGEST_QUEUE_DOWN: { status: 503, title: 'The job queue cannot be reached; retry later' },
   ERR_STORE_FAILED: { status: 502, title: 'The object store failed; retry later' },
   ERR_INGEST_CALLBACK_UNSIGNED: { status: 400, title: 'Callbacks need a signing key to sign their bodies' },
+  ERR_PURGE_DOWN: { status: 503, title: 'Deletion cannot reach the other replicas (Redis is away); retry later' },
 } as const satisfies Record<string, { status: number; title: string }>;
 
 export type ErrorCode = keyof typeof errorCodes;

@@ -3,6 +3,8 @@
  * Redis (`<namespace>purge`); every other replica forgets the source's entries in its own
  * memory and disk tiers and memos, then acknowledges (`<namespace>purged`). The deleting
  * replica waits for as many acknowledgements as PUBLISH counted receivers, within a bound.
+ * A replica that is not subscribed misses purges, so readiness asks `subscribed` (and the
+ * bus says 'subscribed' each time the subscription is made, again after a lost connection).
  */
 import { randomUUID } from 'node:crypto';
 import { EventEmitter } from 'node:events';
@@ -17,44 +19,72 @@ interface PurgeMessage {
   keys: string[];
 }
 
-export class PurgeBus {
+/** starting: no outcome yet; live: subscribed now; lost: the subscription failed or its connection dropped. */
+export type PurgeState = 'starting' | 'live' | 'lost';
+
+export class PurgeBus extends EventEmitter {
   private readonly me = randomUUID();
   private readonly acks = new EventEmitter();
   private readonly purge: string;
   private readonly purged: string;
-  private subscribed: Promise<unknown> | undefined;
+  private pending: Promise<unknown> | undefined;
   private listening = false;
+  private now: PurgeState = 'starting';
 
   constructor(
     private readonly link: RedisLink,
     private readonly forget: ForgetLocally,
     private readonly onError: (e: unknown) => void,
   ) {
+    super();
     this.purge = `${link.namespace}purge`;
     this.purged = `${link.namespace}purged`;
   }
 
+  /** Whether purges reach this replica now. */
+  get state(): PurgeState {
+    return this.now;
+  }
+
+  /** Resolves once subscribed (at once when it is now). */
+  whenSubscribed(): Promise<void> {
+    return this.now === 'live' ? Promise.resolve() : new Promise((resolve) => this.once('subscribed', () => resolve()));
+  }
+
+  private become(state: PurgeState): void {
+    if (this.now === state) return;
+    this.now = state;
+    this.emit(state === 'live' ? 'subscribed' : state);
+  }
+
   /** Subscribes (once); resolves when subscribed, or when that failed (it is retried on use). */
   start(): Promise<unknown> {
-    if (this.subscribed) return this.subscribed;
+    if (this.pending) return this.pending;
     const sub = this.link.subscriber();
     if (!this.listening) {
       this.listening = true;
       // A subscription lost with the connection (or refused before it was up) is made again.
       sub.on('ready', () => {
-        this.subscribed = undefined;
+        this.pending = undefined;
         void this.start();
       });
+      sub.on('close', () => this.become('lost'));
       sub.on('message', (channel: string, text: string) => {
         if (channel === this.purge) void this.onPurge(text);
         else if (channel === this.purged) this.acks.emit('ack', text);
       });
     }
-    this.subscribed = sub.subscribe(this.purge, this.purged).catch((e: unknown) => {
-      this.subscribed = undefined;
-      this.onError(e);
-    });
-    return this.subscribed;
+    this.pending = sub.subscribe(this.purge, this.purged).then(
+      () => {
+        if (sub.status === 'ready') this.become('live');
+      },
+      (e: unknown) => {
+        this.pending = undefined;
+        this.become('lost');
+        this.onError(e);
+      },
+    );
+    return this.pending;
   }
 
   private async onPurge(text: string): Promise<void> {

@@ -5,7 +5,7 @@
  * stops, which the README says). Emits 'delivered' (jobId, status) and 'gave-up' (jobId, error).
  */
 import { EventEmitter } from 'node:events';
-import { type Job, Queue, Worker } from 'bullmq';
+import { DelayedError, type Job, Queue, Worker } from 'bullmq';
 import { closeWithin } from './queue-link.js';
 import { connectionOf } from './queue-terms.js';
 
@@ -22,9 +22,10 @@ export interface SenderSettings {
   baseDelayMs: number;
   /**
    * Redis URL and key prefix for the shared retry queue; absent = in-process timers.
-   * `closeMs`: the longest a close waits for Redis (away, or just back) before dropping it.
+   * `closeMs`: the longest a close waits for Redis (away, or just back) before dropping it;
+   * `lockMs`: a delivery's lock (a replica that died mid-delivery holds it at most this long).
    */
-  shared?: { url: string; prefix: string; closeMs: number };
+  shared?: { url: string; prefix: string; closeMs: number; lockMs: number };
 }
 
 type Deliver = (url: string, body: string) => Promise<number>;
@@ -36,6 +37,11 @@ interface Delivery {
 }
 
 export class CallbackSender extends EventEmitter {
+  /**
+   * On the shared queue, whether job `id`'s end is recorded: a callback queued inside its job
+   * waits (delayed again, no attempt spent) until a poll would show the same outcome.
+   */
+  ended: (id: string) => Promise<boolean> = async () => true;
   private readonly queue?: Queue;
   private readonly worker?: Worker;
   private readonly timers = new Set<NodeJS.Timeout>();
@@ -49,10 +55,21 @@ export class CallbackSender extends EventEmitter {
     const connection = connectionOf(settings.shared.url);
     const prefix = settings.shared.prefix;
     this.queue = new Queue('callbacks', { connection: { ...connection, enableOfflineQueue: false }, prefix });
-    this.worker = new Worker('callbacks', async (job: Job) => {
+    this.worker = new Worker('callbacks', async (job: Job, token?: string) => {
       const d = job.data as Delivery;
+      if (!(await this.ended(d.job))) {
+        await job.moveToDelayed(Date.now() + Math.min(settings.baseDelayMs, 100), token);
+        throw new DelayedError();
+      }
       return this.deliver(d.url, d.body);
-    }, { connection: { ...connection, maxRetriesPerRequest: null }, prefix, concurrency: 4 });
+    }, {
+      connection: { ...connection, maxRetriesPerRequest: null },
+      prefix,
+      concurrency: 4,
+      // A delivery whose replica died is taken over once its lock lapses (BullMQ's stalled check).
+      lockDuration: settings.shared.lockMs,
+      stalledInterval: settings.shared.lockMs,
+    });
     this.queue.on('error', (e: Error) => this.emit('redis-error', e));
     this.worker.on('error', (e: Error) => this.emit('redis-error', e));
     this.worker.on('completed', (job: Job) => this.emit('delivered', (job.data as Delivery).job, job.returnvalue));
@@ -61,13 +78,17 @@ export class CallbackSender extends EventEmitter {
     });
   }
 
-  /** Queues the delivery of `outcome` to `url` (once per job id on the shared queue). */
-  async send(url: string, outcome: CallbackOutcome): Promise<void> {
+  /**
+   * Queues the delivery of `outcome` to `url`. On the shared queue once per `once` (default
+   * the job id): the same key queued again (a job run again after its replica died) is the
+   * delivery already queued.
+   */
+  async send(url: string, outcome: CallbackOutcome, once = outcome.job): Promise<void> {
     const delivery: Delivery = { url, body: JSON.stringify(outcome), job: outcome.job };
     const { attempts, baseDelayMs } = this.settings;
     if (this.queue) {
       await this.queue.add('callback', delivery, {
-        jobId: `${outcome.job}-callback`,
+        jobId: `${once}-callback`,
         attempts,
         backoff: { type: 'exponential', delay: baseDelayMs },
         removeOnComplete: { age: 3600 },

@@ -42,3 +42,13 @@ async function drop(target: Queue | Worker): Promise<void> {
   const { client, blockingClient } = target.backend;
   for (const pending of [client, blockingClient]) (await pending?.catch(() => undefined))?.disconnect();
 }
+
+/** `work`, or a rejection after `ms` (BullMQ waits for a lost connection to return); a late answer is dropped. */
+export function within<T>(work: Promise<T>, ms: number): Promise<T> {
+  let timer: NodeJS.Timeout | undefined;
+  const late = new Promise<never>((_, reject) => {
+    timer = setTimeout(() => reject(new Error(`Redis did not answer within ${ms} ms`)), ms);
+  });
+  work.catch(() => undefined);
+  return Promise.race([work, late]).finally(() => clearTimeout(timer));
+}

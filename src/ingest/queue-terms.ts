@@ -1,10 +1,13 @@
 /**
  * The queue's terms: job ids, BullMQ states in the API's words, failures as BullMQ stores
- * them, the connection settings from a Redis URL, and the error while Redis is away.
+ * them, the connection settings from a Redis URL, the error while Redis is away, and how a
+ * job announces its end.
  */
 import { createHash } from 'node:crypto';
 import { FoldwiseError } from '../errors.js';
 import type { JobState } from './jobs.js';
+import type { Manifest } from './manifest.js';
+import type { QueuedWork } from './queue.js';
 
 /** The job's id: a digest of the work key and callback, so equal work is one job. */
 export function jobIdOf(work: { key: string; callback?: string }): string {
@@ -43,3 +46,13 @@ export function queueDown(cause: unknown, retryAfterSeconds: number): FoldwiseEr
     headers: { 'retry-after': String(retryAfterSeconds) },
   });
 }
+
+/** A job's end as it is announced: the manifest, or the failure that ends it for good. */
+export type JobEnd = { state: 'done'; manifest: Manifest } | { state: 'failed'; error: { code: string; detail: string } };
+
+/**
+ * Announces a job's end (queues its callback); a rejection makes the attempt fail, to be
+ * retried. `job.timestamp` (its creation) tells a run again of one job from a new job of the
+ * same work made after the first expired.
+ */
+export type Announce = (job: { id: string; timestamp: number }, work: QueuedWork, end: JobEnd) => Promise<void>;

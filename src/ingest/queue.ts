@@ -5,12 +5,16 @@
  * check), and a replica that stops hands its unfinished jobs back to the queue. The work is
  * idempotent: the job id is derived from the work's key (content digest and options), so the
  * same upload twice is one job, and a job run twice renders into the same cache keys.
+ * A job's end is announced (its callback queued) inside the job, before BullMQ records the
+ * end: a replica that dies in between leaves the job to be run again and announced again
+ * (at least once; the callback queue keeps one delivery per job id), never ended unannounced.
  */
 import { EventEmitter } from 'node:events';
 import { type Job, Queue, UnrecoverableError, Worker } from 'bullmq';
 import type { JobView } from './jobs.js';
-import { closeWithin, queueReady } from './queue-link.js';
-import { connectionOf, decodeFailure, encodeFailure, jobIdOf, stateOf } from './queue-terms.js';
+import { closeWithin, queueReady, within } from './queue-link.js';
+import { type Announce, connectionOf, encodeFailure, jobIdOf } from './queue-terms.js';
+import { jobEnded, resultExpired, viewOf } from './queue-view.js';
 import type { Manifest } from './manifest.js';
 import type { IngestOptions } from './service.js';
 
@@ -39,6 +43,8 @@ export interface QueueSettings {
   attempts: number;
   /** Longest wait for Redis when accepting or polling a job (it may be away). */
   timeoutMs: number;
+  /** The clock finished jobs age by (tests pass their own). */
+  now?: () => number;
 }
 
 const QUEUE = 'ingest';
@@ -54,6 +60,7 @@ export class IngestQueue extends EventEmitter {
     private readonly settings: QueueSettings,
     run: (work: QueuedWork) => Promise<Manifest>,
     describe: (e: unknown) => { code: string; detail: string; status: number },
+    announce: Announce = async () => undefined,
   ) {
     super();
     const connection = connectionOf(settings.url);
@@ -64,16 +71,22 @@ export class IngestQueue extends EventEmitter {
       QUEUE,
       async (job: Job, token?: string) => {
         this.running.set(job.id!, { job, token });
+        const work = job.data as QueuedWork;
+        let manifest: Manifest;
         try {
-          return await run(job.data as QueuedWork);
+          manifest = await run(work);
         } catch (e) {
           const failure = describe(e);
           // A refusal (4xx: corrupt picture, bad parameters) fails for good; the rest is retried.
+          const final = failure.status < 500 || job.attemptsMade + 1 >= (job.opts.attempts ?? 1);
+          if (final) await announce({ id: job.id!, timestamp: job.timestamp }, work, { state: 'failed', error: { code: failure.code, detail: failure.detail } });
           throw failure.status < 500 ? new UnrecoverableError(encodeFailure(failure)) : new Error(encodeFailure(failure));
         } finally {
           this.running.delete(job.id!);
           if (this.running.size === 0) this.emit('idle');
         }
+        await announce({ id: job.id!, timestamp: job.timestamp }, work, { state: 'done', manifest });
+        return manifest;
       },
       {
         connection: { ...connection, maxRetriesPerRequest: null },
@@ -102,8 +115,8 @@ export class IngestQueue extends EventEmitter {
     await queueReady(this.queue);
     const id = jobIdOf(work);
     const existing = await this.queue.getJob(id);
-    if (existing && (await existing.getState()) === 'failed') await existing.remove();
-    else if (existing) return this.view(existing);
+    if (existing && ((await existing.getState()) === 'failed' || this.expired(existing))) await existing.remove();
+    else if (existing) return viewOf(this.queue, existing);
     const counts = await this.queue.getJobCounts('waiting', 'active', 'delayed', 'prioritized');
     if (Object.values(counts).reduce((a, b) => a + b, 0) >= this.settings.maxJobs) return undefined;
     const job = await this.queue.add('ingest', work, {
@@ -113,7 +126,7 @@ export class IngestQueue extends EventEmitter {
       removeOnComplete: { age: this.settings.resultSeconds },
       removeOnFail: { age: this.settings.resultSeconds },
     });
-    return this.view(job);
+    return viewOf(this.queue, job);
   }
 
   /** Jobs this replica's worker runs now. */
@@ -127,34 +140,27 @@ export class IngestQueue extends EventEmitter {
     await queueReady(this.queue);
   }
 
+  /** Whether job `id`'s end is recorded (or it is gone): a poll shows its outcome. */
+  ended(id: string): Promise<boolean> {
+    return jobEnded(this.queue, id);
+  }
+
   /** The job as the API shows it; undefined when unknown or expired. */
   async get(id: string): Promise<JobView<Manifest> | undefined> {
     if (!/^j[0-9a-f]{32}$/.test(id)) return undefined;
     const job = await this.bounded(queueReady(this.queue).then(() => this.queue.getJob(id)));
-    return job ? this.bounded(this.view(job)) : undefined;
+    if (job && this.expired(job)) {
+      await this.bounded(job.remove()).catch(() => undefined);
+      return undefined;
+    }
+    return job ? this.bounded(viewOf(this.queue, job)) : undefined;
   }
+
+  private expired = (job: Job): boolean => resultExpired(job, this.settings.resultSeconds, this.settings.now?.() ?? Date.now());
 
   /** BullMQ waits for a lost connection to return; a request must not wait that long. */
   private bounded<T>(work: Promise<T>): Promise<T> {
-    let timer: NodeJS.Timeout | undefined;
-    const late = new Promise<never>((_, reject) => {
-      timer = setTimeout(() => reject(new Error(`Redis did not answer within ${this.settings.timeoutMs} ms`)), this.settings.timeoutMs);
-    });
-    // A late answer after the timeout is dropped (its rejection too).
-    work.catch(() => undefined);
-    return Promise.race([work, late]).finally(() => clearTimeout(timer));
-  }
-
-  private async view(fetched: Job): Promise<JobView<Manifest>> {
-    let job = fetched;
-    const state = stateOf[await job.getState()] ?? 'queued';
-    // The job may have ended between its fetch and the state read: fetch it again for its result.
-    if ((state === 'done' || state === 'failed') && !job.finishedOn) job = (await this.queue.getJob(job.id!)) ?? job;
-    const view: JobView<Manifest> = { id: job.id!, state, createdAt: new Date(job.timestamp).toISOString() };
-    if (job.finishedOn && (state === 'done' || state === 'failed')) view.finishedAt = new Date(job.finishedOn).toISOString();
-    if (state === 'done') view.result = job.returnvalue as Manifest;
-    if (state === 'failed') view.error = decodeFailure(job.failedReason);
-    return view;
+    return within(work, this.settings.timeoutMs);
   }
 
   /**

@@ -35,24 +35,29 @@ export async function freePort(): Promise<number> {
   return port;
 }
 
-/** A real redis-server on 127.0.0.1, with no persistence, that can be killed and restarted. */
+/**
+ * A real redis-server on 127.0.0.1 that can be killed and restarted: with no persistence by
+ * default (a restart comes back empty), or with `persistDir` an append-only file fsynced at
+ * every write (what a job queue's Redis runs with), so a killed server comes back with its data.
+ */
 export interface RedisProcess {
   port: number;
   url: string;
   /** SIGKILL (a crash, not a shutdown); resolves when the process has exited. */
   kill(): Promise<void>;
-  /** Starts it again on the same port (empty, as after a crash without persistence). */
+  /** Starts it again on the same port (empty without persistence, as after a crash). */
   restart(): Promise<void>;
   stop(): Promise<void>;
 }
 
 const READY = /Ready to accept connections/;
 
-async function launch(port: number): Promise<ChildProcess> {
+async function launch(port: number, persistDir?: string): Promise<ChildProcess> {
   if (!redisBinary) throw new Error(redisSkipReason);
+  const persistence = persistDir ? ['--appendonly', 'yes', '--appendfsync', 'always', '--dir', persistDir] : ['--appendonly', 'no'];
   const child = spawn(
     redisBinary,
-    ['--port', String(port), '--bind', '127.0.0.1', '--save', '', '--appendonly', 'no', '--protected-mode', 'yes'],
+    ['--port', String(port), '--bind', '127.0.0.1', '--save', '', ...persistence, '--protected-mode', 'yes'],
     { stdio: ['ignore', 'pipe', 'pipe'] },
   );
   let log = '';
@@ -81,9 +86,9 @@ async function end(child: ChildProcess | undefined, signal: NodeJS.Signals): Pro
 }
 
 /** Starts redis-server on a random free loopback port and waits until it accepts connections. */
-export async function startRedis(): Promise<RedisProcess> {
+export async function startRedis(options: { persistDir?: string } = {}): Promise<RedisProcess> {
   const port = await freePort();
-  let child: ChildProcess | undefined = await launch(port);
+  let child: ChildProcess | undefined = await launch(port, options.persistDir);
   return {
     port,
     url: `redis://127.0.0.1:${port}`,
@@ -92,7 +97,7 @@ export async function startRedis(): Promise<RedisProcess> {
     },
     async restart() {
       await end(child, 'SIGKILL');
-      child = await launch(port);
+      child = await launch(port, options.persistDir);
     },
     async stop() {
       await end(child, 'SIGTERM');

@@ -57,6 +57,19 @@ afterAll(async () => {
   if (dir) await rm(dir, { recursive: true, force: true });
 });
 
+describe('readiness with the object store as origin', () => {
+  it('is ready without the folder origin\'s folder (the store is the origin)', async () => {
+    const app = await storeApp('textiles', { origin: { storeUrl: 's3://textiles/shop', s3Endpoint: endpoint, sourceDir: join(dir, 'no-such-folder') } });
+    try {
+      const res = await app.app.inject('/readyz');
+      expect(res.statusCode).toBe(200);
+      expect(res.json().checks.origin).toEqual({ ok: true, detail: 'object store s3://textiles/shop' });
+    } finally {
+      await app.close();
+    }
+  });
+});
+
 describe('sources in the object store', () => {
   it('renders an object under the prefix; a changed object gets a new rendition (version from ETag and Last-Modified)', async () => {
     await put('shop/fabrics/twill.png', await png(120, 80, rampCode(120)));

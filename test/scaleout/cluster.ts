@@ -75,7 +75,7 @@ export async function startReplica(env: Record<string, string>, port?: number): 
   return proc(child, port);
 }
 
-/** HAProxy on a free loopback port, round robin over `backends`, each health-checked on /healthz. */
+/** HAProxy on a free loopback port, round robin over `backends`, each checked on /readyz (as deploy/haproxy.cfg). */
 export async function startHaproxy(dir: string, backends: number[], port?: number): Promise<Proc> {
   if (!haproxyBinary) throw new Error(haproxySkipReason);
   port ??= await freePort();
@@ -97,7 +97,7 @@ export async function startHaproxy(dir: string, backends: number[], port?: numbe
       '  default_backend replicas',
       'backend replicas',
       '  balance roundrobin',
-      '  option httpchk GET /healthz',
+      '  option httpchk GET /readyz',
       servers,
       '',
     ].join('\n'),

@@ -2,7 +2,7 @@
  * Deleting a source with two replicas sharing Redis: the deleting replica removes the shared
  * entries and the other forgets its memory copies on the purge message before the answer.
  */
-import { mkdtemp, rm } from 'node:fs/promises';
+import { access, mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Redis } from 'ioredis';
@@ -10,7 +10,7 @@ import { afterAll, beforeAll, expect, it } from 'vitest';
 import { signUrl } from '../../src/security/signing.js';
 import { build, type TestApp } from '../helpers/build.js';
 import { writePng } from '../helpers/images.js';
-import { redisBinary, startRedis, type RedisProcess } from '../helpers/redis-server.js';
+import { next, redisBinary, startRedis, type RedisProcess } from '../helpers/redis-server.js';
 
 const key = 'a signing key for the weaving shop';
 const stripes = (x: number) => (x % 3 ? [30, 60, 120] : [250, 250, 240]);
@@ -29,6 +29,7 @@ beforeAll(async () => {
   const config = { cache: { redisUrl: server.url }, redis: { namespace: 'del:' }, signing: { keys: [key], required: false } };
   [a, b] = [await build({ sourceDir: dir, config }), await build({ sourceDir: dir, config })];
   await Promise.all([a.app.sharedRedis!.tier.link.ready(), b.app.sharedRedis!.tier.link.ready()]);
+  await Promise.all([a.app.purgeBus!.whenSubscribed(), b.app.purgeBus!.whenSubscribed()]);
 });
 afterAll(async () => {
   await Promise.all([a?.close(), b?.close()]);
@@ -57,4 +58,30 @@ it.skipIf(!redisBinary)('removes the shared entries and the other replica\'s mem
   for (const app of [a.app, b.app]) {
     for (const u of urls) expect((await app.inject(u)).statusCode).toBe(404);
   }
+});
+
+it.skipIf(!redisBinary)('while Redis is down a deletion is refused (503, Retry-After) before anything is deleted; sent again later it deletes everywhere', async () => {
+  await writePng(dir, 'herringbone.png', 80, 60, 3, (x, y) => ((x + y) % 4 < 2 ? [120, 80, 40] : [230, 220, 200]));
+  const url = '/v1/renditions/herringbone.png?width=40&format=png';
+  for (const app of [a.app, b.app]) expect((await app.inject(url)).statusCode).toBe(200);
+  const down = [a, b].map((t) => next(t.app.sharedRedis!.tier.link.client, 'close'));
+  await server.kill();
+  await Promise.all(down);
+  const refused = await a.app.inject({ method: 'DELETE', url: signUrl('/v1/sources/herringbone.png', {}, key) });
+  expect(refused.statusCode).toBe(503);
+  expect(refused.json()).toMatchObject({ code: 'ERR_PURGE_DOWN', status: 503 });
+  expect(refused.headers['retry-after']).toBe('2');
+  await access(join(dir, 'herringbone.png')); // still there: nothing was deleted
+  for (const app of [a.app, b.app]) expect((await app.inject(url)).statusCode).toBe(200);
+
+  // Redis comes back (empty): both replicas reconnect and subscribe again.
+  const up = [a, b].map((t) => next(t.app.sharedRedis!.tier.link.client, 'ready'));
+  await server.restart();
+  await Promise.all(up);
+  await Promise.all([a.app.purgeBus!.whenSubscribed(), b.app.purgeBus!.whenSubscribed()]);
+  const res = await a.app.inject({ method: 'DELETE', url: signUrl('/v1/sources/herringbone.png', {}, key) });
+  expect(res.statusCode).toBe(200);
+  expect(res.json()).toMatchObject({ source: 'herringbone.png', removed: true, replicas: 1, confirmed: 1 });
+  await expect(access(join(dir, 'herringbone.png'))).rejects.toThrow(/ENOENT/);
+  for (const app of [a.app, b.app]) expect((await app.inject(url)).statusCode).toBe(404);
 });

@@ -53,6 +53,7 @@ describe.skipIf(!redisBinary)('Redis killed under two replicas', () => {
       for (const r of [a, b]) expect((await r.app.inject(url(w++))).statusCode).toBe(200);
       for (const r of [a, b]) expect(r.app.sharedRedis!.health()).toEqual({ status: 'up', breaker: 'closed' });
     }, { timeout: 10_000, interval: 50 });
+    await a.app.purgeBus!.whenSubscribed(); // readiness also waits for the purge channel again
     expect((await a.app.inject('/readyz')).json().status).toBe('ready');
 
     // The shared tier works again: made on A, a Redis hit on B.

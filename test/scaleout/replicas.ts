@@ -78,6 +78,7 @@ export async function replica(sourceDir: string, redisUrl: string): Promise<Repl
     },
   });
   await t.app.sharedRedis!.tier.link.ready();
+  await t.app.purgeBus!.whenSubscribed(); // what /readyz waits for
   return Object.assign(t, { origin, logs });
 }
 

@@ -32,7 +32,7 @@ async function callbacksPlugin(app: FastifyInstance): Promise<void> {
       attempts: config.ingest.callbackAttempts,
       baseDelayMs: config.ingest.callbackBaseDelayMs,
       shared: config.cache.redisUrl
-        ? { url: config.cache.redisUrl, prefix: `${config.redis.namespace}q`, closeMs: config.redis.connectTimeoutMs }
+        ? { url: config.cache.redisUrl, prefix: `${config.redis.namespace}q`, closeMs: config.redis.connectTimeoutMs, lockMs: config.ingest.jobLockMs }
         : undefined,
     },
   );

@@ -19,6 +19,8 @@ declare module 'fastify' {
   interface FastifyInstance {
     /** Deletes a source and everything made from it, on every tier and every replica. */
     deleteSource(path: string): Promise<Deletion>;
+    /** The purge channel with Redis (readiness waits for its subscription); null without. */
+    purgeBus: PurgeBus | null;
   }
 }
 
@@ -29,6 +31,7 @@ const CONFIRM_MS = 2000;
  * then every key the source index holds for it from every tier of this replica (memory, then
  * disk or Redis), its identity memo, spectrum and manifests; with Redis, the other replicas do
  * the same for their memory on the purge message before this answers (or CONFIRM_MS passes).
+ * With Redis configured but away it refuses (503 ERR_PURGE_DOWN) before deleting anything.
  */
 async function deletionPlugin(app: FastifyInstance): Promise<void> {
   const { renderContext: ctx, renditionCache, spectra, ingest, sourceIndex } = app;
@@ -42,20 +45,36 @@ async function deletionPlugin(app: FastifyInstance): Promise<void> {
   const shared = app.sharedRedis;
   const bus = shared ? new PurgeBus(shared.tier.link, forgetLocally, (err) => app.log.warn({ err }, 'purge message failed')) : undefined;
   if (bus) void bus.start();
+  app.decorate('purgeBus', bus ?? null);
+
+  const retryAfter = { 'retry-after': String(app.config.pool.retryAfterSeconds) };
+  const purgeDown = (detail: string, cause?: unknown) => new FoldwiseError('ERR_PURGE_DOWN', detail, { cause, headers: retryAfter });
 
   app.decorate('deleteSource', async (path: string): Promise<Deletion> => {
     const remove = app.origin.remove?.bind(app.origin);
     if (!remove) throw new FoldwiseError('ERR_ORIGIN_DISABLED', 'this origin cannot delete sources');
+    // Without Redis the other replicas would keep serving what this one deletes: refuse first.
+    const link = shared?.health();
+    if (bus && (link?.status !== 'up' || link.breaker === 'open')) {
+      throw purgeDown('deleting needs Redis to reach every replica, and Redis cannot be reached; nothing was deleted');
+    }
     const identity = await app.origin.identify(path).catch((e: unknown) => {
       if (e instanceof FoldwiseError && e.code === 'ERR_SOURCE_NOT_FOUND') return undefined;
       throw e;
     });
     const source = identity?.key ?? path;
     const removed = await remove(path);
-    const keys = await sourceIndex.take(source);
-    await forgetLocally(source, keys);
-    ctx.identities?.forget(path);
-    const told = bus ? await bus.broadcast(source, keys, CONFIRM_MS) : { replicas: 0, confirmed: 0 };
+    const purge = async () => {
+      const keys = await sourceIndex.take(source);
+      await forgetLocally(source, keys);
+      ctx.identities?.forget(path);
+      const told = bus ? await bus.broadcast(source, keys, CONFIRM_MS) : { replicas: 0, confirmed: 0 };
+      return { keys, told };
+    };
+    const { keys, told } = await purge().catch((e: unknown) => {
+      // Redis went away midway: the source may be gone already; sending the DELETE again purges the rest.
+      throw bus ? purgeDown('Redis failed while the deletion was told to the other replicas; send it again', e) : e;
+    });
     if (!removed && keys.length === 0) throw new FoldwiseError('ERR_SOURCE_NOT_FOUND', `No source "${source}".`);
     return { source, removed, entries: keys.length, ...told };
   });

@@ -2,10 +2,8 @@ import type { FastifyInstance } from 'fastify';
 import fp from 'fastify-plugin';
 import { Counter, Gauge } from 'prom-client';
 import { errorCodes } from '../../errors.js';
-import type { Job } from 'bullmq';
 import type { CallbackOutcome } from '../../ingest/callback-sender.js';
-import { IngestQueue, type QueuedWork } from '../../ingest/queue.js';
-import { decodeFailure } from '../../ingest/queue-terms.js';
+import { IngestQueue } from '../../ingest/queue.js';
 import { toFoldwiseError } from './errors.js';
 
 declare module 'fastify' {
@@ -49,6 +47,14 @@ async function ingestQueuePlugin(app: FastifyInstance): Promise<void> {
     },
     (work) => ingest.run(ingest.fromQueued(work.key, work.source, work.options)).value,
     describeFailure,
+    // The callback is queued inside the job, before its end is recorded (at least once).
+    async (job, work, end) => {
+      if (!work.callback) return;
+      const outcome: CallbackOutcome = { job: job.id, state: end.state, finishedAt: new Date().toISOString() };
+      if (end.state === 'done') outcome.manifest = end.manifest;
+      else outcome.error = end.error;
+      await app.callbacks.send(work.callback, outcome, `${job.id}-${job.timestamp}`);
+    },
   );
   const settled = new Counter({
     name: 'foldwise_ingest_queue_jobs_total',
@@ -64,15 +70,9 @@ async function ingestQueuePlugin(app: FastifyInstance): Promise<void> {
       this.set(queue.runningCount);
     },
   });
-  queue.on('settled', (id: string, state: 'done' | 'failed', job: Job) => {
-    settled.inc({ state });
-    const { callback } = job.data as QueuedWork;
-    if (!callback) return;
-    const outcome: CallbackOutcome = { job: id, state, finishedAt: new Date(job.finishedOn ?? Date.now()).toISOString() };
-    if (state === 'done') outcome.manifest = job.returnvalue;
-    else outcome.error = decodeFailure(job.failedReason);
-    app.callbacks.send(callback, outcome).catch((err: unknown) => app.log.error({ err, job: id }, 'callback could not be queued'));
-  });
+  queue.on('settled', (_id: string, state: 'done' | 'failed') => settled.inc({ state }));
+  // A callback is delivered once the job's end is recorded, so a poll on receipt agrees with it.
+  app.callbacks.ended = (id) => queue.ended(id);
   // BullMQ reconnects by itself; the errors are logged, rate-limited by the link's own pace.
   queue.on('redis-error', (e: Error) => app.log.warn({ err: e.message }, 'ingest queue: Redis error'));
   app.decorate('ingestQueue', queue);

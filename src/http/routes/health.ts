@@ -17,7 +17,10 @@ const readySchema = z.object({
  * at start (RenderPool.warm), while it stops, or when its source folder is gone. Busy render slots do not make it unready: a replica in a miss flood
  * still serves every hit, and pulling all busy replicas at once would turn load into an outage
  * (misses past the bound get their own 503 with Retry-After). A degraded shared tier (Redis
- * down, the disk cache off or full) answers 200 "degraded" with the reason.
+ * down, the disk cache off or full) answers 200 "degraded" with the reason. With Redis, a
+ * replica that is not subscribed to the purge channel would miss deletions made on another
+ * replica and serve what they removed: it is not ready until subscribed (at start, and again
+ * after a reconnect while Redis is up); while its Redis is down it is degraded, like the tier.
  */
 export default async function healthRoutes(app: FastifyInstance): Promise<void> {
   let stopping = false;
@@ -49,13 +52,13 @@ export default async function healthRoutes(app: FastifyInstance): Promise<void> 
     },
     async (_req, reply) => {
       const pool = app.renderPool;
-      const dir = app.config.origin.sourceDir;
-      const originOk = await access(dir).then(() => true, () => false);
       const checks: Record<string, { ok: boolean; detail: string }> = {
-        origin: { ok: originOk, detail: originOk ? 'source folder reachable' : 'source folder missing' },
+        origin: await originCheck(app),
         stopping: { ok: !stopping, detail: stopping ? 'shutting down' : 'running' },
         warm: { ok: pool.warmed, detail: pool.warmed ? 'render threads warm' : 'render threads starting' },
       };
+      const purge = purgeCheck(app);
+      if (purge?.blocks) checks.purge = purge.check;
       const failed = Object.entries(checks).filter(([, c]) => !c.ok);
       if (failed.length > 0) {
         throw new FoldwiseError('ERR_NOT_READY', failed.map(([name, c]) => `${name}: ${c.detail}`).join('; '));
@@ -72,8 +75,34 @@ export default async function healthRoutes(app: FastifyInstance): Promise<void> 
         const ok = shared.status === 'up' && shared.breaker === 'closed';
         checks.redis = { ok, detail: `connection ${shared.status}, circuit ${shared.breaker}` };
       }
+      if (purge) checks.purge = purge.check;
       const degraded = Object.values(checks).some((c) => !c.ok);
       return reply.header('cache-control', 'no-store').send({ status: degraded ? 'degraded' : 'ready', checks });
     },
   );
+}
+
+/**
+ * The purge subscription's check; `blocks` when it makes the replica unready: not subscribed
+ * while Redis is up, or not yet at all since start (its first outcome pending).
+ */
+function purgeCheck(app: FastifyInstance): { check: { ok: boolean; detail: string }; blocks: boolean } | undefined {
+  const bus = app.purgeBus;
+  if (!bus) return undefined;
+  const state = bus.state;
+  const detail = { live: 'subscribed to deletions', starting: 'subscribing to deletions', lost: 'not subscribed to deletions' }[state];
+  const redisUp = app.sharedRedis?.health().status === 'up';
+  return { check: { ok: state === 'live', detail }, blocks: state === 'starting' || (state === 'lost' && redisUp) };
+}
+
+/**
+ * The folder origin's folder must exist. An object store is not asked here: a store that fails
+ * answers each request 502 with Retry-After while hits are still served, and taking every
+ * replica out of the balancer for it would turn that into an outage.
+ */
+async function originCheck(app: FastifyInstance): Promise<{ ok: boolean; detail: string }> {
+  const { storeUrl, sourceDir } = app.config.origin;
+  if (storeUrl) return { ok: true, detail: `object store ${storeUrl}` };
+  const ok = await access(sourceDir).then(() => true, () => false);
+  return { ok, detail: ok ? 'source folder reachable' : 'source folder missing' };
 }
