@@ -86,6 +86,21 @@ describe('GET /v1/renditions: resampled while the source decodes (spooled)', () 
     expect(second.rawPayload.equals(ref2.rawPayload)).toBe(true);
   });
 
+  it('two first requests of a new source at once (other widths): one analysis, both with the bytes of the decode-then-resample service', async () => {
+    for (const app of [t, off]) await writeFile(`${app.sourceDir}/twin.jpg`, jpeg);
+    const before = t.app.spectra.analyses;
+    const [a, b] = await Promise.all([get(t, 'twin.jpg', 'width=120&format=png'), get(t, 'twin.jpg', 'width=90&format=png')]);
+    expect([a.statusCode, b.statusCode]).toEqual([200, 200]);
+    expect(stages(a)).toContain('stream');
+    expect(stages(b)).toContain('stream');
+    expect(t.app.spectra.analyses - before).toBe(1);
+    for (const [res, q] of [[a, 'width=120&format=png'], [b, 'width=90&format=png']] as const) {
+      const ref = await get(off, 'twin.jpg', q);
+      expect(res.headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
+      expect(res.rawPayload.equals(ref.rawPayload)).toBe(true);
+    }
+  });
+
   it('prefilter=auto on a new source whose spectrum lowers the cut-off: resampled again from the spool file with it; so is a further width (decided from the kept spectrum while the kernel plan streams)', async () => {
     const first = await get(t, 'near.png', 'width=640&format=png');
     expect(stages(first)).toContain('stream');
