@@ -93,15 +93,19 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
   const decoding = probe.write(file);
   decoding.catch(() => undefined);
   // The kernel's plan renders at once; the content-adaptive decision is asked meanwhile. When
-  // it adapts the plan before that render ends, the render is called off (its rows stay in the
-  // spool file) and the adapted one starts; after, the adapted one runs from the whole file.
+  // it adapts the plan while the source still decodes, that render is called off (its rows stay
+  // in the spool file) and the adapted one starts; after, the adapted one follows it. Called off
+  // as a failed decode stops a render (its threads stop reading, and live on): aborting a
+  // running pool task would end its thread, and a new one takes hundreds of milliseconds to start.
   const speculative = new AbortController();
+  const calledOff = new Promise<never>((_, reject) => speculative.signal.addEventListener('abort', () => reject(speculative.signal.reason), { once: true }));
+  calledOff.catch(() => undefined);
   let asked: ReturnType<typeof adaptedPlan> = { live: {} };
   const stopAsked = () => asked.live.spool?.stop();
   stop.addEventListener('abort', stopAsked, { once: true });
   try {
     // The render's band tasks go to the pool first (the call queues them at once), then the decision's.
-    const streaming = ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, decoding, first.plan, AbortSignal.any([stop, speculative.signal])));
+    const streaming = ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, Promise.race([decoding, calledOff]), first.plan, stop));
     asked = adaptedPlan(ctx, first, probe, file, decoding, q, source.identity, stop);
     const { deciding } = asked;
     deciding?.then((a) => a?.adaptive && speculative.abort(), () => undefined);
