@@ -7,6 +7,7 @@ import { resolve } from 'node:path';
 import { build } from './app.js';
 import { ConfigError, loadConfig } from './config.js';
 import { warmStartPage } from './http/warm-start.js';
+import { warmRenderPath } from './http/warm-path.js';
 import { pageUrl, serverLogger } from './logging.js';
 import { signingRequired } from './security/signing.js';
 import { installShutdown } from './shutdown.js';
@@ -28,6 +29,7 @@ async function main(): Promise<void> {
   await app.listen({ host: config.server.host, port: config.server.port });
   // /readyz says 503 until the render threads are warm: so does this line.
   await app.renderPool.warm();
+  await warmRenderPath(app);
   const url = pageUrl(app.server.address() as AddressInfo);
   app.log.info({ url, sourceDir: config.origin.sourceDir, cacheDir: config.cache.dir }, `foldwise ready: open ${url} in a browser`);
   // The demo's start page shows every picture: render its tiles now, before a browser asks.
