@@ -29,6 +29,18 @@ describe('warmRenderPath: the main thread renders once through the real path bef
     expect(t.app.renderPool.memory().admittedBytes).toBe(0);
   });
 
+  it('/readyz says 503 while held warm-up work runs (the server holds its render through the path), 200 once it has ended', async () => {
+    let finish!: () => void;
+    t.app.warmUp.hold(new Promise<void>((r) => (finish = r)));
+    const during = await t.app.inject({ url: '/readyz' });
+    expect(during.statusCode).toBe(503);
+    expect(during.json().detail).toContain('rendering a warm-up picture');
+    finish();
+    await new Promise((r) => setImmediate(r));
+    expect(t.app.warmUp.pending).toBe(false);
+    expect((await t.app.inject({ url: '/readyz' })).statusCode).toBe(200);
+  });
+
   it('a failure is logged and answered false, never thrown (the service starts anyway)', async () => {
     const closed = await build();
     await closed.app.renderPool.close();

@@ -54,7 +54,7 @@ export default async function healthRoutes(app: FastifyInstance): Promise<void> 
       const checks: Record<string, { ok: boolean; detail: string }> = {
         origin: { ok: originOk, detail: originOk ? 'source folder reachable' : 'source folder missing' },
         stopping: { ok: !stopping, detail: stopping ? 'shutting down' : 'running' },
-        warm: { ok: pool.warmed, detail: pool.warmed ? 'render threads warm' : 'render threads starting' },
+        warm: { ok: pool.warmed && !app.warmUp.pending, detail: pool.warmed ? (app.warmUp.pending ? 'rendering a warm-up picture' : 'render threads warm') : 'render threads starting' },
       };
       const failed = Object.entries(checks).filter(([, c]) => !c.ok);
       if (failed.length > 0) {
