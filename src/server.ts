@@ -7,6 +7,7 @@ import { resolve } from 'node:path';
 import { build } from './app.js';
 import { ConfigError, loadConfig } from './config.js';
 import { warmStartPage } from './http/warm-start.js';
+import { warmRenderPath } from './http/warm-path.js';
 import { pageUrl, serverLogger } from './logging.js';
 import { signingRequired } from './security/signing.js';
 import { installShutdown } from './shutdown.js';
@@ -26,8 +27,10 @@ async function main(): Promise<void> {
   const app = await build({ config, logger: serverLogger(config, process.stdout.isTTY === true) });
   installShutdown(app, { deadlineMs: config.shutdown.deadlineMs });
   await app.listen({ host: config.server.host, port: config.server.port });
-  // /readyz says 503 until the render threads are warm: so does this line.
-  await app.renderPool.warm();
+  // /readyz says 503 until the render threads are warm and a picture went through the render path: so does this line.
+  const warm = app.renderPool.warm().then(() => warmRenderPath(app));
+  app.warmUp.hold(warm);
+  await warm;
   const url = pageUrl(app.server.address() as AddressInfo);
   app.log.info({ url, sourceDir: config.origin.sourceDir, cacheDir: config.cache.dir }, `foldwise ready: open ${url} in a browser`);
   // The demo's start page shows every picture: render its tiles now, before a browser asks.

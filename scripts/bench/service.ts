@@ -7,74 +7,25 @@
  * Fastify route (scripts/bench/sharp-route.ts) on the same pictures, in the same run.
  * Loopback only, bounded in requests and seconds.
  */
-import { spawn } from 'node:child_process';
-import { once } from 'node:events';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { cannon } from '../../load/lib/cannon.js';
 import { quantile } from '../../load/lib/stats.js';
 import { benchJpeg } from './texture.js';
 import { decodeRaw } from './decode.js';
 import { timeRuns } from './timing.js';
+import { startServer, startService, timedGet, warmClient } from './serve.js';
 
-const root = fileURLToPath(new URL('../../', import.meta.url));
 // [name, width, height, seed]: two new 4 MP pictures, 6.4 MP, 14.7 MP (deterministic textures).
-const pictures: Array<[string, number, number, number]> = [
+export const pictures: Array<[string, number, number, number]> = [
   ['first-4mp.jpg', 2304, 1728, 11], ['new-4mp.jpg', 2304, 1728, 12],
   ['new-6mp.jpg', 3200, 2000, 13], ['new-15mp.jpg', 4432, 3324, 14],
 ];
 // A load of new pictures, for the event-loop lag: six more 4 MP textures.
 const flood: Array<[string, number, number, number]> = Array.from({ length: 6 }, (_, i) => [`flood-${i}.jpg`, 2304, 1728, 40 + i]);
 
-interface Server { url: string; stop(): Promise<void> }
-interface Started { match: RegExpExecArray; stop(): Promise<void> }
-
-/** Starts `node <args>` and resolves, with the match, once its stdout matches `ready`. */
-async function startServer(args: string[], env: Record<string, string>, ready: RegExp): Promise<Started> {
-  const child = spawn(process.execPath, args, { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'inherit'] });
-  const match = await new Promise<RegExpExecArray>((resolve, reject) => {
-    let out = '';
-    child.stdout!.on('data', (d: Buffer) => {
-      if (out.length < 1 << 16) out += d.toString();
-      const m = ready.exec(out);
-      if (m) resolve(m);
-    });
-    child.once('exit', (code) => reject(new Error(`${args.join(' ')} exited (${code}) before it was ready:\n${out}`)));
-  });
-  child.stdout!.resume();
-  const stop = async () => {
-    if (child.exitCode !== null || child.signalCode !== null) return;
-    const exited = once(child, 'exit');
-    child.kill('SIGTERM');
-    await exited;
-  };
-  return { match, stop };
-}
-
-/** The service as `npm start` runs it, on a port it picks, with a fresh cache folder. */
-async function startService(sourceDir: string): Promise<Server> {
-  const dir = mkdtempSync(join(tmpdir(), 'foldwise-bench-'));
-  const config = join(dir, 'config.json');
-  // Load shedding on event-loop delay is off: on a busy shared machine a start-up stall of
-  // over a second sheds the very first request, and this measures render cost, not shedding.
-  const settings = { origin: { sourceDir, generateDemo: false }, cache: { dir: join(dir, 'cache') }, server: { port: 0 }, pressure: { maxEventLoopDelayMs: 0 } };
-  writeFileSync(config, JSON.stringify(settings));
-  const s = await startServer(['--import', 'tsx', 'src/server.ts'], { FOLDWISE_CONFIG: config, HOST: '127.0.0.1' }, /"msg":"Server listening at http:\/\/127\.0\.0\.1:(\d+)"[\s\S]*foldwise ready/);
-  return { url: `http://127.0.0.1:${s.match[1]}`, stop: async () => { await s.stop(); rmSync(dir, { recursive: true, force: true }); } };
-}
-
-/** Wall time of one GET, body read to the end, in ms; fails on anything but 200. */
-async function timedGet(url: string): Promise<number> {
-  const t = performance.now();
-  const res = await fetch(url);
-  const body = await res.arrayBuffer();
-  if (res.status !== 200) throw new Error(`${url} answered ${res.status}: ${Buffer.from(body).toString().slice(0, 300)}`);
-  return performance.now() - t;
-}
-
-const rendition = (name: string, width: number) => `/v1/renditions/${name}?width=${width}&format=jpeg`;
+export const rendition = (name: string, width: number) => `/v1/renditions/${name}?width=${width}&format=jpeg`;
 
 /** The event-loop lag p99 and max (ms) prom-client reports since its previous scrape. */
 async function eventLoopLag(url: string): Promise<{ p99: number; max: number }> {
@@ -101,6 +52,8 @@ export async function serviceBenchTable(runs: number, seconds: number): Promise<
   const bytes = Object.fromEntries(pictures.map(([name]) => [name, readFileSync(join(sourceDir, name))]));
   const mp = (name: string) => { const p = pictures.find((q) => q[0] === name)!; return `${((p[1] * p[2]) / 1e6).toFixed(1)} MP`; };
   const rows = new Map<string, { ratios: number[]; ms: number[] }>();
+  // The first timed request measures the service's first request, not this client's fetch.
+  await warmClient();
   const add = (label: string, ms: number, decodeMs: number) => {
     const row = rows.get(label) ?? { ratios: [], ms: [] };
     row.ratios.push(ms / decodeMs);

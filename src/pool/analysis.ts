@@ -4,8 +4,8 @@
  * on them (a 12 MP analysis and its decision take tens of milliseconds). Imports the core and
  * the spool reader only, as worker.ts does.
  */
-import { planResponse } from '../core/index.js';
-import { adaptiveFilter, analyzeSpectrum, type SourceSpectrum } from '../core/risk/index.js';
+import { planResponseOf } from '../core/index.js';
+import { adaptiveFilter, analyzeSpectrum, planGains, type PlanGains, type SourceSpectrum } from '../core/risk/index.js';
 import { layoutTiles } from '../core/spectrum/tiles.js';
 import type { AdaptiveFilter, PixelRaster, Plan } from '../core/types.js';
 import { SpoolRows } from './spool/rows.js';
@@ -30,9 +30,9 @@ export interface AdaptTask {
   plan: Plan;
 }
 
-/** adaptiveFilter with the plan's own weight tables as its response. */
-export function decide(spectrum: SourceSpectrum, plan: Plan): AdaptiveFilter | undefined {
-  return adaptiveFilter(spectrum, plan, (axis, f) => planResponse(plan, axis, f));
+/** adaptiveFilter with the plan's own weight tables as its response (`gains`: planGains of them, made before). */
+export function decide(spectrum: SourceSpectrum, plan: Plan, gains?: PlanGains): AdaptiveFilter | undefined {
+  return adaptiveFilter(spectrum, plan, planResponseOf(plan), gains);
 }
 
 /** The source rows the Welch tiles read (tiles.ts's layout): sorted, without repeats. */
@@ -46,29 +46,35 @@ export function tileRows(width: number, height: number): number[] {
 }
 
 /**
- * A raster of the spool file's size holding only the rows the analysis reads; the rest stays
- * zero and is never touched, so its pages are never made resident (a fresh large buffer is
- * zero-filled by the system on first touch): a 14.7 MP source costs the analysis about 10 MB,
- * not 44. test/pool/analysis.test.ts checks the spectrum equals the one of the whole raster.
+ * The spectrum of a spool file's source, analysed as its rows arrive: the tiles of a band are
+ * read as soon as libvips has written their rows (SpoolRows waits for them), so the analysis
+ * ends shortly after the last row, not a whole analysis later. The raster has the file's size
+ * but holds only the rows the tiles read; the rest stays zero and is never touched, so its
+ * pages are never made resident (a fresh large buffer is zero-filled by the system on first
+ * touch): a 14.7 MP source costs the analysis about 10 MB, not 44. test/pool/analysis.test.ts
+ * checks the spectrum equals the one of the whole raster.
  */
-function tileRaster(src: SpooledRaster): PixelRaster {
+function spooledSpectrum(src: SpooledRaster): SourceSpectrum {
   const { width, height, channels, depth } = src;
   const n = width * channels;
   const data = depth === 16 ? new Uint16Array(n * height) : new Uint8Array(n * height);
+  const rows = tileRows(width, height);
+  let next = 0;
   const spool = new SpoolRows(src.path, src, new Int32Array(src.state));
   try {
-    for (const y of tileRows(width, height)) {
-      const row = spool.rowAt(y);
-      data.set(row.data.subarray(row.at, row.at + n), y * n);
-    }
+    const ready = (rowEnd: number) => {
+      for (; next < rows.length && rows[next] < rowEnd; next++) {
+        const row = spool.rowAt(rows[next]);
+        data.set(row.data.subarray(row.at, row.at + n), rows[next] * n);
+      }
+    };
+    return analyzeSpectrum({ data, width, height, channels }, { ready });
   } finally {
     spool.close();
   }
-  return { data, width, height, channels };
 }
 
-function rasterOf(src: SharedRaster | SpooledRaster): PixelRaster {
-  if (!('buffer' in src)) return tileRaster(src);
+function rasterOf(src: SharedRaster): PixelRaster {
   const { buffer, width, height, channels, depth } = src;
   const length = width * height * channels;
   const data = depth === 16 ? new Uint16Array(buffer, 0, length) : new Uint8Array(buffer, 0, length);
@@ -80,10 +86,16 @@ function rasterOf(src: SharedRaster | SpooledRaster): PixelRaster {
   return raster;
 }
 
-/** The piscina task: analyse, then decide for the plan. */
+/**
+ * The piscina task: analyse, then decide for the plan. The plan's sampled response, which the
+ * decision needs and which does not depend on the pixels, is made first: for a spool file
+ * still being written, while its rows arrive.
+ */
 export function analyseTask(task: AnalyseTask): Analysed {
-  const spectrum = analyzeSpectrum(rasterOf(task.src));
-  return { spectrum, filter: task.plan ? decide(spectrum, task.plan) : undefined };
+  const { src, plan } = task;
+  const gains = plan ? planGains(plan, planResponseOf(plan), layoutTiles(src.width, src.height).tileSize) : undefined;
+  const spectrum = 'buffer' in src ? analyzeSpectrum(rasterOf(src)) : spooledSpectrum(src);
+  return { spectrum, filter: plan ? decide(spectrum, plan, gains) : undefined };
 }
 
 /** The piscina task: decide for the plan from a known spectrum. */

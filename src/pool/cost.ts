@@ -1,5 +1,6 @@
 import type { OutputFormat } from '../codec/formats.js';
 import type { SourceHeader } from '../codec/header.js';
+import { tileRows } from './analysis.js';
 
 /**
  * Working set of sharp's encoders, in bytes per output pixel, measured on this machine with
@@ -47,4 +48,16 @@ export function outputCost(h: SourceHeader, outputPixels: number, format: Output
 export function renditionCost(h: SourceHeader, outputPixels: number, format: OutputFormat, streamed: boolean): number {
   const source = streamed ? stagingCost(h) : decodeCost(h) + stagingCost(h);
   return source + outputCost(h, outputPixels, format);
+}
+
+/** The spool reader's block (spool/rows.ts reads about 1 MiB at a time). */
+const SPOOL_BLOCK_BYTES = 2 ** 20;
+
+/**
+ * Peak bytes of analysing a streamed source's spectrum in the pool (analysis.ts): the rows its
+ * Welch tiles read, copied out of the spool file (the rest of its raster is never touched, so
+ * never resident), and the reader's block. About 10 MB for a 14.7 MP source.
+ */
+export function analysisCost(h: SourceHeader): number {
+  return tileRows(h.width, h.height).length * h.width * h.channels * h.bytesPerSample + SPOOL_BLOCK_BYTES;
 }

@@ -1,17 +1,24 @@
 /**
  * The worker side of a warm start (RenderPool.warm): each thread renders, analyses and decides
- * once on a small analytic pattern before the service says it is ready, so the first request
- * finds the thread's modules loaded, the SIMD kernels compiled and the hot functions compiled.
+ * before the service says it is ready, on the spool file the main thread wrote (as a streamed
+ * render of a new source does: rows read from the file, two plans, one with a pyramid, the
+ * analysis of the file's tiles), so the first request finds the thread's modules loaded, the
+ * SIMD kernels and the hot functions compiled at the sizes requests use (the largest tiles).
  */
 import { makePlan, renderRaster } from '../core/index.js';
+import type { PixelRaster } from '../core/types.js';
+import { analyseTask, decide } from './analysis.js';
 import { analyzeSpectrum } from '../core/risk/index.js';
-import { decide } from './analysis.js';
+import { SpoolReadError, SpoolRows, WRITTEN } from './spool/rows.js';
+import type { SpooledRaster } from './worker.js';
 
 export interface WarmTask {
   /** Int32Array buffer: threads that have warmed so far. */
   arrived: SharedArrayBuffer;
   /** Threads in the pool: each task waits (bounded) until that many have arrived. */
   threads: number;
+  /** An 8-bit RGB spool file fully written (codec/warm.ts), when the pool spools. */
+  spooled?: { path: string; width: number; height: number };
 }
 
 /** Longest a warm task waits for the other threads (they may still be loading). */
@@ -29,17 +36,50 @@ function pattern(width: number, height: number): Uint8Array {
   return data;
 }
 
+const planOf = (width: number, height: number, factor: number) =>
+  makePlan({ sourceWidth: width, sourceHeight: height, targetWidth: Math.round(width / factor), targetHeight: Math.round(height / factor), kernel: 'auto', prefilter: 'auto', light: 'linear' });
+
+/** Renders 8x (a pyramid level, then the final stage) and 2.7x (the final stage alone), analyses and decides. */
+function warmSpooled(spooled: NonNullable<WarmTask['spooled']>): void {
+  const state = new Int32Array(new SharedArrayBuffer(4));
+  state[0] = WRITTEN;
+  const src: SpooledRaster = { ...spooled, channels: 3, depth: 8, state: state.buffer as SharedArrayBuffer };
+  const { width, height } = spooled;
+  for (const factor of [8, 2.7]) {
+    const rows = new SpoolRows(src.path, src, state);
+    try {
+      renderRaster({ data: new Uint8Array(0), width, height, channels: 3 }, planOf(width, height, factor), { rowAt: rows.rowAt });
+    } finally {
+      rows.close();
+    }
+  }
+  analyseTask({ src, plan: planOf(width, height, 8) });
+}
+
+/** The same work on pixels made here (no spool file). */
+function warmInMemory(): void {
+  const width = 640;
+  const height = 480;
+  const src: PixelRaster = { data: pattern(width, height), width, height, channels: 3 };
+  const plan = planOf(width, height, 8);
+  renderRaster(src, plan);
+  renderRaster(src, planOf(width, height, 2.7));
+  decide(analyzeSpectrum(src), plan);
+}
+
 /**
  * Warms this thread, then waits until every thread of the pool has taken a warm task: a thread
- * busy waiting takes no other, so `threads` tasks reach `threads` different threads.
+ * busy waiting takes no other, so `threads` tasks reach `threads` different threads. A spool
+ * file that cannot be read warms on pixels made here instead.
  */
 export function warmTask(task: WarmTask): number {
-  const width = 320;
-  const height = 240;
-  const src = { data: pattern(width, height), width, height, channels: 3 as const };
-  const plan = makePlan({ sourceWidth: width, sourceHeight: height, targetWidth: 40, targetHeight: 30, kernel: 'auto', prefilter: 'auto', light: 'linear' });
-  renderRaster(src, plan);
-  decide(analyzeSpectrum(src), plan);
+  try {
+    if (task.spooled) warmSpooled(task.spooled);
+    else warmInMemory();
+  } catch (e) {
+    if (!(e instanceof SpoolReadError)) throw e;
+    warmInMemory();
+  }
   const arrived = new Int32Array(task.arrived);
   Atomics.add(arrived, 0, 1);
   Atomics.notify(arrived, 0);

@@ -5,7 +5,8 @@ import { readHeader, type SourceHeader } from '../codec/header.js';
 import { negotiateFormat } from '../codec/negotiate.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import type { Lease } from '../pool/budget.js';
-import { decodeCost, ENCODER_BYTES_PER_PIXEL, outputCost, renditionCost, stagingCost } from '../pool/cost.js';
+import { analysisCost, decodeCost, ENCODER_BYTES_PER_PIXEL, outputCost, renditionCost, stagingCost } from '../pool/cost.js';
+import type { AdaptivePrefilter } from './prefilter.js';
 import { fallbackFormat } from './smallest.js';
 import { layoutOf } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
@@ -19,6 +20,8 @@ export interface AdmitContext {
   limits: Limits;
   clock: StageClock;
   signal?: AbortSignal;
+  /** Present when prefilter=auto may analyse a new source (streamed: beside the render). */
+  adaptive?: AdaptivePrefilter;
 }
 
 /** The header of a raster already decoded (the upload hook's ladder). */
@@ -61,7 +64,11 @@ export async function admitRendition(
     const h = await ctx.clock.time('decode', () => readHeader(source.bytes, decodeLimits(ctx.limits), wishOf(q)));
     const streamed = ctx.pool.spool !== null && !h.hasAlpha && (h.frames ?? 1) === 1 && h.width * h.height >= STREAM_MIN_PIXELS;
     const pixels = outputPixels(h, q, ctx.limits);
-    const bytes = renditionCost(h, pixels, formatFor(q, accept, h.hasAlpha), streamed) + fallbackEncoder(h, q, pixels);
+    // A streamed render with prefilter=auto may analyse the source beside it (streamed.ts): counted
+    // whenever it may, since whether the spectrum is kept is known only later (an over-estimate for
+    // a further width of an analysed source).
+    const analysis = streamed && q.prefilter === 'auto' && ctx.adaptive ? analysisCost(h) : 0;
+    const bytes = renditionCost(h, pixels, formatFor(q, accept, h.hasAlpha), streamed) + fallbackEncoder(h, q, pixels) + analysis;
     // Streamed, the source is in a spool file, not in this process's buffers.
     const held = streamed ? 0 : decodeCost(h) + stagingCost(h);
     const frames = (h.frames ?? 1) > 1 ? ` of ${h.frames} frames (pixels counted over every frame)` : '';

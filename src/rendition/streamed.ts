@@ -1,12 +1,11 @@
 import type { Limits } from '../config.js';
 import type { PixelRaster, Plan } from '../core/types.js';
-import { probeSpooledDecode, SpoolWriteError } from '../codec/spool-decode.js';
+import { probeSpooledDecode, type SpoolableSource, SpoolWriteError } from '../codec/spool-decode.js';
 import type { SourceIdentity } from '../origins/types.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import { type PlannedRendition, planRendition } from './plan.js';
 import type { RenderPool } from '../pool/render-pool.js';
-import { type SpoolShape, WRITTEN } from '../pool/spool/rows.js';
-import type { SpooledRaster } from '../pool/worker.js';
+import { type LiveSpool, liveSpool } from '../pool/spool/live.js';
 import { type AdaptivePrefilter, shrinks } from './prefilter.js';
 import { decodeLimits, type ReadSource, wishOf } from './source.js';
 import type { StageClock } from './timings.js';
@@ -36,27 +35,24 @@ export interface StreamedRendition extends PlannedRendition {
 }
 
 /**
- * The plan for a streamed render, and whether it is provisional: with prefilter=auto on a
- * shrinking plan and no spectrum kept for the source version, the render starts on the plan
- * without the content-adaptive filter while the analysis waits for the decode to end.
+ * prefilter=auto's plan for a streamed render, asked while the render runs on the kernel's
+ * plan: from the spectrum kept for the source version (the pool decides), else from the new
+ * source's analysis, which reads the tiles' rows from the spool file as they are written (the
+ * returned reader, stopped by the caller once the render is over). No decision when
+ * nothing is asked (not prefilter=auto, nothing shrinks).
  */
-async function streamPlan(ctx: StreamContext, first: PlannedRendition, size: { width: number; height: number }, q: RenditionQuery, identity: SourceIdentity, signal: AbortSignal): Promise<{ planned: PlannedRendition; provisional: boolean }> {
+function adaptedPlan(ctx: StreamContext, first: PlannedRendition, probe: SpoolableSource, file: string, decoding: Promise<void>, q: RenditionQuery, identity: SourceIdentity, signal: AbortSignal): { deciding?: Promise<PlannedRendition | null>; live: { spool?: LiveSpool } } {
+  const live: { spool?: LiveSpool } = {};
   const { adaptive } = ctx;
-  if (q.prefilter !== 'auto' || !adaptive || !shrinks(first.plan)) return { planned: first, provisional: false };
+  if (q.prefilter !== 'auto' || !adaptive || !shrinks(first.plan)) return { live };
   const decide = async (plan: Plan) => {
     const known = await adaptive.known(plan, identity, signal);
-    return known ? known.filter : null;
+    if (known) return known.filter;
+    live.spool = liveSpool(file, probe, decoding);
+    return adaptive.analyse(live.spool.raster, plan, identity, signal);
   };
-  const planned = await planRendition(size, q, ctx.limits, { decide });
-  return planned ? { planned, provisional: false } : { planned: first, provisional: true };
-}
-
-/** The spool file as a source whose decode has ended (the analysis reads it after the decode). */
-function written(path: string, probe: SpoolShape & { channels: 1 | 3 }): SpooledRaster {
-  const state = new Int32Array(new SharedArrayBuffer(4));
-  state[0] = WRITTEN;
-  const { width, height, channels, depth } = probe;
-  return { path, width, height, channels, depth, state: state.buffer as SharedArrayBuffer };
+  const deciding = planRendition(probe, q, ctx.limits, { decide });
+  return { deciding, live };
 }
 
 /**
@@ -66,13 +62,15 @@ function written(path: string, probe: SpoolShape & { channels: 1 | 3 }): Spooled
  * last row is decoded instead of a whole resample later. The header is read first (timed as
  * `decode`), the overlapped part is timed as `stream`.
  *
- * The first rendition of a new source (prefilter=auto, no spectrum kept) streams too: it
- * renders on the plan without the content-adaptive filter while the source decodes, and once
- * the last row is written the pool analyses the spool file's rows (in parallel with the
- * render's last rows). When the analysis leaves the plan as it is (most pictures) the streamed
- * rendition is the answer; when it lowers a cut-off, the source is resampled again from the
- * spool file with the adapted plan (timed as `resample`): the bytes are those of the
- * decode-then-resample path for that plan either way.
+ * With prefilter=auto on a shrinking plan, the render starts on the kernel's own plan while
+ * the content-adaptive decision is made in the pool: from the spectrum kept for the source
+ * version, or, for a new source, by an analysis that reads the spool file's tiles as their
+ * rows are written (src/pool/analysis.ts; it samples the plan's response before the first
+ * row), so what is left after the last row is that band's tiles and the decision. Most
+ * decisions leave the plan as it is, and the streamed rendition is the answer. One that lowers
+ * a cut-off calls the running render off and resamples the spool file with the adapted plan
+ * (timed as `resample`): the bytes are those of the decode-then-resample path for the plan
+ * decided, either way.
  *
  * Returns null, having decoded nothing, when the render must take the decode-then-resample
  * path: spooling is off, the source has alpha or fewer than STREAM_MIN_PIXELS pixels. Also
@@ -92,32 +90,45 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
   const file = spool.path();
   // The file's bytes count in /dev/shm until it is removed (and libvips is done with it).
   const unhold = ctx.pool.holdSpool(probe.width * probe.height * probe.channels * (probe.depth / 8));
-  // The decode starts before the plan is settled: deciding from a kept spectrum is a pool task,
-  // and the rows spooled meanwhile are resampled at once when it ends.
   const decoding = probe.write(file);
   decoding.catch(() => undefined);
-  let analysing: Promise<PlannedRendition | null> | undefined;
+  // The kernel's plan renders at once; the content-adaptive decision is asked meanwhile. When
+  // it adapts the plan while the source still decodes, that render is called off (its rows stay
+  // in the spool file) and the adapted one starts; after, the adapted one follows it. Called off
+  // as a failed decode stops a render (its threads stop reading, and live on): aborting a
+  // running pool task would end its thread, and a new one takes hundreds of milliseconds to start.
+  const speculative = new AbortController();
+  const calledOff = new Promise<never>((_, reject) => speculative.signal.addEventListener('abort', () => reject(speculative.signal.reason), { once: true }));
+  calledOff.catch(() => undefined);
+  let asked: ReturnType<typeof adaptedPlan> = { live: {} };
+  const stopAsked = () => asked.live.spool?.stop();
+  stop.addEventListener('abort', stopAsked, { once: true });
   try {
-    const { planned, provisional } = await streamPlan(ctx, first, probe, q, source.identity, stop);
-    // Once the last row is written, the new source's analysis, while the render finishes.
-    const { adaptive } = ctx;
-    if (provisional && adaptive) {
-      const decide = (plan: Plan) => adaptive.analyse(written(file, probe), plan, source.identity, stop);
-      analysing = decoding.then(() => planRendition(probe, q, ctx.limits, { decide }));
+    // The render's band tasks go to the pool first (the call queues them at once), then the decision's.
+    const streaming = ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, Promise.race([decoding, calledOff]), first.plan, stop));
+    asked = adaptedPlan(ctx, first, probe, file, decoding, q, source.identity, stop);
+    const { deciding } = asked;
+    deciding?.then((a) => a?.adaptive && speculative.abort(), () => undefined);
+    let raster: PixelRaster | undefined;
+    try {
+      raster = await streaming;
+    } catch (e) {
+      if (!speculative.signal.aborted) throw e;
     }
-    analysing?.catch(() => undefined);
-    const raster = await ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, decoding, planned.plan, stop));
-    // What the analysis adds after the render (timed as `plan`; absent when none ran).
-    const adapted = analysing && (await ctx.clock.time('plan', () => analysing));
-    if (!adapted?.adaptive) return { ...planned, raster, deadline };
+    // What the decision adds after the render (timed as `plan`; absent when none was asked).
+    const adapted = deciding && (await ctx.clock.time('plan', () => deciding));
+    if (!adapted?.adaptive) return { ...first, raster: raster!, deadline };
     const again = await ctx.clock.time('resample', () => ctx.pool.resampleSpooled(file, probe, decoding, adapted.plan, stop));
     return { ...adapted, raster: again, deadline };
   } catch (e) {
     if (e instanceof SpoolWriteError) return null;
     throw e;
   } finally {
-    // The analysis reads the file: it must be done before the file goes.
-    await analysing?.catch(() => undefined);
+    // The analysis reads the file: it must be done before the file goes (a render that failed
+    // calls it off first, rather than let it wait for the rest of the decode).
+    stopAsked();
+    stop.removeEventListener('abort', stopAsked);
+    await asked.deciding?.catch(() => undefined);
     await spool.remove(file);
     // libvips may make or write the file after this (a deadline settled `decoding` first, or its
     // job was still waiting for a pool thread): once it is done, remove the file again, or it

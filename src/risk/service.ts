@@ -91,19 +91,28 @@ export async function riskAnswer(ctx: RiskContext, a: AssessedSource, view: Risk
  * prefilter=auto's hooks for the render paths (src/rendition/prefilter.ts), backed by `store`
  * and `pool`: both the analysis and the decision run in the pool's threads (src/pool/analysis.ts),
  * tens of milliseconds each for a large source, which the event loop must not wait through.
+ * A source version analysed right now counts as known: concurrent first requests of other
+ * widths decide from that one analysis instead of each analysing the source again.
  */
 export function adaptivePrefilter(store: SpectrumStore, pool: RenderPool): AdaptivePrefilter {
+  const running = new Map<string, Promise<SourceSpectrum>>();
   return {
     async known(plan, identity, signal) {
       if (!shrinks(plan)) return { filter: undefined };
-      const spectrum = await store.lookup(identity);
+      const spectrum = (await store.lookup(identity)) ?? (await running.get(store.keyOf(identity))?.catch(() => undefined));
       return spectrum ? { filter: await pool.adapt(spectrum, plan, signal) } : null;
     },
     async analyse(src, plan, identity, signal) {
       if (!shrinks(plan)) return undefined;
-      const { spectrum, filter } = await pool.analyse(src, plan, signal);
+      const key = store.keyOf(identity);
+      const task = pool.analyse(src, plan, signal);
+      const spectrum = task.then((a) => a.spectrum);
+      running.set(key, spectrum);
+      // Kept in memory (below) before it leaves `running`; a failed one leaves joiners to analyse.
+      void spectrum.catch(() => undefined).finally(() => running.get(key) === spectrum && running.delete(key));
+      const { spectrum: made, filter } = await task;
       // Kept in memory at once; the shared tiers are written in the background.
-      void store.keep(identity, spectrum);
+      void store.keep(identity, made);
       return filter;
     },
   };

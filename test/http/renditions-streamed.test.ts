@@ -86,16 +86,33 @@ describe('GET /v1/renditions: resampled while the source decodes (spooled)', () 
     expect(second.rawPayload.equals(ref2.rawPayload)).toBe(true);
   });
 
-  it('prefilter=auto on a new source whose spectrum lowers the cut-off: resampled again from the spool file with it; the next streams with it', async () => {
+  it('two first requests of a new source at once (other widths): one analysis, both with the bytes of the decode-then-resample service', async () => {
+    for (const app of [t, off]) await writeFile(`${app.sourceDir}/twin.jpg`, jpeg);
+    const before = t.app.spectra.analyses;
+    const [a, b] = await Promise.all([get(t, 'twin.jpg', 'width=120&format=png'), get(t, 'twin.jpg', 'width=90&format=png')]);
+    expect([a.statusCode, b.statusCode]).toEqual([200, 200]);
+    expect(stages(a)).toContain('stream');
+    expect(stages(b)).toContain('stream');
+    expect(t.app.spectra.analyses - before).toBe(1);
+    for (const [res, q] of [[a, 'width=120&format=png'], [b, 'width=90&format=png']] as const) {
+      const ref = await get(off, 'twin.jpg', q);
+      expect(res.headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
+      expect(res.rawPayload.equals(ref.rawPayload)).toBe(true);
+    }
+  });
+
+  it('prefilter=auto on a new source whose spectrum lowers the cut-off: resampled again from the spool file with it; so is a further width (decided from the kept spectrum while the kernel plan streams)', async () => {
     const first = await get(t, 'near.png', 'width=640&format=png');
     expect(stages(first)).toContain('stream');
     expect(stages(first)).toContain('resample');
     const ref1 = await get(off, 'near.png', 'width=640&format=png');
     expect(first.headers['rendition-plan']).toBe(ref1.headers['rendition-plan']);
     expect(first.rawPayload.equals(ref1.rawPayload)).toBe(true);
+    const analyses = t.app.spectra.analyses;
     const second = await get(t, 'near.png', 'width=620&format=png');
     expect(stages(second)).toContain('stream');
-    expect(stages(second)).not.toContain('resample');
+    expect(stages(second)).toContain('resample');
+    expect(t.app.spectra.analyses).toBe(analyses);
     const cutoff = /cutoff=([\d.]+),([\d.]+)/.exec(String(second.headers['rendition-plan']));
     expect(Math.min(Number(cutoff?.[1]), Number(cutoff?.[2]))).toBeLessThan(1);
     expect(String(second.headers['rendition-plan'])).not.toBe(String((await get(t, 'near.png', 'width=620&format=png&prefilter=none')).headers['rendition-plan']));
@@ -104,14 +121,14 @@ describe('GET /v1/renditions: resampled while the source decodes (spooled)', () 
     expect(second.rawPayload.equals(ref.rawPayload)).toBe(true);
   });
 
-  it('a restarted process finds the spectrum in the disk tier: a further width streams with the adapted plan, analysing nothing', async () => {
+  it('a restarted process finds the spectrum in the disk tier: a further width gets the adapted plan, analysing nothing', async () => {
     // near.png was analysed above; a new process over the same cache folder.
     await t.app.spectra.settled();
     const again = await build({ sourceDir: t.sourceDir, config: { cache: { dir: t.cacheDir } } });
     try {
       const res = await get(again, 'near.png', 'width=600&format=png');
       expect(stages(res)).toContain('stream');
-      expect(stages(res)).not.toContain('resample');
+      expect(stages(res)).toContain('resample');
       expect(again.app.spectra.analyses).toBe(0);
       expect(String(res.headers['rendition-plan'])).toMatch(/prefilter=[a-z,]*content/);
       const ref = await get(off, 'near.png', 'width=600&format=png');

@@ -10,6 +10,7 @@ import { probeSpooledDecode } from '../../src/codec/spool-decode.js';
 import { analyseTask, tileRows } from '../../src/pool/analysis.js';
 import { RenderPool } from '../../src/pool/render-pool.js';
 import { WRITTEN } from '../../src/pool/spool/rows.js';
+import { liveSpool } from '../../src/pool/spool/live.js';
 import { planResponseOf } from '../../src/core/index.js';
 
 const limits = { maxPixels: 50_000_000, maxDimension: 10_000 };
@@ -66,6 +67,31 @@ describe('the analysis in the pool (src/pool/analysis.ts)', () => {
     const got = analyseTask({ src: { path: file, width: W, height: H, channels: 3, depth: 8, state }, plan });
     expect(got.spectrum).toEqual(whole);
     expect(got.filter).toEqual(expected);
+  });
+
+  it('from a spool file still being written, in the pool: its tiles read as their rows arrive give the same spectrum and filter', async () => {
+    const pool = new RenderPool({ threads: 2, maxQueue: 4, retryAfterSeconds: 1 });
+    try {
+      const { raster } = await decodeImage(jpeg, limits);
+      const plan = planFor(550, 350);
+      const probe = await probeSpooledDecode(jpeg, limits);
+      const arriving = join(dir, 'arriving.v');
+      // The task is queued before libvips has made the file: it waits for the file, then each row.
+      const written = probe!.write(arriving);
+      const live = liveSpool(arriving, probe!, written);
+      const got = await pool.analyse(live.raster, plan);
+      await written;
+      expect(got.spectrum).toEqual(analyzeSpectrum(raster));
+      expect(got.filter).toEqual(adaptiveFilter(got.spectrum, plan, planResponseOf(plan)));
+      expect(got.filter?.cutoff?.x).toBeLessThan(1);
+      // Called off before any row: the task ends (refused), it does not wait for a decode that never comes.
+      const never = liveSpool(join(dir, 'never.v'), probe!, new Promise<void>(() => undefined));
+      const waiting = pool.analyse(never.raster, plan);
+      never.stop();
+      await expect(waiting).rejects.toMatchObject({ code: 'ERR_RENDER_FAILED' });
+    } finally {
+      await pool.close();
+    }
   });
 
   it('a wide-gamut source staged in shared memory keeps its primaries: luminance by the P3 coefficients', () => {

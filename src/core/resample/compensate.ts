@@ -26,11 +26,19 @@ export function compensatedFilter(kernel: Kernel, scale: number, sigma: number, 
   const df = fMax / F_STEPS;
   const dx = scale / X_STEPS;
   const kx = Math.ceil(reach / dx);
+  // The kernel's samples do not depend on f: taken once, not once per frequency. The cosine
+  // is even (and so is its argument's rounding, a product's sign being exact): taken once per
+  // |j|. The sum runs over j in the same order, so the table is bit for bit what it was.
+  const w = new Float64Array(2 * kx + 1);
+  for (let j = -kx; j <= kx; j++) w[j + kx] = kernel.weight((j * dx) / scale);
+  const cosines = new Float64Array(kx + 1);
   const gain = new Float64Array(F_STEPS);
   for (let i = 0; i < F_STEPS; i++) {
     const f = (i + 0.5) * df;
+    const a = 2 * Math.PI * f;
+    for (let j = 0; j <= kx; j++) cosines[j] = Math.cos(a * j * dx);
     let t = 0;
-    for (let j = -kx; j <= kx; j++) t += kernel.weight((j * dx) / scale) * Math.cos(2 * Math.PI * f * j * dx);
+    for (let j = -kx; j <= kx; j++) t += w[j + kx] * cosines[j < 0 ? -j : j];
     gain[i] = (t * Math.exp(-2 * Math.PI ** 2 * sigma * sigma * f * f)) / pyramidChainResponse(f, levels);
   }
   const support = reach + 0.5 * scale;

@@ -17,7 +17,7 @@ import { findPeaks, type RiskPeak } from './peaks.js';
 import { blurForTarget, extraSigmaFor, foldedWithBlur, type FoldSetup } from './recommend.js';
 import { LOW_FRACTION, type RiskLevel } from './score.js';
 import { sceneOf, see } from './see.js';
-import type { VisiblePattern } from './visibility.js';
+import type { Gain, VisiblePattern } from './visibility.js';
 
 /** Alias risk of one rendition. Frequencies in source cycles per pixel unless said otherwise. */
 export interface RiskReport {
@@ -73,12 +73,30 @@ function unfilteredFraction(setup: FoldSetup): number {
   return Math.min(1, foldedFraction(f) * setup.crop.unfiltered);
 }
 
-/** The planned rendition as a viewer at `density` sees it. */
-function seenBy(spec: SourceSpectrum, plan: Plan, response: PlanResponse, density: number, crop = 1) {
+/** The plan's response per axis as the visibility model reads it (sampled once). */
+export interface PlanGains {
+  hx: Gain;
+  hy: Gain;
+  /** The spectrum tile size they were sampled for. */
+  tileSize: number;
+}
+
+/**
+ * The plan's sampled gains for a spectrum of tiles of `tileSize` (layoutTiles of the source's
+ * size): they depend on the plan alone, not on the spectrum's values, so a caller may make
+ * them while the source is still being analysed. Pure.
+ */
+export function planGains(plan: Plan, response: PlanResponse, tileSize: number): PlanGains {
+  const hx = sampledGain((f) => response('x', f), nyquistOf(plan.x.scale), tileSize);
+  const hy = sampledGain((f) => response('y', f), nyquistOf(plan.y.scale), tileSize);
+  return { hx, hy, tileSize };
+}
+
+/** The planned rendition as a viewer at `density` sees it (`gains`: planGains made before, for this spectrum's tile size). */
+function seenBy(spec: SourceSpectrum, plan: Plan, response: PlanResponse, density: number, crop = 1, gains?: PlanGains) {
   const scale = { x: plan.x.scale, y: plan.y.scale };
   const scene = sceneOf(spec, scale, viewingAt(density), crop);
-  const hx = sampledGain((f) => response('x', f), nyquistOf(scale.x), spec.tileSize);
-  const hy = sampledGain((f) => response('y', f), nyquistOf(scale.y), spec.tileSize);
+  const { hx, hy } = gains && gains.tileSize === spec.tileSize ? gains : planGains(plan, response, spec.tileSize);
   return { scene, hx, hy };
 }
 
@@ -149,11 +167,11 @@ export function assessRisk(spec: SourceSpectrum, plan: Plan, response: PlanRespo
  * factors where a false pattern would show at density 1 (the coarsest a rendition is seen at),
  * undefined when nothing would show. No extra Gaussian.
  */
-export function adaptiveFilter(spec: SourceSpectrum, plan: Plan, response: PlanResponse): AdaptiveFilter | undefined {
+export function adaptiveFilter(spec: SourceSpectrum, plan: Plan, response: PlanResponse, gains?: PlanGains): AdaptiveFilter | undefined {
   if (spec.tileSize === 0 || !(plan.x.scale > 1 || plan.y.scale > 1)) return undefined;
   const weights = cropWeights(spec, plan.crop);
   const crop = weights ? cropRatio(regionFoldings(spec, { x: nyquistOf(plan.x.scale), y: nyquistOf(plan.y.scale) }), weights) : 1;
-  const { scene, hx, hy } = seenBy(spec, plan, response, 1, crop);
+  const { scene, hx, hy } = seenBy(spec, plan, response, 1, crop, gains);
   const { cutoff } = autoCutoff(scene, hx, hy);
   if (cutoff.x >= 1 && cutoff.y >= 1) return undefined;
   return { x: 0, y: 0, cutoff };

@@ -1,5 +1,5 @@
 /** Alias risk: the visibility model (patterns in threshold units), folded energy, peaks, region grid, prefilter=auto. */
-export { adaptiveFilter, assessRisk, levelWords, type RiskReport } from './assess.js';
+export { adaptiveFilter, assessRisk, levelWords, planGains, type PlanGains, type RiskReport } from './assess.js';
 export type { Advice } from './advice.js';
 export { cleanWidth } from './advice.js';
 export { contrastThreshold, CSS_PIXEL_DEGREES, mannosSakrison, PEAK_SENSITIVITY, viewingAt, type Viewing } from './csf.js';

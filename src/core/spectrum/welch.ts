@@ -60,11 +60,23 @@ function removeMeans(re: Float64Array, im: Float64Array, t: number, ma: number, 
   }
 }
 
+/** Options of {@link analyzeSpectrum}. */
+export interface SpectrumOptions {
+  /**
+   * Called before each pair of tiles is read, with the row below the lowest row they cover:
+   * the caller makes rows [0, rowEnd) of `src` hold their samples by then (a source still
+   * being decoded fills its rows as they arrive). Non-decreasing: tiles go in row order.
+   */
+  ready?: (rowEnd: number) => void;
+}
+
 /**
  * Welch spectrum of a decoded source (8- or 16-bit sRGB, 1..4 channels). Pure; reads a bounded
- * number of tiles (see tiles.ts), so its cost hardly grows past a few megapixels.
+ * number of tiles (see tiles.ts), so its cost hardly grows past a few megapixels. With
+ * `ready`, the rows of `src` may arrive while it runs (same result: the same tiles, in the
+ * same order).
  */
-export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
+export function analyzeSpectrum(src: PixelRaster, opts: SpectrumOptions = {}): SourceSpectrum {
   const { width, height, channels, data } = src;
   if (!(Number.isInteger(width) && Number.isInteger(height) && width >= 1 && height >= 1)) {
     throw new RangeError(`bad raster size ${width}x${height}`);
@@ -92,6 +104,7 @@ export function analyzeSpectrum(src: PixelRaster): SourceSpectrum {
   for (let k = 0; k < count; k += 2) {
     const ra = layout.region[k];
     const rb = k + 1 < count ? layout.region[k + 1] : -1;
+    opts.ready?.(Math.max(layout.corners[2 * k + 1], rb >= 0 ? layout.corners[2 * k + 3] : 0) + t);
     const ma = loadTile(re, src, layout, k, plan.rev);
     const mb = rb >= 0 ? loadTile(im, src, layout, k + 1, plan.rev) : 0;
     if (rb < 0) im.fill(0);

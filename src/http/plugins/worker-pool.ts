@@ -6,7 +6,30 @@ import { RenderPool, type RenderPoolOptions } from '../../pool/render-pool.js';
 declare module 'fastify' {
   interface FastifyInstance {
     renderPool: RenderPool;
+    /** Warm-up work beyond the pool's own (the server's render through the real path, http/warm-path.ts) that /readyz waits for too. */
+    warmUp: WarmUp;
   }
+}
+
+/** Work /readyz waits for besides the pool's warm start. */
+export interface WarmUp {
+  /** /readyz says not ready until `work` has settled. */
+  hold(work: Promise<unknown>): void;
+  /** Whether held work is still running. */
+  readonly pending: boolean;
+}
+
+function warmUp(): WarmUp {
+  let running = 0;
+  return {
+    hold(work) {
+      running++;
+      void work.catch(() => undefined).finally(() => running--);
+    },
+    get pending() {
+      return running > 0;
+    },
+  };
 }
 
 /** Starts the worker-thread pool at registration, reports its load, and closes it with the app. */
@@ -47,6 +70,7 @@ async function workerPoolPlugin(app: FastifyInstance, opts: RenderPoolOptions): 
     (err: unknown) => app.log.warn({ err }, 'render threads did not warm up'),
   );
   app.decorate('renderPool', pool);
+  app.decorate('warmUp', warmUp());
   app.addHook('onClose', async () => pool.close());
 }
 

@@ -55,7 +55,7 @@ export default async function healthRoutes(app: FastifyInstance): Promise<void> 
       const checks: Record<string, { ok: boolean; detail: string }> = {
         origin: await originCheck(app),
         stopping: { ok: !stopping, detail: stopping ? 'shutting down' : 'running' },
-        warm: { ok: pool.warmed, detail: pool.warmed ? 'render threads warm' : 'render threads starting' },
+        warm: { ok: pool.warmed && !app.warmUp.pending, detail: pool.warmed ? (app.warmUp.pending ? 'rendering a warm-up picture' : 'render threads warm') : 'render threads starting' },
       };
       const purge = purgeCheck(app);
       if (purge?.blocks) checks.purge = purge.check;

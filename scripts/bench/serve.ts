@@ -1,0 +1,76 @@
+/**
+ * The through-HTTP benchmarks' servers (service.ts, stages.ts): the service started as
+ * `npm start` starts it (a child process, tsx src/server.ts, 127.0.0.1, a port it picks, a
+ * fresh temporary cache folder), and a plain GET timed as a user meets it. Loopback only.
+ */
+import { spawn } from 'node:child_process';
+import { once } from 'node:events';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const root = fileURLToPath(new URL('../../', import.meta.url));
+
+export interface Server { url: string; stop(): Promise<void> }
+export interface Started { match: RegExpExecArray; stop(): Promise<void> }
+
+/** Starts `node <args>` and resolves, with the match, once its stdout matches `ready`. */
+export async function startServer(args: string[], env: Record<string, string>, ready: RegExp): Promise<Started> {
+  const child = spawn(process.execPath, args, { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'inherit'] });
+  const match = await new Promise<RegExpExecArray>((resolve, reject) => {
+    let out = '';
+    child.stdout!.on('data', (d: Buffer) => {
+      if (out.length < 1 << 16) out += d.toString();
+      const m = ready.exec(out);
+      if (m) resolve(m);
+    });
+    child.once('exit', (code) => reject(new Error(`${args.join(' ')} exited (${code}) before it was ready:\n${out}`)));
+  });
+  child.stdout!.resume();
+  const stop = async () => {
+    if (child.exitCode !== null || child.signalCode !== null) return;
+    const exited = once(child, 'exit');
+    child.kill('SIGTERM');
+    await exited;
+  };
+  return { match, stop };
+}
+
+/**
+ * The service as `npm start` runs it, on a port it picks, with a fresh cache folder; `nodeArgs`
+ * go before the entry (e.g. `--cpu-prof`).
+ */
+export async function startService(sourceDir: string, nodeArgs: string[] = []): Promise<Server> {
+  const dir = mkdtempSync(join(tmpdir(), 'foldwise-bench-'));
+  const config = join(dir, 'config.json');
+  // Load shedding on event-loop delay is off: on a busy shared machine a start-up stall of
+  // over a second sheds the very first request, and this measures render cost, not shedding.
+  const settings = { origin: { sourceDir, generateDemo: false }, cache: { dir: join(dir, 'cache') }, server: { port: 0 }, pressure: { maxEventLoopDelayMs: 0 } };
+  writeFileSync(config, JSON.stringify(settings));
+  const s = await startServer([...nodeArgs, '--import', 'tsx', 'src/server.ts'], { FOLDWISE_CONFIG: config, HOST: '127.0.0.1' }, /"msg":"Server listening at http:\/\/127\.0\.0\.1:(\d+)"[\s\S]*foldwise ready/);
+  return { url: `http://127.0.0.1:${s.match[1]}`, stop: async () => { await s.stop(); rmSync(dir, { recursive: true, force: true }); } };
+}
+
+/**
+ * Loads this process's own fetch (undici is loaded on the first call: ~30-40 ms measured on a
+ * busy two-core machine) on a data: URL, so no timed request pays for the client's start-up;
+ * the service is not asked anything.
+ */
+export async function warmClient(): Promise<void> {
+  await (await fetch('data:text/plain,warm')).text();
+}
+
+/** One GET, body read to the end: wall time in ms and the response; fails on anything but 200. */
+export async function timedFetch(url: string): Promise<{ ms: number; res: Response; bytes: number }> {
+  const t = performance.now();
+  const res = await fetch(url);
+  const body = await res.arrayBuffer();
+  if (res.status !== 200) throw new Error(`${url} answered ${res.status}: ${Buffer.from(body).toString().slice(0, 300)}`);
+  return { ms: performance.now() - t, res, bytes: body.byteLength };
+}
+
+/** Wall time of one GET, body read to the end, in ms; fails on anything but 200. */
+export async function timedGet(url: string): Promise<number> {
+  return (await timedFetch(url)).ms;
+}

@@ -1,0 +1,48 @@
+import { existsSync, readFileSync } from 'node:fs';
+import { mkdtemp, rm } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { WARM_HEIGHT, WARM_WIDTH } from '../../src/codec/warm.js';
+import { SpoolDir } from '../../src/pool/spool/dir.js';
+import { headerMismatch } from '../../src/pool/spool/rows.js';
+import { type WarmTask, warmTask } from '../../src/pool/warm.js';
+import { warmThreads } from '../../src/pool/warm-start.js';
+
+describe('the warm start through the streamed path (pool/warm-start.ts, pool/warm.ts)', () => {
+  let base: string;
+  beforeAll(async () => {
+    base = await mkdtemp(join(tmpdir(), 'fw-warm-'));
+  });
+  afterAll(() => rm(base, { recursive: true, force: true }));
+
+  it('each thread gets the spool file sharp wrote, reads it as a streamed render does, and the file goes afterwards', async () => {
+    const spool = SpoolDir.open(base)!;
+    const seen: WarmTask[] = [];
+    const results: number[] = [];
+    try {
+      await warmThreads(1, async (task) => {
+        seen.push(task);
+        const file = task.spooled!.path;
+        // A libvips image file of the warm-up size, fully written before the threads start.
+        expect(headerMismatch(readFileSync(file).subarray(0, 64), { width: WARM_WIDTH, height: WARM_HEIGHT, channels: 3, depth: 8 })).toBeNull();
+        results.push(warmTask(task));
+      }, spool);
+      expect(seen).toHaveLength(1);
+      expect(seen[0].spooled).toMatchObject({ width: WARM_WIDTH, height: WARM_HEIGHT });
+      expect(results).toEqual([1]);
+      expect(existsSync(seen[0].spooled!.path)).toBe(false);
+    } finally {
+      spool.close();
+    }
+  });
+
+  it('without a spool folder the threads warm on pixels of their own; a spool file that is gone does not fail the start', async () => {
+    const seen: WarmTask[] = [];
+    await warmThreads(1, async (task) => seen.push(task), null);
+    expect(seen[0].spooled).toBeUndefined();
+    expect(warmTask({ ...seen[0], arrived: new SharedArrayBuffer(4) })).toBe(1);
+    const gone = { arrived: new SharedArrayBuffer(4), threads: 1, spooled: { path: join(base, 'gone.v'), width: WARM_WIDTH, height: WARM_HEIGHT } };
+    expect(warmTask(gone)).toBe(1);
+  });
+});
