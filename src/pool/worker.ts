@@ -38,7 +38,7 @@ export interface SpooledRaster {
   height: number;
   channels: 1 | 3;
   depth: 8 | 16;
-  /** Int32Array buffer of the writer's state (spool-rows.ts: WRITING, WRITTEN, STOPPED). */
+  /** Int32Array buffer of the writer's state (pool/spool/rows.ts: WRITING, WRITTEN, STOPPED). */
   state: SharedArrayBuffer;
 }
 
@@ -93,7 +93,7 @@ export default function resample(task: ResampleTask): BandOutcome {
   view(out, src.depth, outSamples).set(band.data, rows[0] * plan.targetWidth * src.channels);
   // This thread's handle on a large shared source would keep it mapped until the thread next
   // collects garbage, which an idle thread may not do for minutes: collect after this task
-  // (once piscina has let go of it; pool.ts keeps its threads off Atomics.wait for that).
+  // (once piscina has let go of it; pool/threads.ts keeps its threads off Atomics.wait for that).
   if ('buffer' in src && src.buffer.byteLength >= HAND_BACK_MIN_BYTES) handBack();
   return { kind: 'done', rows: band.height };
 }

@@ -19,7 +19,7 @@ export function registerServe(program: Command): void {
     .option('--port <n>', 'listen port (env PORT); 0 picks a free one', portNumber)
     .option('--sources <folder>', 'folder origin root (env FOLDWISE_SOURCE_DIR)')
     .action(async (o: ServeOptions) => {
-      // Flags become the environment variables the server already reads (config.ts).
+      // Flags become the environment variables the server already reads (src/config/).
       if (o.host) process.env.HOST = o.host;
       if (o.port !== undefined) process.env.PORT = String(o.port);
       if (o.sources) process.env.FOLDWISE_SOURCE_DIR = o.sources;

@@ -40,7 +40,7 @@ function sweep(base: string): void {
 
 /**
  * A private folder (mode 0700, made by mkdtemp) for the spool files of decodes in progress
- * (src/codec/spool-decode.ts writes one, the worker threads read it as it grows: spool-rows.ts). Each render
+ * (src/codec/spool-decode.ts writes one, the worker threads read it as it grows: pool/spool/rows.ts). Each render
  * gets a name of its own and removes its file when done; the folder goes with `close`.
  * A memory-backed file system (tmpfs) is best: the file never needs to reach a disk. The
  * folder's name carries the process id, so a later start can remove what a killed one left.
