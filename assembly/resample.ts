@@ -31,6 +31,32 @@ export function across(
       store<f32>(d + j, w0 * load<f32>(s + j));
     }
     let k = 1;
+    for (; k + 8 <= taps; k += 8) {
+      const r = row + (<usize>k << 2);
+      const b0 = v128.load32_splat(r), b1 = v128.load32_splat(r + 4), b2 = v128.load32_splat(r + 8), b3 = v128.load32_splat(r + 12);
+      const b4 = v128.load32_splat(r + 16), b5 = v128.load32_splat(r + 20), b6 = v128.load32_splat(r + 24), b7 = v128.load32_splat(r + 28);
+      const x0 = s + <usize>k * sb;
+      for (let i = 0; i < vec; i += 4) {
+        const j = <usize>(i << 2);
+        const x = x0 + j;
+        let acc = v128.load(d + j);
+        acc = f32x4.add(acc, f32x4.mul(b0, v128.load(x)));
+        acc = f32x4.add(acc, f32x4.mul(b1, v128.load(x + sb)));
+        acc = f32x4.add(acc, f32x4.mul(b2, v128.load(x + 2 * sb)));
+        acc = f32x4.add(acc, f32x4.mul(b3, v128.load(x + 3 * sb)));
+        acc = f32x4.add(acc, f32x4.mul(b4, v128.load(x + 4 * sb)));
+        acc = f32x4.add(acc, f32x4.mul(b5, v128.load(x + 5 * sb)));
+        acc = f32x4.add(acc, f32x4.mul(b6, v128.load(x + 6 * sb)));
+        acc = f32x4.add(acc, f32x4.mul(b7, v128.load(x + 7 * sb)));
+        v128.store(d + j, acc);
+      }
+      for (let i = vec; i < lanes; i++) {
+        const j = <usize>(i << 2);
+        let acc = load<f32>(d + j);
+        for (let t = 0; t < 8; t++) acc += load<f32>(r + (<usize>t << 2)) * load<f32>(x0 + <usize>t * sb + j);
+        store<f32>(d + j, acc);
+      }
+    }
     for (; k + 4 <= taps; k += 4) {
       const a0 = load<f32>(row + (<usize>k << 2));
       const a1 = load<f32>(row + (<usize>(k + 1) << 2));
@@ -229,7 +255,18 @@ export function decodeReduce5(
 
 /** n 8-bit codes at src to working floats at dst through the 256-entry table at lut. */
 export function decode8(dst: i32, src: i32, lut: i32, n: i32): void {
-  for (let i = 0; i < n; i++) {
+  const t = <usize>lut;
+  let i = 0;
+  for (; i + 4 <= n; i += 4) {
+    // Four codes in one load (little-endian: the first code is the low byte).
+    const c = load<u32>(<usize>(src + i));
+    const d = <usize>(dst + (i << 2));
+    store<f32>(d, load<f32>(t + (<usize>(c & 255) << 2)));
+    store<f32>(d + 4, load<f32>(t + <usize>((c >> 6) & 0x3fc)));
+    store<f32>(d + 8, load<f32>(t + <usize>((c >> 14) & 0x3fc)));
+    store<f32>(d + 12, load<f32>(t + <usize>((c >> 22) & 0x3fc)));
+  }
+  for (; i < n; i++) {
     store<f32>(<usize>(dst + (i << 2)), load<f32>(<usize>(lut + (<i32>load<u8>(<usize>(src + i)) << 2))));
   }
 }
