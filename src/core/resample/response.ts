@@ -76,10 +76,23 @@ export function planResponse(plan: Plan, axis: 'x' | 'y', f: number): number {
  * the same rows bit for bit, as a table whose rows are all its phases.
  */
 function phaseRows(plan: Plan, axis: 'x' | 'y'): WeightTable {
+  const ax = plan[axis];
+  const [len, crop0, cropLen, dstLen] = axis === 'x'
+    ? [plan.sourceWidth, plan.crop.x, plan.crop.width, plan.targetWidth]
+    : [plan.sourceHeight, plan.crop.y, plan.crop.height, plan.targetHeight];
+  const key = `${len}|${crop0}|${cropLen}|${dstLen}|${ax.kernel}|${ax.sigma}|${ax.pyramidLevels}|${ax.cutoff ?? 1}`;
+  const hit = rowsKept.get(key);
+  if (hit) return hit;
   const rows = sampledRows(plan, axis, phases);
   phasesOf.set(rows, Int32Array.from({ length: rows.dstLen }, (_, i) => i));
+  rowsKept.set(key, rows);
+  if (rowsKept.size > ROWS_KEPT) rowsKept.delete(rowsKept.keys().next().value!);
   return rows;
 }
+
+/** Sampled rows kept per axis setup (sources of one camera share their sizes, a ladder its widths). */
+const ROWS_KEPT = 64;
+const rowsKept = new Map<string, WeightTable>();
 
 /**
  * planResponse bound to one plan: the PlanResponse the risk model (core/risk) reads, which
