@@ -100,21 +100,26 @@ async function uploadRun(count: number, onAccepted?: (n: number) => Promise<void
   return run;
 }
 
-async function renderRun(manifests: any[]): Promise<{ rps: number; failed: number; misses: number }> {
+async function renderRun(manifests: any[]): Promise<{ rps: number; failed: string; misses: number }> {
   const sources = manifests.map((m) => m.source.key as string);
   const widths = [100, 200, 300, 400, 160, 320];
   let failed = 0;
+  // Each failure by status (0: no answer), so a 503 load shed is told from a lost request.
+  const statuses = new Map<number, number>();
   let misses = 0;
   const started = performance.now();
   await pool(renders, connections, async (i) => {
     // Deterministic mix: the ladder's widths are hits, the others misses until rendered once.
     const url = `${lb.url}/v1/renditions/${sources[i % sources.length]}?width=${widths[(i * 7) % widths.length]}&format=webp`;
     const res = await fetch(url).catch(() => undefined);
-    if (!res || res.status !== 200) failed++;
-    else if ((res.headers.get('server-timing') ?? '').includes('miss')) misses++;
+    if (!res || res.status !== 200) {
+      failed++;
+      statuses.set(res?.status ?? 0, (statuses.get(res?.status ?? 0) ?? 0) + 1);
+    } else if ((res.headers.get('server-timing') ?? '').includes('miss')) misses++;
     await res?.arrayBuffer();
   });
-  return { rps: renders / ((performance.now() - started) / 1000), failed, misses };
+  const by = [...statuses].map(([status, n]) => `${n} x ${status}`).join(', ');
+  return { rps: renders / ((performance.now() - started) / 1000), failed: failed ? `${failed} (${by})` : '0', misses };
 }
 
 try {
