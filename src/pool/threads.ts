@@ -17,6 +17,10 @@ const workerFile = fileURLToPath(new URL(fromSource ? './worker.ts' : './worker.
 // tsx resolved from this package, not from the working directory: the CLI runs from anywhere.
 const tsxLoader = fromSource ? pathToFileURL(createRequire(import.meta.url).resolve('tsx')).href : '';
 
+// A process started with --cpu-prof (scripts/bench/stages.ts) profiles its worker threads too:
+// a worker given its own execArgv does not inherit the process's.
+const profiling = process.execArgv.filter((a) => a.startsWith('--cpu-prof'));
+
 /** The pool's piscina: `threads` worker threads running worker.ts, for `maxRunning` jobs at once. */
 function startThreads(threads: number, maxRunning: number): BandPiscina {
   return new Piscina<ResampleTask, BandOutcome>({
@@ -30,7 +34,7 @@ function startThreads(threads: number, maxRunning: number): BandPiscina {
     // task: the collection a large source's task schedules (worker.ts) never ran, and one
     // mapping the size of that source stayed for good. Message events let it run.
     atomics: 'disabled',
-    execArgv: fromSource ? ['--import', tsxLoader] : [],
+    execArgv: [...(fromSource ? ['--import', tsxLoader] : []), ...profiling],
   });
 }
 

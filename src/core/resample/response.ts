@@ -2,6 +2,7 @@ import type { Plan } from '../types.js';
 import { planTable } from './axis-table.js';
 import type { WeightTable } from './weights.js';
 import { pyramidChainResponse } from './pyramid.js';
+import { sampledRows } from './sampled-rows.js';
 
 /** Output pixels sampled when averaging a table's response over its phases. */
 const PHASES = 33;
@@ -71,9 +72,33 @@ export function planResponse(plan: Plan, axis: 'x' | 'y', f: number): number {
 }
 
 /**
+ * Only the rows of the plan's final table that tableResponse averages over (sampled-rows.ts),
+ * the same rows bit for bit, as a table whose rows are all its phases.
+ */
+function phaseRows(plan: Plan, axis: 'x' | 'y'): WeightTable {
+  const ax = plan[axis];
+  const [len, crop0, cropLen, dstLen] = axis === 'x'
+    ? [plan.sourceWidth, plan.crop.x, plan.crop.width, plan.targetWidth]
+    : [plan.sourceHeight, plan.crop.y, plan.crop.height, plan.targetHeight];
+  const key = `${len}|${crop0}|${cropLen}|${dstLen}|${ax.kernel}|${ax.sigma}|${ax.pyramidLevels}|${ax.cutoff ?? 1}`;
+  const hit = rowsKept.get(key);
+  if (hit) return hit;
+  const rows = sampledRows(plan, axis, phases);
+  phasesOf.set(rows, Int32Array.from({ length: rows.dstLen }, (_, i) => i));
+  rowsKept.set(key, rows);
+  if (rowsKept.size > ROWS_KEPT) rowsKept.delete(rowsKept.keys().next().value!);
+  return rows;
+}
+
+/** Sampled rows kept per axis setup (sources of one camera share their sizes, a ladder its widths). */
+const ROWS_KEPT = 64;
+const rowsKept = new Map<string, WeightTable>();
+
+/**
  * planResponse bound to one plan: the PlanResponse the risk model (core/risk) reads, which
- * asks it at hundreds of frequencies. The same values; each axis's table is found once
- * (planTable's cache key is a string made per call, a third of a decision's time).
+ * asks it at hundreds of frequencies. The same values, bit for bit (test/core/resample/
+ * sampled-rows.test.ts); each axis's sampled rows are built once, and only those rows, not
+ * the whole table (a thread that decides but does not render would build it for them alone).
  */
 export function planResponseOf(plan: Plan): (axis: 'x' | 'y', f: number) => number {
   let tx: WeightTable | undefined;
@@ -81,7 +106,7 @@ export function planResponseOf(plan: Plan): (axis: 'x' | 'y', f: number) => numb
   return (axis, f) => {
     if (!Number.isFinite(f)) throw new RangeError(`frequency must be finite, got ${f}`);
     const levels = plan[axis].pyramidLevels;
-    const table = axis === 'x' ? (tx ??= planTable(plan, 'x')) : (ty ??= planTable(plan, 'y'));
+    const table = axis === 'x' ? (tx ??= phaseRows(plan, 'x')) : (ty ??= phaseRows(plan, 'y'));
     return tableResponse(table, f * 2 ** levels) * Math.abs(pyramidChainResponse(f, levels));
   };
 }

@@ -60,3 +60,29 @@ describe('compensatedFilter (the final filter after a pyramid)', () => {
     expect(got.at(0)).toBeGreaterThan(0);
   });
 });
+
+describe('compensatedFilter designs kept per (kernel, scale, sigma, levels)', () => {
+  it('answers the one design for the same parameters and a new one for others', () => {
+    const kernel = findKernel('bandlimit')!;
+    const first = compensatedFilter(kernel, 5.54, 0, 1);
+    // The y table of a plan that keeps the aspect asks the same design as its x table.
+    expect(compensatedFilter(kernel, 5.54, 0, 1)).toBe(first);
+    const other = compensatedFilter(kernel, 5.54 / 0.83, 0, 1);
+    expect(other).not.toBe(first);
+    expect(other.support).toBeGreaterThan(first.support);
+    expect(compensatedFilter(findKernel('lanczos-3')!, 5.54, 0, 1)).not.toBe(first);
+  });
+
+  it('designs again, bit for bit, once a design has left the bounded store', () => {
+    const kernel = findKernel('bandlimit')!;
+    const kept = compensatedFilter(kernel, 7.25, 0, 1);
+    const xs = Array.from({ length: 801 }, (_, i) => ((i - 400) / 400) * kept.support);
+    const before = xs.map((x) => kept.at(x));
+    // More designs than the store keeps push the first one out.
+    for (let k = 0; k < 40; k++) compensatedFilter(kernel, 9 + k / 8, 0, 1);
+    const again = compensatedFilter(kernel, 7.25, 0, 1);
+    expect(again).not.toBe(kept);
+    expect(xs.map((x) => again.at(x))).toEqual(before);
+    expect(before.filter((v) => v !== 0).length).toBeGreaterThan(400);
+  });
+});
