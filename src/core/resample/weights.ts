@@ -79,10 +79,8 @@ export function buildWeights(
   for (let o = 0; o < dstLen; o++) {
     const c = origin + o * step;
     centre[o] = c;
-    // `| 0`: Math.ceil of (-1, 0) is -0, which is no small integer to the optimising compiler
-    // (it deoptimised this loop and mirror on the first request); the same value otherwise.
-    const first = Math.ceil(c - reach) | 0;
-    const last = Math.floor(c + reach) | 0;
+    const first = Math.ceil(c - reach);
+    const last = Math.floor(c + reach);
     let a = srcLen - 1;
     let b = 0;
     for (let j = first; j <= last; j++) {
@@ -103,8 +101,8 @@ export function buildWeights(
     const s = Math.min(lo[o], srcLen - taps);
     start[o] = s;
     const row = o * taps;
-    const first = Math.ceil(c - reach) | 0;
-    const last = Math.floor(c + reach) | 0;
+    const first = Math.ceil(c - reach);
+    const last = Math.floor(c + reach);
     row64.fill(0);
     for (let j = first; j <= last; j++) row64[mirror(j, srcLen) - s] += f.at(j - c);
     let sum = 0;
