@@ -5,7 +5,7 @@
  * to 800 px with the designed kernel, in a thread that does not render) was most of its cost.
  *
  * Each row is the very row finalTable (axis-table.ts) stores, bit for bit: the filter, origin
- * and step are derived as finalTable derives them, the table's shape (taps, first taps) comes
+ * and step are finalTable's own (planStage), the table's shape (taps, first taps) comes
  * from buildWeights run with a constant filter of the same support (the shape depends on the
  * support only), and each picked row is buildWeights' own row for that one centre. A row clear
  * of the border reads input indices start .. start + n - 1 unmirrored, so the one-row table
@@ -13,41 +13,9 @@
  * only adds zero taps after them. test/core/resample/sampled-rows.test.ts checks the rows and
  * the responses against the whole table's.
  */
-import { findKernel } from '../kernels/index.js';
 import type { Plan } from '../types.js';
-import { levelLength, planTable } from './axis-table.js';
-import { compensatedFilter } from './compensate.js';
-import { stretchedFilter, type AxisFilter } from './filter.js';
+import { planStage, planTable } from './axis-table.js';
 import { buildWeights, type WeightTable } from './weights.js';
-
-/** The final stage of one axis as finalTable sets it up: its grid, centres and filter. */
-interface FinalStage {
-  srcLen: number;
-  dstLen: number;
-  origin: number;
-  step: number;
-  filter: AxisFilter;
-}
-
-function finalStage(plan: Plan, axis: 'x' | 'y'): FinalStage {
-  const ax = plan[axis];
-  const [srcLen, crop0, cropLen, dstLen] = axis === 'x'
-    ? [plan.sourceWidth, plan.crop.x, plan.crop.width, plan.targetWidth]
-    : [plan.sourceHeight, plan.crop.y, plan.crop.height, plan.targetHeight];
-  const cut = ax.cutoff !== undefined && ax.cutoff > 0 && ax.cutoff < 1 ? ax.cutoff : 1;
-  const kernel = findKernel(ax.kernel);
-  if (!kernel) throw new RangeError(`unknown kernel ${ax.kernel}`);
-  const scale = cropLen / dstLen;
-  const unit = 2 ** ax.pyramidLevels;
-  const step = scale / unit;
-  const stretch = kernel.stretch && step > 1 ? step / cut : 1;
-  const filter =
-    ax.pyramidLevels > 0
-      ? compensatedFilter(kernel, scale / cut, ax.sigma, ax.pyramidLevels)
-      : stretchedFilter(kernel, stretch, ax.sigma);
-  const origin = (crop0 + 0.5 * scale - 0.5) / unit;
-  return { srcLen: levelLength(srcLen, ax.pyramidLevels), dstLen, origin, step, filter };
-}
 
 /**
  * The rows `pick` chooses of the plan's final table for `axis`, as a table of their own (row
@@ -57,7 +25,7 @@ function finalStage(plan: Plan, axis: 'x' | 'y'): FinalStage {
  * those of the plan) and returns output pixel indices.
  */
 export function sampledRows(plan: Plan, axis: 'x' | 'y', pick: (shape: WeightTable) => Int32Array): WeightTable {
-  const stage = finalStage(plan, axis);
+  const stage = planStage(plan, axis);
   const { srcLen, step, filter } = stage;
   const shape = buildWeights(srcLen, stage.dstLen, stage.origin, step, { support: filter.support, at: () => 1 });
   const rows = pick(shape);
@@ -80,5 +48,6 @@ export function sampledRows(plan: Plan, axis: 'x' | 'y', pick: (shape: WeightTab
       weights.set(one.weights, i * taps);
     }
   }
-  return { srcLen, dstLen: rows.length, taps, start, centre, weights };
+  // The fields in buildWeights' order: one object shape for the tables tableResponse reads.
+  return { srcLen, dstLen: rows.length, taps, start, weights, centre };
 }
