@@ -67,7 +67,8 @@ describe('compose.yaml and deploy/haproxy.cfg', () => {
 
   it('points the replicas at the redis service, which keeps an append-only file (jobs survive its restart)', () => {
     const redisUrl = new URL(replicas[0][1].environment.FOLDWISE_REDIS_URL);
-    expect(compose.services[redisUrl.hostname]).toBeTruthy();
+    expect(redisUrl.hostname).toBe('redis');
+    expect(Object.keys(compose.services)).toContain(redisUrl.hostname);
     expect(redisUrl.port).toBe('6379'); // Redis's default port (redis.io documentation)
     const command: string[] = compose.services.redis.command;
     expect(command[command.indexOf('--appendonly') + 1]).toBe('yes');
