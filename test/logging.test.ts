@@ -1,11 +1,12 @@
 import { spawn } from 'node:child_process';
-import { existsSync, readFileSync } from 'node:fs';
+import { existsSync } from 'node:fs';
 import { mkdtemp, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { logFormat, pageUrl } from '../src/logging.js';
 import { binPath } from './cli/run-cli.js';
+import { server as serverUnder } from './logging-terminal.js';
 
 describe('the log format and the start line\u2019s URL', () => {
   it('is pretty on a terminal and JSON otherwise, unless set', () => {
@@ -110,9 +111,10 @@ describe('the server\u2019s log as a person and a machine see it', () => {
   }, 4 * waitMs);
 
   it.skipIf(noScript)('writes readable lines through pino-pretty on a terminal', async () => {
-    const serve = [process.execPath, binPath, 'serve', '--port', '0', '--host', '127.0.0.1'].map((a) => `'${a}'`).join(' ');
-    // The server is script's one child (Linux lists a task's children under /proc).
-    const childOf = (pid: number) => Number(readFileSync(`/proc/${pid}/task/${pid}/children`, 'utf8').trim().split(' ')[0]);
+    // script(1) runs the command through $SHELL -c; `exec` makes the shell become the server,
+    // but a shell may still stand between them, so the server is looked up by its command line.
+    const serve = `exec ${[process.execPath, binPath, 'serve', '--port', '0', '--host', '127.0.0.1'].map((a) => `'${a}'`).join(' ')}`;
+    const childOf = (pid: number) => serverUnder(pid, binPath);
     // script(1) may stop copying the terminal's output once its child has exited, so the last
     // line is not awaited here; -e passes on the server's exit code (0: a clean shutdown).
     const { log, url, page } = await startAndStop(scriptPath, ['-qfec', serve, '/dev/null'], childOf, null);
