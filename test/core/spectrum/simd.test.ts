@@ -1,0 +1,55 @@
+import { afterAll, describe, expect, it } from 'vitest';
+import { fftPlan } from '../../../src/core/spectrum/fft.js';
+import { fft2dBitReversed } from '../../../src/core/spectrum/fft2d.js';
+import { analyzeSpectrum } from '../../../src/core/spectrum/index.js';
+import { setSpectrumSimdEnabled, simdFft2d } from '../../../src/core/spectrum/simd.js';
+import { grating, greyRaster, noise } from '../risk/patterns.js';
+import { seededRandom } from './signals.js';
+
+afterAll(() => setSpectrumSimdEnabled(true));
+
+// The SIMD transform (assembly/spectrum.ts) does the scalar one's operations in the same order
+// with the same IEEE-754 rounding (f64x2 add/sub/mul, no fused multiply-add), so the check is
+// equality bit for bit, not a tolerance.
+describe('SIMD 2-D FFT (f64x2)', () => {
+  it('is available on the engines the project supports (Node 20 and 24 have Wasm SIMD)', () => {
+    expect(simdFft2d(fftPlan(128))).not.toBeNull();
+  });
+
+  it.each([4, 8, 16, 32, 64, 128])('equals fft2dBitReversed bit for bit on seeded noise, side %i', (n) => {
+    const plan = fftPlan(n);
+    const simd = simdFft2d(plan)!;
+    const rnd = seededRandom(n);
+    const re = new Float64Array(n * n).map(() => rnd() - 0.5);
+    const im = new Float64Array(n * n).map(() => rnd() - 0.5);
+    simd.re.set(re);
+    simd.im.set(im);
+    fft2dBitReversed(plan, re, im);
+    simd.run();
+    expect(Array.from(simd.re)).toEqual(Array.from(re));
+    expect(Array.from(simd.im)).toEqual(Array.from(im));
+  });
+
+  it('serves sides 4..128 only', () => {
+    expect(simdFft2d(fftPlan(2))).toBeNull();
+    expect(simdFft2d(fftPlan(256))).toBeNull();
+  });
+
+  it('gives the same Welch spectrum as the scalar transform, sizes switching between calls', () => {
+    const sources = [
+      greyRaster(640, 480, grating(0.31, 0.07, 0.4)),
+      greyRaster(200, 130, noise(200, 130, 0.3, 7), 8),
+      greyRaster(37, 21, noise(37, 21, 0.2, 3)),
+    ];
+    for (const src of sources) {
+      setSpectrumSimdEnabled(false);
+      const ref = analyzeSpectrum(src);
+      setSpectrumSimdEnabled(true);
+      const got = analyzeSpectrum(src);
+      expect(got.tileSize).toBe(ref.tileSize);
+      expect(Array.from(got.power)).toEqual(Array.from(ref.power));
+      expect(Array.from(got.grid.power)).toEqual(Array.from(ref.grid.power));
+      expect([got.coarse, got.mean]).toEqual([ref.coarse, ref.mean]);
+    }
+  });
+});
