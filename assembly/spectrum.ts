@@ -148,3 +148,37 @@ export function fft2dBitReversed(re: usize, im: usize, cos: usize, sin: usize, n
   for (let r = 0; r < n; r++) rowStages(re + <usize>r * rowBytes, im + <usize>r * rowBytes, cos, sin, n);
   columns(re, im, cos, sin, n);
 }
+
+/**
+ * luminance.ts's windowedTileLuminance for 8-bit RGB (channels 3) or RGBA (4) samples: the
+ * size x size tile packed at `src` (rows of size * channels bytes), through `lut` (three tables
+ * of 256 f64: each primary's coefficient times the linear value of each code, the same
+ * products the scalar loop forms), times the window `w2`, to out[rev[y] * size + rev[x]].
+ * Returns the sum of the values written, added in the scalar loop's order. Not in place.
+ */
+export function tileLuminance8(out: usize, src: usize, channels: i32, size: i32, lut: usize, w2: usize, rev: usize, alphaScale: f64): f64 {
+  let sum = 0.0;
+  let p = src;
+  const g = lut + 2048;
+  const b = lut + 4096;
+  for (let y = 0; y < size; y++) {
+    const row = w2 + (<usize>(y * size) << 3);
+    const dst = out + (<usize>(load<u32>(rev + (<usize>y << 2)) * <u32>size) << 3);
+    if (channels == 3) {
+      for (let x = 0; x < size; x++, p += 3) {
+        const l = load<f64>(lut + (<usize>load<u8>(p) << 3)) + load<f64>(g + (<usize>load<u8>(p, 1) << 3)) + load<f64>(b + (<usize>load<u8>(p, 2) << 3));
+        const v = l * load<f64>(row + (<usize>x << 3));
+        store<f64>(dst + (<usize>load<u32>(rev + (<usize>x << 2)) << 3), v);
+        sum += v;
+      }
+    } else {
+      for (let x = 0; x < size; x++, p += 4) {
+        const l = load<f64>(lut + (<usize>load<u8>(p) << 3)) + load<f64>(g + (<usize>load<u8>(p, 1) << 3)) + load<f64>(b + (<usize>load<u8>(p, 2) << 3));
+        const v = l * <f64>load<u8>(p, 3) * alphaScale * load<f64>(row + (<usize>x << 3));
+        store<f64>(dst + (<usize>load<u32>(rev + (<usize>x << 2)) << 3), v);
+        sum += v;
+      }
+    }
+  }
+  return sum;
+}

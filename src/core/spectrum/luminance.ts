@@ -15,6 +15,11 @@ import type { PixelRaster } from '../types.js';
 const rec709: readonly [number, number, number] = [0.2126, 0.7152, 0.0722];
 const p3 = luminanceCoefficients(displayP3Space);
 
+/** The luminance coefficients (R, G, B) of the raster's primaries (one shared array per space). */
+export function luminanceWeights(src: PixelRaster): readonly [number, number, number] {
+  return src.gamut === 'display-p3' ? p3 : rec709;
+}
+
 /**
  * Write the luminance of the size x size tile whose top-left corner is (x0, y0), times the
  * row-major size x size window `w2`, into `out`, and return the sum of what was written (one
@@ -36,7 +41,7 @@ export function windowedTileLuminance(
   const wide = data instanceof Uint16Array;
   const lut = wide ? srgbToLinear16 : srgbToLinear8;
   const alphaScale = wide ? 1 / 65535 : 1 / 255;
-  const [KR, KG, KB] = src.gamut === 'display-p3' ? p3 : rec709;
+  const [KR, KG, KB] = luminanceWeights(src);
   let sum = 0;
   for (let y = 0; y < size; y++) {
     let p = ((y0 + y) * width + x0) * channels;

@@ -1,11 +1,16 @@
 /**
  * The optional WebAssembly SIMD 2-D FFT (assembly/spectrum.ts, f64x2), the twin of
- * fft2dBitReversed (fft2d.ts), which stays the reference: the same operations in the same
+ * fft2dBitReversed (fft2d.ts), and the Wasm twin of windowedTileLuminance (luminance.ts) for
+ * 8-bit RGB and RGBA; the TypeScript ones stay the reference: the same operations in the same
  * order, so the same values bit for bit. Its arrays live in the module's own memory, laid out
  * once for the largest tile, so the views handed out are never detached.
  */
+import { srgbToLinear8 } from '../color/index.js';
 import type { WasmMemory } from '../simd/kernels.js';
+import type { PixelRaster } from '../types.js';
 import type { FftPlan } from './fft.js';
+import { luminanceWeights } from './luminance.js';
+import { window2d } from './window.js';
 import { SPECTRUM_WASM_BASE64 } from './wasm-bytes.js';
 
 interface WasmApi {
@@ -15,6 +20,7 @@ interface WasmApi {
   Instance: new (m: object, imports: object) => { exports: Record<string, unknown> };
 }
 type Fft2d = (re: number, im: number, cos: number, sin: number, n: number) => void;
+type Luminance = (out: number, src: number, channels: number, size: number, lut: number, w2: number, rev: number, alphaScale: number) => number;
 
 /** Largest side the memory is laid out for (tiles.ts's largest tile). */
 const MAX_SIDE = 128;
@@ -24,19 +30,32 @@ const RE = BASE;
 const IM = RE + MAX_SIDE * MAX_SIDE * 8;
 const COS = IM + MAX_SIDE * MAX_SIDE * 8;
 const SIN = COS + MAX_SIDE * 8;
-const END = SIN + MAX_SIDE * 8;
+const SRC = SIN + MAX_SIDE * 8;
+const LUT = SRC + MAX_SIDE * MAX_SIDE * 4;
+const W2 = LUT + 3 * 256 * 8;
+const REV = W2 + MAX_SIDE * MAX_SIDE * 8;
+const END = REV + MAX_SIDE * 4;
 
 /** One size's transform: fill `re` and `im` (bit-reversed on both axes), then call `run`. */
 export interface SimdFft2d {
   readonly re: Float64Array;
   readonly im: Float64Array;
   run(): void;
+  /**
+   * windowedTileLuminance of the tile at (x0, y0) into `re` (`into` 0) or `im` (1), with the
+   * plan's window and bit reversal; null (nothing written) for rasters other than 8-bit RGB(A).
+   */
+  luminance(into: 0 | 1, src: PixelRaster, x0: number, y0: number): number | null;
 }
 
 interface Module {
   buffer: ArrayBuffer;
   fft2d: Fft2d;
+  luminance: Luminance;
+  /** The side whose twiddles, window and bit reversal are in memory (0: none yet). */
   size: number;
+  /** The luminance weights the LUT holds. */
+  weights: readonly number[] | null;
 }
 
 let enabled = true;
@@ -51,7 +70,8 @@ function instantiate(): Module | null {
   if (!wasm || !wasm.validate(bytes)) return null;
   const memory = new wasm.Memory({ initial: Math.ceil(END / 65536) });
   const inst = new wasm.Instance(new wasm.Module(bytes), { env: { memory } });
-  return { buffer: memory.buffer, fft2d: inst.exports.fft2dBitReversed as Fft2d, size: 0 };
+  const e = inst.exports;
+  return { buffer: memory.buffer, fft2d: e.fft2dBitReversed as Fft2d, luminance: e.tileLuminance8 as Luminance, size: 0, weights: null };
 }
 
 const views = new Map<number, SimdFft2d>();
@@ -71,18 +91,39 @@ export function simdFft2d(plan: FftPlan): SimdFft2d | null {
   if (!view) {
     const re = new Float64Array(m.buffer, RE, n * n);
     const im = new Float64Array(m.buffer, IM, n * n);
-    const cos = new Float64Array(m.buffer, COS, n);
-    const sin = new Float64Array(m.buffer, SIN, n);
+    const bytes = new Uint8Array(m.buffer, SRC, n * n * 4);
+    const prepare = () => {
+      if (m.size === n) return;
+      new Float64Array(m.buffer, COS, n).set(plan.cos.subarray(0, n));
+      new Float64Array(m.buffer, SIN, n).set(plan.sin.subarray(0, n));
+      new Float64Array(m.buffer, W2, n * n).set(window2d(n));
+      new Uint32Array(m.buffer, REV, n).set(plan.rev);
+      m.size = n;
+    };
     view = {
       re,
       im,
       run() {
-        if (m.size !== n) {
-          cos.set(plan.cos.subarray(0, n));
-          sin.set(plan.sin.subarray(0, n));
-          m.size = n;
-        }
+        prepare();
         m.fft2d(RE, IM, COS, SIN, n);
+      },
+      luminance(into, src, x0, y0) {
+        const { data, width, channels } = src;
+        if (!(data instanceof Uint8Array) || (channels !== 3 && channels !== 4)) return null;
+        prepare();
+        const weights = luminanceWeights(src);
+        if (m.weights !== weights) {
+          const lut = new Float64Array(m.buffer, LUT, 3 * 256);
+          // The products the scalar loop forms (K times the code's linear value), so the sums agree.
+          for (let c = 0; c < 3; c++) for (let i = 0; i < 256; i++) lut[c * 256 + i] = weights[c] * srgbToLinear8[i];
+          m.weights = weights;
+        }
+        const rowBytes = n * channels;
+        for (let y = 0; y < n; y++) {
+          const p = ((y0 + y) * width + x0) * channels;
+          bytes.set(data.subarray(p, p + rowBytes), y * rowBytes);
+        }
+        return m.luminance(into === 0 ? RE : IM, SRC, channels, n, LUT, W2, REV, 1 / 255);
       },
     };
     views.set(n, view);

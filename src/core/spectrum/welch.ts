@@ -10,7 +10,7 @@ import { fftPlan } from './fft.js';
 import { fft2dBitReversed } from './fft2d.js';
 import { windowedTileLuminance } from './luminance.js';
 import { accumulatePacked } from './periodogram.js';
-import { simdFft2d } from './simd.js';
+import { simdFft2d, type SimdFft2d } from './simd.js';
 import { layoutTiles, type TileLayout } from './tiles.js';
 import type { SourceSpectrum } from './types.js';
 import { window2d } from './window.js';
@@ -36,10 +36,15 @@ function scratchFor(t: number): Scratch {
   return s;
 }
 
-/** Windowed luminance of tile `k` into `dst`, bit-reversed on both axes; returns its windowed mean. */
-function loadTile(dst: Float64Array, src: PixelRaster, layout: TileLayout, k: number, rev: Uint32Array): number {
+/**
+ * Windowed luminance of tile `k` into `dst` (`into` 0: re, 1: im), bit-reversed on both axes,
+ * by the Wasm loop where it serves this raster; returns its windowed mean.
+ */
+function loadTile(dst: Float64Array, into: 0 | 1, simd: SimdFft2d | null, src: PixelRaster, layout: TileLayout, k: number, rev: Uint32Array): number {
   const t = layout.tileSize;
-  const sum = windowedTileLuminance(dst, src, layout.corners[2 * k], layout.corners[2 * k + 1], t, window2d(t), rev);
+  const x0 = layout.corners[2 * k];
+  const y0 = layout.corners[2 * k + 1];
+  const sum = simd?.luminance(into, src, x0, y0) ?? windowedTileLuminance(dst, src, x0, y0, t, window2d(t), rev);
   return sum / ((t / 2) * (t / 2)); // sum of the 2-D periodic Hann window is (T/2)^2
 }
 
@@ -108,8 +113,8 @@ export function analyzeSpectrum(src: PixelRaster, opts: SpectrumOptions = {}): S
     const ra = layout.region[k];
     const rb = k + 1 < count ? layout.region[k + 1] : -1;
     opts.ready?.(Math.max(layout.corners[2 * k + 1], rb >= 0 ? layout.corners[2 * k + 3] : 0) + t);
-    const ma = loadTile(re, src, layout, k, plan.rev);
-    const mb = rb >= 0 ? loadTile(im, src, layout, k + 1, plan.rev) : 0;
+    const ma = loadTile(re, 0, simd, src, layout, k, plan.rev);
+    const mb = rb >= 0 ? loadTile(im, 1, simd, src, layout, k + 1, plan.rev) : 0;
     if (rb < 0) im.fill(0);
     meanSum += ma + mb;
     meanSquares += ma * ma + mb * mb;

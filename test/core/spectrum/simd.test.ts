@@ -3,8 +3,18 @@ import { fftPlan } from '../../../src/core/spectrum/fft.js';
 import { fft2dBitReversed } from '../../../src/core/spectrum/fft2d.js';
 import { analyzeSpectrum } from '../../../src/core/spectrum/index.js';
 import { setSpectrumSimdEnabled, simdFft2d } from '../../../src/core/spectrum/simd.js';
+import type { Channels, PixelRaster } from '../../../src/core/types.js';
 import { grating, greyRaster, noise } from '../risk/patterns.js';
 import { seededRandom } from './signals.js';
+
+/** Seeded noise in every channel, 8-bit (the Wasm luminance loop) or 16-bit (the scalar one). */
+function colourNoise(width: number, height: number, channels: Channels, deep = false, gamut?: 'display-p3'): PixelRaster {
+  const rnd = seededRandom(width * channels);
+  const max = deep ? 65535 : 255;
+  const data = deep ? new Uint16Array(width * height * channels) : new Uint8Array(width * height * channels);
+  for (let i = 0; i < data.length; i++) data[i] = Math.floor(rnd() * (max + 1));
+  return { data, width, height, channels, ...(gamut ? { gamut } : {}) };
+}
 
 afterAll(() => setSpectrumSimdEnabled(true));
 
@@ -35,11 +45,16 @@ describe('SIMD 2-D FFT (f64x2)', () => {
     expect(simdFft2d(fftPlan(256))).toBeNull();
   });
 
-  it('gives the same Welch spectrum as the scalar transform, sizes switching between calls', () => {
+  it('gives the same Welch spectrum as the scalar loops (1-4 channels, 8 and 16 bits, sRGB and P3, sizes switching)', () => {
     const sources = [
       greyRaster(640, 480, grating(0.31, 0.07, 0.4)),
       greyRaster(200, 130, noise(200, 130, 0.3, 7), 8),
       greyRaster(37, 21, noise(37, 21, 0.2, 3)),
+      colourNoise(300, 260, 3),
+      colourNoise(300, 260, 4),
+      colourNoise(300, 260, 3, false, 'display-p3'),
+      colourNoise(90, 70, 4, true),
+      colourNoise(90, 70, 2),
     ];
     for (const src of sources) {
       setSpectrumSimdEnabled(false);
