@@ -182,3 +182,55 @@ export function tileLuminance8(out: usize, src: usize, channels: i32, size: i32,
   }
   return sum;
 }
+
+@inline function addTo(base: usize, index: i32, v: f64): void {
+  const p = at(base, index);
+  store<f64>(p, load<f64>(p) + v);
+}
+
+/**
+ * periodogram.ts's accumulatePacked, the same operations in the same order: the powers of the
+ * two real tiles packed in the natural-order transform (re, im) of side t, times norm, added
+ * to `power` (centred, t x t) and to the region sums at `regionPower` (regions of bins x bins
+ * cells from baseA, and from baseB unless it is -1). Reads re/im, writes only the sinks.
+ */
+export function accumulatePacked(re: usize, im: usize, t: i32, norm: f64, power: usize, regionPower: usize, bins: i32, shift: i32, baseA: i32, baseB: i32): void {
+  const mask = t - 1;
+  const half = t >> 1;
+  for (let v = 0; v <= half; v++) {
+    const mirror = v != 0 && v != half;
+    const rowNeg = ((t - v) & mask) * t;
+    const vc = (v + half) & mask;
+    const vn = (half - v) & mask;
+    const outRow = vc * t;
+    const outNeg = vn * t;
+    const cellRow = (vc >> shift) * bins;
+    const cellNeg = (vn >> shift) * bins;
+    for (let u = 0; u < t; u++) {
+      const i = v * t + u;
+      const j = rowNeg + ((t - u) & mask);
+      const ri = load<f64>(at(re, i));
+      const rj = load<f64>(at(re, j));
+      const ii = load<f64>(at(im, i));
+      const ij = load<f64>(at(im, j));
+      const sr = ri + rj;
+      const di = ii - ij;
+      const dr = ri - rj;
+      const si = ii + ij;
+      const pa = (sr * sr + di * di) * norm;
+      const pb = (dr * dr + si * si) * norm;
+      const uc = (u + half) & mask;
+      addTo(power, outRow + uc, pa + pb);
+      const cell = cellRow + (uc >> shift);
+      addTo(regionPower, baseA + cell, pa);
+      if (baseB >= 0) addTo(regionPower, baseB + cell, pb);
+      if (mirror) {
+        const un = (half - u) & mask;
+        addTo(power, outNeg + un, pa + pb);
+        const neg = cellNeg + (un >> shift);
+        addTo(regionPower, baseA + neg, pa);
+        if (baseB >= 0) addTo(regionPower, baseB + neg, pb);
+      }
+    }
+  }
+}

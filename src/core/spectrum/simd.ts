@@ -20,6 +20,7 @@ interface WasmApi {
   Instance: new (m: object, imports: object) => { exports: Record<string, unknown> };
 }
 type Fft2d = (re: number, im: number, cos: number, sin: number, n: number) => void;
+type Accumulate = (re: number, im: number, t: number, norm: number, power: number, regionPower: number, bins: number, shift: number, baseA: number, baseB: number) => void;
 type Luminance = (out: number, src: number, channels: number, size: number, lut: number, w2: number, rev: number, alphaScale: number) => number;
 
 /** Largest side the memory is laid out for (tiles.ts's largest tile). */
@@ -34,7 +35,11 @@ const SRC = SIN + MAX_SIDE * 8;
 const LUT = SRC + MAX_SIDE * MAX_SIDE * 4;
 const W2 = LUT + 3 * 256 * 8;
 const REV = W2 + MAX_SIDE * MAX_SIDE * 8;
-const END = REV + MAX_SIDE * 4;
+const POWER = REV + MAX_SIDE * 4;
+/** Region sums: at most 64 regions (tiles.ts) of (MAX_SIDE / 4)^2 bins (welch.ts). */
+const MAX_REGION_CELLS = 64 * (MAX_SIDE / 4) ** 2;
+const REGIONS = POWER + MAX_SIDE * MAX_SIDE * 8;
+const END = REGIONS + MAX_REGION_CELLS * 8;
 
 /** One size's transform: fill `re` and `im` (bit-reversed on both axes), then call `run`. */
 export interface SimdFft2d {
@@ -46,12 +51,17 @@ export interface SimdFft2d {
    * plan's window and bit reversal; null (nothing written) for rasters other than 8-bit RGB(A).
    */
   luminance(into: 0 | 1, src: PixelRaster, x0: number, y0: number): number | null;
+  /** Zeroed sinks in the module's memory for periodogram.ts's PowerSinks (null: too many cells). */
+  sinks(regionCells: number): { power: Float64Array; regionPower: Float64Array } | null;
+  /** accumulatePacked of the transform in `re`, `im` into the last `sinks`. */
+  accumulate(norm: number, bins: number, shift: number, baseA: number, baseB: number): void;
 }
 
 interface Module {
   buffer: ArrayBuffer;
   fft2d: Fft2d;
   luminance: Luminance;
+  accumulate: Accumulate;
   /** The side whose twiddles, window and bit reversal are in memory (0: none yet). */
   size: number;
   /** The luminance weights the LUT holds. */
@@ -71,7 +81,7 @@ function instantiate(): Module | null {
   const memory = new wasm.Memory({ initial: Math.ceil(END / 65536) });
   const inst = new wasm.Instance(new wasm.Module(bytes), { env: { memory } });
   const e = inst.exports;
-  return { buffer: memory.buffer, fft2d: e.fft2dBitReversed as Fft2d, luminance: e.tileLuminance8 as Luminance, size: 0, weights: null };
+  return { buffer: memory.buffer, fft2d: e.fft2dBitReversed as Fft2d, luminance: e.tileLuminance8 as Luminance, accumulate: e.accumulatePacked as Accumulate, size: 0, weights: null };
 }
 
 const views = new Map<number, SimdFft2d>();
@@ -124,6 +134,14 @@ export function simdFft2d(plan: FftPlan): SimdFft2d | null {
           bytes.set(data.subarray(p, p + rowBytes), y * rowBytes);
         }
         return m.luminance(into === 0 ? RE : IM, SRC, channels, n, LUT, W2, REV, 1 / 255);
+      },
+      sinks(regionCells) {
+        if (regionCells > MAX_REGION_CELLS) return null;
+        const power = new Float64Array(m.buffer, POWER, n * n).fill(0);
+        return { power, regionPower: new Float64Array(m.buffer, REGIONS, regionCells).fill(0) };
+      },
+      accumulate(norm, bins, shift, baseA, baseB) {
+        m.accumulate(RE, IM, n, norm, POWER, REGIONS, bins, shift, baseA, baseB);
       },
     };
     views.set(n, view);

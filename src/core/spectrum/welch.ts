@@ -96,13 +96,14 @@ export function analyzeSpectrum(src: PixelRaster, opts: SpectrumOptions = {}): S
   const regions = layout.columns * layout.rows;
   const bins = t / BIN;
   const count = layout.region.length;
-  const power = new Float64Array(t * t);
-  const regionPower = new Float64Array(regions * bins * bins);
   const perRegion = new Int32Array(regions);
   const plan = fftPlan(Math.max(1, t));
-  // The SIMD transform where the engine has it (same values, simd.ts), its arrays in its memory.
+  // The Wasm loops where the engine has them (same values, simd.ts), their arrays in its memory.
   const simd = simdFft2d(plan);
   const { re, im } = simd ?? scratchFor(t);
+  const inWasm = simd?.sinks(regions * bins * bins) ?? null;
+  const power = inWasm?.power ?? new Float64Array(t * t);
+  const regionPower = inWasm?.regionPower ?? new Float64Array(regions * bins * bins);
   // U = sum of the squared 2-D window = (3T/8)^2 (periodic Hann, Welch 1967); the 1/4 undoes
   // the packing of two real tiles into one complex transform.
   const norm = 1 / (4 * ((3 * t) / 8) ** 2);
@@ -123,7 +124,9 @@ export function analyzeSpectrum(src: PixelRaster, opts: SpectrumOptions = {}): S
     removeMeans(re, im, t, ma, mb);
     perRegion[ra]++;
     if (rb >= 0) perRegion[rb]++;
-    accumulatePacked(re, im, t, norm, sinks, ra * bins * bins, rb >= 0 ? rb * bins * bins : -1);
+    const baseB = rb >= 0 ? rb * bins * bins : -1;
+    if (simd && inWasm) simd.accumulate(norm, bins, BIN_SHIFT, ra * bins * bins, baseB);
+    else accumulatePacked(re, im, t, norm, sinks, ra * bins * bins, baseB);
   }
   const out = new Float32Array(t * t);
   for (let i = 0; i < out.length; i++) out[i] = power[i] / count;
