@@ -1,8 +1,9 @@
 /**
- * The optional WebAssembly SIMD 2-D FFT (assembly/spectrum.ts, f64x2), the twin of
- * fft2dBitReversed (fft2d.ts), and the Wasm twin of windowedTileLuminance (luminance.ts) for
- * 8-bit RGB and RGBA; the TypeScript ones stay the reference: the same operations in the same
- * order, so the same values bit for bit. Its arrays live in the module's own memory, laid out
+ * The analysis's optional WebAssembly loops (assembly/spectrum.ts): the f64x2 2-D FFT, twin of
+ * fft2dBitReversed (fft2d.ts); the tile luminance of 8-bit RGB and RGBA, twin of
+ * windowedTileLuminance (luminance.ts); the packed periodogram's sums, twin of accumulatePacked
+ * (periodogram.ts). The TypeScript ones stay the reference: the same operations in the same
+ * order, so the same values bit for bit (test/core/spectrum/simd.test.ts). Its arrays live in the module's own memory, laid out
  * once for the largest tile, so the views handed out are never detached.
  */
 import { srgbToLinear8 } from '../color/index.js';
@@ -41,7 +42,7 @@ const MAX_REGION_CELLS = 64 * (MAX_SIDE / 4) ** 2;
 const REGIONS = POWER + MAX_SIDE * MAX_SIDE * 8;
 const END = REGIONS + MAX_REGION_CELLS * 8;
 
-/** One size's transform: fill `re` and `im` (bit-reversed on both axes), then call `run`. */
+/** One tile size's loops: fill `re` and `im` (bit-reversed on both axes), then call `run`. */
 export interface SimdFft2d {
   readonly re: Float64Array;
   readonly im: Float64Array;
@@ -76,7 +77,7 @@ function instantiate(): Module | null {
   const bytes = new Uint8Array(bin.length);
   for (let i = 0; i < bin.length; i++) bytes[i] = bin.charCodeAt(i);
   const wasm = (globalThis as unknown as { WebAssembly?: WasmApi }).WebAssembly;
-  // Engines without WebAssembly SIMD reject the module: the scalar transform serves then.
+  // Engines without WebAssembly SIMD reject the module: the TypeScript loops serve then.
   if (!wasm || !wasm.validate(bytes)) return null;
   const memory = new wasm.Memory({ initial: Math.ceil(END / 65536) });
   const inst = new wasm.Instance(new wasm.Module(bytes), { env: { memory } });
@@ -87,7 +88,7 @@ function instantiate(): Module | null {
 const views = new Map<number, SimdFft2d>();
 
 /**
- * The SIMD transform for `plan` (sizes 4..128), or null when disabled, unsupported or out of
+ * The Wasm loops for `plan`'s size (4..128), or null when disabled, unsupported or out of
  * range. Views of one size share the memory with every other size's: use one at a time (one
  * analysis runs at a time per thread, and it runs synchronously).
  */
@@ -149,7 +150,7 @@ export function simdFft2d(plan: FftPlan): SimdFft2d | null {
   return view;
 }
 
-/** Turns the SIMD transform off or on (the scalar one is the reference; tests compare both). */
+/** Turns the Wasm loops off or on (the TypeScript ones are the reference; tests compare both). */
 export function setSpectrumSimdEnabled(on: boolean): void {
   enabled = on;
 }
