@@ -219,12 +219,12 @@ export function reduce5(
  * decode8 and reduce5 in one pass over a row of 8-bit pixels (lanes codes each, packed at
  * src): interior outputs o0..o1 of the pyramid's reduce, each input pixel decoded through the
  * table at lut straight into a register, so the decoded row is never stored. Same sums in the
- * same order as decode8 then reduce5. RGB rows read red and green together through `pairs`,
- * the table of both floats of every two codes (entry g * 256 + r holds lut[r], lut[g]): half
- * the table reads, and one 8-byte load fills two lanes.
+ * same order as decode8 then reduce5. Every code goes through the 256-entry table (1 KB, in the
+ * first-level cache): a table of code pairs (512 KB) halved the reads but missed the caches on
+ * varied pictures: renders with a pyramid level took 7-16 % longer with it (issue 15).
  */
 export function decodeReduce5(
-  dst: i32, dstBase: i32, dstStep: i32, src: i32, lut: i32, pairs: i32,
+  dst: i32, dstBase: i32, dstStep: i32, src: i32, lut: i32,
   lanes: i32, a: f32, b: f32, c: f32, o0: i32, o1: i32,
 ): void {
   if (o0 >= o1) return;
@@ -232,20 +232,13 @@ export function decodeReduce5(
   const wide = wideBefore(dstStep, lanes, o1);
   const va = f32x4.splat(a), vb = f32x4.splat(b), vc = f32x4.splat(c);
   const t = <usize>lut;
-  const p = <usize>pairs;
   const sb = <usize>lanes;
   let s = <usize>(src + (2 * o0 - 2) * lanes);
   let d = addr(dst, dstBase + o0 * dstStep);
   let x0 = decodePixel(s, t, lanes), x1 = decodePixel(s + sb, t, lanes), x2 = decodePixel(s + 2 * sb, t, lanes);
   for (let o = o0; o < o1; o++, s += 2 * sb, d += db) {
-    let x3: v128, x4: v128;
-    if (lanes == 3) {
-      x3 = f32x4.replace_lane(v128.load64_zero(p + (<usize>load<u16>(s + 9) << 3)), 2, load<f32>(t + (<usize>load<u8>(s + 11) << 2)));
-      x4 = f32x4.replace_lane(v128.load64_zero(p + (<usize>load<u16>(s + 12) << 3)), 2, load<f32>(t + (<usize>load<u8>(s + 14) << 2)));
-    } else {
-      x3 = decodePixel(s + 3 * sb, t, lanes);
-      x4 = decodePixel(s + 4 * sb, t, lanes);
-    }
+    const x3 = decodePixel(s + 3 * sb, t, lanes);
+    const x4 = decodePixel(s + 4 * sb, t, lanes);
     storePixel(d, symmetric5(va, vb, vc, x0, x1, x2, x3, x4), o < wide, lanes);
     x0 = x2;
     x1 = x3;

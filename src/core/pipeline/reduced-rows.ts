@@ -13,25 +13,9 @@ export function fusesReduce(src: PixelRaster, codec: RowCodec, bx: WeightTable, 
   return simd && codec.alpha < 0 && src.data instanceof Uint8Array && bx.symmetric5 !== undefined;
 }
 
-/** Floats the fused source takes from the arena besides rasterRows' scratch: one decoded row, and the pair table for RGB. */
+/** Floats the fused source takes from the arena besides rasterRows' scratch: one decoded row. */
 export function reducedRowsFloats(src: PixelRaster): number {
-  return src.width * src.channels + (src.channels === 3 ? 2 * 65536 : 0);
-}
-
-const pairTables = new WeakMap<Float32Array, Float32Array>();
-
-/** Both floats of every two 8-bit codes: entry g * 256 + r holds lut[r], lut[g] (built once per table). */
-function pairTable(lut: Float32Array): Float32Array {
-  let t = pairTables.get(lut);
-  if (!t) {
-    t = new Float32Array(2 * 65536);
-    for (let i = 0; i < 65536; i++) {
-      t[2 * i] = lut[i & 255];
-      t[2 * i + 1] = lut[i >> 8];
-    }
-    pairTables.set(lut, t);
-  }
-  return t;
+  return src.width * src.channels;
 }
 
 /**
@@ -40,9 +24,8 @@ function pairTable(lut: Float32Array): Float32Array {
  * each row found by `rowAt` (8-bit codes).
  * The reference is decodeRow then resampleAxis through bx. Here each row's codes are copied
  * into the kernels' memory; the interior outputs come from decodeReduce5, which decodes each
- * pixel into a register (RGB through a table of code pairs, the same floats) and sums as
- * reduce5 does, so the decoded row is never stored; the few border outputs (mirrored taps)
- * decode just the pixels they read and take the pixel pass. Not in place; allocates nothing
+ * pixel into a register through the same table and sums as reduce5 does, so the decoded row
+ * is never stored; the few border outputs (mirrored taps) decode just the pixels they read and take the pixel pass. Not in place; allocates nothing
  * per row.
  */
 export function reducedRows(src: PixelRaster, codec: RowCodec, bx: WeightTable, simd: { k: SimdKernels; arena: Arena }, rowAt: RowAt = ownRows(src)): RowSource {
@@ -54,9 +37,6 @@ export function reducedRows(src: PixelRaster, codec: RowCodec, bx: WeightTable, 
   const codes = arena.scratch(n);
   const stage = new Uint8Array(k.memory.buffer, codes, n);
   const line = arena.floats(n);
-  // Little-endian u16 of codes r, g is g * 256 + r (WebAssembly memory is little-endian).
-  const pairs = lanes === 3 ? arena.floats(2 * 65536) : line;
-  if (lanes === 3) pairs.set(pairTable(codec.toWork));
   const [a, b, c] = bx.symmetric5!;
   const { dstLen, taps } = bx;
   const start = bx.start.byteOffset;
@@ -85,7 +65,7 @@ export function reducedRows(src: PixelRaster, codec: RowCodec, bx: WeightTable, 
         k.decode8(line.byteOffset + tail * 4, codes + tail, lut, n - tail);
         k.pixels(out, at, lanes, line.byteOffset, 0, lanes, lanes, taps, start, weights, last, dstLen);
       }
-      k.decodeReduce5(out, at, lanes, codes, lut, pairs.byteOffset, lanes, a, b, c, first, last);
+      k.decodeReduce5(out, at, lanes, codes, lut, lanes, a, b, c, first, last);
     },
   };
 }

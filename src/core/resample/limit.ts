@@ -110,7 +110,16 @@ export function limitRinging(
   }
 }
 
-/** The limiter after one resampleAxis pass: the SIMD twin when the arrays live in its memory. */
+/**
+ * The limiter after one resampleAxis pass: the SIMD twin when the arrays live in its memory.
+ * Kept as a pass of its own after the filter: with the same bytes, each of these measured
+ * slower on issue 15's pictures (`scripts/bench/resample-stages.ts`' renders, A/B in one
+ * process): the many-lanes filter and limiter fused with all taps summed in registers per
+ * strip of lanes (1.1-1.2x), fused in the filter's sweeps with the lobe's sweep leaving the
+ * bounds in scratch rows (1.06-1.18x), both passes run on slices of 1024-4096 lanes so the
+ * lobe's rows stay cached (1.02-1.10x), and an early exit where every lane lies between its
+ * lobe's end samples (1.04-1.14x: on varied texture that is rarely all four lanes).
+ */
 export function limitPass(
   dst: Float32Array, dstBase: number, dstStep: number, src: Float32Array, srcBase: number,
   srcStep: number, lanes: number, table: WeightTable, o0: number, o1: number,

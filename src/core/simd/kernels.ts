@@ -11,7 +11,7 @@ type Reduce = (
 
 type Decode = (dst: number, src: number, lut: number, n: number) => void;
 type DecodeReduce = (
-  dst: number, dstBase: number, dstStep: number, src: number, lut: number, pairs: number,
+  dst: number, dstBase: number, dstStep: number, src: number, lut: number,
   lanes: number, a: number, b: number, c: number, o0: number, o1: number,
 ) => void;
 type Limit = (
