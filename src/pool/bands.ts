@@ -3,6 +3,7 @@ import type { BandOutcome, SharedRaster, SpooledRaster } from './worker.js';
 import type { RunBand } from './runner.js';
 import { ownSignal } from './tasks.js';
 import { SpoolReadError } from './spool/rows.js';
+import { note } from './trace-scope.js';
 
 // Below this many output pixels one worker does the whole rendition: a split would cost more
 // in hand-off than it saves (common practice; revisit with load/ measurements).
@@ -53,6 +54,7 @@ export async function runBandTasks(
   if (failed) throw failed.reason;
   for (const r of settled as PromiseFulfilledResult<BandOutcome>[]) {
     if (r.value.kind === 'spool') throw new SpoolReadError(r.value.fault, r.value.detail);
+    if (r.value.marks) note(...r.value.marks);
   }
 }
 

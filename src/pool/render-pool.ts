@@ -12,6 +12,7 @@ import { resampleSpool } from './spool/spooled.js';
 import { PoolThreads } from './threads.js';
 import { bandRows, outputBuffer, outputRaster, runBandTasks } from './bands.js';
 import { PoolAdmission } from './admission.js';
+import { note } from './trace-scope.js';
 
 export { type PoolMemory, queuePerThread, type RenderPoolOptions, runningPerThread } from './options.js';
 
@@ -99,8 +100,10 @@ export class RenderPool extends PoolThreads {
    * The Welch spectrum of a source in shared memory or a spool file (whose decode has ended:
    * the task reads the rows the analysis needs), and prefilter=auto's filter for `plan`.
    */
-  analyse(src: SharedRaster | SpooledRaster, plan: Plan | undefined, signal?: AbortSignal): Promise<Analysed> {
-    return this.task('analyse', { src, plan }, signal);
+  async analyse(src: SharedRaster | SpooledRaster, plan: Plan | undefined, signal?: AbortSignal): Promise<Analysed> {
+    const analysed = await this.task<Analysed>('analyse', { src, plan }, signal);
+    if (analysed.marks) note(...analysed.marks);
+    return analysed;
   }
 
   /** The Welch spectrum of a decoded raster, analysed in the pool (the raster is staged in shared memory). */

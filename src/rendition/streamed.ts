@@ -9,6 +9,7 @@ import { type LiveSpool, liveSpool } from '../pool/spool/live.js';
 import { type AdaptivePrefilter, shrinks } from './prefilter.js';
 import { decodeLimits, type ReadSource, wishOf } from './source.js';
 import type { StageClock } from './timings.js';
+import { epochNow } from '../pool/trace.js';
 
 /**
  * Sources smaller than this decode in a few milliseconds, less than the spool file and the
@@ -90,8 +91,9 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
   const file = spool.path();
   // The file's bytes count in /dev/shm until it is removed (and libvips is done with it).
   const unhold = ctx.pool.holdSpool(probe.width * probe.height * probe.channels * (probe.depth / 8));
+  const decodeStart = epochNow();
   const decoding = probe.write(file);
-  decoding.catch(() => undefined);
+  decoding.then(() => ctx.clock.span('libvips decode to the spool file', 'decode', decodeStart), () => undefined);
   // The kernel's plan renders at once; the content-adaptive decision is asked meanwhile. When
   // it adapts the plan while the source still decodes, that render is called off (its rows stay
   // in the spool file) and the adapted one starts; after, the adapted one follows it. Called off
