@@ -51,6 +51,11 @@ export interface ResampleTask {
   rows: [number, number];
   /** The whole output (plan.targetWidth x plan.targetHeight), same channels and depth. */
   out: SharedArrayBuffer;
+  /**
+   * A band whose end the pool may lower while it runs (bands.ts, splitLagging): Int32Array
+   * [next row, end]; the task writes the row it is about to make, and stops at the end.
+   */
+  live?: SharedArrayBuffer;
 }
 
 /**
@@ -65,17 +70,28 @@ function view(buffer: SharedArrayBuffer, depth: 8 | 16, length: number): Uint8Ar
   return depth === 16 ? new Uint16Array(buffer, 0, length) : new Uint8Array(buffer, 0, length);
 }
 
-function render(src: SharedRaster | SpooledRaster, plan: Plan, rows: [number, number], marks?: Mark[]): PixelRaster {
+/** renderRaster's `more` for a live band: publishes the next row, stops at the end (worker.ts's ResampleTask). */
+function liveEnd(live: SharedArrayBuffer | undefined): ((o: number) => boolean) | undefined {
+  if (!live) return undefined;
+  const at = new Int32Array(live);
+  return (o) => {
+    Atomics.store(at, 0, o);
+    return o < Atomics.load(at, 1);
+  };
+}
+
+function render(src: SharedRaster | SpooledRaster, plan: Plan, rows: [number, number], live?: SharedArrayBuffer, marks?: Mark[]): PixelRaster {
   const { width, height, channels, depth } = src;
+  const more = liveEnd(live);
   if ('buffer' in src) {
     const data = view(src.buffer, depth, width * height * channels);
-    return renderRaster({ data, width, height, channels }, plan, { rows });
+    return renderRaster({ data, width, height, channels }, plan, { rows, more });
   }
   const spool = new SpoolRows(src.path, src, new Int32Array(src.state));
   try {
     // The rows come from rowAt; the raster's own samples are not read (none are given).
     const data = depth === 16 ? new Uint16Array(0) : new Uint8Array(0);
-    return renderRaster({ data, width, height, channels }, plan, { rows, rowAt: spool.rowAt });
+    return renderRaster({ data, width, height, channels }, plan, { rows, rowAt: spool.rowAt, more });
   } finally {
     spool.close();
     marks?.push(...(spool.waited?.marks('wait for rows', `w${threadId}`) ?? []));
@@ -84,12 +100,12 @@ function render(src: SharedRaster | SpooledRaster, plan: Plan, rows: [number, nu
 
 /** Renders rows [from, to) of the plan's output into `out`. */
 export default function resample(task: ResampleTask): BandOutcome {
-  const { src, plan, rows, out } = task;
+  const { src, plan, rows, out, live } = task;
   const marks: Mark[] | undefined = tracing ? [] : undefined;
   const start = marks ? epochNow() : 0;
   let band: PixelRaster;
   try {
-    band = render(src, plan, rows, marks);
+    band = render(src, plan, rows, live, marks);
   } catch (e) {
     if (e instanceof SpoolReadError) return { kind: 'spool', fault: e.fault, detail: e.message };
     throw e;
@@ -101,6 +117,6 @@ export default function resample(task: ResampleTask): BandOutcome {
   // (once piscina has let go of it; pool/threads.ts keeps its threads off Atomics.wait for that).
   if ('buffer' in src && src.buffer.byteLength >= HAND_BACK_MIN_BYTES) handBack();
   if (!marks) return { kind: 'done', rows: band.height };
-  marks.unshift({ what: `band ${rows[0]}-${rows[1]} (${plan.targetWidth} px, pyramid ${plan.x.pyramidLevels})`, thread: `w${threadId}`, start, end: epochNow() });
+  marks.unshift({ what: `band ${rows[0]}-${rows[0] + band.height} (${plan.targetWidth} px, pyramid ${plan.x.pyramidLevels})`, thread: `w${threadId}`, start, end: epochNow() });
   return { kind: 'done', rows: band.height, marks };
 }
