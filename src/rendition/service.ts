@@ -55,6 +55,8 @@ async function produce(
     const { body, format } = await ctx.clock.time('encode', () =>
       withDeadline(encoding, deadline, () => ctx.pool.refusal('ERR_RENDER_TIMEOUT', 'encoding took longer than allowed')),
     );
+    // A streamed render's spool file went while it was encoded: gone before the answer.
+    await done.cleaned;
     return { entry: entryOf(body, format, plan, clampedHeader(layout, q, ctx.limits)), identity: done.identity };
   } finally {
     void ended.then(() => lease?.release());
