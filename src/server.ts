@@ -25,12 +25,19 @@ async function main(): Promise<void> {
     await ensureDemoImages(config.origin.sourceDir);
   }
   const app = await build({ config, logger: serverLogger(config, process.stdout.isTTY === true) });
-  installShutdown(app, { deadlineMs: config.shutdown.deadlineMs });
+  const shutdown = installShutdown(app, { deadlineMs: config.shutdown.deadlineMs });
   await app.listen({ host: config.server.host, port: config.server.port });
   // /readyz says 503 until the render threads are warm and a picture went through the render path: so does this line.
   const warm = app.renderPool.warm().then(() => warmRenderPath(app));
   app.warmUp.hold(warm);
-  await warm;
+  try {
+    await warm;
+  } catch (error) {
+    // A signal during the warm-up closes the pool under it: that is a shutdown, not a failed start.
+    if (shutdown.begun()) return;
+    throw error;
+  }
+  if (shutdown.begun()) return;
   const url = pageUrl(app.server.address() as AddressInfo);
   app.log.info({ url, sourceDir: config.origin.sourceDir, cacheDir: config.cache.dir }, `foldwise ready: open ${url} in a browser`);
   // The demo's start page shows every picture: render its tiles now, before a browser asks.

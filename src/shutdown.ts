@@ -13,6 +13,8 @@ export interface ShutdownOptions {
 export interface ShutdownHandle {
   /** Starts the shutdown (idempotent); resolves with the exit code it chose. */
   shutdown(reason: string): Promise<number>;
+  /** Whether the shutdown has begun (a signal came, or shutdown() was called). */
+  begun(): boolean;
   /** Removes the signal handlers. */
   dispose(): void;
 }
@@ -86,6 +88,7 @@ export function installShutdown(app: FastifyInstance, options: ShutdownOptions):
 
   return {
     shutdown,
+    begun: () => started !== undefined,
     dispose: () => {
       for (const s of signals) process.off(s, onSignal);
     },

@@ -84,7 +84,9 @@ describe('installShutdown', () => {
     handles.push(handle);
     void get(port, '/slow');
     await entered.promise;
+    expect(handle.begun()).toBe(false);
     const first = handle.shutdown('one');
+    expect(handle.begun()).toBe(true);
     expect(handle.shutdown('two')).toBe(first);
     process.emit('SIGINT', 'SIGINT');
     expect(codes).toEqual([1]);

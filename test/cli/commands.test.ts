@@ -159,4 +159,24 @@ describe('foldwise serve', () => {
     child.kill('SIGTERM');
     expect(await exited).toBe(0);
   });
+
+  it('stops cleanly when SIGTERM comes while it warms up, and prints no start failure', async () => {
+    const child = spawn(process.execPath, [binPath, 'serve', '--port', '0', '--host', '127.0.0.1', '--sources', join(dir, 'shop')], {
+      env: { ...process.env, ...env },
+      stdio: ['ignore', 'pipe', 'pipe'],
+    });
+    let stderr = '';
+    child.stderr.setEncoding('utf8').on('data', (d: string) => (stderr += d));
+    const exited = new Promise<number | null>((resolve) => child.on('close', resolve));
+    // "listening at" comes before the render threads and the render path are warmed ("foldwise ready").
+    let text = '';
+    child.stdout.setEncoding('utf8').on('data', (d: string) => {
+      const before = text;
+      text += d;
+      if (!/listening at/.test(before) && /listening at/.test(text)) child.kill('SIGTERM');
+    });
+    expect(await exited).toBe(0);
+    expect(stderr).toBe('');
+    expect(text).toMatch(/"msg":"shutdown complete"/);
+  });
 });
