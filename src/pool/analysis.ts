@@ -8,7 +8,9 @@ import { planResponseOf } from '../core/index.js';
 import { adaptiveFilter, analyzeSpectrum, planGains, type PlanGains, type SourceSpectrum } from '../core/risk/index.js';
 import { layoutTiles } from '../core/spectrum/tiles.js';
 import type { AdaptiveFilter, PixelRaster, Plan } from '../core/types.js';
+import { threadId } from 'node:worker_threads';
 import { SpoolRows } from './spool/rows.js';
+import { epochNow, type Mark, tracing } from './trace.js';
 import type { SharedRaster, SpooledRaster } from './worker.js';
 
 /** Analyse a source in shared memory or a spool file; decide prefilter=auto's filter for `plan`. */
@@ -22,6 +24,8 @@ export interface Analysed {
   spectrum: SourceSpectrum;
   /** adaptiveFilter's answer for the task's plan (undefined: the plan stays as it is, or none was given). */
   filter: AdaptiveFilter | undefined;
+  /** With FOLDWISE_TIMELINE=1 (trace.ts): the task's spans on its thread. */
+  marks?: Mark[];
 }
 
 /** Decide prefilter=auto's filter for `plan` from a spectrum analysed before. */
@@ -54,7 +58,7 @@ export function tileRows(width: number, height: number): number[] {
  * touch): a 14.7 MP source costs the analysis about 10 MB, not 44. test/pool/analysis.test.ts
  * checks the spectrum equals the one of the whole raster.
  */
-function spooledSpectrum(src: SpooledRaster): SourceSpectrum {
+function spooledSpectrum(src: SpooledRaster, marks?: Mark[]): SourceSpectrum {
   const { width, height, channels, depth } = src;
   const n = width * channels;
   const data = depth === 16 ? new Uint16Array(n * height) : new Uint8Array(n * height);
@@ -71,6 +75,7 @@ function spooledSpectrum(src: SpooledRaster): SourceSpectrum {
     return analyzeSpectrum({ data, width, height, channels }, { ready });
   } finally {
     spool.close();
+    marks?.push(...(spool.waited?.marks('wait for rows', `w${threadId}`) ?? []));
   }
 }
 
@@ -93,9 +98,18 @@ function rasterOf(src: SharedRaster): PixelRaster {
  */
 export function analyseTask(task: AnalyseTask): Analysed {
   const { src, plan } = task;
+  const marks: Mark[] | undefined = tracing ? [] : undefined;
+  const span = (what: string, start: number) => marks?.push({ what, thread: `w${threadId}`, start, end: epochNow() });
+  let t = marks ? epochNow() : 0;
   const gains = plan ? planGains(plan, planResponseOf(plan), layoutTiles(src.width, src.height).tileSize) : undefined;
-  const spectrum = 'buffer' in src ? analyzeSpectrum(rasterOf(src)) : spooledSpectrum(src);
-  return { spectrum, filter: plan ? decide(spectrum, plan, gains) : undefined };
+  span('analysis: plan response', t);
+  t = marks ? epochNow() : 0;
+  const spectrum = 'buffer' in src ? analyzeSpectrum(rasterOf(src)) : spooledSpectrum(src, marks);
+  span('analysis: spectrum', t);
+  t = marks ? epochNow() : 0;
+  const filter = plan ? decide(spectrum, plan, gains) : undefined;
+  span('analysis: decision', t);
+  return marks ? { spectrum, filter, marks } : { spectrum, filter };
 }
 
 /** The piscina task: decide for the plan from a known spectrum. */

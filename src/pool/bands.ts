@@ -3,6 +3,8 @@ import type { BandOutcome, SharedRaster, SpooledRaster } from './worker.js';
 import type { RunBand } from './runner.js';
 import { ownSignal } from './tasks.js';
 import { SpoolReadError } from './spool/rows.js';
+import { note } from './trace-scope.js';
+import { bandWithRest, type RestHandOver } from './rest-band.js';
 
 // Below this many output pixels one worker does the whole rendition: a split would cost more
 // in hand-off than it saves (common practice; revisit with load/ measurements).
@@ -32,7 +34,7 @@ export function bandRows(threads: number, shared: SharedRaster | SpooledRaster, 
 }
 
 /**
- * Runs the bands' tasks into `out`; rejects with the first band's failure, or SpoolReadError
+ * Runs the bands' tasks into `out` (with `rest`, a single band hands its rest over, rest-band.ts); rejects with the first band's failure, or SpoolReadError
  * when a band met the spool file's fault (a typed BandOutcome, worker.ts).
  */
 export async function runBandTasks(
@@ -42,17 +44,22 @@ export async function runBandTasks(
   out: SharedArrayBuffer,
   bands: [number, number][],
   signal?: AbortSignal,
+  rest?: RestHandOver,
 ): Promise<void> {
   // Every band settles before the render does, failed or not: a band still queued or running
   // would otherwise outlive the render's admission permit in piscina's bounded queue.
   // A signal of this call's own (tasks.ts), unlinked when the bands end.
   const own = ownSignal(signal);
-  const runs = bands.map((rows) => runBand({ src: shared, plan, rows, out }, { signal: own.signal }));
+  // One band of a spooled source hands the rest of its rows to a free thread once the decode ends (rest-band.ts).
+  const runs = rest && bands.length === 1
+    ? bandWithRest(runBand, shared, plan, out, bands[0], rest, own.signal)
+    : bands.map((rows) => runBand({ src: shared, plan, rows, out }, { signal: own.signal }));
   const settled = await Promise.allSettled(runs).finally(own.unlink);
   const failed = settled.find((r) => r.status === 'rejected');
   if (failed) throw failed.reason;
   for (const r of settled as PromiseFulfilledResult<BandOutcome>[]) {
     if (r.value.kind === 'spool') throw new SpoolReadError(r.value.fault, r.value.detail);
+    if (r.value.marks) note(...r.value.marks);
   }
 }
 

@@ -12,6 +12,8 @@ import { resampleSpool } from './spool/spooled.js';
 import { PoolThreads } from './threads.js';
 import { bandRows, outputBuffer, outputRaster, runBandTasks } from './bands.js';
 import { PoolAdmission } from './admission.js';
+import { note } from './trace-scope.js';
+import type { RestHandOver } from './rest-band.js';
 
 export { type PoolMemory, queuePerThread, type RenderPoolOptions, runningPerThread } from './options.js';
 
@@ -92,15 +94,19 @@ export class RenderPool extends PoolThreads {
   /** Resamples a source a decoder is still writing to a spool file (spool/spooled.ts). */
   async resampleSpooled(path: string, shape: SpoolShape & { channels: 1 | 3 }, written: Promise<void>, plan: Plan, signal?: AbortSignal): Promise<PixelRaster> {
     if (this.closing) throw this.stopping();
-    return resampleSpool(path, shape, written, (src) => this.runBands(src, plan, signal), signal);
+    // With a second thread, a band that lags behind the decode hands over its rest once the decode ends (rest-band.ts).
+    const rest = this.threads > 1 ? { decoded: written, idle: () => this.whenIdle() } : undefined;
+    return resampleSpool(path, shape, written, (src) => this.runBands(src, plan, signal, rest), signal);
   }
 
   /**
    * The Welch spectrum of a source in shared memory or a spool file (whose decode has ended:
    * the task reads the rows the analysis needs), and prefilter=auto's filter for `plan`.
    */
-  analyse(src: SharedRaster | SpooledRaster, plan: Plan | undefined, signal?: AbortSignal): Promise<Analysed> {
-    return this.task('analyse', { src, plan }, signal);
+  async analyse(src: SharedRaster | SpooledRaster, plan: Plan | undefined, signal?: AbortSignal): Promise<Analysed> {
+    const analysed = await this.task<Analysed>('analyse', { src, plan }, signal);
+    if (analysed.marks) note(...analysed.marks);
+    return analysed;
   }
 
   /** The Welch spectrum of a decoded raster, analysed in the pool (the raster is staged in shared memory). */
@@ -118,11 +124,11 @@ export class RenderPool extends PoolThreads {
   }
 
   /** Runs the plan's bands of output rows over a shared source (bands.ts); the output raster. */
-  private async runBands(shared: SharedRaster | SpooledRaster, plan: Plan, signal?: AbortSignal): Promise<PixelRaster> {
+  private async runBands(shared: SharedRaster | SpooledRaster, plan: Plan, signal?: AbortSignal, rest?: RestHandOver): Promise<PixelRaster> {
     const out = outputBuffer(shared, plan);
     const bands = bandRows(this.threads, shared, plan);
     try {
-      await runBandTasks(this.runBand, shared, plan, out, bands, signal);
+      await runBandTasks(this.runBand, shared, plan, out, bands, signal, rest);
     } catch (e) {
       // piscina rejects with its AbortError for our deadline, and with its own abort or
       // "Terminating worker thread" when it is closed under a task: neither is a failed render.

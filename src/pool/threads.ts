@@ -53,6 +53,9 @@ export class PoolThreads {
   readonly retryAfterSeconds: number;
   protected readonly piscina: BandPiscina;
   protected readonly runBand: RunBand;
+  /** Tasks given to piscina and not yet settled; fewer than `threads` means a thread is free. */
+  private running = 0;
+  private readonly idleWaiters: Array<() => void> = [];
   private warming?: Promise<void>;
   private isWarm = false;
   protected closing?: Promise<void>;
@@ -64,7 +67,25 @@ export class PoolThreads {
     this.retryAfterSeconds = opts.retryAfterSeconds;
     this.spool = SpoolDir.open(opts.spoolDir ?? 'off');
     this.piscina = startThreads(this.threads, runningPerThread * this.threads);
-    this.runBand = (opts.runner ?? piscinaRunner)(this.piscina);
+    const run = (opts.runner ?? piscinaRunner)(this.piscina);
+    this.runBand = (task, options) => this.counted(() => run(task, options));
+  }
+
+  /** Resolves once fewer tasks run than there are threads (at once when so already). */
+  whenIdle(): Promise<void> {
+    if (this.running < this.threads) return Promise.resolve();
+    return new Promise((resolve) => this.idleWaiters.push(resolve));
+  }
+
+  /** Runs a piscina task, counted in `running`. */
+  private async counted<T>(run: () => Promise<T>): Promise<T> {
+    this.running++;
+    try {
+      return await run();
+    } finally {
+      this.running--;
+      if (this.running < this.threads) for (const wake of this.idleWaiters.splice(0)) wake();
+    }
   }
 
   get utilization(): number {
@@ -99,7 +120,7 @@ export class PoolThreads {
     const own = ownSignal(signal);
     try {
       // Named tasks answer their own types, not a band's outcome.
-      return (await this.piscina.run(task as ResampleTask, { name, signal: own.signal })) as unknown as T;
+      return (await this.counted(() => this.piscina.run(task as ResampleTask, { name, signal: own.signal }))) as unknown as T;
     } catch (e) {
       if (signal?.aborted && signal.reason instanceof FoldwiseError) throw signal.reason;
       if (signal?.aborted) throw this.refusal('ERR_RENDER_TIMEOUT', `the ${name} task took longer than allowed`, e);

@@ -53,7 +53,11 @@ function warmSpooled(spooled: NonNullable<WarmTask['spooled']>): void {
       rows.close();
     }
   }
+  // Both plans decided: the decision's sampled response of a plan without a pyramid (2.7x, a
+  // wide final kernel) took ~50 ms on a first request when only the 8x one was warmed
+  // (scripts/bench/timeline.ts, 'analysis: plan response'), against 1-15 ms once compiled.
   analyseTask({ src, plan: planOf(width, height, 8) });
+  analyseTask({ src, plan: planOf(width, height, 2.7) });
 }
 
 /** The same work on pixels made here (no spool file). */
@@ -64,7 +68,9 @@ function warmInMemory(): void {
   const plan = planOf(width, height, 8);
   renderRaster(src, plan);
   renderRaster(src, planOf(width, height, 2.7));
-  decide(analyzeSpectrum(src), plan);
+  const spectrum = analyzeSpectrum(src);
+  decide(spectrum, plan);
+  decide(spectrum, planOf(width, height, 2.7));
 }
 
 /**

@@ -8,7 +8,9 @@
 import { renderRaster } from '../core/index.js';
 import { simdKernels } from '../core/simd/index.js';
 import type { Channels, PixelRaster, Plan } from '../core/types.js';
+import { threadId } from 'node:worker_threads';
 import { HAND_BACK_MIN_BYTES, handBack } from './hand-back.js';
+import { epochNow, type Mark, tracing } from './trace.js';
 import { type SpoolFault, SpoolReadError, SpoolRows } from './spool/rows.js';
 
 // Named tasks (piscina's `name`): the analysis and decision of prefilter=auto, the warm start.
@@ -49,6 +51,11 @@ export interface ResampleTask {
   rows: [number, number];
   /** The whole output (plan.targetWidth x plan.targetHeight), same channels and depth. */
   out: SharedArrayBuffer;
+  /**
+   * A band whose end the pool may lower while it runs (bands.ts, splitLagging): Int32Array
+   * [next row, end]; the task writes the row it is about to make, and stops at the end.
+   */
+  live?: SharedArrayBuffer;
 }
 
 /**
@@ -56,35 +63,49 @@ export interface ResampleTask {
  * could not be read (a typed outcome: the pool never reads error messages to tell them apart).
  * Anything else a task throws is a failed render.
  */
-export type BandOutcome = { kind: 'done'; rows: number } | { kind: 'spool'; fault: SpoolFault; detail: string };
+export type BandOutcome = { kind: 'done'; rows: number; marks?: Mark[] } | { kind: 'spool'; fault: SpoolFault; detail: string };
 
 /** The first `length` samples of `buffer` (a reused buffer may be longer than the raster). */
 function view(buffer: SharedArrayBuffer, depth: 8 | 16, length: number): Uint8Array | Uint16Array {
   return depth === 16 ? new Uint16Array(buffer, 0, length) : new Uint8Array(buffer, 0, length);
 }
 
-function render(src: SharedRaster | SpooledRaster, plan: Plan, rows: [number, number]): PixelRaster {
+/** renderRaster's `more` for a live band: publishes the next row, stops at the end (worker.ts's ResampleTask). */
+function liveEnd(live: SharedArrayBuffer | undefined): ((o: number) => boolean) | undefined {
+  if (!live) return undefined;
+  const at = new Int32Array(live);
+  return (o) => {
+    Atomics.store(at, 0, o);
+    return o < Atomics.load(at, 1);
+  };
+}
+
+function render(src: SharedRaster | SpooledRaster, plan: Plan, rows: [number, number], live?: SharedArrayBuffer, marks?: Mark[]): PixelRaster {
   const { width, height, channels, depth } = src;
+  const more = liveEnd(live);
   if ('buffer' in src) {
     const data = view(src.buffer, depth, width * height * channels);
-    return renderRaster({ data, width, height, channels }, plan, { rows });
+    return renderRaster({ data, width, height, channels }, plan, { rows, more });
   }
   const spool = new SpoolRows(src.path, src, new Int32Array(src.state));
   try {
     // The rows come from rowAt; the raster's own samples are not read (none are given).
     const data = depth === 16 ? new Uint16Array(0) : new Uint8Array(0);
-    return renderRaster({ data, width, height, channels }, plan, { rows, rowAt: spool.rowAt });
+    return renderRaster({ data, width, height, channels }, plan, { rows, rowAt: spool.rowAt, more });
   } finally {
     spool.close();
+    marks?.push(...(spool.waited?.marks('wait for rows', `w${threadId}`) ?? []));
   }
 }
 
 /** Renders rows [from, to) of the plan's output into `out`. */
 export default function resample(task: ResampleTask): BandOutcome {
-  const { src, plan, rows, out } = task;
+  const { src, plan, rows, out, live } = task;
+  const marks: Mark[] | undefined = tracing ? [] : undefined;
+  const start = marks ? epochNow() : 0;
   let band: PixelRaster;
   try {
-    band = render(src, plan, rows);
+    band = render(src, plan, rows, live, marks);
   } catch (e) {
     if (e instanceof SpoolReadError) return { kind: 'spool', fault: e.fault, detail: e.message };
     throw e;
@@ -95,5 +116,7 @@ export default function resample(task: ResampleTask): BandOutcome {
   // collects garbage, which an idle thread may not do for minutes: collect after this task
   // (once piscina has let go of it; pool/threads.ts keeps its threads off Atomics.wait for that).
   if ('buffer' in src && src.buffer.byteLength >= HAND_BACK_MIN_BYTES) handBack();
-  return { kind: 'done', rows: band.height };
+  if (!marks) return { kind: 'done', rows: band.height };
+  marks.unshift({ what: `band ${rows[0]}-${rows[0] + band.height} (${plan.targetWidth} px, pyramid ${plan.x.pyramidLevels})`, thread: `w${threadId}`, start, end: epochNow() });
+  return { kind: 'done', rows: band.height, marks };
 }

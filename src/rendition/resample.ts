@@ -21,6 +21,8 @@ export interface Resampled {
   animation?: Animation;
   /** limits.renderTimeoutMs from the end of planning: covers resample and encode. */
   deadline: AbortSignal;
+  /** A streamed render's spool file removal (streamed.ts), to await before answering. */
+  cleaned?: Promise<void>;
 }
 
 /** The caller's decoded source when it is the version asked for, decoded as the query wishes. */

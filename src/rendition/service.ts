@@ -14,6 +14,8 @@ import { admitRendition } from './admit.js';
 import { type ReadSource, readSource } from './source.js';
 import { encodeSmallest, fallbackFormat } from './smallest.js';
 import { StageClock, type StageTiming } from './timings.js';
+import { collectMarks } from '../pool/trace-scope.js';
+import type { Mark } from '../pool/trace.js';
 import type { RenderContext, RenditionContextInternal } from './context.js';
 import { givenSource, resampleSource } from './resample.js';
 
@@ -25,6 +27,8 @@ export interface Rendition {
   cache: string;
   timings: StageTiming[];
   key: string;
+  /** With FOLDWISE_TIMELINE=1: the render's spans on every thread (src/pool/trace.ts). */
+  marks: Mark[];
 }
 
 async function produce(
@@ -51,6 +55,8 @@ async function produce(
     const { body, format } = await ctx.clock.time('encode', () =>
       withDeadline(encoding, deadline, () => ctx.pool.refusal('ERR_RENDER_TIMEOUT', 'encoding took longer than allowed')),
     );
+    // A streamed render's spool file went while it was encoded: gone before the answer.
+    await done.cleaned;
     return { entry: entryOf(body, format, plan, clampedHeader(layout, q, ctx.limits)), identity: done.identity };
   } finally {
     void ended.then(() => lease?.release());
@@ -86,13 +92,17 @@ export async function renderRendition(
 ): Promise<Rendition> {
   checkRequestedSize(query, ctx.limits);
   const clock = new StageClock(ctx.observe);
+  return collectMarks(clock.marks, () => rendered(ctx, clock, path, query, accept, canonical));
+}
+
+async function rendered(ctx: RenderContext, clock: StageClock, path: string, query: RenditionQuery, accept: string | undefined, canonical: string): Promise<Rendition> {
   const identity = await clock.time('origin', () => ctx.identities?.identify(path) ?? ctx.origin.identify(path));
   const fmt = formatKey(query, accept);
   const key = renditionKey(identity, canonical, fmt);
   const hit = await clock.time('cache', () => ctx.cache.get(key));
   if (hit) {
     ctx.onLookup?.(`hit-${hit.tier}`);
-    return { entry: hit.entry, cache: `hit-${hit.tier}`, timings: clock.timings, key };
+    return { entry: hit.entry, cache: `hit-${hit.tier}`, timings: clock.timings, key, marks: clock.marks };
   }
   ctx.onLookup?.('miss');
   if (ctx.shedding) throw ctx.shedding;
@@ -107,5 +117,5 @@ export async function renderRendition(
     await clock.time('cache', () => ctx.cache.set(storeKey, made));
     return made;
   }, ctx.signal);
-  return { entry, cache: 'miss', timings: clock.timings, key };
+  return { entry, cache: 'miss', timings: clock.timings, key, marks: clock.marks };
 }

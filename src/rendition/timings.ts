@@ -1,3 +1,5 @@
+import { epochNow, type Mark, tracing } from '../pool/trace.js';
+
 /** Stages of one rendition, as Server-Timing and the metrics name them ('stream': decode and resample overlapped). */
 export type Stage = 'origin' | 'decode' | 'plan' | 'resample' | 'stream' | 'encode' | 'cache';
 
@@ -9,16 +11,25 @@ export interface StageTiming {
 /** Times the stages of one render; `observe` also feeds them to metrics. */
 export class StageClock {
   readonly timings: StageTiming[] = [];
+  /** With FOLDWISE_TIMELINE=1 (src/pool/trace.ts): spans on every thread, for scripts/bench/timeline.ts. */
+  readonly marks: Mark[] = [];
 
   constructor(private readonly observe?: (stage: Stage, seconds: number) => void) {}
 
   async time<T>(stage: Stage, work: () => Promise<T> | T): Promise<T> {
     const start = performance.now();
+    const at = tracing ? epochNow() : 0;
     try {
       return await work();
     } finally {
       this.record(stage, performance.now() - start);
+      if (tracing) this.span(stage, 'main', at);
     }
+  }
+
+  /** Notes a span of `what` on `thread` from `start` (epochNow) to now; only when tracing. */
+  span(what: string, thread: string, start: number): void {
+    if (tracing) this.marks.push({ what, thread, start, end: epochNow() });
   }
 
   record(stage: Stage, ms: number): void {

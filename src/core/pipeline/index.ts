@@ -18,6 +18,12 @@ export interface RenderOptions {
    * with alpha are refused with it, since their opacity check would read every row first.
    */
   rowAt?: RowAt;
+  /**
+   * Asked before each output row o after the band's first: false ends the band there, so the
+   * result holds rows [start, o). For a band another thread may shorten while it runs (the
+   * pool hands the rest of a lagging band to an idle thread); the rows made are unchanged.
+   */
+  more?: (o: number) => boolean;
 }
 
 function isOpaque(data: Uint8Array | Uint16Array, channels: number, max: number): boolean {
@@ -141,9 +147,12 @@ export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions =
   const final = source!;
   const line = alloc(dstW * channels);
   const emit = rowEncoder(codec, out, dstW, r0, simd);
-  for (let o = r0; o < r1; o++) {
+  const more = opts.more;
+  let o = r0;
+  for (; o < r1; o++) {
+    if (more && o > r0 && !more(o)) break;
     final.read(o, line, 0);
     emit(o, line);
   }
-  return { data: out, width: dstW, height: r1 - r0, channels };
+  return { data: o === r1 ? out : out.subarray(0, dstW * (o - r0) * channels), width: dstW, height: o - r0, channels };
 }

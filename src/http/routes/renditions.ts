@@ -2,6 +2,7 @@ import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import { kernelNames } from '../../core/index.js';
 import { renderRendition } from '../../rendition/service.js';
 import { serverTiming } from '../../rendition/timings.js';
+import { epochNow, tracing } from '../../pool/trace.js';
 import { problemResponses, queryParameters } from '../../schemas/openapi.js';
 import { compileRenditionQuery } from '../../schemas/rendition.js';
 import { abandonSignal } from './abandon.js';
@@ -22,6 +23,8 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
   const plainCache = `public, max-age=${config.http.maxAgeSeconds}`;
 
   async function handler(request: FastifyRequest, reply: FastifyReply) {
+    const arrived = tracing ? epochNow() : 0;
+    const loop = tracing ? performance.eventLoopUtilization() : undefined;
     const raw = request.query as Record<string, unknown>;
     // width=hinted: the width comes from Client Hints (hints.ts); the memo keys on URL and width.
     const hinted = isHinted(raw) ? resolveHinted(raw, request.headers, config.limits.maxDimension) : undefined;
@@ -36,6 +39,8 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
       // signature before parsing, replaces this with a year and immutable.
       .header('cache-control', plainCache)
       .header('server-timing', serverTiming(r.cache, r.timings));
+    // FOLDWISE_TIMELINE=1 only (src/pool/trace.ts): the render's spans, for scripts/bench/timeline.ts.
+    if (tracing) reply.header('rendition-timeline', JSON.stringify({ arrived, answered: epochNow(), mainActiveMs: performance.eventLoopUtilization(loop).active, marks: r.marks }));
     const vary = [hinted ? hintedVary : '', q.format === undefined ? 'Accept' : ''].filter(Boolean).join(', ');
     if (vary) reply.header('vary', vary);
     reply.header('accept-ch', acceptCh);

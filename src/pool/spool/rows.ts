@@ -1,4 +1,5 @@
 import { closeSync, openSync, readSync } from 'node:fs';
+import { epochNow, tracing, WaitSpans } from '../trace.js';
 
 /** What the reader expects of the spool file's pixels. */
 export interface SpoolShape {
@@ -77,6 +78,8 @@ export class SpoolRows {
   private readonly samples: Uint8Array | Uint16Array;
   private first = 0;
   private count = 0;
+  /** With FOLDWISE_TIMELINE=1 (trace.ts), when this reader waited for rows not yet written. */
+  readonly waited = tracing ? new WaitSpans() : undefined;
 
   constructor(
     private readonly path: string,
@@ -159,6 +162,8 @@ export class SpoolRows {
   }
 
   private wait(): void {
+    const start = this.waited ? epochNow() : 0;
     Atomics.wait(this.state, 0, WRITING, 1);
+    this.waited?.add(start, epochNow());
   }
 }

@@ -75,3 +75,34 @@ describe('resampleWhileDecoding: the spool file of a failed render', () => {
     expect(await readdir(spool.dir)).toEqual([]);
   }, 20_000);
 });
+
+describe('resampleWhileDecoding: the spool file of a rendition', () => {
+  it('goes while the rendition is encoded: the raster comes first, `cleaned` once the file is removed', async () => {
+    hooks.afterProbe = undefined;
+    const config = resolveConfig({});
+    const spool = pool.spool!;
+    const events: string[] = [];
+    let release!: () => void;
+    const gate = new Promise<void>((resolve) => (release = resolve));
+    spool.remove = async (path: string) => {
+      events.push('removal started');
+      await gate;
+      rmSync(path, { force: true });
+      events.push('removed');
+    };
+    const q = compileRenditionQuery({ maxDimension: config.limits.maxDimension, kernelNames }).parse({ width: '80', prefilter: 'none', format: 'png' });
+    const source = { identity: { key: 'ok.jpg', version: '1' }, bytes: jpeg };
+    const done = await resampleWhileDecoding({ pool, limits: config.limits, clock: new StageClock() }, source, q);
+    events.push('raster');
+    expect(done!.raster.width).toBe(80);
+    const cleaned = done!.cleaned.then(() => events.push('cleaned'));
+    release();
+    await cleaned;
+    await done!.cleaned;
+    // The file is removed once more when libvips' job is done (the first test's case): either order.
+    expect(events.slice(0, 2)).toEqual(['removal started', 'raster']);
+    expect(events.indexOf('removed')).toBeGreaterThan(1);
+    expect(events.indexOf('cleaned')).toBeGreaterThan(events.indexOf('removed'));
+    expect(await readdir(spool.dir)).toEqual([]);
+  }, 20_000);
+});
