@@ -52,7 +52,7 @@ export interface ResampleTask {
   /** The whole output (plan.targetWidth x plan.targetHeight), same channels and depth. */
   out: SharedArrayBuffer;
   /**
-   * A band whose end the pool may lower while it runs (bands.ts, splitLagging): Int32Array
+   * A band whose end the pool may lower while it runs (rest-band.ts, bandWithRest): Int32Array
    * [next row, end]; the task writes the row it is about to make, and stops at the end.
    */
   live?: SharedArrayBuffer;

@@ -1,4 +1,5 @@
 import { SIMD_WASM_BASE64 } from './bytes.js';
+import { instantiateWasm, type WasmMemory } from './load.js';
 
 type Pass = (
   dst: number, dstBase: number, dstStep: number, src: number, srcBase: number, srcStep: number,
@@ -20,18 +21,6 @@ type Limit = (
 ) => void;
 type Quantise = (dst: number, src: number, n: number, thresholds: number, start: number, shift: number, base: number) => void;
 
-/** The part of the WebAssembly JS API used here (the project's lib settings carry no DOM types). */
-export interface WasmMemory {
-  readonly buffer: ArrayBuffer;
-  grow(pages: number): number;
-}
-interface WasmApi {
-  validate(bytes: Uint8Array): boolean;
-  Memory: new (d: { initial: number }) => WasmMemory;
-  Module: new (bytes: Uint8Array) => object;
-  Instance: new (m: object, imports: object) => { exports: Record<string, unknown> };
-}
-
 /** The compiled f32x4 twins of the loops in resample/separable.ts, on one shared memory. */
 export interface SimdKernels {
   readonly memory: WasmMemory;
@@ -50,15 +39,10 @@ let enabled = true;
 let kernels: SimdKernels | null | undefined;
 
 function instantiate(): SimdKernels | null {
-  const bin = atob(SIMD_WASM_BASE64);
-  const bytes = new Uint8Array(bin.length);
-  for (let i = 0; i < bin.length; i++) bytes[i] = bin.charCodeAt(i);
-  const wasm = (globalThis as unknown as { WebAssembly?: WasmApi }).WebAssembly;
-  // Engines without WebAssembly SIMD reject the module: the scalar loops serve then.
-  if (!wasm || !wasm.validate(bytes)) return null;
-  const memory = new wasm.Memory({ initial: 2 });
-  const inst = new wasm.Instance(new wasm.Module(bytes), { env: { memory } });
-  const e = inst.exports as unknown as Omit<SimdKernels, 'memory'>;
+  const loaded = instantiateWasm(SIMD_WASM_BASE64, 2);
+  if (!loaded) return null;
+  const { memory } = loaded;
+  const e = loaded.exports as unknown as Omit<SimdKernels, 'memory'>;
   const { across, pixels, reduce5, across5, decode8, decode16, decodeReduce5, quantise8, limit } = e;
   return { memory, across, pixels, reduce5, across5, decode8, decode16, decodeReduce5, quantise8, limit };
 }

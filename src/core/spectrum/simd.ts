@@ -7,19 +7,13 @@
  * once for the largest tile, so the views handed out are never detached.
  */
 import { srgbToLinear8 } from '../color/index.js';
-import type { WasmMemory } from '../simd/kernels.js';
+import { instantiateWasm } from '../simd/load.js';
 import type { PixelRaster } from '../types.js';
 import type { FftPlan } from './fft.js';
 import { luminanceWeights } from './luminance.js';
 import { window2d } from './window.js';
 import { SPECTRUM_WASM_BASE64 } from './wasm-bytes.js';
 
-interface WasmApi {
-  validate(bytes: Uint8Array): boolean;
-  Memory: new (d: { initial: number }) => WasmMemory;
-  Module: new (bytes: Uint8Array) => object;
-  Instance: new (m: object, imports: object) => { exports: Record<string, unknown> };
-}
 type Fft2d = (re: number, im: number, cos: number, sin: number, n: number) => void;
 type Accumulate = (re: number, im: number, t: number, norm: number, power: number, regionPower: number, bins: number, shift: number, baseA: number, baseB: number) => void;
 type Luminance = (out: number, src: number, channels: number, size: number, lut: number, w2: number, rev: number, alphaScale: number) => number;
@@ -73,16 +67,10 @@ let enabled = true;
 let module: Module | null | undefined;
 
 function instantiate(): Module | null {
-  const bin = atob(SPECTRUM_WASM_BASE64);
-  const bytes = new Uint8Array(bin.length);
-  for (let i = 0; i < bin.length; i++) bytes[i] = bin.charCodeAt(i);
-  const wasm = (globalThis as unknown as { WebAssembly?: WasmApi }).WebAssembly;
-  // Engines without WebAssembly SIMD reject the module: the TypeScript loops serve then.
-  if (!wasm || !wasm.validate(bytes)) return null;
-  const memory = new wasm.Memory({ initial: Math.ceil(END / 65536) });
-  const inst = new wasm.Instance(new wasm.Module(bytes), { env: { memory } });
-  const e = inst.exports;
-  return { buffer: memory.buffer, fft2d: e.fft2dBitReversed as Fft2d, luminance: e.tileLuminance8 as Luminance, accumulate: e.accumulatePacked as Accumulate, size: 0, weights: null };
+  const loaded = instantiateWasm(SPECTRUM_WASM_BASE64, Math.ceil(END / 65536));
+  if (!loaded) return null;
+  const e = loaded.exports;
+  return { buffer: loaded.memory.buffer, fft2d: e.fft2dBitReversed as Fft2d, luminance: e.tileLuminance8 as Luminance, accumulate: e.accumulatePacked as Accumulate, size: 0, weights: null };
 }
 
 const views = new Map<number, SimdFft2d>();
