@@ -6,6 +6,7 @@ import type { Rgb } from '../schemas/colour.js';
 import { placeOnCanvas, type CanvasPlacement } from './letterbox.js';
 import { formatSpecs, type OutputFormat } from './formats.js';
 import { tagPngSrgb } from './png-srgb.js';
+import { tagJpegSrgb } from './jpeg-icc.js';
 import type { Animation } from './wish.js';
 
 export interface EncodeOptions {
@@ -99,10 +100,11 @@ export async function encodeImage(raster: PixelRaster, opts: EncodeOptions): Pro
       // fewer to 3.7 % more bytes. Progressive with optimised scans saved 1.5-4 % for 2-3x the
       // CPU, trellis quantisation at most 4 % for about 3x; the standard Huffman tables cost
       // 3-12 % more bytes than fitted ones. A miss pays the encoder in full, so the cheap one.
-      return img
-        .withIccProfile(profile)
-        .jpeg({ quality, progressive: false, optimiseCoding: true, chromaSubsampling: quality! >= 90 ? '4:4:4' : '4:2:0' })
-        .toBuffer();
+      // An 8-bit colour sRGB raster is encoded untagged and tagged after (jpeg-icc.ts: same bytes,
+      // without sharp's identity transform); grey and P3 rasters take sharp's own path.
+      const settings = { quality, progressive: false, optimiseCoding: true, chromaSubsampling: quality! >= 90 ? '4:4:4' : '4:2:0' } as const;
+      if (profile === 'srgb' && !deep && r.channels === 3) return tagJpegSrgb(await img.jpeg(settings).toBuffer());
+      return img.withIccProfile(profile).jpeg(settings).toBuffer();
     case 'webp':
       return img.withIccProfile(profile).webp({ quality, effort: spec.effort, ...motion }).toBuffer();
     case 'avif':
