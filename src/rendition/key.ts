@@ -9,7 +9,9 @@ import type { SourceIdentity } from '../origins/types.js';
 // 5: the baseline JPEG encoder and the content cut-off, which two branches each called 4.
 // 6: fit defaults to contain (was cover), so a URL with both sides and no fit gets new bytes.
 // 7: this session: enlargement cap; ringing limiter; wide gamut as P3; animations kept; negotiated-bytes rule.
-export const pipelineVersion = 'fw-pipeline-7';
+// 8: the pyramid's compensated final filter designed by turned cosines (compensate.ts): its
+//    table moves by ~1e-12 of its peak, which may flip a float32 weight and so a byte.
+export const pipelineVersion = 'fw-pipeline-8';
 
 // Hits ask for the same few keys over and over; hashing is most of a hit's key cost. The memo
 // maps the exact hashed text to its digest (so it cannot answer for different inputs) and is
