@@ -48,6 +48,11 @@ export const poolSchema = z.strictObject({
   memoryBudgetBytes: z.number().int().min(64 * 2 ** 20).nullable(),
   /** Longest wait for room in the budget before 503 + Retry-After; well under the idle timeout. */
   maxWaitMs: z.number().int().min(0).max(60_000),
+  /**
+   * The worker threads' nice value (0..19; Linux keeps one per thread): the decode, the encode
+   * and the event loop go first when the cores are short (src/pool/nice.ts). 0 = as the process.
+   */
+  threadNice: z.number().int().min(0).max(19),
 });
 
 export const cacheSchema = z.strictObject({

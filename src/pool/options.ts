@@ -16,6 +16,11 @@ export interface RenderPoolOptions {
   rssCeilingBytes?: number;
   /** Spool folder for decodes resampled as they arrive ('auto', a path, or 'off'); default 'off'. */
   spoolDir?: string;
+  /**
+   * The worker threads' nice value (Linux, per thread: src/pool/nice.ts), so libvips' decode and
+   * encode and the event loop go first when the cores are short; 0 or absent = the process's own.
+   */
+  threadNice?: number;
   /** How band tasks are run on the threads (runner.ts); default piscina's run. Fault tests inject one. */
   runner?: BandRunner;
 }

@@ -3,7 +3,7 @@ import { fileURLToPath, pathToFileURL } from 'node:url';
 import { availableParallelism } from 'node:os';
 import { Piscina } from 'piscina';
 import { FoldwiseError } from '../errors.js';
-import type { BandOutcome, ResampleTask } from './worker.js';
+import type { BandOutcome, ResampleTask, WorkerSetup } from './worker.js';
 import { type BandPiscina, piscinaRunner, type RunBand } from './runner.js';
 import { type RenderPoolOptions, runningPerThread } from './options.js';
 import { type PoolRefusal, refusal } from './refusals.js';
@@ -22,9 +22,11 @@ const tsxLoader = fromSource ? pathToFileURL(createRequire(import.meta.url).reso
 const profiling = process.execArgv.filter((a) => a.startsWith('--cpu-prof'));
 
 /** The pool's piscina: `threads` worker threads running worker.ts, for `maxRunning` jobs at once. */
-function startThreads(threads: number, maxRunning: number): BandPiscina {
+function startThreads(threads: number, maxRunning: number, nice: number): BandPiscina {
+  const setup: WorkerSetup = { nice };
   return new Piscina<ResampleTask, BandOutcome>({
     filename: workerFile,
+    workerData: setup,
     minThreads: threads,
     maxThreads: threads,
     // At most `maxRunning` jobs reach the pool, with at most three tasks each at once: two
@@ -66,7 +68,7 @@ export class PoolThreads {
     this.threads = opts.threads > 0 ? opts.threads : availableParallelism();
     this.retryAfterSeconds = opts.retryAfterSeconds;
     this.spool = SpoolDir.open(opts.spoolDir ?? 'off');
-    this.piscina = startThreads(this.threads, runningPerThread * this.threads);
+    this.piscina = startThreads(this.threads, runningPerThread * this.threads, opts.threadNice ?? 0);
     const run = (opts.runner ?? piscinaRunner)(this.piscina);
     this.runBand = (task, options) => this.counted(() => run(task, options));
   }

@@ -8,7 +8,8 @@
 import { renderRaster } from '../core/index.js';
 import { simdKernels } from '../core/simd/index.js';
 import type { Channels, PixelRaster, Plan } from '../core/types.js';
-import { threadId } from 'node:worker_threads';
+import { threadId, workerData } from 'node:worker_threads';
+import { niceThread } from './nice.js';
 import { HAND_BACK_MIN_BYTES, handBack } from './hand-back.js';
 import { epochNow, type Mark, tracing } from './trace.js';
 import { type SpoolFault, SpoolReadError, SpoolRows } from './spool/rows.js';
@@ -19,6 +20,14 @@ export { warmTask as warm } from './warm.js';
 
 // Compile and instantiate the SIMD kernels when the thread starts, not in its first render.
 simdKernels();
+// pool.threadNice: yield to the decode, the encode and the event loop when cores are short (nice.ts).
+niceThread((workerData as WorkerSetup | undefined)?.nice ?? 0);
+
+/** What the pool gives each thread at its start (piscina's workerData). */
+export interface WorkerSetup {
+  /** The thread's nice value (pool.threadNice); 0 keeps the process's. */
+  nice: number;
+}
 
 /** A raster whose samples live in a SharedArrayBuffer. */
 export interface SharedRaster {
