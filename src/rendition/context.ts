@@ -45,6 +45,12 @@ export interface RenderContext {
   signal?: AbortSignal;
   /** The refusal a miss gets while the process sheds load (hits are still served), else null. */
   shedding?: Error | null;
+  /**
+   * Answer a miss once the memory tier has it, while the disk and Redis tiers are still being
+   * written (TieredCache.setBehind): the rendition route. Callers that report a rendition as
+   * stored (the upload hook, warm) leave it off and wait for every tier.
+   */
+  answerFirst?: boolean;
 }
 
 /** A render's context inside the service: its stage clock and the identity asked for. */

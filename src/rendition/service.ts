@@ -114,7 +114,8 @@ async function rendered(ctx: RenderContext, clock: StageClock, path: string, que
     if (storeKey !== key) ctx.identities?.forget(path);
     // Noted before it is stored: a crash in between leaves a key with nothing behind it, never the reverse.
     ctx.onStored?.(read.key, storeKey);
-    await clock.time('cache', () => ctx.cache.set(storeKey, made));
+    if (ctx.answerFirst) void clock.time('cache', () => ctx.cache.setBehind(storeKey, made));
+    else await clock.time('cache', () => ctx.cache.set(storeKey, made));
     return made;
   }, ctx.signal);
   return { entry, cache: 'miss', timings: clock.timings, key, marks: clock.marks };

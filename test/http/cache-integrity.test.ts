@@ -33,6 +33,8 @@ describe('disk cache entries are checked on every read', () => {
   it('an entry truncated to half is not served: re-rendered (200 miss, the same bytes), counted in /metrics', async () => {
     const first = await t.app.inject({ url });
     expect(first.statusCode).toBe(200);
+    // The answer goes before the disk file is written (TieredCache.setBehind): wait for it.
+    await t.app.renditionCache.cache.settled();
     expect(cacheOf(await t.app.inject({ url }))).toBe('hit-disk');
     const [file] = await entryFiles(t.cacheDir);
     await truncate(file, Math.floor((await stat(file)).size / 2));
@@ -46,6 +48,7 @@ describe('disk cache entries are checked on every read', () => {
     const metrics = (await t.app.inject({ url: '/metrics' })).body;
     expect(metrics).toMatch(/^foldwise_cache_corrupt_entries_total\{tier="disk"\} 1$/m);
     // Stored again whole: the next read is a disk hit.
+    await t.app.renditionCache.cache.settled();
     expect(cacheOf(await t.app.inject({ url }))).toBe('hit-disk');
   });
 });
@@ -84,15 +87,55 @@ describe('an unusable or full cache folder degrades readiness and never stops se
       const res = await t.app.inject({ url });
       expect(res.statusCode).toBe(200);
       expect((await sharp(res.rawPayload).metadata()).width).toBe(16);
+      await t.app.renditionCache.cache.settled();
       expect(await counter(t, 'cacheFull')).toBe(1);
       const ready = await t.app.inject({ url: '/readyz' });
       expect(ready.statusCode).toBe(200);
       expect(ready.json()).toMatchObject({ status: 'degraded', checks: { 'cache-disk': { ok: false, detail: expect.stringMatching(/disk full/) } } });
       full = false;
       expect((await t.app.inject({ url: url.replace('width=16', 'width=8') })).statusCode).toBe(200);
+      await t.app.renditionCache.cache.settled();
       expect((await t.app.inject({ url: '/readyz' })).json().status).toBe('ready');
     } finally {
       await t.close();
+      await probe.close();
+    }
+  });
+});
+
+describe('a miss is answered before its durable store ends (TieredCache.setBehind)', () => {
+  it('answers while the disk write waits, serves the memory copy meanwhile, and close() waits for the write', async () => {
+    const probe = await build();
+    let release!: () => void;
+    const held = new Promise<void>((resolve) => (release = resolve));
+    let writes = 0;
+    const disk = await DiskTier.open(join(probe.cacheDir, 'shared-behind'), 1 << 20, {
+      write: async (tmp, target, data) => {
+        writes++;
+        await held;
+        await writeDurably(tmp, target, data);
+      },
+    });
+    const t = await build({ sharedTier: disk });
+    let closed = false;
+    try {
+      await writePng(t.sourceDir, 'swatch.png', 32, 32, 3, () => [10, 20, 30]);
+      const res = await t.app.inject({ url });
+      expect([res.statusCode, cacheOf(res)]).toEqual([200, 'miss']);
+      // The disk file is not there yet; the memory tier answers.
+      expect(await entryFiles(join(probe.cacheDir, 'shared-behind'))).toEqual([]);
+      expect(cacheOf(await t.app.inject({ url }))).toBe('hit-memory');
+      const closing = t.close().then(() => (closed = true));
+      await new Promise((r) => setTimeout(r, 50));
+      expect(closed).toBe(false);
+      release();
+      await closing;
+      expect(closed).toBe(true);
+      expect(await entryFiles(join(probe.cacheDir, 'shared-behind'))).toHaveLength(1);
+      expect(writes).toBe(1);
+    } finally {
+      release();
+      if (!closed) await t.close();
       await probe.close();
     }
   });

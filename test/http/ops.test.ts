@@ -50,6 +50,8 @@ describe('operational endpoints', () => {
     await t.app.inject({ url: '/v1/renditions/swatch.png?width=8&format=png' });
     await t.app.inject({ url: '/v1/renditions/swatch.png?width=8&format=png' });
     await t.app.inject({ url: '/v1/renditions/swatch.png?width=0' });
+    // The disk tier is written after the answer (TieredCache.setBehind).
+    await t.app.renditionCache.cache.settled();
     const res = await t.app.inject({ url: '/metrics' });
     expect(res.statusCode).toBe(200);
     expect(res.headers['content-type']).toMatch(/^text\/plain/);

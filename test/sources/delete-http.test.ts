@@ -62,6 +62,8 @@ describe('with signing on', () => {
     for (const u of urls) expect((await t.app.inject(u)).statusCode).toBe(200);
     const risk = await t.app.inject('/v1/alias-risk/brick.png?width=24');
     expect(risk.statusCode).toBe(200);
+    // Renditions are answered before their disk files are written (TieredCache.setBehind).
+    await t.app.renditionCache.cache.settled();
     const keep = await diskEntries(t.cacheDir);
     expect(keep.length).toBeGreaterThanOrEqual(2);
     const res = await t.app.inject({ method: 'DELETE', url: signUrl('/v1/sources/brick.png', {}, key) });

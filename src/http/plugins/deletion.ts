@@ -40,6 +40,8 @@ async function deletionPlugin(app: FastifyInstance): Promise<void> {
     spectra.forget(source);
     ingest.forgetSource(source);
     const tiers = renditionCache.cache.tiers;
+    // A rendition answered before its store ended (TieredCache.setBehind) is written first.
+    await renditionCache.cache.settled();
     await Promise.all(tiers.flatMap((t) => keys.map((k) => t.delete?.(k))));
   };
   const shared = app.sharedRedis;

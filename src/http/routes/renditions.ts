@@ -32,7 +32,7 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
       ? requests.read(request.url, hinted.raw, `${request.url}\n${hinted.width}`)
       : requests.read(request.url, raw);
     const signal = abandonSignal(reply);
-    const r = await renderRendition({ ...renderContext, signal, shedding: request.shedding }, path, q, request.headers.accept, canonical);
+    const r = await renderRendition({ ...renderContext, signal, shedding: request.shedding, answerFirst: true }, path, q, request.headers.accept, canonical);
     reply
       .header('etag', r.entry.etag)
       // For validly signed URLs the signing plugin (src/http/plugins/signing.ts), which checked the
