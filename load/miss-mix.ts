@@ -4,8 +4,9 @@
  * Prints status counts, p50/p99 latency of the renders, the peak RSS of the server, and the
  * median render against sharp's decode of the same source measured in this run.
  * Targets (DESIGN.md): RSS < 1.5 GiB; no 5xx except deliberate 503 (shedding).
- *   npx tsx load/miss-mix.ts [--seconds 30] [--connections 64] [--max-queue N] [--threads N]
- * (--max-queue / --threads override the pool settings, to compare admission bounds.)
+ *   npx tsx load/miss-mix.ts [--seconds 30] [--connections 64] [--max-queue N] [--threads N] [--thread-nice N]
+ * (--max-queue / --threads / --thread-nice override the pool settings, to compare admission
+ * bounds and the worker threads' priority.)
  */
 import { parseArgs } from 'node:util';
 import { join } from 'node:path';
@@ -23,11 +24,13 @@ const { values } = parseArgs({
     connections: { type: 'string', default: '64' },
     'max-queue': { type: 'string' },
     threads: { type: 'string' },
+    'thread-nice': { type: 'string' },
   },
 });
 const pool: Record<string, number> = {};
 if (values['max-queue'] !== undefined) pool.maxQueue = Number(values['max-queue']);
 if (values.threads !== undefined) pool.threads = Number(values.threads);
+if (values['thread-nice'] !== undefined) pool.threadNice = Number(values['thread-nice']);
 const seconds = Math.min(120, Number(values.seconds));
 const connections = Math.min(256, Number(values.connections));
 const RSS_TARGET = 1.5 * 2 ** 30;

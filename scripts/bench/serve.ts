@@ -14,8 +14,8 @@ import { fileURLToPath } from 'node:url';
 
 const root = fileURLToPath(new URL('../../', import.meta.url));
 
-export interface Server { url: string; stop(): Promise<void> }
-export interface Started { match: RegExpExecArray; stop(): Promise<void> }
+export interface Server { url: string; pid: number; stop(): Promise<void> }
+export interface Started { match: RegExpExecArray; pid: number; stop(): Promise<void> }
 
 /** Starts `node <args>` and resolves, with the match, once its stdout matches `ready`. */
 export async function startServer(args: string[], env: Record<string, string>, ready: RegExp): Promise<Started> {
@@ -36,7 +36,7 @@ export async function startServer(args: string[], env: Record<string, string>, r
     child.kill('SIGTERM');
     await exited;
   };
-  return { match, stop };
+  return { match, pid: child.pid!, stop };
 }
 
 /**
@@ -51,7 +51,7 @@ export async function startService(sourceDir: string, nodeArgs: string[] = []): 
   const settings = { origin: { sourceDir, generateDemo: false }, cache: { dir: join(dir, 'cache') }, server: { port: 0 }, pressure: { maxEventLoopDelayMs: 0 } };
   writeFileSync(config, JSON.stringify(settings));
   const s = await startServer([...nodeArgs, '--import', 'tsx', 'src/server.ts'], { FOLDWISE_CONFIG: config, HOST: '127.0.0.1' }, /"msg":"Server listening at http:\/\/127\.0\.0\.1:(\d+)"[\s\S]*foldwise ready/);
-  return { url: `http://127.0.0.1:${s.match[1]}`, stop: async () => { await s.stop(); rmSync(dir, { recursive: true, force: true }); } };
+  return { url: `http://127.0.0.1:${s.match[1]}`, pid: s.pid, stop: async () => { await s.stop(); rmSync(dir, { recursive: true, force: true }); } };
 }
 
 /**

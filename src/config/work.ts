@@ -50,7 +50,8 @@ export const poolSchema = z.strictObject({
   maxWaitMs: z.number().int().min(0).max(60_000),
   /**
    * The worker threads' nice value (0..19; Linux keeps one per thread): the decode, the encode
-   * and the event loop go first when the cores are short (src/pool/nice.ts). 0 = as the process.
+   * and the event loop go first when the cores are short (src/pool/nice.ts). 0 = as the process
+   * (the default: under a flood of requests the event loop then out-runs the renders).
    */
   threadNice: z.number().int().min(0).max(19),
 });

@@ -59,6 +59,11 @@ export class PoolAdmission {
     };
   }
 
+  /** Throws the 503 any job would get now (the wait line is full), before its source is read. */
+  refuseIfFull(): void {
+    this.budget.refuseIfFull();
+  }
+
   /** RenderPool.admit once the pool is known to be open. */
   admit(bytes: number, what: string, signal: AbortSignal | undefined, heldBytes: number): Promise<Lease> {
     // RSS only as a last resort, and only while other jobs run: their end brings it down, so

@@ -66,6 +66,15 @@ export class MemoryBudget {
   }
 
   /**
+   * Throws the ERR_OVERLOADED acquire would throw for any job now: the line is full (and not
+   * empty, so no job is granted at once). Lets a caller refuse before it reads a source.
+   */
+  refuseIfFull(): void {
+    const { length } = this.line;
+    if (length > 0 && length >= this.opts.maxWaiting) throw this.overloaded(`${length} jobs are already waiting for memory`);
+  }
+
+  /**
    * A lease of `bytes` once they fit. `what` names the job in a 413's detail.
    * @throws FoldwiseError ERR_SOURCE_TOO_COSTLY, ERR_OVERLOADED; the signal's reason when it aborts.
    */

@@ -6,7 +6,11 @@
  * ms instead of 29-35 (scripts/bench/timeline.ts). Linux keeps a nice value per thread, so a
  * worker lowers its own (raising it back would need privileges nobody asks for); libvips'
  * decode and encode threads and the event loop keep theirs. The CPU stays as busy: only who
- * waits changes.
+ * waits changes. It is a trade (pool.threadNice, 0 by default): on a replica with spare
+ * requests' worth of CPU, nice 10 made a 14.7 MP first rendition 1.94x -> 1.72x sharp's decode
+ * and the event-loop lag p99 20.3 -> 17.4 ms (`npm run bench -- --service-only`, 15 runs each,
+ * interleaved); under a flood (load/miss-mix.ts --connections 16 --thread-nice 10) the event
+ * loop, first in line, answered 503s four times as fast and the renders done halved (78-91 -> 45).
  */
 import { readlinkSync } from 'node:fs';
 import { setPriority } from 'node:os';

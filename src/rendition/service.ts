@@ -37,7 +37,9 @@ async function produce(
   q: RenditionQuery,
   accept: string | undefined,
 ): Promise<{ entry: CacheEntry; identity: SourceIdentity }> {
-  // The origin read comes before admission: a slow upstream holds no memory budget.
+  // The origin read comes before admission: a slow upstream holds no memory budget. A full
+  // wait line refuses first, without reading: the admission would refuse it anyway.
+  if (!ctx.admitted) ctx.pool.refuseIfFull();
   const given = givenSource(ctx, q);
   const source = given ?? (await readSource(ctx.origin, path, ctx.limits, ctx.clock, ctx.signal));
   ctx.signal?.throwIfAborted();

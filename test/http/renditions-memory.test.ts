@@ -98,3 +98,37 @@ describe('a bounded wait', () => {
     }
   });
 });
+
+describe('a full wait line', () => {
+  it('refuses a request with 503 ERR_OVERLOADED before its source is read', async () => {
+    const lineTap = new PoolTap();
+    // One thread: two jobs run at once (pool/options.ts runningPerThread), one may wait.
+    const full = await build({ sourceDir: t.sourceDir, poolRunner: lineTap.runner, config: { pool: { threads: 1, maxQueue: 1, memoryBudgetBytes: 8 * BUDGET, maxWaitMs: 60_000 } } });
+    try {
+      const origin = full.app.renderContext.origin;
+      const read = origin.read.bind(origin);
+      let reads = 0;
+      origin.read = (...args: Parameters<typeof read>) => ((reads += 1), read(...args));
+      const a = lineTap.holdNext();
+      const first = full.app.inject({ url: '/v1/renditions/small.png?width=200&format=png' });
+      await a.reachedPool;
+      const b = lineTap.holdNext();
+      const second = full.app.inject({ url: '/v1/renditions/small.png?width=201&format=png' });
+      await b.reachedPool;
+      const third = full.app.inject({ url: '/v1/renditions/small.png?width=202&format=png' });
+      await until(() => full.app.renderPool.memory().waiting === 1);
+      expect(reads).toBe(3);
+      const fourth = await full.app.inject({ url: '/v1/renditions/small.png?width=203&format=png' });
+      expect(fourth.statusCode).toBe(503);
+      expect(fourth.json()).toMatchObject({ code: 'ERR_OVERLOADED' });
+      expect(fourth.headers['retry-after']).toBe(String(full.config.pool.retryAfterSeconds));
+      expect(reads).toBe(3);
+      a.release();
+      b.release();
+      expect([(await first).statusCode, (await second).statusCode, (await third).statusCode]).toEqual([200, 200, 200]);
+      expect(reads).toBe(3);
+    } finally {
+      await full.close();
+    }
+  });
+});

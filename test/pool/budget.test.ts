@@ -52,6 +52,30 @@ describe('MemoryBudget', () => {
     held.release();
   });
 
+  it('refuseIfFull throws the 503 acquire would throw exactly when the wait line is full, and nothing before', async () => {
+    const b = budget({ maxRunning: 1, maxWaiting: 2 });
+    expect(() => b.refuseIfFull()).not.toThrow();
+    const held = await b.acquire(1, 'running');
+    expect(() => b.refuseIfFull()).not.toThrow();
+    const w1 = b.acquire(1, 'waits 1');
+    expect(() => b.refuseIfFull()).not.toThrow();
+    const w2 = b.acquire(1, 'waits 2');
+    let thrown: unknown;
+    try {
+      b.refuseIfFull();
+    } catch (e) {
+      thrown = e;
+    }
+    expect(thrown).toMatchObject({ code: 'ERR_OVERLOADED', status: 503, headers: { 'retry-after': '3' } });
+    // acquire refuses the same job the same way.
+    await expect(b.acquire(1, 'third')).rejects.toMatchObject({ code: 'ERR_OVERLOADED' });
+    held.release();
+    (await w1).release();
+    expect(() => b.refuseIfFull()).not.toThrow();
+    (await w2).release();
+    expect(b.state).toMatchObject({ running: 0, waiting: 0, admittedBytes: 0 });
+  });
+
   it('an aborted waiter leaves the line with its signal reason, and the jobs behind it move up', async () => {
     const b = budget();
     const held = await b.acquire(95 * MiB, 'held');

@@ -48,9 +48,9 @@ describe.runIf(linux)('pool.threadNice: the worker threads yield, the rest of th
 });
 
 describe('pool.threadNice in the configuration', () => {
-  it('defaults to 10 and refuses values outside 0..19', () => {
-    expect(resolveConfig().pool.threadNice).toBe(10);
-    expect(resolveConfig({ pool: { threadNice: 0 } }).pool.threadNice).toBe(0);
+  it('defaults to 0 (off) and refuses values outside 0..19', () => {
+    expect(resolveConfig().pool.threadNice).toBe(0);
+    expect(resolveConfig({ pool: { threadNice: 10 } }).pool.threadNice).toBe(10);
     expect(() => resolveConfig({ pool: { threadNice: 20 } })).toThrow(/threadNice/);
     expect(() => resolveConfig({ pool: { threadNice: -1 } })).toThrow(/threadNice/);
   });
