@@ -10,6 +10,14 @@
   return base + (<usize>index << 3);
 }
 
+/** Real and imaginary parts of the product (wr + i wi)(r + i i) on two lanes, as fft.ts forms them. */
+@inline function mulRe(wr: v128, wi: v128, r: v128, i: v128): v128 {
+  return f64x2.sub(f64x2.mul(wr, r), f64x2.mul(wi, i));
+}
+@inline function mulIm(wr: v128, wi: v128, r: v128, i: v128): v128 {
+  return f64x2.add(f64x2.mul(wr, i), f64x2.mul(wi, r));
+}
+
 /**
  * Stages h and 2h of one radix-2^2 butterfly on two lanes: points at byte offsets o0..o3 of
  * (re, im), twiddles w1 and w2 (w2 times -i for the second pair), as fft.ts's quadPass.
@@ -17,8 +25,8 @@
 @inline function quad(re: usize, im: usize, o0: usize, o1: usize, o2: usize, o3: usize, w1r: v128, w1i: v128, w2r: v128, w2i: v128): void {
   const r1 = v128.load(re + o1);
   const i1 = v128.load(im + o1);
-  let tr = f64x2.sub(f64x2.mul(w1r, r1), f64x2.mul(w1i, i1));
-  let ti = f64x2.add(f64x2.mul(w1r, i1), f64x2.mul(w1i, r1));
+  let tr = mulRe(w1r, w1i, r1, i1);
+  let ti = mulIm(w1r, w1i, r1, i1);
   const r0 = v128.load(re + o0);
   const i0 = v128.load(im + o0);
   const y0r = f64x2.add(r0, tr);
@@ -27,18 +35,19 @@
   const y1i = f64x2.sub(i0, ti);
   const r3 = v128.load(re + o3);
   const i3 = v128.load(im + o3);
-  tr = f64x2.sub(f64x2.mul(w1r, r3), f64x2.mul(w1i, i3));
-  ti = f64x2.add(f64x2.mul(w1r, i3), f64x2.mul(w1i, r3));
+  tr = mulRe(w1r, w1i, r3, i3);
+  ti = mulIm(w1r, w1i, r3, i3);
   const r2 = v128.load(re + o2);
   const i2 = v128.load(im + o2);
   const y2r = f64x2.add(r2, tr);
   const y2i = f64x2.add(i2, ti);
   const y3r = f64x2.sub(r2, tr);
   const y3i = f64x2.sub(i2, ti);
-  const ur = f64x2.sub(f64x2.mul(w2r, y2r), f64x2.mul(w2i, y2i));
-  const ui = f64x2.add(f64x2.mul(w2r, y2i), f64x2.mul(w2i, y2r));
-  const vr = f64x2.add(f64x2.mul(w2r, y3i), f64x2.mul(w2i, y3r));
-  const vi = f64x2.neg(f64x2.sub(f64x2.mul(w2r, y3r), f64x2.mul(w2i, y3i)));
+  const ur = mulRe(w2r, w2i, y2r, y2i);
+  const ui = mulIm(w2r, w2i, y2r, y2i);
+  // w2 times -i for the second pair: (w2 y3) (-i) = Im(w2 y3) - i Re(w2 y3).
+  const vr = mulIm(w2r, w2i, y3r, y3i);
+  const vi = f64x2.neg(mulRe(w2r, w2i, y3r, y3i));
   v128.store(re + o0, f64x2.add(y0r, ur));
   v128.store(im + o0, f64x2.add(y0i, ui));
   v128.store(re + o2, f64x2.sub(y0r, ur));
@@ -53,8 +62,8 @@
 @inline function pair(re: usize, im: usize, a: usize, b: usize, wr: v128, wi: v128): void {
   const br = v128.load(re + b);
   const bi = v128.load(im + b);
-  const tr = f64x2.sub(f64x2.mul(wr, br), f64x2.mul(wi, bi));
-  const ti = f64x2.add(f64x2.mul(wr, bi), f64x2.mul(wi, br));
+  const tr = mulRe(wr, wi, br, bi);
+  const ti = mulIm(wr, wi, br, bi);
   const ar = v128.load(re + a);
   const ai = v128.load(im + a);
   v128.store(re + b, f64x2.sub(ar, tr));

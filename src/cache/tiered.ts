@@ -40,30 +40,28 @@ export class TieredCache {
     return undefined;
   }
 
-  /** Stores still being written by setBehind. */
-  private readonly behind = new Set<Promise<void>>();
-
-  async set(key: string, entry: CacheEntry): Promise<void> {
-    await this.store(this.tiers, key, entry);
-  }
+  /** Stores still being written. */
+  private readonly writing = new Set<Promise<void>>();
 
   /**
-   * Stores without making the caller wait for the durable tiers: the memory tier has the entry
-   * when this returns (its set runs before any await), the disk file (written durably: fsync,
-   * rename) and Redis follow. A page's miss is answered 2-11 ms sooner. What is still being
-   * written is awaited by `settled()`, which deletions and close() call first, so a deletion
-   * never races a late write.
+   * Stores in every tier. The memory tier has the entry when this returns (its set runs before
+   * any await), so a caller may answer then while the disk file (written durably: fsync,
+   * rename) and Redis follow (renderRendition's answerFirst); `settled()` waits for what is
+   * still being written, and deletions and close() call it first, so neither races a late write.
    */
-  setBehind(key: string, entry: CacheEntry): Promise<void> {
+  async set(key: string, entry: CacheEntry): Promise<void> {
     const writing = this.store(this.tiers, key, entry);
-    this.behind.add(writing);
-    void writing.finally(() => this.behind.delete(writing));
-    return writing;
+    this.writing.add(writing);
+    try {
+      await writing;
+    } finally {
+      this.writing.delete(writing);
+    }
   }
 
-  /** Resolves once every store begun by setBehind so far has ended. */
+  /** Resolves once every store begun so far has ended. */
   async settled(): Promise<void> {
-    while (this.behind.size > 0) await Promise.allSettled([...this.behind]);
+    while (this.writing.size > 0) await Promise.allSettled([...this.writing]);
   }
 
   private async store(tiers: readonly CacheTier[], key: string, entry: CacheEntry): Promise<void> {

@@ -64,13 +64,6 @@ export class RenderPool extends PoolThreads {
   }
 
   /**
-   * Waits for `bytes` of the memory budget (cost.ts estimates them; `heldBytes` of them in
-   * garbage-collected buffers, by default all); release the lease when
-   * the job's last byte is gone (after its encode). Throws ERR_SOURCE_TOO_COSTLY (413) for a
-   * job larger than the budget, ERR_OVERLOADED past the line or the wait, the signal's reason
-   * when it aborts while waiting, ERR_SERVICE_STOPPING once the pool is closing.
-   */
-  /**
    * Throws now what `admit` would throw any job now (ERR_OVERLOADED: the wait line is full;
    * ERR_SERVICE_STOPPING), so a request is refused before its source is read: under a flood a
    * refusal then costs no origin read (load/miss-mix.ts at 16 connections: each refused
@@ -81,6 +74,13 @@ export class RenderPool extends PoolThreads {
     this.admission.refuseIfFull();
   }
 
+  /**
+   * Waits for `bytes` of the memory budget (cost.ts estimates them; `heldBytes` of them in
+   * garbage-collected buffers, by default all); release the lease when
+   * the job's last byte is gone (after its encode). Throws ERR_SOURCE_TOO_COSTLY (413) for a
+   * job larger than the budget, ERR_OVERLOADED past the line or the wait, the signal's reason
+   * when it aborts while waiting, ERR_SERVICE_STOPPING once the pool is closing.
+   */
   admit(bytes: number, what: string, signal?: AbortSignal, heldBytes = bytes): Promise<Lease> {
     if (this.closing) return Promise.reject(this.stopping());
     return this.admission.admit(bytes, what, signal, heldBytes);

@@ -47,8 +47,9 @@ export interface RenderContext {
   shedding?: Error | null;
   /**
    * Answer a miss once the memory tier has it, while the disk and Redis tiers are still being
-   * written (TieredCache.setBehind): the rendition route. Callers that report a rendition as
-   * stored (the upload hook, warm) leave it off and wait for every tier.
+   * written (the render's flight, and other replicas waiting on it, hold until they are): the
+   * rendition route. Callers that report a rendition as stored (the upload hook, warm) leave it
+   * off and wait for every tier.
    */
   answerFirst?: boolean;
 }

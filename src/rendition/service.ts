@@ -109,16 +109,23 @@ async function rendered(ctx: RenderContext, clock: StageClock, path: string, que
   ctx.onLookup?.('miss');
   if (ctx.shedding) throw ctx.shedding;
   // The render's signal aborts once no caller waits for it any more (the flight counts them).
-  const { value: entry } = await ctx.flight.run(key, async (abandoned) => {
+  // With answerFirst this caller is answered once the bytes are made and the memory tier has
+  // them; the flight, and the callers and replicas waiting on it (replica-flight.ts reads the
+  // shared tier when woken), holds until every tier has them.
+  let answer: ((made: CacheEntry) => void) | undefined;
+  const early = ctx.answerFirst ? new Promise<CacheEntry>((resolve) => (answer = resolve)) : undefined;
+  const flying = ctx.flight.run(key, async (abandoned) => {
     const { entry: made, identity: read } = await produce({ ...ctx, clock, asked: identity, signal: abandoned }, path, query, accept);
     // The source changed between identify and read: file the bytes under what was read.
     const storeKey = read.version === identity.version ? key : renditionKey(read, canonical, fmt);
     if (storeKey !== key) ctx.identities?.forget(path);
     // Noted before it is stored: a crash in between leaves a key with nothing behind it, never the reverse.
     ctx.onStored?.(read.key, storeKey);
-    if (ctx.answerFirst) void clock.time('cache', () => ctx.cache.setBehind(storeKey, made));
-    else await clock.time('cache', () => ctx.cache.set(storeKey, made));
+    const storing = clock.time('cache', () => ctx.cache.set(storeKey, made));
+    answer?.(made);
+    await storing;
     return made;
   }, ctx.signal);
+  const entry = early ? await Promise.race([early, flying.then((r) => r.value)]) : (await flying).value;
   return { entry, cache: 'miss', timings: clock.timings, key, marks: clock.marks };
 }

@@ -127,11 +127,11 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
     }
     // What the decision adds after the render (timed as `plan`; absent when none was asked).
     const adapted = deciding && (await ctx.clock.time('plan', () => deciding));
-    answered = !adapted?.adaptive;
-    if (!adapted?.adaptive) return { ...first, raster: raster!, deadline, cleaned };
-    const again = await ctx.clock.time('resample', () => ctx.pool.resampleSpooled(file, probe, decoding, adapted.plan, stop));
+    const done = adapted?.adaptive
+      ? { ...adapted, raster: await ctx.clock.time('resample', () => ctx.pool.resampleSpooled(file, probe, decoding, adapted.plan, stop)), deadline, cleaned }
+      : { ...first, raster: raster!, deadline, cleaned };
     answered = true;
-    return { ...adapted, raster: again, deadline, cleaned };
+    return done;
   } catch (e) {
     if (e instanceof SpoolWriteError) return null;
     throw e;

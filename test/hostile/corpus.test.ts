@@ -24,6 +24,8 @@ let baseline: { rss: number; heap: number };
 
 /** Entries in the memory tier plus files in the disk tier: what "cached" means here. */
 async function cachedCount(): Promise<number> {
+  // Renditions are answered before their disk files are written (renderRendition's answerFirst): count once written.
+  await t.app.renditionCache.cache.settled();
   const files = await readdir(t.cacheDir, { recursive: true }).catch(() => []);
   return memoryEntries(t.app) + files.length;
 }

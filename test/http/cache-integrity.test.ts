@@ -33,7 +33,7 @@ describe('disk cache entries are checked on every read', () => {
   it('an entry truncated to half is not served: re-rendered (200 miss, the same bytes), counted in /metrics', async () => {
     const first = await t.app.inject({ url });
     expect(first.statusCode).toBe(200);
-    // The answer goes before the disk file is written (TieredCache.setBehind): wait for it.
+    // The answer goes before the disk file is written (renderRendition's answerFirst): wait for it.
     await t.app.renditionCache.cache.settled();
     expect(cacheOf(await t.app.inject({ url }))).toBe('hit-disk');
     const [file] = await entryFiles(t.cacheDir);
@@ -103,7 +103,7 @@ describe('an unusable or full cache folder degrades readiness and never stops se
   });
 });
 
-describe('a miss is answered before its durable store ends (TieredCache.setBehind)', () => {
+describe('a miss is answered before its durable store ends (answerFirst)', () => {
   it('answers while the disk write waits, serves the memory copy meanwhile, and close() waits for the write', async () => {
     const probe = await build();
     let release!: () => void;
@@ -136,6 +136,42 @@ describe('a miss is answered before its durable store ends (TieredCache.setBehin
     } finally {
       release();
       if (!closed) await t.close();
+      await probe.close();
+    }
+  });
+
+  it('holds the render\'s flight until the store ends: a second caller meanwhile waits for it and renders nothing', async () => {
+    const probe = await build();
+    let release!: () => void;
+    const held = new Promise<void>((resolve) => (release = resolve));
+    const disk = await DiskTier.open(join(probe.cacheDir, 'shared-flight'), 1 << 20, {
+      write: async (tmp, target, data) => {
+        await held;
+        await writeDurably(tmp, target, data);
+      },
+    });
+    // No memory tier: a caller that came after the answer finds nothing stored yet.
+    const t = await build({ sharedTier: disk, config: { cache: { memoryBytes: 0 } } });
+    try {
+      await writePng(t.sourceDir, 'swatch.png', 32, 32, 3, () => [10, 20, 30]);
+      const origin = t.app.renderContext.origin;
+      const read = origin.read.bind(origin);
+      let reads = 0;
+      origin.read = (...args: Parameters<typeof read>) => ((reads += 1), read(...args));
+      const first = await t.app.inject({ url });
+      expect([first.statusCode, cacheOf(first), reads]).toEqual([200, 'miss', 1]);
+      let secondDone = false;
+      const second = t.app.inject({ url }).then((r) => ((secondDone = true), r));
+      await new Promise((r) => setTimeout(r, 50));
+      expect(secondDone).toBe(false);
+      release();
+      const again = await second;
+      expect(again.statusCode).toBe(200);
+      expect(again.rawPayload.equals(first.rawPayload)).toBe(true);
+      expect(reads).toBe(1);
+    } finally {
+      release();
+      await t.close();
       await probe.close();
     }
   });

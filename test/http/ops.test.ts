@@ -50,7 +50,7 @@ describe('operational endpoints', () => {
     await t.app.inject({ url: '/v1/renditions/swatch.png?width=8&format=png' });
     await t.app.inject({ url: '/v1/renditions/swatch.png?width=8&format=png' });
     await t.app.inject({ url: '/v1/renditions/swatch.png?width=0' });
-    // The disk tier is written after the answer (TieredCache.setBehind).
+    // The disk tier is written after the answer (renderRendition's answerFirst).
     await t.app.renditionCache.cache.settled();
     const res = await t.app.inject({ url: '/metrics' });
     expect(res.statusCode).toBe(200);

@@ -116,6 +116,7 @@ describe('GET /v1/renditions: HTTP caching, negotiation and the cache tiers', ()
 
   it('the disk tier answers a fresh replica (hit-disk), which then holds it in memory', async () => {
     await get('width=25&format=webp');
+    await t.app.renditionCache.cache.settled(); // answered before the disk write ended (answerFirst)
     const replica = await build({ sourceDir: t.sourceDir, config: { cache: { dir: t.cacheDir } } });
     try {
       const url = '/v1/renditions/flat.png?width=25&format=webp';

@@ -68,6 +68,8 @@ describe('damaged sources through HTTP', () => {
     for (const t of [inMemory, streamed]) {
       for (const name of damaged) await t.app.inject({ url: `/v1/renditions/${name}?width=200&prefilter=none` });
     }
+    // Renditions are answered before their disk files are written (renderRendition's answerFirst).
+    for (const t of [inMemory, streamed]) await t.app.renditionCache.cache.settled();
     expect(await storedBytes(inMemory)).toBe(0);
     expect(await diskEntries(inMemory.cacheDir)).toEqual([]);
     const before = await storedBytes(streamed);

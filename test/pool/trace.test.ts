@@ -35,6 +35,7 @@ describe('a traced spooled render (FOLDWISE_TIMELINE=1)', () => {
     const shape = { width: 640, height: 480, channels: 3 as const, depth: 8 as const };
     const raw = Buffer.alloc(640 * 480 * 3).map((_, i) => (i * 13) & 255);
     const plan = makePlan({ sourceWidth: 640, sourceHeight: 480, targetWidth: 160, targetHeight: 120, kernel: 'auto', prefilter: 'auto', light: 'linear' });
+    const half = makePlan({ sourceWidth: 640, sourceHeight: 480, targetWidth: 80, targetHeight: 60, kernel: 'auto', prefilter: 'auto', light: 'linear' });
     const path = pool.spool!.path();
     const marks: Mark[] = [];
     const other: Mark[] = [];
@@ -42,12 +43,14 @@ describe('a traced spooled render (FOLDWISE_TIMELINE=1)', () => {
       await sharp(raw, { raw: { width: 640, height: 480, channels: 3 } }).toFile(path);
       const state = new SharedArrayBuffer(4);
       Atomics.store(new Int32Array(state), 0, 1); // WRITTEN
+      // A render started outside the collecting scope runs beside the collected one: its spans
+      // (an 80 px output) reach neither `marks` nor a scope collecting nothing else.
+      const outside = pool.resampleSpooled(path, shape, Promise.resolve(), half);
       await collectMarks(marks, async () => {
         await pool.resampleSpooled(path, shape, Promise.resolve(), plan);
         await pool.analyse({ path, ...shape, state }, plan);
       });
-      // A render outside the collected one adds nothing to it.
-      await collectMarks(other, () => Promise.resolve());
+      await collectMarks(other, () => outside);
     } finally {
       await pool.spool!.remove(path);
     }
@@ -55,7 +58,10 @@ describe('a traced spooled render (FOLDWISE_TIMELINE=1)', () => {
     const bands = marks.filter((m) => m.what.startsWith('band ')).map((m) => [...m.what.matchAll(/\d+/g)].slice(0, 2).map(Number));
     expect(bands[0][0]).toBe(0);
     expect(Math.max(...bands.map((b) => b[1]))).toBe(120);
-    for (const m of marks.filter((x) => x.what.startsWith('band '))) expect(m.thread).toMatch(/^w\d+$/);
+    for (const m of marks.filter((x) => x.what.startsWith('band '))) {
+      expect(m.thread).toMatch(/^w\d+$/);
+      expect(m.what).toContain('(160 px');
+    }
     expect(marks.filter((m) => m.what.startsWith('analysis: ')).map((m) => m.what)).toEqual(['analysis: plan response', 'analysis: spectrum', 'analysis: decision']);
     for (const m of marks) expect(m.end).toBeGreaterThanOrEqual(m.start);
     expect(other).toEqual([]);

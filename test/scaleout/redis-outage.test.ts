@@ -19,6 +19,7 @@ describe.skipIf(!redisBinary)('Redis killed under two replicas', () => {
   it('keep serving from memory and by rendering, open the breaker, report degraded, then recover', async () => {
     // Before: a rendition in both replicas' memory (B got it through Redis).
     expect((await a.app.inject(url(40))).statusCode).toBe(200);
+    await a.app.renditionCache.cache.settled(); // A answers before its Redis write ends (answerFirst)
     expect((await b.app.inject(url(40))).headers['server-timing']).toMatch(/hit-redis/);
 
     const dropped = [a, b].map((r) => next(r.app.sharedRedis!.tier.link.client, 'close'));
@@ -58,6 +59,7 @@ describe.skipIf(!redisBinary)('Redis killed under two replicas', () => {
 
     // The shared tier works again: made on A, a Redis hit on B.
     expect((await a.app.inject(url(33))).statusCode).toBe(200);
+    await a.app.renditionCache.cache.settled();
     expect((await b.app.inject(url(33))).headers['server-timing']).toMatch(/hit-redis/);
     expect(a.logs.some((l) => /connection restored/.test(l.msg))).toBe(true);
   });

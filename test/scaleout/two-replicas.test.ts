@@ -41,6 +41,7 @@ describe.skipIf(!redisBinary)('two replicas sharing one Redis', () => {
     const before = stores();
     const res = await a.app.inject('/v1/renditions/stripes.png?width=40&height=20&fit=fill&prefilter=none&format=png');
     expect(res.statusCode).toBe(200);
+    await a.app.renditionCache.cache.settled(); // answered before the Redis write ended (answerFirst)
     expect(stores() - before).toBe(1);
   });
 
@@ -56,6 +57,8 @@ describe.skipIf(!redisBinary)('two replicas sharing one Redis', () => {
   it('a rendition made on one is a shared-tier hit on the other, reported in Server-Timing', async () => {
     const url = '/v1/renditions/stripes.png?width=16&format=webp';
     expect((await a.app.inject(url)).statusCode).toBe(200);
+    // A answers before its Redis write ends (answerFirst): B asks once it has.
+    await a.app.renditionCache.cache.settled();
     const fromB = await b.app.inject(url);
     expect(fromB.statusCode).toBe(200);
     expect(fromB.headers['server-timing']).toMatch(/hit-redis/);

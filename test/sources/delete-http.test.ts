@@ -62,7 +62,7 @@ describe('with signing on', () => {
     for (const u of urls) expect((await t.app.inject(u)).statusCode).toBe(200);
     const risk = await t.app.inject('/v1/alias-risk/brick.png?width=24');
     expect(risk.statusCode).toBe(200);
-    // Renditions are answered before their disk files are written (TieredCache.setBehind).
+    // Renditions are answered before their disk files are written (renderRendition's answerFirst).
     await t.app.renditionCache.cache.settled();
     const keep = await diskEntries(t.cacheDir);
     expect(keep.length).toBeGreaterThanOrEqual(2);

@@ -50,9 +50,7 @@ function design(kernel: Kernel, scale: number, sigma: number, levels: number): A
   const dx = scale / X_STEPS;
   const kx = Math.ceil(reach / dx);
   // The kernel's samples do not depend on f: taken once, not once per frequency. The cosine
-  // is even: taken once per |j|, and the cosines of a row by turns (below), not one by one.
-  // The kernel's samples do not depend on f: taken once, not once per frequency. The cosine
-  // is even, so the two sides of each |j| are summed first.
+  // is even, so the two sides of each |j| are summed first; each sum's cosines come by turns.
   const w = new Float64Array(kx + 1);
   w[0] = kernel.weight(0);
   for (let j = 1; j <= kx; j++) w[j] = kernel.weight((j * dx) / scale) + kernel.weight((-j * dx) / scale);

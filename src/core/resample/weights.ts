@@ -105,13 +105,14 @@ export function buildWeights(
     const row = o * taps;
     const first = Math.ceil(c - reach);
     const last = Math.floor(c + reach);
-    // A row one period on from an inner row (no mirrored or clamped tap in either) whose centre
-    // lies exactly `shift` pixels on has the very same filter arguments (j + shift) - c =
-    // j - (c - shift), each the one rounding of the same real: its weights are copied, bit for bit.
+    // A row one period on from an inner row (no mirrored or clamped tap in either: row p's taps
+    // are this one's `shift` pixels back, inside when the first is not before pixel 0, and
+    // unclamped since this row is) whose centre lies exactly `shift` pixels on has the very same filter arguments (j + shift) - c = j - (c - shift), each the
+    // one rounding of the same real: its weights are copied, bit for bit.
     if (period > 0 && o >= period && first >= 0 && last < srcLen && s === first) {
       const p = o - period;
       const pc = centre[p];
-      if (exactlyLess(c, shift, pc) && start[p] === first - shift && Math.ceil(pc - reach) === first - shift && Math.floor(pc + reach) === last - shift) {
+      if (first >= shift && exactlyLess(c, shift, pc) && Math.ceil(pc - reach) === first - shift && Math.floor(pc + reach) === last - shift) {
         weights.copyWithin(row, p * taps, p * taps + taps);
         continue;
       }

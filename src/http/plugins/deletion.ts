@@ -40,7 +40,7 @@ async function deletionPlugin(app: FastifyInstance): Promise<void> {
     spectra.forget(source);
     ingest.forgetSource(source);
     const tiers = renditionCache.cache.tiers;
-    // A rendition answered before its store ended (TieredCache.setBehind) is written first.
+    // A rendition answered before its store ended (renderRendition's answerFirst) is written first.
     await renditionCache.cache.settled();
     await Promise.all(tiers.flatMap((t) => keys.map((k) => t.delete?.(k))));
   };
