@@ -8,7 +8,7 @@
 import { makePlan, renderRaster } from '../core/index.js';
 import type { PixelRaster } from '../core/types.js';
 import { analyseTask, decide } from './analysis.js';
-import { analyzeSpectrum } from '../core/risk/index.js';
+import { analyzeSpectrum, type SourceSpectrum } from '../core/risk/index.js';
 import { SpoolReadError, SpoolRows, WRITTEN } from './spool/rows.js';
 import type { SpooledRaster } from './worker.js';
 
@@ -57,7 +57,26 @@ function warmSpooled(spooled: NonNullable<WarmTask['spooled']>): void {
   // wide final kernel) took ~50 ms on a first request when only the 8x one was warmed
   // (scripts/bench/timeline.ts, 'analysis: plan response'), against 1-15 ms once compiled.
   analyseTask({ src, plan: planOf(width, height, 8) });
-  analyseTask({ src, plan: planOf(width, height, 2.7) });
+  const { spectrum } = analyseTask({ src, plan: planOf(width, height, 2.7) });
+  warmDecisions(spectrum, width, height);
+}
+
+/**
+ * Scale factors decided once more each, from a third of a step to twice the pyramid's: the
+ * decision's code (the plan's sampled response above all) is compiled by V8's optimising tier
+ * only after enough calls, and two were not enough. With two, a first request's 'analysis:
+ * plan response' still took 22-32 ms (12-14 ms of it CPU, /proc/thread-self/schedstat) and the
+ * next new picture's 2-4 ms; with these six as well, the first request's took 2.3-2.5 ms.
+ */
+const DECISION_SCALES = [1.6, 2.3, 3.3, 4.6, 6.5, 11];
+
+/** Decides each of DECISION_SCALES; answers the plans' pyramid levels along x, in that order. */
+export function warmDecisions(spectrum: SourceSpectrum, width: number, height: number): number[] {
+  return DECISION_SCALES.map((factor) => {
+    const plan = planOf(width, height, factor);
+    decide(spectrum, plan);
+    return plan.x.pyramidLevels;
+  });
 }
 
 /** The same work on pixels made here (no spool file). */
@@ -71,6 +90,7 @@ function warmInMemory(): void {
   const spectrum = analyzeSpectrum(src);
   decide(spectrum, plan);
   decide(spectrum, planOf(width, height, 2.7));
+  warmDecisions(spectrum, width, height);
 }
 
 /**

@@ -6,7 +6,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { WARM_HEIGHT, WARM_WIDTH } from '../../src/codec/warm.js';
 import { SpoolDir } from '../../src/pool/spool/dir.js';
 import { headerMismatch } from '../../src/pool/spool/rows.js';
-import { type WarmTask, warmTask } from '../../src/pool/warm.js';
+import { type WarmTask, warmDecisions, warmTask } from '../../src/pool/warm.js';
+import { analyzeSpectrum } from '../../src/core/risk/index.js';
 import { warmThreads } from '../../src/pool/warm-start.js';
 
 describe('the warm start through the streamed path (pool/warm-start.ts, pool/warm.ts)', () => {
@@ -44,5 +45,20 @@ describe('the warm start through the streamed path (pool/warm-start.ts, pool/war
     expect(warmTask({ ...seen[0], arrived: new SharedArrayBuffer(4) })).toBe(1);
     const gone = { arrived: new SharedArrayBuffer(4), threads: 1, spooled: { path: join(base, 'gone.v'), width: WARM_WIDTH, height: WARM_HEIGHT } };
     expect(warmTask(gone)).toBe(1);
+  });
+});
+
+describe('the warm start decides plans of every shape a request meets (pool/warm.ts warmDecisions)', () => {
+  it('decides from below the pyramid to two levels of it, on the warm spectrum', () => {
+    const width = 640;
+    const height = 480;
+    const data = new Uint8Array(width * height * 3);
+    for (let i = 0; i < data.length; i++) data[i] = (i * 37) % 251;
+    const levels = warmDecisions(analyzeSpectrum({ data, width, height, channels: 3 }), width, height);
+    // Six scales (1.6x to 11x): the final stage alone, then one and two pyramid levels before it.
+    expect(levels).toHaveLength(6);
+    expect(levels[0]).toBe(0);
+    expect(new Set(levels)).toEqual(new Set([0, 1, 2]));
+    expect([...levels].sort()).toEqual(levels);
   });
 });
