@@ -39,40 +39,23 @@ export function decide(spectrum: SourceSpectrum, plan: Plan, gains?: PlanGains):
   return adaptiveFilter(spectrum, plan, planResponseOf(plan), gains);
 }
 
-/** The source rows the Welch tiles read (tiles.ts's layout): sorted, without repeats. */
-export function tileRows(width: number, height: number): number[] {
-  const layout = layoutTiles(width, height);
-  const rows = new Set<number>();
-  for (let k = 1; k < layout.corners.length; k += 2) {
-    for (let y = layout.corners[k]; y < layout.corners[k] + layout.tileSize; y++) rows.add(y);
-  }
-  return [...rows].sort((a, b) => a - b);
-}
-
 /**
- * The spectrum of a spool file's source, analysed as its rows arrive: the tiles of a band are
- * read as soon as libvips has written their rows (SpoolRows waits for them), so the analysis
- * ends shortly after the last row, not a whole analysis later. The raster has the file's size
- * but holds only the rows the tiles read; the rest stays zero and is never touched, so its
- * pages are never made resident (a fresh large buffer is zero-filled by the system on first
- * touch): a 14.7 MP source costs the analysis about 10 MB, not 44. test/pool/analysis.test.ts
- * checks the spectrum equals the one of the whole raster.
+ * The spectrum of a spool file's source, analysed as its rows arrive: each Welch tile's rows
+ * are read straight from the file through the reader's block (SpoolRows waits for rows not yet
+ * written), so the analysis ends shortly after the last row, and nothing the size of the
+ * source is made. A fresh raster of that size for each new source (12 MB at 4 MP, 44 MB at
+ * 14.7 MP), of which the tiles' rows were copied, had V8 run a full collection in the
+ * analysing thread on nearly every new picture (`node --trace-gc`, 8 new 4 MP pictures: 7
+ * mark-compacts, 39 ms, then none), and an analysis of a written 14.7 MP file took 25-27 ms,
+ * now 8.5-9.4 (4 MP: 10-11, now about 8.3). The block holds a tile's rows at least, so the
+ * tiles of one band are read from it once. test/pool/analysis.test.ts compares with the
+ * whole raster's spectrum.
  */
 function spooledSpectrum(src: SpooledRaster, marks?: Mark[]): SourceSpectrum {
-  const { width, height, channels, depth } = src;
-  const n = width * channels;
-  const data = depth === 16 ? new Uint16Array(n * height) : new Uint8Array(n * height);
-  const rows = tileRows(width, height);
-  let next = 0;
-  const spool = new SpoolRows(src.path, src, new Int32Array(src.state));
+  const { width, height, channels } = src;
+  const spool = new SpoolRows(src.path, src, new Int32Array(src.state), layoutTiles(width, height).tileSize);
   try {
-    const ready = (rowEnd: number) => {
-      for (; next < rows.length && rows[next] < rowEnd; next++) {
-        const row = spool.rowAt(rows[next]);
-        data.set(row.data.subarray(row.at, row.at + n), rows[next] * n);
-      }
-    };
-    return analyzeSpectrum({ data, width, height, channels }, { ready });
+    return analyzeSpectrum({ data: new Uint8Array(0), width, height, channels }, { rowAt: spool.rowAt });
   } finally {
     spool.close();
     marks?.push(...(spool.waited?.marks('wait for rows', `w${threadId}`) ?? []));

@@ -1,6 +1,7 @@
 import type { OutputFormat } from '../codec/formats.js';
 import type { SourceHeader } from '../codec/header.js';
-import { tileRows } from './analysis.js';
+import { layoutTiles } from '../core/spectrum/tiles.js';
+import { blockRows } from './spool/rows.js';
 
 /**
  * Working set of sharp's encoders, in bytes per output pixel, measured on this machine with
@@ -50,14 +51,13 @@ export function renditionCost(h: SourceHeader, outputPixels: number, format: Out
   return source + outputCost(h, outputPixels, format);
 }
 
-/** The spool reader's block (spool/rows.ts reads about 1 MiB at a time). */
-const SPOOL_BLOCK_BYTES = 2 ** 20;
-
 /**
- * Peak bytes of analysing a streamed source's spectrum in the pool (analysis.ts): the rows its
- * Welch tiles read, copied out of the spool file (the rest of its raster is never touched, so
- * never resident), and the reader's block. About 10 MB for a 14.7 MP source.
+ * Peak bytes of analysing a streamed source's spectrum in the pool (analysis.ts): the spool
+ * reader's block, which holds a Welch tile's rows at least (spool/rows.ts), and the tile copied
+ * out of it. About 1 MiB for a 4 MP source, 1.8 MB for 14.7 MP.
  */
 export function analysisCost(h: SourceHeader): number {
-  return tileRows(h.width, h.height).length * h.width * h.channels * h.bytesPerSample + SPOOL_BLOCK_BYTES;
+  const t = layoutTiles(h.width, h.height).tileSize;
+  const shape = { width: h.width, height: h.height, channels: h.channels, depth: h.bytesPerSample === 2 ? 16 : 8 } as const;
+  return blockRows(shape, t) * h.width * h.channels * h.bytesPerSample + t * t * h.channels * h.bytesPerSample;
 }

@@ -7,9 +7,10 @@ import { makePlan } from '../../src/core/index.js';
 import { adaptiveFilter, analyzeSpectrum } from '../../src/core/risk/index.js';
 import { decodeImage } from '../../src/codec/decode.js';
 import { probeSpooledDecode } from '../../src/codec/spool-decode.js';
-import { analyseTask, tileRows } from '../../src/pool/analysis.js';
+import { analyseTask } from '../../src/pool/analysis.js';
+import { analysisCost } from '../../src/pool/cost.js';
 import { RenderPool } from '../../src/pool/render-pool.js';
-import { WRITTEN } from '../../src/pool/spool/rows.js';
+import { blockRows, WRITTEN } from '../../src/pool/spool/rows.js';
 import { liveSpool } from '../../src/pool/spool/live.js';
 import { planResponseOf } from '../../src/core/index.js';
 
@@ -50,11 +51,29 @@ describe('the analysis in the pool (src/pool/analysis.ts)', () => {
   });
   afterAll(() => rm(dir, { recursive: true, force: true }));
 
-  it('reads only the rows the Welch tiles cover, a fraction of a large source', () => {
-    const rows = tileRows(4432, 3324);
-    expect(rows.length).toBeGreaterThan(0);
-    expect(rows.length).toBeLessThan(3324 / 3);
-    expect(rows.every((y, i) => y >= 0 && y < 3324 && (i === 0 || y > rows[i - 1]))).toBe(true);
+  it('holds a tile\'s rows of a streamed source, nothing the size of the source', () => {
+    // 14.7 MP RGB: 1 MiB holds 78 rows of 13296 bytes, fewer than a 128-row tile: 128 rows are held.
+    const h = { width: 4432, height: 3324, channels: 3, bytesPerSample: 1 as const, hasAlpha: false, format: 'jpeg' };
+    expect(blockRows({ width: 4432, height: 3324, channels: 3, depth: 8 })).toBe(78);
+    expect(blockRows({ width: 4432, height: 3324, channels: 3, depth: 8 }, 128)).toBe(128);
+    expect(analysisCost(h)).toBe(128 * 13296 + 128 * 128 * 3);
+    expect(analysisCost(h)).toBeLessThan((4432 * 3324 * 3) / 20);
+  });
+
+  it('from a spool file wider than the reader\'s block: the same spectrum as the whole decoded raster', async () => {
+    // 9000 px RGB: 38 rows in 1 MiB, so the reader's block is widened to the tile's 128.
+    const w = 9000;
+    const h = 300;
+    const raw = Buffer.alloc(w * h * 3);
+    for (let y = 0; y < h; y++) for (let x = 0; x < w; x++) raw.fill(Math.round(127.5 + 90 * Math.cos(2 * Math.PI * (0.31 * x + 0.07 * y))), (y * w + x) * 3, (y * w + x) * 3 + 3);
+    const wide = await sharp(raw, { raw: { width: w, height: h, channels: 3 } }).jpeg({ quality: 90 }).toBuffer();
+    const probe = await probeSpooledDecode(wide, limits);
+    const path = join(dir, 'wide.v');
+    await probe!.write(path);
+    const { raster } = await decodeImage(wide, limits);
+    const got = analyseTask({ src: { path, width: w, height: h, channels: 3, depth: 8, state } });
+    expect(got.spectrum.tileSize).toBe(128);
+    expect(got.spectrum).toEqual(analyzeSpectrum(raster));
   });
 
   it('from a spool file: the same spectrum and filter as the whole decoded raster gives', async () => {

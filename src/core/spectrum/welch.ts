@@ -40,12 +40,44 @@ function scratchFor(t: number): Scratch {
  * Windowed luminance of tile `k` into `dst` (`into` 0: re, 1: im), bit-reversed on both axes,
  * by the Wasm loop where it serves this raster; returns its windowed mean.
  */
-function loadTile(dst: Float64Array, into: 0 | 1, simd: SimdFft2d | null, src: PixelRaster, layout: TileLayout, k: number, rev: Uint32Array): number {
+function loadTile(dst: Float64Array, into: 0 | 1, simd: SimdFft2d | null, src: PixelRaster, layout: TileLayout, k: number, rev: Uint32Array, rowAt?: RowAt): number {
   const t = layout.tileSize;
-  const x0 = layout.corners[2 * k];
-  const y0 = layout.corners[2 * k + 1];
+  let x0 = layout.corners[2 * k];
+  let y0 = layout.corners[2 * k + 1];
+  if (rowAt) {
+    src = tileOf(src, rowAt, x0, y0, t);
+    x0 = 0;
+    y0 = 0;
+  }
   const sum = simd?.luminance(into, src, x0, y0) ?? windowedTileLuminance(dst, src, x0, y0, t, window2d(t), rev);
   return sum / ((t / 2) * (t / 2)); // sum of the 2-D periodic Hann window is (T/2)^2
+}
+
+/** Source row y: its samples start at data[at] (renderRaster's rowAt, a spool file's reader). */
+export type RowAt = (y: number) => { data: Uint8Array | Uint16Array; at: number };
+
+const tiles = new Map<string, PixelRaster['data']>();
+
+/**
+ * The t x t tile at (x0, y0) of a source read row by row, as a raster of its own (the same
+ * samples, so the same sums); the tile's buffer is kept per size and sample type.
+ */
+function tileOf(src: PixelRaster, rowAt: RowAt, x0: number, y0: number, t: number): PixelRaster {
+  const { channels } = src;
+  const n = t * channels;
+  const first = rowAt(y0);
+  const wide = first.data instanceof Uint16Array;
+  const key = `${wide ? 16 : 8}:${t * n}`;
+  let data = tiles.get(key);
+  if (!data) tiles.set(key, (data = wide ? new Uint16Array(t * n) : new Uint8Array(t * n)));
+  for (let y = 0; y < t; y++) {
+    const row = y === 0 ? first : rowAt(y0 + y);
+    const p = row.at + x0 * channels;
+    data.set(row.data.subarray(p, p + n), y * n);
+  }
+  const tile: PixelRaster = { data, width: t, height: t, channels };
+  if (src.gamut) tile.gamut = src.gamut;
+  return tile;
 }
 
 /**
@@ -74,6 +106,12 @@ export interface SpectrumOptions {
    * being decoded fills its rows as they arrive). Non-decreasing: tiles go in row order.
    */
   ready?: (rowEnd: number) => void;
+  /**
+   * The source's rows, for a source not held whole (a spool file read as it is written): each
+   * tile's rows are read through it, in row order, and `src.data` is not read (it may be
+   * empty). The same result as the whole raster gives.
+   */
+  rowAt?: RowAt;
 }
 
 /**
@@ -88,7 +126,7 @@ export function analyzeSpectrum(src: PixelRaster, opts: SpectrumOptions = {}): S
     throw new RangeError(`bad raster size ${width}x${height}`);
   }
   if (!(Number.isInteger(channels) && channels >= 1 && channels <= 4)) throw new RangeError(`bad channel count ${channels}`);
-  if (data.length < width * height * channels) {
+  if (!opts.rowAt && data.length < width * height * channels) {
     throw new RangeError('raster data is shorter than width * height * channels');
   }
   const layout = layoutTiles(width, height);
@@ -114,8 +152,8 @@ export function analyzeSpectrum(src: PixelRaster, opts: SpectrumOptions = {}): S
     const ra = layout.region[k];
     const rb = k + 1 < count ? layout.region[k + 1] : -1;
     opts.ready?.(Math.max(layout.corners[2 * k + 1], rb >= 0 ? layout.corners[2 * k + 3] : 0) + t);
-    const ma = loadTile(re, 0, simd, src, layout, k, plan.rev);
-    const mb = rb >= 0 ? loadTile(im, 1, simd, src, layout, k + 1, plan.rev) : 0;
+    const ma = loadTile(re, 0, simd, src, layout, k, plan.rev, opts.rowAt);
+    const mb = rb >= 0 ? loadTile(im, 1, simd, src, layout, k + 1, plan.rev, opts.rowAt) : 0;
     if (rb < 0) im.fill(0);
     meanSum += ma + mb;
     meanSquares += ma * ma + mb * mb;

@@ -24,7 +24,13 @@ const HEADER_BYTES = 64;
 const MAGIC = [0xb6, 0xa6, 0xf2, 0x08];
 
 /** Rows read at once: about 1 MiB, so a block stays in the core's cache while it is resampled. */
-const BLOCK_BYTES = 2 ** 20;
+export const BLOCK_BYTES = 2 ** 20;
+
+/** The rows a reader's block holds: about BLOCK_BYTES, at least `minRows` (and one), at most the image. */
+export function blockRows(shape: SpoolShape, minRows = 1): number {
+  const rowBytes = shape.width * shape.channels * (shape.depth / 8);
+  return Math.max(1, Math.min(shape.height, Math.max(minRows, Math.floor(BLOCK_BYTES / rowBytes))));
+}
 
 /** Why a header does not describe the pixels expected, or null when it does. */
 export function headerMismatch(header: Uint8Array, shape: SpoolShape): string | null {
@@ -81,13 +87,15 @@ export class SpoolRows {
   /** With FOLDWISE_TIMELINE=1 (trace.ts), when this reader waited for rows not yet written. */
   readonly waited = tracing ? new WaitSpans() : undefined;
 
+  /** `minRows`: rows the block holds at least (a reader that goes back up to that many rows, as the analysis's tiles do). */
   constructor(
     private readonly path: string,
     private readonly shape: SpoolShape,
     private readonly state: Int32Array,
+    minRows = 1,
   ) {
     this.rowBytes = shape.width * shape.channels * (shape.depth / 8);
-    const rows = Math.max(1, Math.min(shape.height, Math.floor(BLOCK_BYTES / this.rowBytes)));
+    const rows = blockRows(shape, minRows);
     const buffer = new ArrayBuffer(rows * this.rowBytes);
     this.block = new Uint8Array(buffer);
     this.samples = shape.depth === 16 ? new Uint16Array(buffer) : this.block;
