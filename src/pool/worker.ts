@@ -89,18 +89,18 @@ function liveEnd(live: SharedArrayBuffer | undefined): ((o: number) => boolean) 
   };
 }
 
-function render(src: SharedRaster | SpooledRaster, plan: Plan, rows: [number, number], live?: SharedArrayBuffer, marks?: Mark[]): PixelRaster {
+function render(src: SharedRaster | SpooledRaster, plan: Plan, rows: [number, number], into: Uint8Array | Uint16Array, live?: SharedArrayBuffer, marks?: Mark[]): PixelRaster {
   const { width, height, channels, depth } = src;
   const more = liveEnd(live);
   if ('buffer' in src) {
     const data = view(src.buffer, depth, width * height * channels);
-    return renderRaster({ data, width, height, channels }, plan, { rows, more });
+    return renderRaster({ data, width, height, channels }, plan, { rows, more, into });
   }
   const spool = new SpoolRows(src.path, src, new Int32Array(src.state));
   try {
     // The rows come from rowAt; the raster's own samples are not read (none are given).
     const data = depth === 16 ? new Uint16Array(0) : new Uint8Array(0);
-    return renderRaster({ data, width, height, channels }, plan, { rows, rowAt: spool.rowAt, more });
+    return renderRaster({ data, width, height, channels }, plan, { rows, rowAt: spool.rowAt, more, into });
   } finally {
     spool.close();
     marks?.push(...(spool.waited?.marks('wait for rows', `w${threadId}`) ?? []));
@@ -113,14 +113,16 @@ export default function resample(task: ResampleTask): BandOutcome {
   const marks: Mark[] | undefined = tracing ? [] : undefined;
   const start = marks ? epochNow() : 0;
   let band: PixelRaster;
+  // The band's rows are written straight into the shared output, not into an array of this
+  // thread's first (one allocation and copy of the band less per task).
+  const rowSamples = plan.targetWidth * src.channels;
+  const into = view(out, src.depth, plan.targetHeight * rowSamples).subarray(rows[0] * rowSamples, rows[1] * rowSamples);
   try {
-    band = render(src, plan, rows, live, marks);
+    band = render(src, plan, rows, into, live, marks);
   } catch (e) {
     if (e instanceof SpoolReadError) return { kind: 'spool', fault: e.fault, detail: e.message };
     throw e;
   }
-  const outSamples = plan.targetWidth * plan.targetHeight * src.channels;
-  view(out, src.depth, outSamples).set(band.data, rows[0] * plan.targetWidth * src.channels);
   // This thread's handle on a large shared source would keep it mapped until the thread next
   // collects garbage, which an idle thread may not do for minutes: collect after this task
   // (once piscina has let go of it; pool/threads.ts keeps its threads off Atomics.wait for that).

@@ -24,6 +24,12 @@ export interface RenderOptions {
    * pool hands the rest of a lagging band to an idle thread); the rows made are unchanged.
    */
   more?: (o: number) => boolean;
+  /**
+   * Where the rows go, instead of a new array: at least (end - start) x targetWidth x channels
+   * samples of the source's sample type (a worker writes its band straight into the shared
+   * output). The result's data is then a view of it.
+   */
+  into?: Uint8Array | Uint16Array;
 }
 
 function isOpaque(data: Uint8Array | Uint16Array, channels: number, max: number): boolean {
@@ -118,7 +124,12 @@ export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions =
   const codec = rowCodec(deep, channels, plan.light === 'linear', hasAlpha && !isOpaque(data, channels, max));
   const rowAt = opts.rowAt ?? ownRows(src);
   const dstW = plan.targetWidth;
-  const out = deep ? new Uint16Array(dstW * (r1 - r0) * channels) : new Uint8Array(dstW * (r1 - r0) * channels);
+  const samples = dstW * (r1 - r0) * channels;
+  const { into } = opts;
+  if (into && ((into instanceof Uint16Array) !== deep || into.length < samples)) {
+    throw new RangeError(`into must hold ${samples} ${deep ? '16' : '8'}-bit samples`);
+  }
+  const out = into ?? (deep ? new Uint16Array(samples) : new Uint8Array(samples));
   const ty = planTable(plan, 'y');
   const stages = pyramidStages(plan, width, src.height);
   // Rows each stage must produce for output rows [r0, r1), from the last stage back.
@@ -154,5 +165,5 @@ export function renderRaster(src: PixelRaster, plan: Plan, opts: RenderOptions =
     final.read(o, line, 0);
     emit(o, line);
   }
-  return { data: o === r1 ? out : out.subarray(0, dstW * (o - r0) * channels), width: dstW, height: o - r0, channels };
+  return { data: o === r1 && !into ? out : out.subarray(0, dstW * (o - r0) * channels), width: dstW, height: o - r0, channels };
 }

@@ -45,3 +45,33 @@ describe.each([['pyramid', planFor(400, 300, 80, 60)], ['direct', planFor(400, 3
     expect(bytes(band).equals(bytes(renderRaster(src, plan, { rows: [7, h] })))).toBe(true);
   });
 });
+
+describe('renderRaster `into` (a worker writes its band into the shared output)', () => {
+  const src = noise(400, 300);
+  const plan = planFor(400, 300, 139, 104);
+  const w = plan.targetWidth * 3;
+
+  it.each([['SIMD on', true], ['SIMD off', false]])('%s: two bands written into one output make the whole, a band stopped early writes only its rows', (_l, simd) => {
+    setSimdEnabled(simd);
+    const whole = bytes(renderRaster(src, plan));
+    const out = new Uint8Array(plan.targetHeight * w).fill(7);
+    const top = renderRaster(src, plan, { rows: [0, 40], into: out.subarray(0, 40 * w) });
+    const bottom = renderRaster(src, plan, { rows: [40, plan.targetHeight], into: out.subarray(40 * w) });
+    expect(top.data.buffer).toBe(out.buffer);
+    expect([top.height, bottom.height]).toEqual([40, plan.targetHeight - 40]);
+    expect(Buffer.from(out).equals(whole)).toBe(true);
+    // Stopped at row 10 of a band [0, 40): rows 10.. of its part of the output are untouched.
+    const part = new Uint8Array(40 * w).fill(7);
+    const head = renderRaster(src, plan, { rows: [0, 40], into: part, more: (o) => o < 10 });
+    setSimdEnabled(true);
+    expect(head.height).toBe(10);
+    expect(head.data.length).toBe(10 * w);
+    expect(Buffer.from(part.subarray(0, 10 * w)).equals(whole.subarray(0, 10 * w))).toBe(true);
+    expect(part.subarray(10 * w).every((v) => v === 7)).toBe(true);
+  });
+
+  it('refuses an array of the wrong sample type or too short', () => {
+    expect(() => renderRaster(src, plan, { rows: [0, 40], into: new Uint8Array(40 * w - 1) })).toThrow(RangeError);
+    expect(() => renderRaster(src, plan, { rows: [0, 40], into: new Uint16Array(40 * w) })).toThrow(/8-bit/);
+  });
+});
