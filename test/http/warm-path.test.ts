@@ -1,6 +1,7 @@
 import { readdir } from 'node:fs/promises';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { warmRenderPath } from '../../src/http/warm-path.js';
+import { WARM_UP_SOURCE, warmRenderPath } from '../../src/http/warm-path.js';
+import { warmUpHeader, warmUpToken } from '../../src/http/warm-up-token.js';
 import { build, type TestApp } from '../helpers/build.js';
 
 /** Every file under a folder, relative paths. */
@@ -27,6 +28,27 @@ describe('warmRenderPath: the main thread renders once through the real path bef
     expect(await files(t.cacheDir)).toEqual(before.cache);
     expect(await files(t.sourceDir)).toEqual([]);
     expect(t.app.renderPool.memory().admittedBytes).toBe(0);
+  });
+
+  it('asks the rendition route itself twice (a source no folder holds), and the metrics leave those requests out', async () => {
+    const requests = async () => (await t.app.metrics.httpRequests.get()).values.reduce((n, v) => n + v.value, 0);
+    const asked: string[] = [];
+    const origin = t.app.origin;
+    const identify = origin.identify.bind(origin);
+    origin.identify = (path, signal) => (asked.push(path), identify(path, signal));
+    try {
+      const before = await requests();
+      expect(await warmRenderPath(t.app)).toBe(true);
+      expect(asked).toEqual([WARM_UP_SOURCE, WARM_UP_SOURCE]);
+      expect(await requests()).toBe(before);
+      // The header counts only with this process's token: a client sending it is counted as any other.
+      const forged = await t.app.inject({ url: `/v1/renditions/${WARM_UP_SOURCE}?width=400`, headers: { [warmUpHeader]: 'guess' } });
+      expect(forged.statusCode).toBe(404);
+      expect(await requests()).toBe(before + 1);
+      expect(warmUpToken).toMatch(/^[0-9a-f-]{36}$/);
+    } finally {
+      origin.identify = identify;
+    }
   });
 
   it('/readyz says 503 while held warm-up work runs (the server holds its render through the path), 200 once it has ended', async () => {
