@@ -101,15 +101,9 @@ function removeMeans(re: Float64Array, im: Float64Array, t: number, ma: number, 
 /** Options of {@link analyzeSpectrum}. */
 export interface SpectrumOptions {
   /**
-   * Called before each pair of tiles is read, with the row below the lowest row they cover:
-   * the caller makes rows [0, rowEnd) of `src` hold their samples by then (a source still
-   * being decoded fills its rows as they arrive). Non-decreasing: tiles go in row order.
-   */
-  ready?: (rowEnd: number) => void;
-  /**
    * The source's rows, for a source not held whole (a spool file read as it is written): each
-   * tile's rows are read through it, in row order, and `src.data` is not read (it may be
-   * empty). The same result as the whole raster gives.
+   * tile's rows are read through it, a tile's rows in order and the tiles in row order, and
+   * `src.data` is not read (it may be empty). The same result as the whole raster gives.
    */
   rowAt?: RowAt;
 }
@@ -117,8 +111,8 @@ export interface SpectrumOptions {
 /**
  * Welch spectrum of a decoded source (8- or 16-bit sRGB, 1..4 channels). Pure; reads a bounded
  * number of tiles (see tiles.ts), so its cost hardly grows past a few megapixels. With
- * `ready`, the rows of `src` may arrive while it runs (same result: the same tiles, in the
- * same order).
+ * `rowAt`, each tile's rows are asked in order and the tiles go in row order, so a source
+ * still arriving can serve them (the same result: the same tiles, in the same order).
  */
 export function analyzeSpectrum(src: PixelRaster, opts: SpectrumOptions = {}): SourceSpectrum {
   const { width, height, channels, data } = src;
@@ -151,7 +145,6 @@ export function analyzeSpectrum(src: PixelRaster, opts: SpectrumOptions = {}): S
   for (let k = 0; k < count; k += 2) {
     const ra = layout.region[k];
     const rb = k + 1 < count ? layout.region[k + 1] : -1;
-    opts.ready?.(Math.max(layout.corners[2 * k + 1], rb >= 0 ? layout.corners[2 * k + 3] : 0) + t);
     const ma = loadTile(re, 0, simd, src, layout, k, plan.rev, opts.rowAt);
     const mb = rb >= 0 ? loadTile(im, 1, simd, src, layout, k + 1, plan.rev, opts.rowAt) : 0;
     if (rb < 0) im.fill(0);

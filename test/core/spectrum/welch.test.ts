@@ -124,26 +124,24 @@ describe('analyzeSpectrum', () => {
     }
   });
 
-  it('with `ready`, rows that arrive while it runs give the same spectrum, each asked for before a tile reads it', () => {
+  it('with `rowAt`, asks each tile\'s rows in order, tiles in row order (a file still being written can serve them)', () => {
     const whole = greyRaster(700, 460, noise(700, 460, 0.2, 5), 8);
-    // The rows start empty and are filled only when `ready` asks for them: a tile read before
-    // its rows were asked for would see zeros, and the spectrum would differ.
-    const filled = new Uint8Array(whole.data.length);
-    const arriving: PixelRaster = { ...whole, data: filled };
     const asked: number[] = [];
-    let rows = 0;
-    const spec = analyzeSpectrum(arriving, {
-      ready(rowEnd) {
-        asked.push(rowEnd);
-        for (; rows < Math.min(rowEnd, whole.height); rows++) filled.set(whole.data.subarray(rows * 700, (rows + 1) * 700), rows * 700);
-      },
+    const spec = analyzeSpectrum({ ...whole, data: new Uint8Array(0) }, {
+      rowAt: (y) => (asked.push(y), { data: whole.data, at: y * 700 }),
     });
     expect(spec).toEqual(analyzeSpectrum(whole));
-    expect(asked.length).toBe(Math.ceil(spec.tiles / 2));
-    expect(asked.every((r, i) => i === 0 || r >= asked[i - 1])).toBe(true);
-    // The last tiles reach the bottom row; the first ones only their own rows (a grid of bands).
-    expect(asked[asked.length - 1]).toBe(460);
-    expect(asked[0]).toBe(spec.tileSize);
+    const t = spec.tileSize;
+    expect(asked.length).toBe(spec.tiles * t);
+    const starts: number[] = [];
+    for (let k = 0; k < spec.tiles; k++) {
+      const rows = asked.slice(k * t, (k + 1) * t);
+      expect(rows).toEqual(Array.from({ length: t }, (_, i) => rows[0] + i));
+      starts.push(rows[0]);
+    }
+    expect(starts.every((y, i) => i === 0 || y >= starts[i - 1])).toBe(true);
+    // The last tiles reach the bottom row.
+    expect(starts[starts.length - 1] + t).toBe(460);
   });
 
   it('rejects a raster shorter than its size', () => {
