@@ -18,7 +18,7 @@ import { renderRendition } from '../rendition/service.js';
 import { adaptivePrefilter } from '../risk/service.js';
 import { SpectrumStore } from '../risk/spectrum-store.js';
 import { imgAccept } from './warm-start.js';
-import { warmUpHeader, warmUpToken } from './warm-up-token.js';
+import { warmUpHeaders } from './warm-up-token.js';
 import { renditionsPrefix } from '../schemas/paths.js';
 import { compileRenditionQuery } from '../schemas/rendition.js';
 
@@ -55,7 +55,7 @@ export const WARM_UP_SOURCE = 'foldwise-warm-up-no-such-source.jpg';
 async function warmRoute(app: FastifyInstance): Promise<void> {
   app.log.info({ source: WARM_UP_SOURCE }, 'warm-up requests through the rendition route (404 expected)');
   for (let i = 0; i < 2; i++) {
-    await app.inject({ url: `${renditionsPrefix}${WARM_UP_SOURCE}?width=400`, headers: { accept: imgAccept, [warmUpHeader]: warmUpToken } });
+    await app.inject({ url: `${renditionsPrefix}${WARM_UP_SOURCE}?width=400`, headers: { accept: imgAccept, ...warmUpHeaders() } });
   }
 }
 

@@ -1,7 +1,7 @@
 import { readdir } from 'node:fs/promises';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { WARM_UP_SOURCE, warmRenderPath } from '../../src/http/warm-path.js';
-import { warmUpHeader, warmUpToken } from '../../src/http/warm-up-token.js';
+import { isWarmUp, warmUpHeaders } from '../../src/http/warm-up-token.js';
 import { build, type TestApp } from '../helpers/build.js';
 
 /** Every file under a folder, relative paths. */
@@ -42,10 +42,12 @@ describe('warmRenderPath: the main thread renders once through the real path bef
       expect(asked).toEqual([WARM_UP_SOURCE, WARM_UP_SOURCE]);
       expect(await requests()).toBe(before);
       // The header counts only with this process's token: a client sending it is counted as any other.
-      const forged = await t.app.inject({ url: `/v1/renditions/${WARM_UP_SOURCE}?width=400`, headers: { [warmUpHeader]: 'guess' } });
+      const [[name, token]] = Object.entries(warmUpHeaders());
+      const forged = await t.app.inject({ url: `/v1/renditions/${WARM_UP_SOURCE}?width=400`, headers: { [name]: 'guess' } });
       expect(forged.statusCode).toBe(404);
       expect(await requests()).toBe(before + 1);
-      expect(warmUpToken).toMatch(/^[0-9a-f-]{36}$/);
+      expect(token).toMatch(/^[0-9a-f-]{36}$/);
+      expect([isWarmUp({ [name]: token }), isWarmUp({ [name]: 'guess' }), isWarmUp({})]).toEqual([true, false, false]);
     } finally {
       origin.identify = identify;
     }

@@ -107,12 +107,13 @@ export function buildWeights(
     const last = Math.floor(c + reach);
     // A row one period on from an inner row (no mirrored or clamped tap in either: row p's taps
     // are this one's `shift` pixels back, inside when the first is not before pixel 0, and
-    // unclamped since this row is) whose centre lies exactly `shift` pixels on has the very same filter arguments (j + shift) - c = j - (c - shift), each the
-    // one rounding of the same real: its weights are copied, bit for bit.
+    // unclamped since this row is) whose centre lies exactly `shift` pixels on has the very
+    // same filter arguments, (j + shift) - c = j - (c - shift), each the one rounding of the
+    // same real: its weights are copied, bit for bit.
     if (period > 0 && o >= period && first >= 0 && last < srcLen && s === first) {
       const p = o - period;
       const pc = centre[p];
-      if (first >= shift && exactlyLess(c, shift, pc) && Math.ceil(pc - reach) === first - shift && Math.floor(pc + reach) === last - shift) {
+      if (first >= shift && exactlyShifted(c, shift, pc) && Math.ceil(pc - reach) === first - shift && Math.floor(pc + reach) === last - shift) {
         weights.copyWithin(row, p * taps, p * taps + taps);
         continue;
       }
@@ -148,8 +149,11 @@ export function periodOf(step: number, dstLen: number): number {
   return 0;
 }
 
-/** Whether c - shift equals pc exactly, in reals: the floating-point difference is pc and had no rounding (TwoSum's error term is 0). */
-function exactlyLess(c: number, shift: number, pc: number): boolean {
+/**
+ * Whether c - shift equals pc exactly, in reals: the floating-point difference is pc and had no
+ * rounding (TwoSum's error term is 0; Knuth, TAOCP vol. 2, 4.2.2, from memory).
+ */
+function exactlyShifted(c: number, shift: number, pc: number): boolean {
   const d = c - shift;
   if (d !== pc) return false;
   const back = d - c;

@@ -1,6 +1,6 @@
 import type { FastifyInstance } from 'fastify';
 import fp from 'fastify-plugin';
-import { warmUpHeader, warmUpToken } from '../warm-up-token.js';
+import { isWarmUp } from '../warm-up-token.js';
 import { collectDefaultMetrics, Counter, Histogram, Registry } from 'prom-client';
 
 /** The service's Prometheus instruments, one registry per app (tests build many apps). */
@@ -93,7 +93,7 @@ async function metricsPlugin(app: FastifyInstance): Promise<void> {
   app.decorate('metrics', metrics);
   // Callback style (no promise per response): this runs on every answer, cache hits included.
   app.addHook('onResponse', (request, reply, done) => {
-    if (request.headers[warmUpHeader] === warmUpToken) return done();
+    if (isWarmUp(request.headers)) return done();
     const labels = {
       route: request.routeOptions.url ?? 'unmatched',
       method: request.method,

@@ -8,7 +8,7 @@ import { compileRenditionQuery } from '../../schemas/rendition.js';
 import { abandonSignal } from './abandon.js';
 import { matchesIfNoneMatch } from './conditional.js';
 import { renditionsPrefix } from '../../schemas/paths.js';
-import { warmUpHeader, warmUpToken } from '../warm-up-token.js';
+import { isWarmUp } from '../warm-up-token.js';
 import { renditionUrlReader } from './rendition-url.js';
 import { acceptCh, hintedVary, isHinted, resolveHinted } from './hints.js';
 
@@ -34,7 +34,7 @@ export default async function renditionRoutes(app: FastifyInstance): Promise<voi
       : requests.read(request.url, raw);
     const signal = abandonSignal(reply);
     // The warm-up's own requests (warm-path.ts) stay out of the stage metrics, as out of the request metrics.
-    const observe = request.headers[warmUpHeader] === warmUpToken ? undefined : renderContext.observe;
+    const observe = isWarmUp(request.headers) ? undefined : renderContext.observe;
     const r = await renderRendition({ ...renderContext, observe, signal, shedding: request.shedding, answerFirst: true }, path, q, request.headers.accept, canonical);
     reply
       .header('etag', r.entry.etag)

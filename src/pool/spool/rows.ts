@@ -24,7 +24,7 @@ const HEADER_BYTES = 64;
 const MAGIC = [0xb6, 0xa6, 0xf2, 0x08];
 
 /** Rows read at once: about 1 MiB, so a block stays in the core's cache while it is resampled. */
-export const BLOCK_BYTES = 2 ** 20;
+const BLOCK_BYTES = 2 ** 20;
 
 /** The rows a reader's block holds: about BLOCK_BYTES, at least `minRows` (and one), at most the image. */
 export function blockRows(shape: SpoolShape, minRows = 1): number {
