@@ -4,7 +4,8 @@
  * its render on every thread (main, libvips' decode, each pool worker); printed as a table and
  * an ASCII timeline from the request's send to its last byte, with how long one, two or more
  * threads were working (on two cores, time with one working thread is a core sitting idle).
- *   npx tsx scripts/bench/timeline.ts [--runs 1] [--width 800]
+ *   npx tsx scripts/bench/timeline.ts [--runs 1] [--width 800] [--further 640,1024]
+ * --further: after each first rendition, these widths of the same picture (already analysed).
  * Loopback only, bounded (a few requests per run).
  */
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
@@ -16,9 +17,10 @@ import { benchJpeg } from './texture.js';
 import { startService, warmClient } from './serve.js';
 import { pictures, rendition } from './service.js';
 
-const { values: flags } = parseArgs({ options: { runs: { type: 'string', default: '1' }, width: { type: 'string', default: '800' } } });
+const { values: flags } = parseArgs({ options: { runs: { type: 'string', default: '1' }, width: { type: 'string', default: '800' }, further: { type: 'string', default: '' } } });
 const runs = Math.min(10, Math.max(1, Number(flags.runs)));
 const width = Number(flags.width);
+const further = flags.further ? flags.further.split(',').map(Number) : [];
 const COLUMNS = 100;
 
 interface Timeline { arrived: number; answered: number; mainActiveMs: number; marks: Mark[] }
@@ -90,14 +92,15 @@ try {
   for (let run = 0; run < runs; run++) {
     const service = await startService(sourceDir);
     try {
-      for (const [name] of pictures) {
+      for (const [name, w] of pictures.flatMap(([name]) => [[name, width], ...further.map((f) => [name, f])] as Array<[string, number]>)) {
         const sent = performance.timeOrigin + performance.now();
-        const res = await fetch(service.url + rendition(name, width));
+        const res = await fetch(service.url + rendition(name, w));
         await res.arrayBuffer();
         const done = performance.timeOrigin + performance.now();
         const header = res.headers.get('rendition-timeline');
         if (res.status !== 200 || !header) throw new Error(`${name}: ${res.status}, no timeline (is FOLDWISE_TIMELINE honoured?)`);
-        const label = `run ${run + 1}, ${name === pictures[0][0] ? 'first request after start' : 'first rendition'} ${name} -> ${width} px`;
+        const kind = w !== width ? 'further width' : name === pictures[0][0] ? 'first request after start' : 'first rendition';
+        const label = `run ${run + 1}, ${kind} ${name} -> ${w} px`;
         print(label, sent, done, JSON.parse(header) as Timeline);
         console.log(`  plan: ${res.headers.get('rendition-plan')}`);
       }
