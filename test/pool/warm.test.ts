@@ -6,7 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { WARM_HEIGHT, WARM_WIDTH } from '../../src/codec/warm.js';
 import { SpoolDir } from '../../src/pool/spool/dir.js';
 import { headerMismatch } from '../../src/pool/spool/rows.js';
-import { type WarmTask, warmDecisions, warmTask } from '../../src/pool/warm.js';
+import { type WarmTask, warmAnalyses, warmDecisions, warmTask } from '../../src/pool/warm.js';
 import { analyzeSpectrum } from '../../src/core/risk/index.js';
 import { warmThreads } from '../../src/pool/warm-start.js';
 
@@ -60,5 +60,23 @@ describe('the warm start decides plans of every shape a request meets (pool/warm
     expect(levels[0]).toBe(0);
     expect(new Set(levels)).toEqual(new Set([0, 1, 2]));
     expect([...levels].sort()).toEqual(levels);
+  });
+});
+
+describe('the warm start analyses and decides often enough for V8 to optimise that code (pool/warm.ts warmAnalyses)', () => {
+  it('analyses at 8x four times, then at 2.7x, and decides every scale on the last spectrum and on a copy of it', () => {
+    const width = 640;
+    const height = 480;
+    const data = new Uint8Array(width * height * 3);
+    for (let i = 0; i < data.length; i++) data[i] = (i * 37) % 251;
+    const spectrum = analyzeSpectrum({ data, width, height, channels: 3 });
+    const asked: number[] = [];
+    const done = warmAnalyses((factor) => {
+      asked.push(factor);
+      return spectrum;
+    }, width, height);
+    expect(asked).toEqual([8, 8, 8, 8, 2.7]);
+    // Six scales (warmDecisions) on the spectrum, six on its structured clone.
+    expect(done).toEqual({ analysed: [8, 8, 8, 8, 2.7], decided: 12 });
   });
 });
