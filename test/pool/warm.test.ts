@@ -48,13 +48,19 @@ describe('the warm start through the streamed path (pool/warm-start.ts, pool/war
   });
 });
 
+/** A 640 x 480 RGB raster of varied codes, for the warm start's decisions. */
+const warmRaster = (() => {
+  const width = 640;
+  const height = 480;
+  const data = new Uint8Array(width * height * 3);
+  for (let i = 0; i < data.length; i++) data[i] = (i * 37) % 251;
+  return { data, width, height, channels: 3 as const };
+})();
+
 describe('the warm start decides plans of every shape a request meets (pool/warm.ts warmDecisions)', () => {
   it('decides from below the pyramid to two levels of it, on the warm spectrum', () => {
-    const width = 640;
-    const height = 480;
-    const data = new Uint8Array(width * height * 3);
-    for (let i = 0; i < data.length; i++) data[i] = (i * 37) % 251;
-    const levels = warmDecisions(analyzeSpectrum({ data, width, height, channels: 3 }), width, height);
+    const { width, height } = warmRaster;
+    const levels = warmDecisions(analyzeSpectrum(warmRaster), width, height);
     // Six scales (1.6x to 11x): the final stage alone, then one and two pyramid levels before it.
     expect(levels).toHaveLength(6);
     expect(levels[0]).toBe(0);
@@ -65,11 +71,8 @@ describe('the warm start decides plans of every shape a request meets (pool/warm
 
 describe('the warm start analyses and decides often enough for V8 to optimise that code (pool/warm.ts warmAnalyses)', () => {
   it('analyses at 8x four times, then at 2.7x, and decides every scale on the last spectrum and on a copy of it', () => {
-    const width = 640;
-    const height = 480;
-    const data = new Uint8Array(width * height * 3);
-    for (let i = 0; i < data.length; i++) data[i] = (i * 37) % 251;
-    const spectrum = analyzeSpectrum({ data, width, height, channels: 3 });
+    const { width, height } = warmRaster;
+    const spectrum = analyzeSpectrum(warmRaster);
     const asked: number[] = [];
     const done = warmAnalyses((factor) => {
       asked.push(factor);
