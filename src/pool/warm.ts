@@ -62,14 +62,14 @@ function warmSpooled(spooled: NonNullable<WarmTask['spooled']>): void {
  * kernel) took ~50 ms on a first request when only the 8x one was warmed (scripts/bench/
  * timeline.ts, 'analysis: plan response'), against 1-15 ms once compiled. And more than once:
  * V8 optimises analyzeSpectrum and the decision's loops (foldCells, foldMargin, findPeaks) only
- * after several calls, and compiles a function so marked at its next call. With one analysis of
- * each, the first request after start compiled them (`node --trace-opt`, 4 starts: analyzeSpectrum
- * 42-53 ms of TurboFan work in three, foldCells 55 ms in the fourth, on V8's helper threads)
- * while running them unoptimised: its V8 helpers took 17-33 ms of CPU against 3-4 ms for the next request.
- * With these (and the decisions made once more on a copy of the spectrum as an adapt task
- * receives it, whose objects V8 sees apart), 3-22 ms of compiles were left in 5 starts, and
- * the first request took 128 ms against 140 (medians of 10 starts each, interleaved), its
- * CPU 220 ms against 239; the threads are warm about 0.25 s later.
+ * after several calls, and compiles a function so marked at its next call. With one analysis
+ * of each, the first request after start compiled them (`node --trace-opt`, 4 starts:
+ * analyzeSpectrum 42-53 ms of TurboFan work in three, foldCells 55 ms in the fourth, on V8's
+ * helper threads) while running them unoptimised: its V8 helpers took 17-33 ms of CPU against
+ * 3-4 ms for the next request. With these (and the decisions made once more on a copy of the
+ * spectrum as an adapt task receives it, whose objects V8 sees apart), 3-22 ms of compiles were
+ * left in 5 starts, and the first request took 128 ms against 140 (medians of 10 starts each,
+ * interleaved), its CPU 220 ms against 239; the threads are warm about 0.25 s later.
  */
 const ANALYSIS_FACTORS = [8, 8, 8, 8, 2.7];
 
@@ -78,10 +78,13 @@ const ANALYSIS_FACTORS = [8, 8, 8, 8, 2.7];
  * DECISION_SCALES on the last spectrum and on a structured clone of it. Answers the factors
  * analysed and the decisions made.
  */
-export function warmAnalyses(analyse: (factor: number) => SourceSpectrum, width: number, height: number): { analysed: number[]; decided: number } {
+export function warmAnalyses(
+  analyse: (factor: number) => SourceSpectrum, width: number, height: number,
+): { analysed: number[]; decided: number } {
   let spectrum: SourceSpectrum | undefined;
   for (const factor of ANALYSIS_FACTORS) spectrum = analyse(factor);
-  const decided = warmDecisions(spectrum!, width, height).length + warmDecisions(structuredClone(spectrum!), width, height).length;
+  const decided = warmDecisions(spectrum!, width, height).length
+    + warmDecisions(structuredClone(spectrum!), width, height).length;
   return { analysed: [...ANALYSIS_FACTORS], decided };
 }
 
