@@ -6,6 +6,7 @@
  * SIMD kernels and the hot functions compiled at the sizes requests use (the largest tiles).
  */
 import { makePlan, renderRaster } from '../core/index.js';
+import { planTable } from '../core/resample/index.js';
 import type { PixelRaster } from '../core/types.js';
 import { analyseTask, decide } from './analysis.js';
 import { analyzeSpectrum, type SourceSpectrum } from '../core/risk/index.js';
@@ -54,6 +55,33 @@ function warmSpooled(spooled: NonNullable<WarmTask['spooled']>): void {
     }
   }
   warmAnalyses((factor) => analyseTask({ src, plan: planOf(width, height, factor) }).spectrum, width, height);
+  warmTables();
+}
+
+/**
+ * Output widths whose weight tables (each axis, with its central lobes) each thread makes for a
+ * 4608 x 3456 source and drops. The warm picture's own tables are a few hundred rows long, too
+ * short for V8 to optimise the loops that make them (buildWeights, centralLobes), so a first
+ * request of 800 px compiled them on V8's helper threads (`node --trace-opt`: centralLobes
+ * 3-16 ms in three of five starts, besides the analysis's). With these (about 10 ms a thread),
+ * the first request's compiles were 2-3 ms (one row reader) in four of five starts, 21 ms in
+ * the fifth (foldMargin of the decision as well), against 3-36 ms without them.
+ */
+const TABLE_WIDTHS = [800, 532, 1024];
+const TABLE_SOURCE = [4608, 3456] as const;
+
+/** Makes the tables of TABLE_WIDTHS; answers how many have central lobes (limit.ts), of how many. */
+export function warmTables(): { tables: number; lobed: number } {
+  let tables = 0;
+  let lobed = 0;
+  for (const width of TABLE_WIDTHS) {
+    const plan = planOf(TABLE_SOURCE[0], TABLE_SOURCE[1], TABLE_SOURCE[0] / width);
+    for (const axis of ['x', 'y'] as const) {
+      tables++;
+      if (planTable(plan, axis).lobe) lobed++;
+    }
+  }
+  return { tables, lobed };
 }
 
 /**
@@ -118,6 +146,7 @@ function warmInMemory(): void {
     decide(spectrum, planOf(width, height, factor));
     return spectrum;
   }, width, height);
+  warmTables();
 }
 
 /**

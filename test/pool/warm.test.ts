@@ -6,7 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { WARM_HEIGHT, WARM_WIDTH } from '../../src/codec/warm.js';
 import { SpoolDir } from '../../src/pool/spool/dir.js';
 import { headerMismatch } from '../../src/pool/spool/rows.js';
-import { type WarmTask, warmAnalyses, warmDecisions, warmTask } from '../../src/pool/warm.js';
+import { type WarmTask, warmAnalyses, warmDecisions, warmTables, warmTask } from '../../src/pool/warm.js';
 import { analyzeSpectrum } from '../../src/core/risk/index.js';
 import { warmThreads } from '../../src/pool/warm-start.js';
 
@@ -81,5 +81,11 @@ describe('the warm start analyses and decides often enough for V8 to optimise th
     expect(asked).toEqual([8, 8, 8, 8, 2.7]);
     // Six scales (warmDecisions) on the spectrum, six on its structured clone.
     expect(done).toEqual({ analysed: [8, 8, 8, 8, 2.7], decided: 12 });
+  });
+});
+
+describe('the warm start makes the weight tables of a large source (pool/warm.ts warmTables)', () => {
+  it('makes both axes of three widths, each with the ringing limiter\'s central lobes', () => {
+    expect(warmTables()).toEqual({ tables: 6, lobed: 6 });
   });
 });
