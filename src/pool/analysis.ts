@@ -36,7 +36,37 @@ export interface AdaptTask {
 
 /** adaptiveFilter with the plan's own weight tables as its response (`gains`: planGains of them, made before). */
 export function decide(spectrum: SourceSpectrum, plan: Plan, gains?: PlanGains): AdaptiveFilter | undefined {
-  return adaptiveFilter(spectrum, plan, planResponseOf(plan), gains);
+  const kept = gains ?? (spectrum.tileSize > 0 ? gainsOf(plan, spectrum.tileSize) : undefined);
+  return adaptiveFilter(spectrum, plan, planResponseOf(plan), kept);
+}
+
+/**
+ * Plans whose sampled response this thread keeps. The response depends on the plan alone (its
+ * sizes, crop, kernel, sigma, pyramid, cut-off) and the spectrum's tile size, not on the pixels,
+ * and a site's pictures come in a few sizes, each asked at the same widths (a srcset ladder):
+ * so every picture after the first of its size finds its plans' responses made. Making one took
+ * 1.7-8.4 ms of a new picture's analysis (scripts/bench/timeline.ts, 'analysis: plan
+ * response'), and an adapt task (a further width) made it each time: with them kept, `npx tsx
+ * scripts/bench/cpu.ts --pictures 10` (ten new 4 MP pictures of one size, four runs per tree,
+ * interleaved) gave the pool's threads 102 -> 89 ms of CPU per first rendition and 117.5 -> 93
+ * ms per further width (medians). A response holds two tables of at most a few hundred numbers.
+ */
+const GAINS_KEPT = 64;
+const gainsMade = new Map<string, PlanGains>();
+
+/** planGains of `plan` at `tileSize`, made once per thread while among the GAINS_KEPT last used. */
+export function gainsOf(plan: Plan, tileSize: number): PlanGains {
+  // The whole plan is the key (its reason line too, which follows from the rest).
+  const key = `${tileSize} ${JSON.stringify(plan)}`;
+  let gains = gainsMade.get(key);
+  if (gains) {
+    gainsMade.delete(key);
+  } else {
+    gains = planGains(plan, planResponseOf(plan), tileSize);
+    if (gainsMade.size >= GAINS_KEPT) gainsMade.delete(gainsMade.keys().next().value!);
+  }
+  gainsMade.set(key, gains);
+  return gains;
 }
 
 /**
@@ -84,7 +114,8 @@ export function analyseTask(task: AnalyseTask): Analysed {
   const marks: Mark[] | undefined = tracing ? [] : undefined;
   const span = (what: string, start: number) => marks?.push({ what, thread: `w${threadId}`, start, end: epochNow() });
   let t = marks ? epochNow() : 0;
-  const gains = plan ? planGains(plan, planResponseOf(plan), layoutTiles(src.width, src.height).tileSize) : undefined;
+  const tileSize = layoutTiles(src.width, src.height).tileSize;
+  const gains = plan && tileSize > 0 ? gainsOf(plan, tileSize) : undefined;
   span('analysis: plan response', t);
   t = marks ? epochNow() : 0;
   const spectrum = 'buffer' in src ? analyzeSpectrum(rasterOf(src)) : spooledSpectrum(src, marks);
