@@ -70,18 +70,14 @@ function warmSpooled(spooled: NonNullable<WarmTask['spooled']>): void {
 const TABLE_WIDTHS = [800, 532, 1024];
 const TABLE_SOURCE = [4608, 3456] as const;
 
-/** Makes the tables of TABLE_WIDTHS; answers how many have central lobes (limit.ts), of how many. */
-export function warmTables(): { tables: number; lobed: number } {
-  let tables = 0;
+/** Makes both axes' tables of TABLE_WIDTHS; answers how many came with central lobes (limit.ts). */
+export function warmTables(): number {
   let lobed = 0;
   for (const width of TABLE_WIDTHS) {
     const plan = planOf(TABLE_SOURCE[0], TABLE_SOURCE[1], TABLE_SOURCE[0] / width);
-    for (const axis of ['x', 'y'] as const) {
-      tables++;
-      if (planTable(plan, axis).lobe) lobed++;
-    }
+    for (const axis of ['x', 'y'] as const) if (planTable(plan, axis).lobe) lobed++;
   }
-  return { tables, lobed };
+  return lobed;
 }
 
 /**
@@ -103,17 +99,13 @@ const ANALYSIS_FACTORS = [8, 8, 8, 8, 2.7];
 
 /**
  * Analyses (and decides) through `analyse` at each of ANALYSIS_FACTORS, then decides
- * DECISION_SCALES on the last spectrum and on a structured clone of it. Answers the factors
- * analysed and the decisions made.
+ * DECISION_SCALES on the last spectrum and on a structured clone of it. Answers the number of
+ * those decisions.
  */
-export function warmAnalyses(
-  analyse: (factor: number) => SourceSpectrum, width: number, height: number,
-): { analysed: number[]; decided: number } {
+export function warmAnalyses(analyse: (factor: number) => SourceSpectrum, width: number, height: number): number {
   let spectrum: SourceSpectrum | undefined;
   for (const factor of ANALYSIS_FACTORS) spectrum = analyse(factor);
-  const decided = warmDecisions(spectrum!, width, height).length
-    + warmDecisions(structuredClone(spectrum!), width, height).length;
-  return { analysed: [...ANALYSIS_FACTORS], decided };
+  return warmDecisions(spectrum!, width, height).length + warmDecisions(structuredClone(spectrum!), width, height).length;
 }
 
 /**

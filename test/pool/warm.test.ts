@@ -80,12 +80,12 @@ describe('the warm start analyses and decides often enough for V8 to optimise th
     }, width, height);
     expect(asked).toEqual([8, 8, 8, 8, 2.7]);
     // Six scales (warmDecisions) on the spectrum, six on its structured clone.
-    expect(done).toEqual({ analysed: [8, 8, 8, 8, 2.7], decided: 12 });
+    expect(done).toBe(12);
   });
 });
 
 describe('the warm start makes the weight tables of a large source (pool/warm.ts warmTables)', () => {
   it('makes both axes of three widths, each with the ringing limiter\'s central lobes', () => {
-    expect(warmTables()).toEqual({ tables: 6, lobed: 6 });
+    expect(warmTables()).toBe(6);
   });
 });
