@@ -1,5 +1,5 @@
 import { constants, type Dirent } from 'node:fs';
-import { lstat, open, readdir, realpath, stat, unlink } from 'node:fs/promises';
+import { type FileHandle, lstat, open, readdir, realpath, stat, unlink } from 'node:fs/promises';
 import { join, relative, sep } from 'node:path';
 import { FoldwiseError } from '../errors.js';
 import { hasSourceExtension } from '../codec/formats.js';
@@ -9,6 +9,28 @@ import { safeRelativePath } from './safe-path.js';
 export interface FolderOriginOptions {
   /** Largest file read, in bytes; larger ones are refused with ERR_SOURCE_TOO_LARGE. */
   maxBytes?: number;
+}
+
+/** The most one read call asks for: the largest sources come in a few calls, each abortable between. */
+export const READ_CALL_BYTES = 16 * 2 ** 20;
+
+/**
+ * The `size` bytes of an open file (fewer if it ended sooner), read in calls of up to
+ * `callBytes` into one buffer; a signal aborted stops it between calls. FileHandle.readFile reads in 512 KiB calls, each a trip
+ * through libuv's pool and back to the event loop: with the cores busy, each trip waits for
+ * the loop, and a 5 MB JPEG took 12-17 ms to read on the way to its decode
+ * (scripts/bench/timeline.ts, the `origin` span).
+ */
+export async function readWhole(handle: FileHandle, size: number, signal?: AbortSignal, callBytes = READ_CALL_BYTES): Promise<Buffer> {
+  const bytes = Buffer.allocUnsafe(size);
+  let at = 0;
+  while (at < size) {
+    signal?.throwIfAborted();
+    const { bytesRead } = await handle.read(bytes, at, Math.min(callBytes, size - at), at);
+    if (bytesRead === 0) break;
+    at += bytesRead;
+  }
+  return at === size ? bytes : bytes.subarray(0, at);
 }
 
 /** Listing stops after this many files, so a huge tree cannot stall a request. */
@@ -70,10 +92,12 @@ export function createFolderOrigin(root: string, options: FolderOriginOptions = 
         if (options.maxBytes !== undefined && s.size > options.maxBytes) {
           throw new FoldwiseError('ERR_SOURCE_TOO_LARGE', `The source has ${s.size} bytes; the limit is ${options.maxBytes}.`);
         }
-        const bytes = await handle.readFile({ signal });
+        const bytes = await readWhole(handle, s.size, signal);
         return { identity: { key, version: version(s.size, s.mtimeMs) }, bytes };
       } finally {
-        await handle.close();
+        // Not waited for: the bytes are read (or the read failed), and a close is one more trip
+        // through libuv's pool before the decode may start.
+        handle.close().catch(() => undefined);
       }
     },
 

@@ -1,8 +1,8 @@
-import { mkdtemp, mkdir, rm, symlink, writeFile, utimes } from 'node:fs/promises';
+import { mkdtemp, mkdir, open, rm, symlink, truncate, writeFile, utimes } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createFolderOrigin } from '../../src/origins/folder.js';
+import { createFolderOrigin, readWhole } from '../../src/origins/folder.js';
 
 // Path-traversal refusals follow the OWASP "Path Traversal" attack catalogue (dot-dot
 // segments, percent-encoded dots and slashes, backslashes, NUL, absolute paths, links out).
@@ -100,5 +100,61 @@ describe('folder origin', () => {
     const ac = new AbortController();
     ac.abort();
     await expect(createFolderOrigin(root).read('fabrics/plain.png', ac.signal)).rejects.toThrow();
+  });
+});
+
+describe('reading a source whole (readWhole)', () => {
+  // A woven-looking byte pattern of the size of a small photo, not a multiple of the call size.
+  const pattern = Buffer.from(Array.from({ length: 100_003 }, (_, i) => (i * 31 + (i >> 7)) & 0xff));
+
+  it('reads every byte in calls of the given size, and fewer when the file ended sooner', async () => {
+    const file = join(base, 'whole.jpg');
+    await writeFile(file, pattern);
+    const handle = await open(file, 'r');
+    try {
+      expect((await readWhole(handle, pattern.length, undefined, 4096)).equals(pattern)).toBe(true);
+      // The file shrank since its stat: what is there, no zero tail.
+      await truncate(file, 70_000);
+      const short = await readWhole(handle, pattern.length, undefined, 4096);
+      expect(short.length).toBe(70_000);
+      expect(short.equals(pattern.subarray(0, 70_000))).toBe(true);
+    } finally {
+      await handle.close();
+    }
+  });
+
+  it('stops between calls once the signal is aborted', async () => {
+    const file = join(base, 'whole-abort.jpg');
+    await writeFile(file, pattern);
+    const handle = await open(file, 'r');
+    try {
+      const ask = new AbortController();
+      ask.abort(new Error('the visitor left'));
+      await expect(readWhole(handle, pattern.length, ask.signal, 4096)).rejects.toThrow('the visitor left');
+    } finally {
+      await handle.close();
+    }
+  });
+
+  it('closes each file it read, without the read waiting for the close', async () => {
+    const own = join(base, 'closes');
+    await mkdir(own);
+    await writeFile(join(own, 'whole.jpg'), pattern);
+    const origin = createFolderOrigin(own);
+    // A handle left open is closed by the garbage collector, which Node reports as a warning.
+    const warned: string[] = [];
+    const onWarning = (w: Error) => warned.push(w.message);
+    process.on('warning', onWarning);
+    try {
+      for (let i = 0; i < 100; i++) expect((await origin.read('whole.jpg')).bytes.equals(pattern)).toBe(true);
+      // Garbage enough for a few young-generation collections, then time for their warnings.
+      let sum = 0;
+      for (let i = 0; i < 200; i++) sum += new Array(10_000).fill(i).length;
+      expect(sum).toBe(2_000_000);
+      await new Promise((r) => setTimeout(r, 50));
+    } finally {
+      process.off('warning', onWarning);
+    }
+    expect(warned.filter((m) => /file descriptor/i.test(m))).toEqual([]);
   });
 });
