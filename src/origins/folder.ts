@@ -16,10 +16,10 @@ export const READ_CALL_BYTES = 16 * 2 ** 20;
 
 /**
  * The `size` bytes of an open file (fewer if it ended sooner), read in calls of up to
- * `callBytes` into one buffer; a signal aborted stops it between calls. FileHandle.readFile reads in 512 KiB calls, each a trip
- * through libuv's pool and back to the event loop: with the cores busy, each trip waits for
- * the loop, and a 5 MB JPEG took 12-17 ms to read on the way to its decode
- * (scripts/bench/timeline.ts, the `origin` span).
+ * `callBytes` into one buffer; a signal aborted stops it between calls. FileHandle.readFile
+ * reads in 512 KiB calls, each a trip through libuv's pool and back to the event loop: with
+ * the cores busy each trip waits for the loop, and a 5 MB JPEG's origin span was 12-17 ms on
+ * the way to its decode, 7-10 ms read whole (scripts/bench/timeline.ts, docs/speed.md).
  */
 export async function readWhole(handle: FileHandle, size: number, signal?: AbortSignal, callBytes = READ_CALL_BYTES): Promise<Buffer> {
   const bytes = Buffer.allocUnsafe(size);
