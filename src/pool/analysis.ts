@@ -2,13 +2,14 @@
  * The worker side of prefilter=auto: the spectrum analysis of a staged source and the
  * content-adaptive filter of a plan, run in the pool's threads so the event loop never waits
  * on them (a 12 MP analysis and its decision take tens of milliseconds). Imports the core and
- * the spool reader only, as worker.ts does.
+ * the spool reader (and lru-cache for the kept responses), as worker.ts does.
  */
 import { planResponseOf } from '../core/index.js';
 import { adaptiveFilter, analyzeSpectrum, planGains, type PlanGains, type SourceSpectrum } from '../core/risk/index.js';
 import { layoutTiles } from '../core/spectrum/tiles.js';
 import type { AdaptiveFilter, PixelRaster, Plan } from '../core/types.js';
 import { threadId } from 'node:worker_threads';
+import { LRUCache } from 'lru-cache';
 import { SpoolRows } from './spool/rows.js';
 import { epochNow, type Mark, tracing } from './trace.js';
 import type { SharedRaster, SpooledRaster } from './worker.js';
@@ -34,10 +35,9 @@ export interface AdaptTask {
   plan: Plan;
 }
 
-/** adaptiveFilter with the plan's own weight tables as its response (`gains`: planGains of them, made before). */
-export function decide(spectrum: SourceSpectrum, plan: Plan, gains?: PlanGains): AdaptiveFilter | undefined {
-  const kept = gains ?? (spectrum.tileSize > 0 ? gainsOf(plan, spectrum.tileSize) : undefined);
-  return adaptiveFilter(spectrum, plan, planResponseOf(plan), kept);
+/** adaptiveFilter with the plan's own weight tables as its response, sampled once per thread (gainsOf). */
+export function decide(spectrum: SourceSpectrum, plan: Plan): AdaptiveFilter | undefined {
+  return adaptiveFilter(spectrum, plan, planResponseOf(plan), gainsOf(plan, spectrum.tileSize));
 }
 
 /**
@@ -52,20 +52,21 @@ export function decide(spectrum: SourceSpectrum, plan: Plan, gains?: PlanGains):
  * ms per further width (medians). A response holds two tables of at most a few hundred numbers.
  */
 const GAINS_KEPT = 64;
-const gainsMade = new Map<string, PlanGains>();
+const gainsMade = new LRUCache<string, PlanGains>({ max: GAINS_KEPT });
 
-/** planGains of `plan` at `tileSize`, made once per thread while among the GAINS_KEPT last used. */
-export function gainsOf(plan: Plan, tileSize: number): PlanGains {
+/**
+ * planGains of `plan` at `tileSize`, made once per thread while among the GAINS_KEPT last used;
+ * undefined for a source too small for tiles (tileSize 0), which adaptiveFilter then samples.
+ */
+export function gainsOf(plan: Plan, tileSize: number): PlanGains | undefined {
+  if (!(tileSize > 0)) return undefined;
   // The whole plan is the key (its reason line too, which follows from the rest).
   const key = `${tileSize} ${JSON.stringify(plan)}`;
   let gains = gainsMade.get(key);
-  if (gains) {
-    gainsMade.delete(key);
-  } else {
+  if (!gains) {
     gains = planGains(plan, planResponseOf(plan), tileSize);
-    if (gainsMade.size >= GAINS_KEPT) gainsMade.delete(gainsMade.keys().next().value!);
+    gainsMade.set(key, gains);
   }
-  gainsMade.set(key, gains);
   return gains;
 }
 
@@ -114,14 +115,14 @@ export function analyseTask(task: AnalyseTask): Analysed {
   const marks: Mark[] | undefined = tracing ? [] : undefined;
   const span = (what: string, start: number) => marks?.push({ what, thread: `w${threadId}`, start, end: epochNow() });
   let t = marks ? epochNow() : 0;
-  const tileSize = layoutTiles(src.width, src.height).tileSize;
-  const gains = plan && tileSize > 0 ? gainsOf(plan, tileSize) : undefined;
+  // Made (and kept) while the rows arrive: the decision below finds it.
+  if (plan) gainsOf(plan, layoutTiles(src.width, src.height).tileSize);
   span('analysis: plan response', t);
   t = marks ? epochNow() : 0;
   const spectrum = 'buffer' in src ? analyzeSpectrum(rasterOf(src)) : spooledSpectrum(src, marks);
   span('analysis: spectrum', t);
   t = marks ? epochNow() : 0;
-  const filter = plan ? decide(spectrum, plan, gains) : undefined;
+  const filter = plan ? decide(spectrum, plan) : undefined;
   span('analysis: decision', t);
   return marks ? { spectrum, filter, marks } : { spectrum, filter };
 }

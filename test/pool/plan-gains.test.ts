@@ -26,14 +26,16 @@ describe('the sampled plan response kept per thread (pool/analysis.ts gainsOf)',
     expect(gainsOf(plan(1000, 400), 128)).toBe(a);
     expect(gainsOf(plan(1000, 500), 128)).not.toBe(a);
     expect(gainsOf(plan(1000, 400), 64)).not.toBe(a);
-    expect(gainsOf(plan(1000, 400), 64).tileSize).toBe(64);
+    expect(gainsOf(plan(1000, 400), 64)?.tileSize).toBe(64);
+    // A source too small for a tile has no spectrum tiles to sample against.
+    expect(gainsOf(plan(1000, 400), 0)).toBeUndefined();
   });
 
   it('holds the same values as a response made afresh, after another plan\'s was made', () => {
     const p = plan(1200, 480);
     gainsOf(p, 128);
-    const other = gainsOf(plan(1200, 600), 128);
-    const kept = gainsOf(p, 128);
+    const other = gainsOf(plan(1200, 600), 128)!;
+    const kept = gainsOf(p, 128)!;
     const fresh = planGains(p, planResponseOf(p), 128);
     const freqs = [0, 0.05, 0.13, 0.2, 0.21, 0.29, 0.37, 0.5];
     for (const f of freqs) {
