@@ -26,6 +26,39 @@ const MAGIC = [0xb6, 0xa6, 0xf2, 0x08];
 /** Rows read at once: about 1 MiB, so a block stays in the core's cache while it is resampled. */
 const BLOCK_BYTES = 2 ** 20;
 
+/**
+ * Blocks a closed reader left, for the next reader of this thread: a fresh block is new
+ * memory, and on a machine that hands freed memory back to its host (a virtual machine with
+ * free page reporting) every first touch of it is a page fault, for the reader and for the
+ * libvips threads that fill the spool file meanwhile (measured: `scripts/bench/cpu.ts`, see
+ * docs/speed.md). Two blocks (a render's and an analysis's) of at most KEEP_MAX_BYTES each.
+ */
+const kept: ArrayBuffer[] = [];
+const KEEP_COUNT = 2;
+const KEEP_MAX_BYTES = 8 * 2 ** 20;
+
+/** A kept block of at least `bytes` (the smallest that fits), or a new one. */
+function takeBlock(bytes: number): ArrayBuffer {
+  let best = -1;
+  for (let i = 0; i < kept.length; i++) {
+    if (kept[i].byteLength >= bytes && (best < 0 || kept[i].byteLength < kept[best].byteLength)) best = i;
+  }
+  return best < 0 ? new ArrayBuffer(bytes) : kept.splice(best, 1)[0];
+}
+
+/** Keeps `block` for a later reader when there is room (the largest are kept). */
+function keepBlock(block: ArrayBuffer): void {
+  if (block.byteLength > KEEP_MAX_BYTES) return;
+  kept.push(block);
+  kept.sort((a, b) => b.byteLength - a.byteLength);
+  kept.length = Math.min(kept.length, KEEP_COUNT);
+}
+
+/** How many blocks this thread keeps, and their bytes (for tests). */
+export function keptBlocks(): { count: number; bytes: number } {
+  return { count: kept.length, bytes: kept.reduce((sum, b) => sum + b.byteLength, 0) };
+}
+
 /** The rows a reader's block holds: about BLOCK_BYTES, at least `minRows` (and one), at most the image. */
 export function blockRows(shape: SpoolShape, minRows = 1): number {
   const rowBytes = shape.width * shape.channels * (shape.depth / 8);
@@ -80,6 +113,7 @@ const messageOf = (e: unknown) => (e as Error).message;
 export class SpoolRows {
   private fd = -1;
   private readonly rowBytes: number;
+  private buffer: ArrayBuffer | null;
   private readonly block: Uint8Array;
   private readonly samples: Uint8Array | Uint16Array;
   private first = 0;
@@ -95,10 +129,11 @@ export class SpoolRows {
     minRows = 1,
   ) {
     this.rowBytes = shape.width * shape.channels * (shape.depth / 8);
-    const rows = blockRows(shape, minRows);
-    const buffer = new ArrayBuffer(rows * this.rowBytes);
-    this.block = new Uint8Array(buffer);
-    this.samples = shape.depth === 16 ? new Uint16Array(buffer) : this.block;
+    const bytes = blockRows(shape, minRows) * this.rowBytes;
+    const buffer = takeBlock(bytes);
+    this.buffer = buffer;
+    this.block = new Uint8Array(buffer, 0, bytes);
+    this.samples = shape.depth === 16 ? new Uint16Array(buffer, 0, bytes / 2) : this.block;
   }
 
   /** renderRaster's rowAt: row y, read (and waited for) when it is not in the block already. */
@@ -108,13 +143,20 @@ export class SpoolRows {
     return { data: this.samples, at: (y - this.first) * n };
   };
 
-  /** Closes the file (the reader may be dropped at any point). */
+  /**
+   * Closes the file (the reader may be dropped at any point) and leaves its block to the
+   * thread's next reader: rows it handed out are not to be read after this.
+   */
   close(): void {
     if (this.fd >= 0) closeSync(this.fd);
     this.fd = -1;
+    if (this.buffer) keepBlock(this.buffer);
+    this.buffer = null;
+    this.count = 0; // any later rowAt goes to load, which refuses
   }
 
   private load(y: number): void {
+    if (!this.buffer) throw new SpoolReadError('stopped', 'the reader is closed');
     if (this.fd < 0) this.open();
     const want = Math.min(this.block.length, (this.shape.height - y) * this.rowBytes);
     for (;;) {

@@ -3,7 +3,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { headerMismatch, type SpoolShape as FeedShape, SpoolReadError, SpoolRows, STOPPED, WRITING, WRITTEN } from '../../../src/pool/spool/rows.js';
+import { headerMismatch, keptBlocks, type SpoolShape as FeedShape, SpoolReadError, SpoolRows, STOPPED, WRITING, WRITTEN } from '../../../src/pool/spool/rows.js';
 
 let dir: string;
 let serial = 0;
@@ -174,5 +174,36 @@ describe('SpoolRows (a worker reading a spool file row by row)', () => {
     const read = () => new SpoolRows(path, rgb8, writerState(WRITING)).rowAt(0);
     expect(read).toThrow(SpoolReadError);
     expect(read).toThrow(expect.objectContaining({ fault: 'unreadable', message: expect.stringMatching(/^ELOOP/) }));
+  });
+});
+
+describe('SpoolRows blocks kept for the thread\'s next reader (fresh memory costs page faults)', () => {
+  it('gives a closed reader\'s block to the next one, whose rows are exact over the stale bytes, and the closed one reads no more', async () => {
+    const deep = noise(size(grey16) / 2, true, 21);
+    const first = new SpoolRows((await vipsFile(grey16, deep)).path, grey16, writerState(WRITTEN));
+    expect(readRows(first, grey16).equals(asBytes(deep))).toBe(true);
+    const block = first.rowAt(0).data.buffer;
+    first.close();
+    expect(() => first.rowAt(0)).toThrow(expect.objectContaining({ fault: 'stopped', message: 'the reader is closed' }));
+    // A smaller 8-bit shape fits in the 16-bit reader's block (the smallest kept block that fits is taken).
+    const small: FeedShape = { width: 11, height: 7, channels: 3, depth: 8 };
+    expect(rowBytes(small) * small.height).toBeLessThan(block.byteLength);
+    const samples = noise(size(small), false, 22);
+    const second = new SpoolRows((await vipsFile(small, samples)).path, small, writerState(WRITTEN));
+    try {
+      expect(readRows(second, small).equals(asBytes(samples))).toBe(true);
+      expect(second.rowAt(0).data.buffer).toBe(block);
+      expect(second.rowAt(0).data.length).toBe(size(small));
+    } finally {
+      second.close();
+    }
+  });
+
+  it('keeps the two largest blocks of at most 8 MiB each', () => {
+    const rowsOf = (width: number): FeedShape => ({ width, height: 1, channels: 3, depth: 8 });
+    // Never read, so no file is needed: each holds a block of one row.
+    const readers = [1000, 3000, 2000, 3_000_000].map((w) => new SpoolRows(join(dir, 'unread.v'), rowsOf(w), writerState(WRITTEN)));
+    for (const r of readers) r.close();
+    expect(keptBlocks()).toEqual({ count: 2, bytes: 3 * 3000 + 3 * 2000 });
   });
 });
