@@ -28,7 +28,23 @@ export const pictures: Array<[string, number, number, number]> = [
 const flood: Array<[string, number, number, number]> = Array.from({ length: 12 }, (_, i) => [`flood-${i}.jpg`, 2304, 1728, 40 + i]);
 const LOAD = 6;
 
-export const rendition = (name: string, width: number) => `/v1/renditions/${name}?width=${width}&format=jpeg`;
+export const rendition = (name: string, width: number, quality?: number) => `/v1/renditions/${name}?width=${width}&format=jpeg${quality ? `&quality=${quality}` : ''}`;
+
+/** Widths and JPEG qualities the throughput runs draw their requests from (qualities just below the default 82, so none is the key of a default-quality rendition made before; the encode costs about the same). */
+const WIDTHS = { first: 600, count: 600 };
+const QUALITIES = { first: 77, count: 5 };
+
+/**
+ * The n-th request of a throughput run (n from 0): the pictures in turn, each at a width and
+ * quality no earlier request of that picture had, so every answer is a render, not a cache hit.
+ * A refused request (503) uses up its key too, so the keys are many: pictures x 600 widths x 5
+ * qualities. Throws past them, rather than let hits pass for renders.
+ */
+export function throughputRequest(names: readonly string[], n: number): { name: string; width: number; quality: number } {
+  const round = Math.floor(n / names.length);
+  if (round >= WIDTHS.count * QUALITIES.count) throw new Error(`request ${n} would repeat an earlier one's width and quality`);
+  return { name: names[n % names.length], width: WIDTHS.first + (round % WIDTHS.count), quality: QUALITIES.first + Math.floor(round / WIDTHS.count) };
+}
 
 /** The event-loop lag p99 and max (ms) prom-client reports since its previous scrape. */
 async function eventLoopLag(url: string): Promise<{ p99: number; max: number }> {
@@ -116,12 +132,15 @@ async function throughput(sourceDir: string, seconds: number, pool: Record<strin
   const service = await startService(sourceDir, [], pool);
   const bare = await startServer(['--import', 'tsx', 'scripts/bench/sharp-route.ts', sourceDir], {}, /listening (\d+)/);
   const sharpUrl = `http://127.0.0.1:${bare.match[1]}`;
-  const lines = [`renders per second, ${seconds} s per run, every request a new width (600-1199 px) of the ${names.length} 4-6.4 MP pictures, JPEG`,
+  const lines = [`renders per second, ${seconds} s per run, every request a new width (600-1199 px) and quality (77-81) of the ${names.length} 4-6.4 MP pictures, JPEG`,
     '| connections | foldwise renders/s | sharp linear-light renders/s | ratio | foldwise non-2xx |', '|---|---|---|---|---|'];
   try {
     for (const name of names) await timedGet(service.url + rendition(name, 800)); // analysed once, as a site's pictures are
     let n = 0;
-    const next = (prefix: (name: string, w: number) => string) => () => prefix(names[n % names.length], 600 + (Math.floor(n++ / names.length) % 600));
+    const next = (prefix: (name: string, w: number, q: number) => string) => () => {
+      const r = throughputRequest(names, n++);
+      return prefix(r.name, r.width, r.quality);
+    };
     for (const connections of [4, 16]) {
       const ours = await cannon({ url: service.url, connections, duration: seconds, nextPath: next(rendition), timeoutSeconds: 60 });
       const ref = await cannon({ url: sharpUrl, connections, duration: seconds, nextPath: next((name, w) => `/sharp/${name}?width=${w}`), timeoutSeconds: 60 });
