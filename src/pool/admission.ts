@@ -1,4 +1,4 @@
-import { type Lease, MemoryBudget } from './budget.js';
+import { type Lease, MemoryBudget, type Reservation } from './budget.js';
 import { resolveMemoryBudget } from './budget-default.js';
 import { HAND_BACK_MIN_BYTES, handBack } from './hand-back.js';
 import { type PoolMemory, queuePerThread, type RenderPoolOptions, runningPerThread } from './options.js';
@@ -59,19 +59,20 @@ export class PoolAdmission {
     };
   }
 
-  /** Throws the 503 any job would get now (the wait line is full), before its source is read. */
-  refuseIfFull(): void {
-    this.budget.refuseIfFull();
+  /** A place in the wait line, taken before the job's source is read (MemoryBudget.reserve), or the 503 it would get. */
+  reserve(): Reservation {
+    return this.budget.reserve();
   }
 
   /** RenderPool.admit once the pool is known to be open. */
-  admit(bytes: number, what: string, signal: AbortSignal | undefined, heldBytes: number): Promise<Lease> {
+  admit(bytes: number, what: string, signal: AbortSignal | undefined, heldBytes: number, place?: Reservation): Promise<Lease> {
     // RSS only as a last resort, and only while other jobs run: their end brings it down, so
     // this can never refuse for good (an idle replica over the ceiling is /healthz's concern).
     if (this.rssCeiling > 0 && this.budget.state.running > 0 && process.memoryUsage.rss() > this.rssCeiling) {
+      place?.release();
       return Promise.reject(overRss(this.rssCeiling, this.retryAfterSeconds));
     }
-    return this.budget.acquire(bytes, what, signal).then((lease) => {
+    return this.budget.acquire(bytes, what, signal, place).then((lease) => {
       if (heldBytes < HAND_BACK_MIN_BYTES) return lease;
       // A job whose buffers in this process (`heldBytes` of `bytes`; an encoder's working set is
       // not) were this big dropped them: collect them now that it has ended (hand-back.ts). A

@@ -19,6 +19,32 @@ export interface Lease {
   release(): void;
 }
 
+/**
+ * A place in the wait line, taken before a job's source is read (MemoryBudget.reserve) and
+ * ended by `acquire` (the job then waits or runs on its own account); `release` gives it back
+ * when the job ends before it asks for memory (extra calls, and calls after acquire, are ignored).
+ */
+export interface Reservation {
+  release(): void;
+}
+
+class Place implements Reservation {
+  private held = true;
+
+  constructor(private readonly giveBack: () => void) {}
+
+  /** Ends the reservation once: the place is no longer counted (release or acquire took it). */
+  take(): void {
+    if (!this.held) return;
+    this.held = false;
+    this.giveBack();
+  }
+
+  release(): void {
+    this.take();
+  }
+}
+
 interface Waiter {
   bytes: number;
   grant: () => void;
@@ -48,6 +74,8 @@ export class MemoryBudget {
   private admitted = 0;
   private running = 0;
   private peak = 0;
+  /** Places reserved by jobs still reading their sources. */
+  private reserved = 0;
   private readonly line: Waiter[] = [];
 
   constructor(private readonly opts: BudgetOptions) {
@@ -66,20 +94,34 @@ export class MemoryBudget {
   }
 
   /**
-   * Throws the ERR_OVERLOADED acquire would throw for any job now: the line is full (and not
-   * empty, so no job is granted at once). Lets a caller refuse before it reads a source.
+   * A place in the wait line for a job about to read its source, or the 503 acquire would give
+   * it. While jobs can start at once (fewer than maxRunning run and none waits) anyone may read;
+   * otherwise the line's free places are what may read, each reserved by one job: a caller that
+   * read first and asked after would let every request arriving while a place is free read its
+   * source (for an HTTP origin, fetch it), all but one then refused. Pass the reservation to
+   * `acquire`, or release it.
+   * @throws FoldwiseError ERR_OVERLOADED when the line's places are taken or reserved
    */
-  refuseIfFull(): void {
+  reserve(): Reservation {
     const { length } = this.line;
-    if (length > 0 && length >= this.opts.maxWaiting) throw this.overloaded(`${length} jobs are already waiting for memory`);
+    const busy = this.running >= this.opts.maxRunning || length > 0;
+    if (busy && length + this.reserved >= this.opts.maxWaiting) {
+      throw this.overloaded(`${length} jobs are already waiting for memory and ${this.reserved} reading their sources`);
+    }
+    this.reserved += 1;
+    return new Place(() => {
+      this.reserved -= 1;
+    });
   }
 
   /**
-   * A lease of `bytes` once they fit. `what` names the job in a 413's detail.
+   * A lease of `bytes` once they fit. `what` names the job in a 413's detail; `place` its
+   * reservation, which ends here (taken into the line, or given back on a refusal).
    * @throws FoldwiseError ERR_SOURCE_TOO_COSTLY, ERR_OVERLOADED; the signal's reason when it aborts.
    */
-  async acquire(bytes: number, what: string, signal?: AbortSignal): Promise<Lease> {
+  async acquire(bytes: number, what: string, signal?: AbortSignal, place?: Reservation): Promise<Lease> {
     const { budgetBytes, maxWaiting, maxWaitMs } = this.opts;
+    if (place instanceof Place) place.take();
     signal?.throwIfAborted();
     if (bytes > budgetBytes) {
       throw new FoldwiseError(

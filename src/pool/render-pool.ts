@@ -3,7 +3,7 @@ import type { SourceSpectrum } from '../core/risk/index.js';
 import type { Analysed } from './analysis.js';
 import { FoldwiseError } from '../errors.js';
 import type { SharedRaster, SpooledRaster } from './worker.js';
-import type { Lease } from './budget.js';
+import type { Lease, Reservation } from './budget.js';
 import type { PoolMemory, RenderPoolOptions } from './options.js';
 import { HAND_BACK_MIN_BYTES, handBack } from './hand-back.js';
 import { share, StagingBuffers } from './staging.js';
@@ -64,14 +64,16 @@ export class RenderPool extends PoolThreads {
   }
 
   /**
-   * Throws now what `admit` would throw any job now (ERR_OVERLOADED: the wait line is full;
-   * ERR_SERVICE_STOPPING), so a request is refused before its source is read: under a flood a
-   * refusal then costs no origin read (load/miss-mix.ts at 16 connections: each refused
-   * request read a 12 MP source, 3-5 MB, first).
+   * A place in the wait line for a job about to read its source (MemoryBudget.reserve), to pass
+   * to `admit`; or throws now what `admit` would throw (ERR_OVERLOADED: no job can start at once
+   * and the line's places are taken or reserved; ERR_SERVICE_STOPPING). So a request is refused
+   * before its source is read: under a flood a refusal then costs no origin read
+   * (load/miss-mix.ts at 16 connections: each refused request read a 12 MP source, 3-5 MB,
+   * first), and a place that frees lets one source be read, not one per request arriving meanwhile.
    */
-  refuseIfFull(): void {
+  reserve(): Reservation {
     if (this.closing) throw this.stopping();
-    this.admission.refuseIfFull();
+    return this.admission.reserve();
   }
 
   /**
@@ -79,11 +81,15 @@ export class RenderPool extends PoolThreads {
    * garbage-collected buffers, by default all); release the lease when
    * the job's last byte is gone (after its encode). Throws ERR_SOURCE_TOO_COSTLY (413) for a
    * job larger than the budget, ERR_OVERLOADED past the line or the wait, the signal's reason
-   * when it aborts while waiting, ERR_SERVICE_STOPPING once the pool is closing.
+   * when it aborts while waiting, ERR_SERVICE_STOPPING once the pool is closing. `place`: the
+   * job's reservation (`reserve`), which admission takes over (or gives back when it refuses).
    */
-  admit(bytes: number, what: string, signal?: AbortSignal, heldBytes = bytes): Promise<Lease> {
-    if (this.closing) return Promise.reject(this.stopping());
-    return this.admission.admit(bytes, what, signal, heldBytes);
+  admit(bytes: number, what: string, signal?: AbortSignal, heldBytes = bytes, place?: Reservation): Promise<Lease> {
+    if (this.closing) {
+      place?.release();
+      return Promise.reject(this.stopping());
+    }
+    return this.admission.admit(bytes, what, signal, heldBytes, place);
   }
 
   /**

@@ -4,7 +4,7 @@ import type { OutputFormat } from '../codec/formats.js';
 import { readHeader, type SourceHeader } from '../codec/header.js';
 import { negotiateFormat } from '../codec/negotiate.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
-import type { Lease } from '../pool/budget.js';
+import type { Lease, Reservation } from '../pool/budget.js';
 import { analysisCost, decodeCost, ENCODER_BYTES_PER_PIXEL, outputCost, renditionCost, stagingCost } from '../pool/cost.js';
 import type { AdaptivePrefilter } from './prefilter.js';
 import { fallbackFormat } from './smallest.js';
@@ -52,13 +52,15 @@ function outputPixels(h: SourceHeader, q: RenditionQuery, limits: Limits): numbe
  * Estimates a rendition job's peak bytes from the source's header (read now, no pixel decoded;
  * the limits refuse a source here already) and waits for them in the pool's memory budget.
  * `source` is the read bytes, or the raster already decoded by the caller (then only the
- * staging copy and the output side are new).
+ * staging copy and the output side are new). `place`: the job's reservation, taken before its
+ * source was read (RenderPool.reserve); the caller releases it when this throws first.
  */
 export async function admitRendition(
   ctx: AdmitContext,
   source: ReadSource | { raster: PixelRaster; hasAlpha: boolean },
   q: RenditionQuery,
   accept: string | undefined,
+  place?: Reservation,
 ): Promise<Lease> {
   if ('bytes' in source) {
     const h = await ctx.clock.time('decode', () => readHeader(source.bytes, decodeLimits(ctx.limits), wishOf(q)));
@@ -72,10 +74,10 @@ export async function admitRendition(
     // Streamed, the source is in a spool file, not in this process's buffers.
     const held = streamed ? 0 : decodeCost(h) + stagingCost(h);
     const frames = (h.frames ?? 1) > 1 ? ` of ${h.frames} frames (pixels counted over every frame)` : '';
-    return ctx.pool.admit(bytes, `a ${h.width}x${h.height} ${8 * h.bytesPerSample}-bit ${h.channels}-channel source${frames}`, ctx.signal, held);
+    return ctx.pool.admit(bytes, `a ${h.width}x${h.height} ${8 * h.bytesPerSample}-bit ${h.channels}-channel source${frames}`, ctx.signal, held, place);
   }
   const h = headerOf(source.raster, source.hasAlpha);
   const pixels = outputPixels(h, q, ctx.limits);
   const bytes = stagingCost(h) + outputCost(h, pixels, formatFor(q, accept, h.hasAlpha)) + fallbackEncoder(h, q, pixels);
-  return ctx.pool.admit(bytes, `a rendition of a ${h.width}x${h.height} source`, ctx.signal, stagingCost(h));
+  return ctx.pool.admit(bytes, `a rendition of a ${h.width}x${h.height} source`, ctx.signal, stagingCost(h), place);
 }

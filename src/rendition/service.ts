@@ -11,6 +11,7 @@ import { formatKey } from './format-key.js';
 import { renditionKey, strongEtag } from './key.js';
 import { checkRequestedSize, clampedHeader } from './plan.js';
 import { admitRendition } from './admit.js';
+import type { Lease } from '../pool/budget.js';
 import { type ReadSource, readSource } from './source.js';
 import { encodeSmallest, fallbackFormat } from './smallest.js';
 import { StageClock, type StageTiming } from './timings.js';
@@ -37,13 +38,21 @@ async function produce(
   q: RenditionQuery,
   accept: string | undefined,
 ): Promise<{ entry: CacheEntry; identity: SourceIdentity }> {
-  // The origin read comes before admission: a slow upstream holds no memory budget. A full
-  // wait line refuses first, without reading: the admission would refuse it anyway.
-  if (!ctx.admitted) ctx.pool.refuseIfFull();
-  const given = givenSource(ctx, q);
-  const source = given ?? (await readSource(ctx.origin, path, ctx.limits, ctx.clock, ctx.signal));
-  ctx.signal?.throwIfAborted();
-  const lease = ctx.admitted ? undefined : await admitRendition(ctx, given ? given.decoded : source as ReadSource, q, accept);
+  // The origin read comes before admission: a slow upstream holds no memory budget. While no
+  // job can start at once, a place in the wait line is reserved first, without reading: a
+  // request that would find the line full is refused before its source is read.
+  const place = ctx.admitted ? undefined : ctx.pool.reserve();
+  let source: Awaited<ReturnType<typeof readSource>> | NonNullable<ReturnType<typeof givenSource>>;
+  let lease: Lease | undefined;
+  try {
+    const given = givenSource(ctx, q);
+    source = given ?? (await readSource(ctx.origin, path, ctx.limits, ctx.clock, ctx.signal));
+    ctx.signal?.throwIfAborted();
+    lease = ctx.admitted ? undefined : await admitRendition(ctx, given ? given.decoded : source as ReadSource, q, accept, place);
+  } finally {
+    // Given back when the job ended before admission took it over (a failed read, a bad header).
+    place?.release();
+  }
   // The lease is held until the encode has really ended (a deadline stops the wait, not libvips).
   let ended: Promise<unknown> = Promise.resolve();
   try {

@@ -131,4 +131,47 @@ describe('a full wait line', () => {
       await full.close();
     }
   });
+
+  it('while no job can start at once, reads one source per free place in line: the other requests arriving meanwhile are refused unread', async () => {
+    const lineTap = new PoolTap();
+    const full = await build({ sourceDir: t.sourceDir, poolRunner: lineTap.runner, config: { pool: { threads: 1, maxQueue: 1, memoryBudgetBytes: 8 * BUDGET, maxWaitMs: 60_000 } } });
+    try {
+      // One thread: two jobs run at once, held at the pool's door; one may wait.
+      const a = lineTap.holdNext();
+      const first = full.app.inject({ url: '/v1/renditions/small.png?width=300&format=png' });
+      await a.reachedPool;
+      const b = lineTap.holdNext();
+      const second = full.app.inject({ url: '/v1/renditions/small.png?width=301&format=png' });
+      await b.reachedPool;
+      // From here every origin read waits at a gate, so none of the next requests reaches
+      // admission meanwhile: before reservations all three read their source (the line was empty).
+      const origin = full.app.renderContext.origin;
+      const read = origin.read.bind(origin);
+      let reads = 0;
+      let open!: () => void;
+      const gate = new Promise<void>((resolve) => (open = resolve));
+      origin.read = async (...args: Parameters<typeof read>) => {
+        reads += 1;
+        await gate;
+        return read(...args);
+      };
+      const third = full.app.inject({ url: '/v1/renditions/small.png?width=302&format=png' });
+      await until(() => reads === 1);
+      const late = await Promise.all([303, 304].map((w) => full.app.inject({ url: `/v1/renditions/small.png?width=${w}&format=png` })));
+      expect(late.map((r) => [r.statusCode, r.json().code])).toEqual([[503, 'ERR_OVERLOADED'], [503, 'ERR_OVERLOADED']]);
+      expect(late[0].headers['retry-after']).toBe(String(full.config.pool.retryAfterSeconds));
+      expect(reads).toBe(1);
+      open();
+      await until(() => full.app.renderPool.memory().waiting === 1);
+      a.release();
+      b.release();
+      expect([(await first).statusCode, (await second).statusCode, (await third).statusCode]).toEqual([200, 200, 200]);
+      expect(reads).toBe(1);
+      await until(() => full.app.renderPool.memory().admittedBytes === 0);
+      // Every place is back: the next request is served.
+      expect((await full.app.inject({ url: '/v1/renditions/small.png?width=305&format=png' })).statusCode).toBe(200);
+    } finally {
+      await full.close();
+    }
+  });
 });

@@ -52,27 +52,60 @@ describe('MemoryBudget', () => {
     held.release();
   });
 
-  it('refuseIfFull throws the 503 acquire would throw exactly when the wait line is full, and nothing before', async () => {
+  it('reserve: while no job can start at once, one job per free place in line may read its source; the next gets the 503 unread', async () => {
     const b = budget({ maxRunning: 1, maxWaiting: 2 });
-    expect(() => b.refuseIfFull()).not.toThrow();
+    const refusal = () => {
+      try {
+        b.reserve().release();
+      } catch (e) {
+        return e;
+      }
+      return undefined;
+    };
     const held = await b.acquire(1, 'running');
-    expect(() => b.refuseIfFull()).not.toThrow();
-    const w1 = b.acquire(1, 'waits 1');
-    expect(() => b.refuseIfFull()).not.toThrow();
-    const w2 = b.acquire(1, 'waits 2');
-    let thrown: unknown;
-    try {
-      b.refuseIfFull();
-    } catch (e) {
-      thrown = e;
-    }
-    expect(thrown).toMatchObject({ code: 'ERR_OVERLOADED', status: 503, headers: { 'retry-after': '3' } });
-    // acquire refuses the same job the same way.
-    await expect(b.acquire(1, 'third')).rejects.toMatchObject({ code: 'ERR_OVERLOADED' });
+    const r1 = b.reserve();
+    const r2 = b.reserve();
+    expect(refusal()).toMatchObject({ code: 'ERR_OVERLOADED', status: 503, headers: { 'retry-after': '3' }, message: expect.stringContaining('0 jobs are already waiting for memory and 2 reading their sources') });
+    // A reserved job takes its place in line; a released reservation frees one.
+    const w1 = b.acquire(1, 'reserved 1', undefined, r1);
+    expect(b.state).toMatchObject({ running: 1, waiting: 1 });
+    expect(refusal()).toMatchObject({ code: 'ERR_OVERLOADED' });
+    r1.release(); // taken by acquire already: nothing changes
+    expect(refusal()).toMatchObject({ code: 'ERR_OVERLOADED' });
+    r2.release();
+    r2.release();
+    expect(refusal()).toBeUndefined();
+    const r3 = b.reserve();
+    const w3 = b.acquire(1, 'reserved 3', undefined, r3);
+    expect(b.state).toMatchObject({ running: 1, waiting: 2 });
+    expect(refusal()).toMatchObject({ code: 'ERR_OVERLOADED', message: expect.stringContaining('2 jobs are already waiting for memory and 0 reading') });
+    await expect(b.acquire(1, 'third in line')).rejects.toMatchObject({ code: 'ERR_OVERLOADED' });
     held.release();
     (await w1).release();
-    expect(() => b.refuseIfFull()).not.toThrow();
-    (await w2).release();
+    (await w3).release();
+    expect(b.state).toMatchObject({ running: 0, waiting: 0, admittedBytes: 0 });
+    expect(refusal()).toBeUndefined();
+  });
+
+  it('reserve: while jobs can start at once any number may read (a slow origin\'s reads overlap); admission then decides as before and gives refused places back', async () => {
+    const b = budget({ maxRunning: 2, maxWaiting: 1 });
+    const places = [0, 1, 2, 3, 4].map(() => b.reserve());
+    const asked = places.map((p, i) => b.acquire(1, `job ${i}`, undefined, p).then((l) => l, (e: unknown) => e));
+    expect(b.state).toMatchObject({ running: 2, waiting: 1 });
+    const refused = await Promise.all(asked.slice(3));
+    expect(refused.map((e) => (e as FoldwiseError).code)).toEqual(['ERR_OVERLOADED', 'ERR_OVERLOADED']);
+    // Every place was taken or given back: with two running and one waiting, the next is refused unread.
+    expect(() => b.reserve()).toThrow(expect.objectContaining({ code: 'ERR_OVERLOADED' }));
+    // A reserved job refused for its size gives its place back too.
+    const leases = (await Promise.all(asked.slice(0, 2))) as Array<{ release(): void }>;
+    leases[0].release();
+    const third = (await asked[2]) as { release(): void };
+    const r = b.reserve();
+    expect(() => b.reserve()).toThrow(expect.objectContaining({ code: 'ERR_OVERLOADED' }));
+    await expect(b.acquire(150 * MiB, 'too big', undefined, r)).rejects.toMatchObject({ code: 'ERR_SOURCE_TOO_COSTLY' });
+    b.reserve().release();
+    leases[1].release();
+    third.release();
     expect(b.state).toMatchObject({ running: 0, waiting: 0, admittedBytes: 0 });
   });
 
