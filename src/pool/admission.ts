@@ -69,7 +69,6 @@ export class PoolAdmission {
     // RSS only as a last resort, and only while other jobs run: their end brings it down, so
     // this can never refuse for good (an idle replica over the ceiling is /healthz's concern).
     if (this.rssCeiling > 0 && this.budget.state.running > 0 && process.memoryUsage.rss() > this.rssCeiling) {
-      place?.release();
       return Promise.reject(overRss(this.rssCeiling, this.retryAfterSeconds));
     }
     return this.budget.acquire(bytes, what, signal, place).then((lease) => {

@@ -21,28 +21,11 @@ export interface Lease {
 
 /**
  * A place in the wait line, taken before a job's source is read (MemoryBudget.reserve) and
- * ended by `acquire` (the job then waits or runs on its own account); `release` gives it back
- * when the job ends before it asks for memory (extra calls, and calls after acquire, are ignored).
+ * ended by `acquire` (the job then waits or runs on its own account), or by `release` when the
+ * job ends before it asks for memory; extra calls are ignored.
  */
 export interface Reservation {
   release(): void;
-}
-
-class Place implements Reservation {
-  private held = true;
-
-  constructor(private readonly giveBack: () => void) {}
-
-  /** Ends the reservation once: the place is no longer counted (release or acquire took it). */
-  take(): void {
-    if (!this.held) return;
-    this.held = false;
-    this.giveBack();
-  }
-
-  release(): void {
-    this.take();
-  }
 }
 
 interface Waiter {
@@ -109,9 +92,14 @@ export class MemoryBudget {
       throw this.overloaded(`${length} jobs are already waiting for memory and ${this.reserved} reading their sources`);
     }
     this.reserved += 1;
-    return new Place(() => {
-      this.reserved -= 1;
-    });
+    let held = true;
+    return {
+      release: () => {
+        if (!held) return;
+        held = false;
+        this.reserved -= 1;
+      },
+    };
   }
 
   /**
@@ -121,7 +109,7 @@ export class MemoryBudget {
    */
   async acquire(bytes: number, what: string, signal?: AbortSignal, place?: Reservation): Promise<Lease> {
     const { budgetBytes, maxWaiting, maxWaitMs } = this.opts;
-    if (place instanceof Place) place.take();
+    place?.release();
     signal?.throwIfAborted();
     if (bytes > budgetBytes) {
       throw new FoldwiseError(

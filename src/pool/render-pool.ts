@@ -82,13 +82,11 @@ export class RenderPool extends PoolThreads {
    * the job's last byte is gone (after its encode). Throws ERR_SOURCE_TOO_COSTLY (413) for a
    * job larger than the budget, ERR_OVERLOADED past the line or the wait, the signal's reason
    * when it aborts while waiting, ERR_SERVICE_STOPPING once the pool is closing. `place`: the
-   * job's reservation (`reserve`), which admission takes over (or gives back when it refuses).
+   * job's reservation (`reserve`), which ends once memory is asked for; the caller releases it
+   * in any case (a no-op then), since a refusal before that leaves it held.
    */
   admit(bytes: number, what: string, signal?: AbortSignal, heldBytes = bytes, place?: Reservation): Promise<Lease> {
-    if (this.closing) {
-      place?.release();
-      return Promise.reject(this.stopping());
-    }
+    if (this.closing) return Promise.reject(this.stopping());
     return this.admission.admit(bytes, what, signal, heldBytes, place);
   }
 

@@ -12,7 +12,7 @@ import { renditionKey, strongEtag } from './key.js';
 import { checkRequestedSize, clampedHeader } from './plan.js';
 import { admitRendition } from './admit.js';
 import type { Lease } from '../pool/budget.js';
-import { type ReadSource, readSource } from './source.js';
+import { type LoadedSource, type ReadSource, readSource } from './source.js';
 import { encodeSmallest, fallbackFormat } from './smallest.js';
 import { StageClock, type StageTiming } from './timings.js';
 import { collectMarks } from '../pool/trace-scope.js';
@@ -42,7 +42,7 @@ async function produce(
   // job can start at once, a place in the wait line is reserved first, without reading: a
   // request that would find the line full is refused before its source is read.
   const place = ctx.admitted ? undefined : ctx.pool.reserve();
-  let source: Awaited<ReturnType<typeof readSource>> | NonNullable<ReturnType<typeof givenSource>>;
+  let source: LoadedSource | ReadSource;
   let lease: Lease | undefined;
   try {
     const given = givenSource(ctx, q);
@@ -50,7 +50,7 @@ async function produce(
     ctx.signal?.throwIfAborted();
     lease = ctx.admitted ? undefined : await admitRendition(ctx, given ? given.decoded : source as ReadSource, q, accept, place);
   } finally {
-    // Given back when the job ended before admission took it over (a failed read, a bad header).
+    // Given back when the job ended before asking for memory (a failed read, a bad header, a refusal); else a no-op.
     place?.release();
   }
   // The lease is held until the encode has really ended (a deadline stops the wait, not libvips).

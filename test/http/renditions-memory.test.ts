@@ -99,77 +99,75 @@ describe('a bounded wait', () => {
   });
 });
 
+/**
+ * A service with one thread, so two jobs run at once (pool/options.ts runningPerThread) and one
+ * may wait, whose first two requests (widths `w` and `w + 1`) are held at the pool's door;
+ * `reads` counts the origin's reads, each of which first waits for `gate` when one is given.
+ */
+async function lineOfOne(w: number, gate?: Promise<void>) {
+  const lineTap = new PoolTap();
+  const full = await build({ sourceDir: t.sourceDir, poolRunner: lineTap.runner, config: { pool: { threads: 1, maxQueue: 1, memoryBudgetBytes: 8 * BUDGET, maxWaitMs: 60_000 } } });
+  const origin = full.app.renderContext.origin;
+  const read = origin.read.bind(origin);
+  const counted = { reads: 0, gated: false };
+  origin.read = async (...args: Parameters<typeof read>) => {
+    counted.reads += 1;
+    if (counted.gated) await gate;
+    return read(...args);
+  };
+  const ask = (width: number) => full.app.inject({ url: `/v1/renditions/small.png?width=${width}&format=png` });
+  const a = lineTap.holdNext();
+  const first = ask(w);
+  await a.reachedPool;
+  const b = lineTap.holdNext();
+  const second = ask(w + 1);
+  await b.reachedPool;
+  return { full, counted, ask, held: [first, second], release: () => (a.release(), b.release()) };
+}
+
 describe('a full wait line', () => {
   it('refuses a request with 503 ERR_OVERLOADED before its source is read', async () => {
-    const lineTap = new PoolTap();
-    // One thread: two jobs run at once (pool/options.ts runningPerThread), one may wait.
-    const full = await build({ sourceDir: t.sourceDir, poolRunner: lineTap.runner, config: { pool: { threads: 1, maxQueue: 1, memoryBudgetBytes: 8 * BUDGET, maxWaitMs: 60_000 } } });
+    const { full, counted, ask, held: [first, second], release } = await lineOfOne(200);
     try {
-      const origin = full.app.renderContext.origin;
-      const read = origin.read.bind(origin);
-      let reads = 0;
-      origin.read = (...args: Parameters<typeof read>) => ((reads += 1), read(...args));
-      const a = lineTap.holdNext();
-      const first = full.app.inject({ url: '/v1/renditions/small.png?width=200&format=png' });
-      await a.reachedPool;
-      const b = lineTap.holdNext();
-      const second = full.app.inject({ url: '/v1/renditions/small.png?width=201&format=png' });
-      await b.reachedPool;
-      const third = full.app.inject({ url: '/v1/renditions/small.png?width=202&format=png' });
+      const third = ask(202);
       await until(() => full.app.renderPool.memory().waiting === 1);
-      expect(reads).toBe(3);
-      const fourth = await full.app.inject({ url: '/v1/renditions/small.png?width=203&format=png' });
+      expect(counted.reads).toBe(3);
+      const fourth = await ask(203);
       expect(fourth.statusCode).toBe(503);
       expect(fourth.json()).toMatchObject({ code: 'ERR_OVERLOADED' });
       expect(fourth.headers['retry-after']).toBe(String(full.config.pool.retryAfterSeconds));
-      expect(reads).toBe(3);
-      a.release();
-      b.release();
+      expect(counted.reads).toBe(3);
+      release();
       expect([(await first).statusCode, (await second).statusCode, (await third).statusCode]).toEqual([200, 200, 200]);
-      expect(reads).toBe(3);
+      expect(counted.reads).toBe(3);
     } finally {
       await full.close();
     }
   });
 
   it('while no job can start at once, reads one source per free place in line: the other requests arriving meanwhile are refused unread', async () => {
-    const lineTap = new PoolTap();
-    const full = await build({ sourceDir: t.sourceDir, poolRunner: lineTap.runner, config: { pool: { threads: 1, maxQueue: 1, memoryBudgetBytes: 8 * BUDGET, maxWaitMs: 60_000 } } });
+    let open!: () => void;
+    const gate = new Promise<void>((resolve) => (open = resolve));
+    const { full, counted, ask, held: [first, second], release } = await lineOfOne(300, gate);
     try {
-      // One thread: two jobs run at once, held at the pool's door; one may wait.
-      const a = lineTap.holdNext();
-      const first = full.app.inject({ url: '/v1/renditions/small.png?width=300&format=png' });
-      await a.reachedPool;
-      const b = lineTap.holdNext();
-      const second = full.app.inject({ url: '/v1/renditions/small.png?width=301&format=png' });
-      await b.reachedPool;
-      // From here every origin read waits at a gate, so none of the next requests reaches
+      // From here every origin read waits at the gate, so none of the next requests reaches
       // admission meanwhile: before reservations all three read their source (the line was empty).
-      const origin = full.app.renderContext.origin;
-      const read = origin.read.bind(origin);
-      let reads = 0;
-      let open!: () => void;
-      const gate = new Promise<void>((resolve) => (open = resolve));
-      origin.read = async (...args: Parameters<typeof read>) => {
-        reads += 1;
-        await gate;
-        return read(...args);
-      };
-      const third = full.app.inject({ url: '/v1/renditions/small.png?width=302&format=png' });
-      await until(() => reads === 1);
-      const late = await Promise.all([303, 304].map((w) => full.app.inject({ url: `/v1/renditions/small.png?width=${w}&format=png` })));
+      counted.gated = true;
+      counted.reads = 0;
+      const third = ask(302);
+      await until(() => counted.reads === 1);
+      const late = await Promise.all([303, 304].map(ask));
       expect(late.map((r) => [r.statusCode, r.json().code])).toEqual([[503, 'ERR_OVERLOADED'], [503, 'ERR_OVERLOADED']]);
       expect(late[0].headers['retry-after']).toBe(String(full.config.pool.retryAfterSeconds));
-      expect(reads).toBe(1);
+      expect(counted.reads).toBe(1);
       open();
       await until(() => full.app.renderPool.memory().waiting === 1);
-      a.release();
-      b.release();
+      release();
       expect([(await first).statusCode, (await second).statusCode, (await third).statusCode]).toEqual([200, 200, 200]);
-      expect(reads).toBe(1);
+      expect(counted.reads).toBe(1);
       await until(() => full.app.renderPool.memory().admittedBytes === 0);
       // Every place is back: the next request is served.
-      expect((await full.app.inject({ url: '/v1/renditions/small.png?width=305&format=png' })).statusCode).toBe(200);
+      expect((await ask(305)).statusCode).toBe(200);
     } finally {
       await full.close();
     }

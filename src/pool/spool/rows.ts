@@ -1,5 +1,6 @@
 import { closeSync, openSync, readSync } from 'node:fs';
 import { epochNow, tracing, WaitSpans } from '../trace.js';
+import { StagingBuffers } from '../staging.js';
 
 /** What the reader expects of the spool file's pixels. */
 export interface SpoolShape {
@@ -27,37 +28,13 @@ const MAGIC = [0xb6, 0xa6, 0xf2, 0x08];
 const BLOCK_BYTES = 2 ** 20;
 
 /**
- * Blocks a closed reader left, for the next reader of this thread: a fresh block is new
- * memory, and on a machine that hands freed memory back to its host (a virtual machine with
- * free page reporting) every first touch of it is a page fault, for the reader and for the
- * libvips threads that fill the spool file meanwhile (measured: `scripts/bench/cpu.ts`, see
- * docs/speed.md). Two blocks (a render's and an analysis's) of at most KEEP_MAX_BYTES each.
+ * Blocks closed readers left, for this thread's next readers: a fresh block is new memory, and
+ * on a machine that hands freed memory back to its host (a virtual machine with free page
+ * reporting) every first touch of it is a page fault, for the reader and for the libvips
+ * threads that fill the spool file meanwhile (measured: `scripts/bench/cpu.ts`, see
+ * docs/speed.md). Two blocks (a render's and an analysis's) of at most 8 MiB each.
  */
-const kept: ArrayBuffer[] = [];
-const KEEP_COUNT = 2;
-const KEEP_MAX_BYTES = 8 * 2 ** 20;
-
-/** A kept block of at least `bytes` (the smallest that fits), or a new one. */
-function takeBlock(bytes: number): ArrayBuffer {
-  let best = -1;
-  for (let i = 0; i < kept.length; i++) {
-    if (kept[i].byteLength >= bytes && (best < 0 || kept[i].byteLength < kept[best].byteLength)) best = i;
-  }
-  return best < 0 ? new ArrayBuffer(bytes) : kept.splice(best, 1)[0];
-}
-
-/** Keeps `block` for a later reader when there is room (the largest are kept). */
-function keepBlock(block: ArrayBuffer): void {
-  if (block.byteLength > KEEP_MAX_BYTES) return;
-  kept.push(block);
-  kept.sort((a, b) => b.byteLength - a.byteLength);
-  kept.length = Math.min(kept.length, KEEP_COUNT);
-}
-
-/** How many blocks this thread keeps, and their bytes (for tests). */
-export function keptBlocks(): { count: number; bytes: number } {
-  return { count: kept.length, bytes: kept.reduce((sum, b) => sum + b.byteLength, 0) };
-}
+const blocks = new StagingBuffers(2, 8 * 2 ** 20, (bytes) => new ArrayBuffer(bytes));
 
 /** The rows a reader's block holds: about BLOCK_BYTES, at least `minRows` (and one), at most the image. */
 export function blockRows(shape: SpoolShape, minRows = 1): number {
@@ -130,7 +107,7 @@ export class SpoolRows {
   ) {
     this.rowBytes = shape.width * shape.channels * (shape.depth / 8);
     const bytes = blockRows(shape, minRows) * this.rowBytes;
-    const buffer = takeBlock(bytes);
+    const buffer = blocks.take(bytes);
     this.buffer = buffer;
     this.block = new Uint8Array(buffer, 0, bytes);
     this.samples = shape.depth === 16 ? new Uint16Array(buffer, 0, bytes / 2) : this.block;
@@ -150,7 +127,7 @@ export class SpoolRows {
   close(): void {
     if (this.fd >= 0) closeSync(this.fd);
     this.fd = -1;
-    if (this.buffer) keepBlock(this.buffer);
+    if (this.buffer) blocks.give(this.buffer);
     this.buffer = null;
     this.count = 0; // any later rowAt goes to load, which refuses
   }

@@ -3,7 +3,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { headerMismatch, keptBlocks, type SpoolShape as FeedShape, SpoolReadError, SpoolRows, STOPPED, WRITING, WRITTEN } from '../../../src/pool/spool/rows.js';
+import { headerMismatch, type SpoolShape as FeedShape, SpoolReadError, SpoolRows, STOPPED, WRITING, WRITTEN } from '../../../src/pool/spool/rows.js';
 
 let dir: string;
 let serial = 0;
@@ -199,11 +199,22 @@ describe('SpoolRows blocks kept for the thread\'s next reader (fresh memory cost
     }
   });
 
-  it('keeps the two largest blocks of at most 8 MiB each', () => {
-    const rowsOf = (width: number): FeedShape => ({ width, height: 1, channels: 3, depth: 8 });
-    // Never read, so no file is needed: each holds a block of one row.
-    const readers = [1000, 3000, 2000, 3_000_000].map((w) => new SpoolRows(join(dir, 'unread.v'), rowsOf(w), writerState(WRITTEN)));
-    for (const r of readers) r.close();
-    expect(keptBlocks()).toEqual({ count: 2, bytes: 3 * 3000 + 3 * 2000 });
+  it('keeps a closed reader\'s block of up to 8 MiB for the next reader, and none larger (which two are kept: StagingBuffers)', async () => {
+    const tall: FeedShape = { width: 1024, height: 3000, channels: 3, depth: 8 };
+    const { path } = await vipsFile(tall, noise(size(tall), false, 23));
+    const blockOf = (minRows: number) => {
+      const reader = new SpoolRows(path, tall, writerState(WRITTEN), minRows);
+      const buffer = reader.rowAt(0).data.buffer;
+      reader.close();
+      return buffer;
+    };
+    // All 3000 rows in one block: 9 MiB, made for that reader alone.
+    const big = blockOf(3000);
+    expect(big.byteLength).toBe(9 * 2 ** 20);
+    expect(blockOf(3000)).not.toBe(big);
+    // 2000 rows: 6 MiB, kept and handed to the next reader that needs that much.
+    const kept = blockOf(2000);
+    expect(kept.byteLength).toBe(6 * 2 ** 20);
+    expect(blockOf(2000)).toBe(kept);
   });
 });
