@@ -60,6 +60,11 @@ export const cacheSchema = z.strictObject({
   memoryBytes: z.number().int().min(0),
   /** How long a source's identity (size + mtime, upstream ETag) is trusted; 0 = always ask. */
   identityTtlMs: z.number().int().min(0).max(3_600_000),
+  /**
+   * Bytes of sources read lately kept in memory, so a further rendition of the same picture
+   * skips the origin read (src/rendition/source-memo.ts); 0 = read every time.
+   */
+  sourceBytes: z.number().int().min(0),
   dir: z.string().min(1),
   diskBytes: z.number().int().min(0),
   redisUrl: z.string().url().nullable(),

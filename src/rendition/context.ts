@@ -5,6 +5,7 @@ import type { Limits } from '../config.js';
 import type { Origin, SourceIdentity } from '../origins/types.js';
 import type { RenderPool } from '../pool/render-pool.js';
 import type { IdentityMemo } from './identity.js';
+import type { SourceMemo } from './source-memo.js';
 import type { LoadedSource } from './source.js';
 import type { AdaptivePrefilter } from './prefilter.js';
 import type { Stage, StageClock } from './timings.js';
@@ -24,6 +25,8 @@ export interface RenderContext {
   onLookup?: (result: string) => void;
   /** Short-lived memo of source identities (hits then skip the origin); default ask the origin. */
   identities?: IdentityMemo;
+  /** The bytes of sources read lately (source-memo.ts): a further rendition skips the origin read; default read every time. */
+  sources?: SourceMemo;
   /**
    * Content-adaptive prefilter (alias-risk analysis, src/risk/service.ts), asked only when
    * prefilter=auto and the plan shrinks; it analyses and decides in the pool's threads.

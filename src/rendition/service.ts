@@ -46,7 +46,8 @@ async function produce(
   let lease: Lease | undefined;
   try {
     const given = givenSource(ctx, q);
-    source = given ?? (await readSource(ctx.origin, path, ctx.limits, ctx.clock, ctx.signal));
+    const kept = ctx.sources && { memo: ctx.sources, asked: ctx.asked };
+    source = given ?? (await readSource(ctx.origin, path, ctx.limits, ctx.clock, ctx.signal, kept));
     ctx.signal?.throwIfAborted();
     lease = ctx.admitted ? undefined : await admitRendition(ctx, given ? given.decoded : source as ReadSource, q, accept, place);
   } finally {

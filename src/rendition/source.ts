@@ -6,6 +6,7 @@ import type { RenditionQuery } from '../schemas/rendition.js';
 import { formatSpecs } from '../codec/formats.js';
 import type { Origin, SourceIdentity } from '../origins/types.js';
 import type { StageClock } from './timings.js';
+import type { SourceMemo } from './source-memo.js';
 
 export interface LoadedSource {
   identity: SourceIdentity;
@@ -28,14 +29,21 @@ export function decodeLimits(limits: Limits): DecodeLimits {
   };
 }
 
-/** Reads a source from the origin (timed as `origin`) and refuses it past the byte limit. */
+/**
+ * Reads a source from the origin (timed as `origin`) and refuses it past the byte limit. With
+ * `kept`, the bytes of the identity just asked for come from the memo when it holds them (no
+ * origin read, nothing timed), and bytes read are kept there for the next rendition.
+ */
 export async function readSource(
   origin: Origin,
   path: string,
   limits: Limits,
   clock: StageClock,
   signal?: AbortSignal,
+  kept?: { memo: SourceMemo; asked: SourceIdentity },
 ): Promise<ReadSource> {
+  const known = kept?.memo.get(kept.asked);
+  if (known && known.bytes.length <= limits.maxSourceBytes) return known;
   const source = await clock.time('origin', () => origin.read(path, signal));
   if (source.bytes.length > limits.maxSourceBytes) {
     throw new FoldwiseError(
@@ -43,7 +51,9 @@ export async function readSource(
       `the source has ${source.bytes.length} bytes; the limit is ${limits.maxSourceBytes}`,
     );
   }
-  return { identity: source.identity, bytes: source.bytes };
+  const read = { identity: source.identity, bytes: source.bytes };
+  kept?.memo.keep(read);
+  return read;
 }
 
 /**

@@ -56,7 +56,8 @@ export async function assessSource(ctx: RiskContext, path: string, q: RenditionQ
   let analyseMs = 0;
   const { spectrum, from } = await ctx.spectra.get(identity, async (analyse) => {
     // Read before admission; admitted for the decode and as much again for the analysis (an allowance).
-    const read = await readSource(render.origin, path, render.limits, clock);
+    const kept = render.sources && { memo: render.sources, asked: identity };
+    const read = await readSource(render.origin, path, render.limits, clock, undefined, kept);
     const header = await readHeader(read.bytes, decodeLimits(render.limits));
     const lease = await render.pool.admit(2 * decodeCost(header), `analysing a ${header.width}x${header.height} source`);
     try {

@@ -1,6 +1,7 @@
 import type { FastifyInstance } from 'fastify';
 import fp from 'fastify-plugin';
 import { IdentityMemo } from '../../rendition/identity.js';
+import { SourceMemo } from '../../rendition/source-memo.js';
 import type { RenderContext } from '../../rendition/service.js';
 import { adaptivePrefilter } from '../../risk/service.js';
 
@@ -18,6 +19,7 @@ async function renderPlugin(app: FastifyInstance): Promise<void> {
     origin: app.origin,
     onStored: (source, key) => app.noteCached(source, key),
     identities: new IdentityMemo(app.origin, app.config.cache.identityTtlMs),
+    sources: app.config.cache.sourceBytes > 0 ? new SourceMemo(app.config.cache.sourceBytes) : undefined,
     cache: app.renditionCache.cache,
     flight: app.renditionCache.flight,
     pool: app.renderPool,
