@@ -48,6 +48,11 @@ export class SourceMemo {
     this.kept.set(source.identity.key, source);
   }
 
+  /** Lets a source's bytes go (a deleted source: they are never served again, and not held either). */
+  forget(key: string): void {
+    this.kept.delete(key);
+  }
+
   /** Bytes held now (for tests and metrics). */
   get bytes(): number {
     return this.kept.calculatedSize;

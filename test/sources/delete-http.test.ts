@@ -1,7 +1,7 @@
 /**
  * DELETE /v1/sources/{path} on one replica (memory and disk tiers): refused unless signing is
  * on and the URL signed; removes the source, every rendition on every tier, the identity memo,
- * the spectrum and the manifests, so that nothing of it is served afterwards.
+ * the kept bytes, the spectrum and the manifests, so that nothing of it is served afterwards.
  */
 import { readdir } from 'node:fs/promises';
 import { join, relative } from 'node:path';
@@ -39,7 +39,7 @@ describe('with signing on', () => {
   let t: TestApp;
   beforeAll(async () => {
     // Renditions may be fetched unsigned here; deletion still needs its own signed URL.
-    t = await build({ config: { signing: { keys: [key], required: false } } });
+    t = await build({ config: { signing: { keys: [key], required: false }, cache: { sourceBytes: 16 * 2 ** 20 } } });
     await writePng(t.sourceDir, 'label.png', 96, 64, 3, checks);
     await writePng(t.sourceDir, 'brick.png', 96, 64, 3, checks);
   });
@@ -66,12 +66,17 @@ describe('with signing on', () => {
     await t.app.renditionCache.cache.settled();
     const keep = await diskEntries(t.cacheDir);
     expect(keep.length).toBeGreaterThanOrEqual(2);
+    // The source's bytes are kept for its next rendition (cache.sourceBytes)...
+    const identity = await t.app.origin.identify('brick.png');
+    expect(t.app.renderContext.sources?.get(identity)?.bytes.length).toBeGreaterThan(0);
     const res = await t.app.inject({ method: 'DELETE', url: signUrl('/v1/sources/brick.png', {}, key) });
     expect(res.statusCode).toBe(200);
     expect(res.json()).toMatchObject({ source: 'brick.png', removed: true, replicas: 0 });
     expect(res.json().entries).toBeGreaterThanOrEqual(2);
     expect(res.headers['cache-control']).toBe('no-store');
     expect(await readdir(t.sourceDir)).not.toContain('brick.png');
+    // ...and let go with it.
+    expect(t.app.renderContext.sources?.get(identity)).toBeUndefined();
     // The other source's entries stay; none of brick.png's do.
     expect((await diskEntries(t.cacheDir)).length).toBe(keep.length - res.json().entries);
     for (const u of urls) {

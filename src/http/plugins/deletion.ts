@@ -29,7 +29,7 @@ const CONFIRM_MS = 2000;
 /**
  * Deletion of a source: the source from the origin first (no new render can start from it),
  * then every key the source index holds for it from every tier of this replica (memory, then
- * disk or Redis), its identity memo, spectrum and manifests; with Redis, the other replicas do
+ * disk or Redis), its identity memo, kept bytes, spectrum and manifests; with Redis, the other replicas do
  * the same for their memory on the purge message before this answers (or CONFIRM_MS passes).
  * With Redis configured but away it refuses (503 ERR_PURGE_DOWN) before deleting anything.
  */
@@ -37,6 +37,7 @@ async function deletionPlugin(app: FastifyInstance): Promise<void> {
   const { renderContext: ctx, renditionCache, spectra, ingest, sourceIndex } = app;
   const forgetLocally = async (source: string, keys: string[]): Promise<void> => {
     ctx.identities?.forget(source);
+    ctx.sources?.forget(source);
     spectra.forget(source);
     ingest.forgetSource(source);
     const tiers = renditionCache.cache.tiers;
