@@ -1,4 +1,4 @@
-import { mkdtemp, rm, utimes } from 'node:fs/promises';
+import { mkdtemp, rm, stat, utimes } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
@@ -42,6 +42,9 @@ describe('the source memo: further renditions of a picture skip the origin read'
     const risk = await s.t.app.inject({ url: '/v1/alias-risk/twill.png?width=20' });
     expect(risk.statusCode).toBe(200);
     expect(s.gated.state.reads).toBe(1);
+    // The PNG's bytes, as /metrics reports them.
+    const { size } = await stat(join(s.dir, 'twill.png'));
+    expect((await s.t.app.inject({ url: '/metrics' })).body).toMatch(new RegExp(`^foldwise_source_bytes_kept ${size}$`, 'm'));
   });
 
   it('a source replaced on disk is read again, and its renditions show the new bytes', async () => {
