@@ -110,9 +110,10 @@ export class DiskTier implements CacheTier {
     }
     const read = decodeDiskEntry(file);
     if (!read.ok) {
-      // Never served: deleted (the next miss renders and stores it again), counted if damaged.
-      if (this.index.has(fk)) this.index.delete(fk);
-      else await unlink(this.path(fk)).catch(() => undefined);
+      // Never served: deleted before this returns (the next miss renders and stores it again),
+      // counted if damaged. The index's dispose unlinks it too, without being waited for.
+      this.index.delete(fk);
+      await unlink(this.path(fk)).catch(() => undefined);
       if (read.reason === 'corrupt') this.emit({ kind: 'corrupt', key: fk, detail: read.detail });
       return undefined;
     }
