@@ -49,6 +49,11 @@ export const poolSchema = z.strictObject({
   /** Longest wait for room in the budget before 503 + Retry-After; well under the idle timeout. */
   maxWaitMs: z.number().int().min(0).max(60_000),
   /**
+   * Requests that may wait, without reading their source, for a place in the line once it is
+   * full (each at most maxWaitMs); past them 503 at once. 0 = refuse at once when the line is full.
+   */
+  lobby: z.number().int().min(0),
+  /**
    * The worker threads' nice value (0..19; Linux keeps one per thread): the decode, the encode
    * and the event loop go first when the cores are short (src/pool/nice.ts). 0 = as the process
    * (the default: under a flood of requests the event loop then out-runs the renders).

@@ -25,6 +25,7 @@ export class PoolAdmission {
       maxWaiting: opts.maxQueue ?? queuePerThread * threads,
       maxWaitMs: opts.maxWaitMs ?? 4000,
       retryAfterSeconds: opts.retryAfterSeconds,
+      maxLobby: opts.lobby ?? 0,
     });
   }
 
@@ -62,6 +63,11 @@ export class PoolAdmission {
   /** A place in the wait line, taken before the job's source is read (MemoryBudget.reserve), or the 503 it would get. */
   reserve(): Reservation {
     return this.budget.reserve();
+  }
+
+  /** reserve, waiting in the lobby for a place while the line is full (MemoryBudget.enter). */
+  enter(signal?: AbortSignal): Promise<Reservation> {
+    return this.budget.enter(signal);
   }
 
   /** RenderPool.admit once the pool is known to be open. */

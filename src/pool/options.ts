@@ -10,8 +10,10 @@ export interface RenderPoolOptions {
   retryAfterSeconds: number;
   /** The byte budget jobs are admitted against (src/pool/budget.ts); null or absent = sized to the container. */
   memoryBudgetBytes?: number | null;
-  /** Longest wait for room in the budget before 503; default 4 s. */
+  /** Longest wait for room in the budget before 503 (and for a place in the line, from the lobby); default 4 s. */
   maxWaitMs?: number;
+  /** Requests that may wait, unread, for a place in the line (MemoryBudget.enter); 0 or absent = refused at once. */
+  lobby?: number;
   /** Last-resort guard: above this RSS a new job is refused (503) while others still run; 0 or absent = off. */
   rssCeilingBytes?: number;
   /** Spool folder for decodes resampled as they arrive ('auto', a path, or 'off'); default 'off'. */

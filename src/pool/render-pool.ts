@@ -77,6 +77,16 @@ export class RenderPool extends PoolThreads {
   }
 
   /**
+   * reserve, but while the line's places are taken the request waits for one (`lobby` of them
+   * at most, each at most `maxWaitMs`), still unread: a burst a little over the line is served
+   * a moment later rather than refused. Rejects as `reserve` throws, and with the signal's reason.
+   */
+  enter(signal?: AbortSignal): Promise<Reservation> {
+    if (this.closing) return Promise.reject(this.stopping());
+    return this.admission.enter(signal);
+  }
+
+  /**
    * Waits for `bytes` of the memory budget (cost.ts estimates them; `heldBytes` of them in
    * garbage-collected buffers, by default all); release the lease when
    * the job's last byte is gone (after its encode). Throws ERR_SOURCE_TOO_COSTLY (413) for a

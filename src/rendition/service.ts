@@ -40,8 +40,9 @@ async function produce(
 ): Promise<{ entry: CacheEntry; identity: SourceIdentity }> {
   // The origin read comes before admission: a slow upstream holds no memory budget. While no
   // job can start at once, a place in the wait line is reserved first, without reading: a
-  // request that would find the line full is refused before its source is read.
-  const place = ctx.admitted ? undefined : ctx.pool.reserve();
+  // request that finds the line full waits for a place in the lobby, unread, and is refused
+  // before its source is read when the lobby is full too or no place comes in time.
+  const place = ctx.admitted ? undefined : await ctx.pool.enter(ctx.signal);
   let source: LoadedSource | ReadSource;
   let lease: Lease | undefined;
   try {

@@ -104,9 +104,9 @@ describe('a bounded wait', () => {
  * may wait, whose first two requests (widths `w` and `w + 1`) are held at the pool's door;
  * `reads` counts the origin's reads, each of which first waits for `gate` when one is given.
  */
-async function lineOfOne(w: number, gate?: Promise<void>) {
+async function lineOfOne(w: number, gate?: Promise<void>, lobby = 0) {
   const lineTap = new PoolTap();
-  const full = await build({ sourceDir: t.sourceDir, poolRunner: lineTap.runner, config: { pool: { threads: 1, maxQueue: 1, memoryBudgetBytes: 8 * BUDGET, maxWaitMs: 60_000 } } });
+  const full = await build({ sourceDir: t.sourceDir, poolRunner: lineTap.runner, config: { pool: { threads: 1, maxQueue: 1, memoryBudgetBytes: 8 * BUDGET, maxWaitMs: 60_000, lobby } } });
   const origin = full.app.renderContext.origin;
   const read = origin.read.bind(origin);
   const counted = { reads: 0, gated: false };
@@ -125,7 +125,7 @@ async function lineOfOne(w: number, gate?: Promise<void>) {
   return { full, counted, ask, held: [first, second], release: () => (a.release(), b.release()) };
 }
 
-describe('a full wait line', () => {
+describe('a full wait line (pool.lobby 0)', () => {
   it('refuses a request with 503 ERR_OVERLOADED before its source is read', async () => {
     const { full, counted, ask, held: [first, second], release } = await lineOfOne(200);
     try {
@@ -168,6 +168,32 @@ describe('a full wait line', () => {
       await until(() => full.app.renderPool.memory().admittedBytes === 0);
       // Every place is back: the next request is served.
       expect((await ask(305)).statusCode).toBe(200);
+    } finally {
+      await full.close();
+    }
+  });
+});
+
+describe('the lobby: a full wait line with pool.lobby 1', () => {
+  it('the next request waits unread for a place and is served; one more than the lobby holds is refused at once, unread', async () => {
+    const { full, counted, ask, held: [first, second], release } = await lineOfOne(400, undefined, 1);
+    try {
+      const third = ask(402);
+      await until(() => full.app.renderPool.memory().waiting === 1);
+      expect(counted.reads).toBe(3);
+      const fourth = ask(403);
+      await until(() => full.app.renderPool.memory().lobby === 1);
+      expect(counted.reads).toBe(3);
+      const fifth = await ask(404);
+      expect([fifth.statusCode, fifth.json().code]).toEqual([503, 'ERR_OVERLOADED']);
+      expect(fifth.headers['retry-after']).toBe(String(full.config.pool.retryAfterSeconds));
+      expect(counted.reads).toBe(3);
+      release();
+      const answers = await Promise.all([first, second, third, fourth]);
+      expect(answers.map((r) => r.statusCode)).toEqual([200, 200, 200, 200]);
+      expect((await sharp(answers[3].rawPayload).metadata()).width).toBe(403);
+      expect(counted.reads).toBe(4);
+      expect(full.app.renderPool.memory()).toMatchObject({ lobby: 0, waiting: 0 });
     } finally {
       await full.close();
     }

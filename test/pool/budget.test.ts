@@ -87,14 +87,14 @@ describe('MemoryBudget', () => {
     expect(refusal()).toBeUndefined();
   });
 
-  it('reserve: while jobs can start at once any number may read (a slow origin\'s reads overlap); admission then decides as before and gives refused places back', async () => {
+  it('reserve: while jobs can start at once as many may read side by side as can run and wait (a slow origin\'s reads overlap); the next is refused unread; refused places come back', async () => {
     const b = budget({ maxRunning: 2, maxWaiting: 1 });
-    const places = [0, 1, 2, 3, 4].map(() => b.reserve());
+    // Idle: two to run and one to wait may read at once; a fourth would only be refused after its read.
+    const places = [0, 1, 2].map(() => b.reserve());
+    expect(() => b.reserve()).toThrow(expect.objectContaining({ code: 'ERR_OVERLOADED', message: expect.stringContaining('3 reading their sources') }));
     const asked = places.map((p, i) => b.acquire(1, `job ${i}`, undefined, p).then((l) => l, (e: unknown) => e));
     expect(b.state).toMatchObject({ running: 2, waiting: 1 });
-    const refused = await Promise.all(asked.slice(3));
-    expect(refused.map((e) => (e as FoldwiseError).code)).toEqual(['ERR_OVERLOADED', 'ERR_OVERLOADED']);
-    // Every place was taken or given back: with two running and one waiting, the next is refused unread.
+    // Every place is taken: with two running and one waiting, the next is refused unread.
     expect(() => b.reserve()).toThrow(expect.objectContaining({ code: 'ERR_OVERLOADED' }));
     // A reserved job refused for its size gives its place back too.
     const leases = (await Promise.all(asked.slice(0, 2))) as Array<{ release(): void }>;
@@ -123,5 +123,68 @@ describe('MemoryBudget', () => {
     l.release();
     held.release();
     expect(b.state.admittedBytes).toBe(0);
+  });
+});
+
+describe('MemoryBudget.enter: the lobby', () => {
+  /** Whether the promise has settled by now (after pending microtasks). */
+  const settled = async (p: Promise<unknown>) => {
+    let done = false;
+    p.then(() => (done = true), () => (done = true));
+    await new Promise((r) => setImmediate(r));
+    return done;
+  };
+
+  it('past a full line a request waits, unread, for a place, in arrival order; the place its leader frees by acquiring is not given away', async () => {
+    const b = budget({ maxRunning: 1, maxWaiting: 1, maxLobby: 2 });
+    const running = await b.acquire(1, 'running');
+    const place = await b.enter(); // the line's one place
+    const guests = [b.enter(), b.enter()];
+    expect(b.state.lobby).toBe(2);
+    // The reserved job takes its place in line: the place stays taken, no guest is seated.
+    const waiting = b.acquire(1, 'reserved', undefined, place);
+    expect(b.state).toMatchObject({ running: 1, waiting: 1, lobby: 2 });
+    expect(await settled(guests[0])).toBe(false);
+    // A third guest finds the lobby full: refused at once.
+    await expect(b.enter()).rejects.toMatchObject({ code: 'ERR_OVERLOADED', message: expect.stringContaining('2 waiting for a place') });
+    // The running job ends: the waiting one runs, the line's place frees, the first guest takes it.
+    running.release();
+    const second = await waiting;
+    const seated = await guests[0];
+    expect(b.state).toMatchObject({ running: 1, waiting: 0, lobby: 1 });
+    expect(await settled(guests[1])).toBe(false);
+    // A seated guest that gives its place back (its read failed) seats the next.
+    seated.release();
+    const last = await guests[1];
+    expect(b.state.lobby).toBe(0);
+    last.release();
+    second.release();
+    expect(b.state).toMatchObject({ running: 0, waiting: 0, lobby: 0, admittedBytes: 0 });
+  });
+
+  it('a guest not seated within maxWaitMs gets 503 ERR_OVERLOADED; one whose signal aborts leaves with its reason', async () => {
+    const b = budget({ maxRunning: 1, maxWaiting: 0, maxLobby: 4, maxWaitMs: 5 });
+    const running = await b.acquire(1, 'running');
+    const late = (await b.enter().catch((x: unknown) => x)) as FoldwiseError;
+    expect([late.code, late.headers]).toEqual(['ERR_OVERLOADED', { 'retry-after': '3' }]);
+    expect(late.message).toContain('no place in the wait line within 5 ms');
+    const gone = new AbortController();
+    const leaving = b.enter(gone.signal).catch((x: unknown) => x);
+    expect(b.state.lobby).toBe(1);
+    gone.abort(new FoldwiseError('ERR_REQUEST_ABANDONED'));
+    expect(((await leaving) as FoldwiseError).code).toBe('ERR_REQUEST_ABANDONED');
+    expect(b.state.lobby).toBe(0);
+    running.release();
+  });
+
+  it('with no lobby (maxLobby 0) enter refuses at once as reserve does; while jobs can start it reserves at once', async () => {
+    const b = budget({ maxRunning: 1, maxWaiting: 0 });
+    const first = await b.enter();
+    const running = await b.acquire(1, 'running', undefined, first);
+    await expect(b.enter()).rejects.toMatchObject({ code: 'ERR_OVERLOADED' });
+    expect(() => b.reserve()).toThrow(expect.objectContaining({ code: 'ERR_OVERLOADED' }));
+    running.release();
+    (await b.enter()).release();
+    expect(b.state).toMatchObject({ running: 0, lobby: 0 });
   });
 });
