@@ -184,6 +184,7 @@ describe('the lobby: a full wait line with pool.lobby 1', () => {
       const fourth = ask(403);
       await until(() => full.app.renderPool.memory().lobby === 1);
       expect(counted.reads).toBe(3);
+      expect((await full.app.inject({ url: '/metrics' })).body).toMatch(/^foldwise_pool_lobby 1$/m);
       const fifth = await ask(404);
       expect([fifth.statusCode, fifth.json().code]).toEqual([503, 'ERR_OVERLOADED']);
       expect(fifth.headers['retry-after']).toBe(String(full.config.pool.retryAfterSeconds));

@@ -53,6 +53,14 @@ async function workerPoolPlugin(app: FastifyInstance, opts: RenderPoolOptions): 
     },
   });
   new Gauge({
+    name: 'foldwise_pool_lobby',
+    help: 'Requests waiting, their sources unread, for a place in the wait line (pool.lobby).',
+    registers,
+    collect() {
+      this.set(pool.memory().lobby);
+    },
+  });
+  new Gauge({
     name: 'foldwise_pool_utilization',
     help: 'Share of worker-thread capacity in use (piscina).',
     registers,
