@@ -29,8 +29,9 @@ export const poolSchema = z.strictObject({
   /** Worker threads; 0 = one per available core. */
   threads: z.number().int().min(0).max(256),
   /**
-   * Renders allowed to wait for a worker; past it the service answers 503. null = two per
-   * worker thread (small on purpose: see RenderPool).
+   * Renders allowed to wait for a worker, their sources read; past it requests wait unread in
+   * the lobby (`lobby`), then get 503. null = two per worker thread (small on purpose: see
+   * src/pool/options.ts).
    */
   maxQueue: z.number().int().min(0).nullable(),
   retryAfterSeconds: positiveInt,

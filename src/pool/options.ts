@@ -30,7 +30,8 @@ export interface RenderPoolOptions {
 /**
  * The default wait line, per worker thread. Waiting jobs hold no pixels (their source is read,
  * not decoded), so memory is bounded by the budget rather than by this line; a short line
- * turns overload into a prompt 503 with Retry-After instead of long waits.
+ * keeps few sources read ahead. Requests past it wait unread in the lobby (`lobby`, bounded
+ * in count and by maxWaitMs), and past a full lobby get a prompt 503 with Retry-After.
  */
 export const queuePerThread = 2;
 
