@@ -42,7 +42,8 @@ export class DiskTier implements CacheTier {
       maxEntrySize: maxBytes,
       sizeCalculation: (size) => Math.max(1, size),
       dispose: (_size, key, reason) => {
-        if (reason === 'evict' || reason === 'delete') unlink(this.path(key)).catch(() => undefined);
+        // Evictions happen inside a set and are not waited for; a get or delete unlinks its own file and waits.
+        if (reason === 'evict') unlink(this.path(key)).catch(() => undefined);
       },
     });
   }
@@ -111,7 +112,7 @@ export class DiskTier implements CacheTier {
     const read = decodeDiskEntry(file);
     if (!read.ok) {
       // Never served: deleted before this returns (the next miss renders and stores it again),
-      // counted if damaged. The index's dispose unlinks it too, without being waited for.
+      // counted if damaged.
       this.index.delete(fk);
       await unlink(this.path(fk)).catch(() => undefined);
       if (read.reason === 'corrupt') this.emit({ kind: 'corrupt', key: fk, detail: read.detail });
@@ -150,7 +151,9 @@ export class DiskTier implements CacheTier {
 
   async delete(key: string): Promise<void> {
     const fk = this.fileKey(key);
-    if (this.index.has(fk)) this.index.delete(fk);
-    else await unlink(this.path(fk)).catch(() => undefined);
+    // Gone from the disk before this resolves: a deletion that answers first must not leave the
+    // file for the next read to serve.
+    this.index.delete(fk);
+    await unlink(this.path(fk)).catch(() => undefined);
   }
 }

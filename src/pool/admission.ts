@@ -60,12 +60,7 @@ export class PoolAdmission {
     };
   }
 
-  /** A place in the wait line, taken before the job's source is read (MemoryBudget.reserve), or the 503 it would get. */
-  reserve(): Reservation {
-    return this.budget.reserve();
-  }
-
-  /** reserve, waiting in the lobby for a place while the line is full (MemoryBudget.enter). */
+  /** A place in the wait line, taken before the job's source is read, waiting in the lobby while every place is taken (MemoryBudget.enter). */
   enter(signal?: AbortSignal): Promise<Reservation> {
     return this.budget.enter(signal);
   }

@@ -163,7 +163,7 @@ export class MemoryBudget {
     const { budgetBytes, maxWaiting, maxWaitMs } = this.opts;
     // The place ends here; the lobby is woken once this job is placed (or refused), so a guest
     // cannot take the place this job is about to use.
-    if (place) (this.ends.get(place) ?? place.release)();
+    if (place) this.ends.get(place)?.();
     // placed() runs up to its wait at once: the job is granted, in the line or refused before
     // the lobby is given what is left.
     const placed = this.placed(bytes, what, budgetBytes, maxWaiting, maxWaitMs, signal);

@@ -64,22 +64,13 @@ export class RenderPool extends PoolThreads {
   }
 
   /**
-   * A place in the wait line for a job about to read its source (MemoryBudget.reserve), to pass
-   * to `admit`; or throws now what `admit` would throw (ERR_OVERLOADED: no job can start at once
-   * and the line's places are taken or reserved; ERR_SERVICE_STOPPING). So a request is refused
-   * before its source is read: under a flood a refusal then costs no origin read
-   * (load/miss-mix.ts at 16 connections: each refused request read a 12 MP source, 3-5 MB,
-   * first), and a place that frees lets one source be read, not one per request arriving meanwhile.
-   */
-  reserve(): Reservation {
-    if (this.closing) throw this.stopping();
-    return this.admission.reserve();
-  }
-
-  /**
-   * reserve, but while the line's places are taken the request waits for one (`lobby` of them
-   * at most, each at most `maxWaitMs`), still unread: a burst a little over the line is served
-   * a moment later rather than refused. Rejects as `reserve` throws, and with the signal's reason.
+   * A place in the wait line for a job about to read its source (MemoryBudget.enter), to pass to
+   * `admit`. While every place is taken the request waits for one, still unread (`lobby` of them
+   * at most, each at most `maxWaitMs`): a burst a little over the line is served a moment later
+   * rather than refused. Past a full lobby it rejects with what `admit` would (ERR_OVERLOADED),
+   * so a refused request costs no origin read (load/miss-mix.ts at 16 connections: each refused
+   * request read a 12 MP source, 3-5 MB, first); ERR_SERVICE_STOPPING once closing; the
+   * signal's reason when it aborts while waiting.
    */
   enter(signal?: AbortSignal): Promise<Reservation> {
     if (this.closing) return Promise.reject(this.stopping());
@@ -92,7 +83,7 @@ export class RenderPool extends PoolThreads {
    * the job's last byte is gone (after its encode). Throws ERR_SOURCE_TOO_COSTLY (413) for a
    * job larger than the budget, ERR_OVERLOADED past the line or the wait, the signal's reason
    * when it aborts while waiting, ERR_SERVICE_STOPPING once the pool is closing. `place`: the
-   * job's reservation (`reserve`), which ends once memory is asked for; the caller releases it
+   * job's reservation (`enter`), which ends once memory is asked for; the caller releases it
    * in any case (a no-op then), since a refusal before that leaves it held.
    */
   admit(bytes: number, what: string, signal?: AbortSignal, heldBytes = bytes, place?: Reservation): Promise<Lease> {

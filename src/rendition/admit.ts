@@ -53,7 +53,7 @@ function outputPixels(h: SourceHeader, q: RenditionQuery, limits: Limits): numbe
  * the limits refuse a source here already) and waits for them in the pool's memory budget.
  * `source` is the read bytes, or the raster already decoded by the caller (then only the
  * staging copy and the output side are new). `place`: the job's reservation, taken before its
- * source was read (RenderPool.reserve); the caller releases it when this throws first.
+ * source was read (RenderPool.enter); the caller releases it when this throws first.
  */
 export async function admitRendition(
   ctx: AdmitContext,

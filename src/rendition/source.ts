@@ -43,7 +43,7 @@ export async function readSource(
   kept?: { memo: SourceMemo; asked: SourceIdentity },
 ): Promise<ReadSource> {
   const known = kept?.memo.get(kept.asked);
-  if (known && known.bytes.length <= limits.maxSourceBytes) return known;
+  if (known) return known;
   const source = await clock.time('origin', () => origin.read(path, signal));
   if (source.bytes.length > limits.maxSourceBytes) {
     throw new FoldwiseError(

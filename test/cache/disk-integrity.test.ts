@@ -35,6 +35,19 @@ describe('DiskTier integrity', () => {
     expect(d.bytes).toBe(0);
   });
 
+  it('a deleted entry is gone from the disk when delete resolves, whether indexed or not', async () => {
+    const d = await open();
+    await d.set(key(5), entry(4000, 3));
+    await d.delete(key(5));
+    await expect(stat(fileOf(dir, key(5)))).rejects.toMatchObject({ code: 'ENOENT' });
+    // A file another replica on the host wrote (not in this instance's index) goes too.
+    const other = await open();
+    await other.set(key(6), entry(4000, 3));
+    await d.delete(key(6));
+    await expect(stat(fileOf(dir, key(6)))).rejects.toMatchObject({ code: 'ENOENT' });
+    expect(d.bytes).toBe(0);
+  });
+
   it('an entry of the right length with one body byte changed: a miss (content hash)', async () => {
     const d = await open();
     await d.set(key(2), entry(4000, 3));
