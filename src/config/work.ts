@@ -71,6 +71,11 @@ export const cacheSchema = z.strictObject({
    * skips the origin read (src/rendition/source-memo.ts); 0 = read every time.
    */
   sourceBytes: z.number().int().min(0),
+  /**
+   * Bytes of finished decodes kept in the spool folder (a tmpfs), so a further rendition of the
+   * same picture does not decode it again (src/pool/spool/kept.ts); 0 = decode every time.
+   */
+  decodedBytes: z.number().int().min(0),
   dir: z.string().min(1),
   diskBytes: z.number().int().min(0),
   redisUrl: z.string().url().nullable(),

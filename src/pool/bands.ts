@@ -21,14 +21,18 @@ export function outputBuffer(shared: SharedRaster | SpooledRaster, plan: Plan): 
   return new SharedArrayBuffer(plan.targetWidth * plan.targetHeight * shared.channels * (shared.depth / 8));
 }
 
-/** The plan's bands of output rows, [first, end) each: big outputs are split in two. */
-export function bandRows(threads: number, shared: SharedRaster | SpooledRaster, plan: Plan): [number, number][] {
+/**
+ * The plan's bands of output rows, [first, end) each: big outputs are split in two. `arriving`:
+ * the source is a spool file still being written (a finished one, a kept decode, is split as
+ * a source in memory is).
+ */
+export function bandRows(threads: number, shared: SharedRaster | SpooledRaster, plan: Plan, arriving: boolean): [number, number][] {
   const h = plan.targetHeight;
   const pixels = plan.targetWidth * h;
   // A source still arriving paces the resample: one worker keeps up with the decode unless
   // the output is large (little shrinking, no pyramid), and the other stays free for the
   // next render instead of waiting on rows.
-  const paced = 'path' in shared && pixels * STREAM_SPLIT_SHRINK <= shared.width * shared.height;
+  const paced = arriving && pixels * STREAM_SPLIT_SHRINK <= shared.width * shared.height;
   const split = threads > 1 && pixels >= SPLIT_MIN_PIXELS && !paced;
   return split ? [[0, h >> 1], [h >> 1, h]] : [[0, h]];
 }

@@ -40,7 +40,10 @@ export const runningPerThread = 2;
 
 /** The pool's memory as /readyz, /metrics and tests read it. */
 export interface PoolMemory extends MemoryState {
-  /** Bytes of spool files of decodes in progress (/dev/shm), part of admittedBytes. */
+  /**
+   * Bytes of spool files (/dev/shm): of decodes in progress, part of admittedBytes, and of
+   * finished decodes kept for their next rendition (cache.decodedBytes), which are not.
+   */
   spoolBytes: number;
   /** Idle staging buffers kept for reuse (at most `threads` of at most 64 MiB each). */
   stagingIdleBytes: number;

@@ -107,11 +107,14 @@ export class RenderPool extends PoolThreads {
     return out;
   }
 
-  /** Resamples a source a decoder is still writing to a spool file (spool/spooled.ts). */
-  async resampleSpooled(path: string, shape: SpoolShape & { channels: 1 | 3 }, written: Promise<void>, plan: Plan, signal?: AbortSignal): Promise<PixelRaster> {
+  /**
+   * Resamples a source a decoder is still writing to a spool file (spool/spooled.ts), or, with
+   * `finished`, one written before (a kept decode: its bands start at once, as in memory).
+   */
+  async resampleSpooled(path: string, shape: SpoolShape & { channels: 1 | 3 }, written: Promise<void>, plan: Plan, signal?: AbortSignal, finished = false): Promise<PixelRaster> {
     if (this.closing) throw this.stopping();
     // With a second thread, a band that lags behind the decode hands over its rest once the decode ends (rest-band.ts).
-    const rest = this.threads > 1 ? { decoded: written, idle: () => this.whenIdle() } : undefined;
+    const rest = this.threads > 1 && !finished ? { decoded: written, idle: () => this.whenIdle() } : undefined;
     return resampleSpool(path, shape, written, (src) => this.runBands(src, plan, signal, rest), signal);
   }
 
@@ -142,7 +145,7 @@ export class RenderPool extends PoolThreads {
   /** Runs the plan's bands of output rows over a shared source (bands.ts); the output raster. */
   private async runBands(shared: SharedRaster | SpooledRaster, plan: Plan, signal?: AbortSignal, rest?: RestHandOver): Promise<PixelRaster> {
     const out = outputBuffer(shared, plan);
-    const bands = bandRows(this.threads, shared, plan);
+    const bands = bandRows(this.threads, shared, plan, rest !== undefined);
     try {
       await runBandTasks(this.runBand, shared, plan, out, bands, signal, rest);
     } catch (e) {

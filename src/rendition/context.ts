@@ -6,6 +6,7 @@ import type { Origin, SourceIdentity } from '../origins/types.js';
 import type { RenderPool } from '../pool/render-pool.js';
 import type { IdentityMemo } from './identity.js';
 import type { SourceMemo } from './source-memo.js';
+import type { KeptDecodes } from '../pool/spool/kept.js';
 import type { LoadedSource } from './source.js';
 import type { AdaptivePrefilter } from './prefilter.js';
 import type { Stage, StageClock } from './timings.js';
@@ -27,6 +28,8 @@ export interface RenderContext {
   identities?: IdentityMemo;
   /** The bytes of sources read lately (source-memo.ts): a further rendition skips the origin read; default read every time. */
   sources?: SourceMemo;
+  /** Finished decodes kept in the spool folder (src/pool/spool/kept.ts): a further rendition skips the decode; default decode every time. */
+  keptDecodes?: KeptDecodes;
   /**
    * Content-adaptive prefilter (alias-risk analysis, src/risk/service.ts), asked only when
    * prefilter=auto and the plan shrinks; it analyses and decides in the pool's threads.

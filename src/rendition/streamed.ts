@@ -1,15 +1,14 @@
-import type { Limits } from '../config.js';
-import type { PixelRaster, Plan } from '../core/types.js';
-import { probeSpooledDecode, type SpoolableSource, SpoolWriteError } from '../codec/spool-decode.js';
-import type { SourceIdentity } from '../origins/types.js';
+import type { PixelRaster } from '../core/types.js';
+import type { DecodeWish } from '../codec/decode.js';
+import { probeSpooledDecode, SpoolWriteError } from '../codec/spool-decode.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import { type PlannedRendition, planRendition } from './plan.js';
-import type { RenderPool } from '../pool/render-pool.js';
-import { type LiveSpool, liveSpool } from '../pool/spool/live.js';
-import { type AdaptivePrefilter, shrinks } from './prefilter.js';
+import type { DecodeOf } from '../pool/spool/kept.js';
+import { renderSpoolFile, type StreamContext } from './spool-render.js';
 import { decodeLimits, type ReadSource, wishOf } from './source.js';
-import type { StageClock } from './timings.js';
 import { epochNow } from '../pool/trace.js';
+
+export type { StreamContext } from './spool-render.js';
 
 /**
  * Sources smaller than this decode in a few milliseconds, less than the spool file and the
@@ -18,17 +17,7 @@ import { epochNow } from '../pool/trace.js';
  */
 export const STREAM_MIN_PIXELS = 1 << 20;
 
-/** What a streamed render needs of the render context. */
-export interface StreamContext {
-  pool: RenderPool;
-  limits: Limits;
-  clock: StageClock;
-  /** Aborts when no one waits for the render any more. */
-  signal?: AbortSignal;
-  adaptive?: AdaptivePrefilter;
-}
-
-/** A rendition resampled while its source decoded. */
+/** A rendition resampled while its source decoded (or from its kept decode). */
 export interface StreamedRendition extends PlannedRendition {
   raster: PixelRaster;
   /** Started before the decode: covers decode, resample and then the encode. */
@@ -41,24 +30,39 @@ export interface StreamedRendition extends PlannedRendition {
 }
 
 /**
- * prefilter=auto's plan for a streamed render, asked while the render runs on the kernel's
- * plan: from the spectrum kept for the source version (the pool decides), else from the new
- * source's analysis, which reads the tiles' rows from the spool file as they are written (the
- * returned reader, stopped by the caller once the render is over). No decision when
- * nothing is asked (not prefilter=auto, nothing shrinks).
+ * Which decode of `source` a query asks for: the kept decodes' key (src/pool/spool/kept.ts).
+ * Only stills are spooled, whose first frame and every frame are the same raster (servesWish).
  */
-function adaptedPlan(ctx: StreamContext, first: PlannedRendition, probe: SpoolableSource, file: string, decoding: Promise<void>, q: RenditionQuery, identity: SourceIdentity, signal: AbortSignal): { deciding?: Promise<PlannedRendition | null>; live: { spool?: LiveSpool } } {
-  const live: { spool?: LiveSpool } = {};
-  const { adaptive } = ctx;
-  if (q.prefilter !== 'auto' || !adaptive || !shrinks(first.plan)) return { live };
-  const decide = async (plan: Plan) => {
-    const known = await adaptive.known(plan, identity, signal);
-    if (known) return known.filter;
-    live.spool = liveSpool(file, probe, decoding);
-    return adaptive.analyse(live.spool.raster, plan, identity, signal);
-  };
-  const deciding = planRendition(probe, q, ctx.limits, { decide });
-  return { deciding, live };
+function decodeOf(source: ReadSource, wish: DecodeWish): DecodeOf {
+  return { key: source.identity.key, version: source.identity.version, wish: `${wish.gamut} ${wish.frames === 'all' ? 0 : wish.frames}` };
+}
+
+/** The deadline of a streamed render (decode, resample and encode), and the render's stop signal. */
+function deadlines(ctx: StreamContext): { deadline: AbortSignal; stop: AbortSignal } {
+  const deadline = AbortSignal.timeout(ctx.limits.decodeTimeoutMs + ctx.limits.renderTimeoutMs);
+  return { deadline, stop: ctx.signal ? AbortSignal.any([ctx.signal, deadline]) : deadline };
+}
+
+/**
+ * Renders `q` from the decode of `source` kept since an earlier rendition, with no decode at
+ * all (timed as `resample`); null when none is kept, or its file could not be read back (then it is let go).
+ */
+async function resampleKept(ctx: StreamContext, source: ReadSource, q: RenditionQuery): Promise<StreamedRendition | null> {
+  const of = decodeOf(source, wishOf(q));
+  const lent = ctx.keptDecodes?.lend(of);
+  if (!lent) return null;
+  try {
+    const { deadline, stop } = deadlines(ctx);
+    const first = planRendition(lent.shape, q, ctx.limits);
+    const done = await renderSpoolFile(ctx, { file: lent.path, shape: lent.shape, decoding: Promise.resolve(), finished: true }, first, q, source.identity, stop);
+    return { ...done, deadline, cleaned: Promise.resolve() };
+  } catch (e) {
+    if (!(e instanceof SpoolWriteError)) throw e;
+    ctx.keptDecodes?.forget(of.key);
+    return null;
+  } finally {
+    lent.release();
+  }
 }
 
 /**
@@ -76,7 +80,10 @@ function adaptedPlan(ctx: StreamContext, first: PlannedRendition, probe: Spoolab
  * decisions leave the plan as it is, and the streamed rendition is the answer. One that lowers
  * a cut-off calls the running render off and resamples the spool file with the adapted plan
  * (timed as `resample`): the bytes are those of the decode-then-resample path for the plan
- * decided, either way.
+ * decided, either way (spool-render.ts).
+ *
+ * A finished decode's file is kept for the next rendition of the same source version when the
+ * context keeps decodes (`cache.decodedBytes`), and that rendition reads it with no decode.
  *
  * Returns null, having decoded nothing, when the render must take the decode-then-resample
  * path: spooling is off, the source has alpha or fewer than STREAM_MIN_PIXELS pixels. Also
@@ -87,67 +94,46 @@ function adaptedPlan(ctx: StreamContext, first: PlannedRendition, probe: Spoolab
 export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSource, q: RenditionQuery): Promise<StreamedRendition | null> {
   const spool = ctx.pool.spool;
   if (!spool) return null;
+  const fromKept = await resampleKept(ctx, source, q);
+  if (fromKept) return fromKept;
   const probe = await ctx.clock.time('decode', () => probeSpooledDecode(source.bytes, decodeLimits(ctx.limits), wishOf(q)));
   if (!probe || probe.width * probe.height < STREAM_MIN_PIXELS) return null;
-  const deadline = AbortSignal.timeout(ctx.limits.decodeTimeoutMs + ctx.limits.renderTimeoutMs);
-  const stop = ctx.signal ? AbortSignal.any([ctx.signal, deadline]) : deadline;
+  const { deadline, stop } = deadlines(ctx);
   // Refuses a bad output size before anything is decoded.
   const first = planRendition(probe, q, ctx.limits);
   const file = spool.path();
   // The file's bytes count in /dev/shm until it is removed (and libvips is done with it).
-  const unhold = ctx.pool.holdSpool(probe.width * probe.height * probe.channels * (probe.depth / 8));
+  const bytes = probe.width * probe.height * probe.channels * (probe.depth / 8);
+  const unhold = ctx.pool.holdSpool(bytes);
   const decodeStart = epochNow();
   const decoding = probe.write(file);
   decoding.then(() => ctx.clock.span('libvips decode to the spool file', 'decode', decodeStart), () => undefined);
-  // The kernel's plan renders at once; the content-adaptive decision is asked meanwhile. When
-  // it adapts the plan while the source still decodes, that render is called off (its rows stay
-  // in the spool file) and the adapted one starts; after, the adapted one follows it. Called off
-  // as a failed decode stops a render (its threads stop reading, and live on): aborting a
-  // running pool task would end its thread, and a new one takes hundreds of milliseconds to start.
-  const speculative = new AbortController();
-  const calledOff = new Promise<never>((_, reject) => speculative.signal.addEventListener('abort', () => reject(speculative.signal.reason), { once: true }));
-  calledOff.catch(() => undefined);
-  let asked: ReturnType<typeof adaptedPlan> = { live: {} };
   let cleanedUp!: (removal: Promise<void>) => void;
   const cleaned = new Promise<void>((resolve) => (cleanedUp = resolve));
   let answered = false;
-  const stopAsked = () => asked.live.spool?.stop();
-  stop.addEventListener('abort', stopAsked, { once: true });
   try {
-    // The render's band tasks go to the pool first (the call queues them at once), then the decision's.
-    const streaming = ctx.clock.time('stream', () => ctx.pool.resampleSpooled(file, probe, Promise.race([decoding, calledOff]), first.plan, stop));
-    asked = adaptedPlan(ctx, first, probe, file, decoding, q, source.identity, stop);
-    const { deciding } = asked;
-    deciding?.then((a) => a?.adaptive && speculative.abort(), () => undefined);
-    let raster: PixelRaster | undefined;
-    try {
-      raster = await streaming;
-    } catch (e) {
-      if (!speculative.signal.aborted) throw e;
-    }
-    // What the decision adds after the render (timed as `plan`; absent when none was asked).
-    const adapted = deciding && (await ctx.clock.time('plan', () => deciding));
-    const done = adapted?.adaptive
-      ? { ...adapted, raster: await ctx.clock.time('resample', () => ctx.pool.resampleSpooled(file, probe, decoding, adapted.plan, stop)), deadline, cleaned }
-      : { ...first, raster: raster!, deadline, cleaned };
+    const done = await renderSpoolFile(ctx, { file, shape: probe, decoding, finished: false }, first, q, source.identity, stop);
     answered = true;
-    return done;
+    return { ...done, deadline, cleaned };
   } catch (e) {
-    if (e instanceof SpoolWriteError) return null;
-    throw e;
+    if (!(e instanceof SpoolWriteError)) throw e;
+    // The folder may be full: its space goes to the decodes in progress.
+    ctx.keptDecodes?.clear();
+    return null;
   } finally {
-    // The analysis reads the file: it must be done before the file goes (a render that failed
-    // calls it off first, rather than let it wait for the rest of the decode).
-    stopAsked();
-    stop.removeEventListener('abort', stopAsked);
-    await asked.deciding?.catch(() => undefined);
-    // A rendition is encoded while its file goes (the caller awaits `cleaned`); a failure waits here.
-    const removal = spool.remove(file);
-    if (answered) cleanedUp(removal.catch(() => undefined));
-    else await removal;
-    // libvips may make or write the file after this (a deadline settled `decoding` first, or its
-    // job was still waiting for a pool thread): once it is done, remove the file again, or it
-    // would hold memory in /dev/shm until the pool closes.
-    probe.idle().then(() => spool.remove(file)).catch(() => undefined).finally(unhold);
+    // An answer's decode ended cleanly (the render awaited it): its whole file is kept for the next
+    // rendition, or removed while the rendition is encoded (the caller awaits `cleaned`); a failure waits here.
+    const { width, height, channels, depth, format } = probe;
+    if (answered && ctx.keptDecodes?.keep(decodeOf(source, wishOf(q)), file, { width, height, channels, depth, format }, bytes, unhold)) {
+      cleanedUp(Promise.resolve());
+    } else {
+      const removal = spool.remove(file);
+      if (answered) cleanedUp(removal.catch(() => undefined));
+      else await removal;
+      // libvips may make or write the file after this (a deadline settled `decoding` first, or its
+      // job was still waiting for a pool thread): once it is done, remove the file again, or it
+      // would hold memory in /dev/shm until the pool closes.
+      probe.idle().then(() => spool.remove(file)).catch(() => undefined).finally(unhold);
+    }
   }
 }

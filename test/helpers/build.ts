@@ -38,8 +38,8 @@ export async function build(options: TestAppOptions = {}): Promise<TestApp> {
         origin: { sourceDir, generateDemo: false },
         pool: { threads: 1, maxQueue: 8 },
         // Ask the origin every time, so tests that change a source see it at once
-        // (the identity and source memos have their own tests).
-        cache: { dir: cacheDir, identityTtlMs: 0, sourceBytes: 0 },
+        // (the identity and source memos and the kept decodes have their own tests).
+        cache: { dir: cacheDir, identityTtlMs: 0, sourceBytes: 0, decodedBytes: 0 },
         // Load shedding off unless a test turns it on: a busy CI machine's event-loop stalls
         // must not turn into random 503s in tests about something else.
         pressure: { maxEventLoopDelayMs: 0, maxHeapUsedBytes: 0, maxRssBytes: 0 },

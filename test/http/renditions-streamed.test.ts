@@ -6,6 +6,7 @@ import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { build, type TestApp } from '../helpers/build.js';
 import { writePng } from '../helpers/images.js';
+import { gratingJpeg } from '../helpers/grating-jpeg.js';
 import { STREAM_MIN_PIXELS } from '../../src/rendition/streamed.js';
 import { grating, greyRaster } from '../core/risk/patterns.js';
 
@@ -17,20 +18,6 @@ const cacheOf = (res: { headers: Record<string, unknown> }) => /cache;desc="([^"
 async function lookups(t: TestApp, result: string): Promise<number> {
   const { values } = await t.app.metrics.cacheLookups.get();
   return values.find((v) => v.labels.result === result)?.value ?? 0;
-}
-
-/** Crossed sinusoidal gratings (0.11 and 0.31 cycles/px) and a ramp, 8-bit RGB: analytic content. */
-async function gratingJpeg(width: number, height: number): Promise<Buffer> {
-  const raw = Buffer.alloc(width * height * 3);
-  for (let y = 0; y < height; y++) {
-    for (let x = 0; x < width; x++) {
-      for (let c = 0; c < 3; c++) {
-        const v = 0.5 + 0.3 * Math.sin(2 * Math.PI * (0.11 * x + 0.05 * y + c / 4)) + 0.15 * Math.cos(2 * Math.PI * 0.31 * y) + (0.05 * x) / width;
-        raw[(y * width + x) * 3 + c] = Math.round(255 * Math.min(1, Math.max(0, v)));
-      }
-    }
-  }
-  return sharp(raw, { raw: { width, height, channels: 3 } }).jpeg({ quality: 92 }).toBuffer();
 }
 
 // Sources under STREAM_MIN_PIXELS (1 MP) keep the in-memory path; these are just above it.

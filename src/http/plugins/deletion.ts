@@ -38,6 +38,7 @@ async function deletionPlugin(app: FastifyInstance): Promise<void> {
   const forgetLocally = async (source: string, keys: string[]): Promise<void> => {
     ctx.identities?.forget(source);
     ctx.sources?.forget(source);
+    ctx.keptDecodes?.forget(source);
     spectra.forget(source);
     ingest.forgetSource(source);
     const tiers = renditionCache.cache.tiers;

@@ -48,7 +48,7 @@ async function memoryWatchPlugin(app: FastifyInstance, opts: MemoryWatchOptions)
     ['foldwise_memory_admitted_bytes', 'Estimated peak bytes of the jobs admitted now.', 'admittedBytes'],
     ['foldwise_memory_budget_bytes', 'The memory budget jobs are admitted against.', 'budgetBytes'],
     ['foldwise_memory_waiting_jobs', 'Jobs waiting for room in the memory budget.', 'waiting'],
-    ['foldwise_memory_spool_bytes', 'Bytes of spool files in use (/dev/shm), part of the admitted bytes.', 'spoolBytes'],
+    ['foldwise_memory_spool_bytes', 'Bytes of spool files (/dev/shm): of decodes in progress (part of the admitted bytes) and of finished decodes kept (cache.decodedBytes).', 'spoolBytes'],
   ] as const;
   for (const [name, help, field] of fields) {
     new Gauge({ name, help, registers, collect() { this.set(pool.memory()[field]); } });

@@ -3,6 +3,7 @@ import fp from 'fastify-plugin';
 import { Gauge } from 'prom-client';
 import { IdentityMemo } from '../../rendition/identity.js';
 import { SourceMemo } from '../../rendition/source-memo.js';
+import { KeptDecodes } from '../../pool/spool/kept.js';
 import type { RenderContext } from '../../rendition/service.js';
 import { adaptivePrefilter } from '../../risk/service.js';
 
@@ -25,11 +26,28 @@ async function renderPlugin(app: FastifyInstance): Promise<void> {
       this.set(sources?.bytes ?? 0);
     },
   });
+  const { spool } = app.renderPool;
+  const { decodedBytes } = app.config.cache;
+  const keptDecodes = spool && decodedBytes > 0 ? new KeptDecodes(decodedBytes, (path) => spool.remove(path)) : undefined;
+  // The kept files go at close (the pool's own close removes its spool folder too, whichever runs first).
+  app.addHook('onClose', async () => {
+    keptDecodes?.clear();
+    await keptDecodes?.settled();
+  });
+  new Gauge({
+    name: 'foldwise_decoded_bytes_kept',
+    help: `Bytes of finished decodes kept in the spool folder for their next rendition (bound cache.decodedBytes: ${decodedBytes}).`,
+    registers: [metrics.registry],
+    collect() {
+      this.set(keptDecodes?.bytes ?? 0);
+    },
+  });
   app.decorate('renderContext', {
     origin: app.origin,
     onStored: (source, key) => app.noteCached(source, key),
     identities: new IdentityMemo(app.origin, app.config.cache.identityTtlMs),
     sources,
+    keptDecodes,
     cache: app.renditionCache.cache,
     flight: app.renditionCache.flight,
     pool: app.renderPool,

@@ -1,0 +1,129 @@
+import { LRUCache } from 'lru-cache';
+
+/** How long a kept decode waits for the next rendition of its source before its file goes. */
+export const DECODE_KEEP_MS = 60_000;
+
+/** The pixels a spool file holds (src/codec/spool-decode.ts's SpoolableSource, without its writer). */
+export interface DecodedShape {
+  width: number;
+  height: number;
+  channels: 1 | 3;
+  depth: 8 | 16;
+  format: string;
+}
+
+/** Which decode a file holds: the source's key and version, and the decode's wish (gamut, frames). */
+export interface DecodeOf {
+  key: string;
+  version: string;
+  wish: string;
+}
+
+/** A kept file lent to one render; release it when the render no longer reads it. */
+export interface LentDecode {
+  path: string;
+  shape: DecodedShape;
+  release(): void;
+}
+
+interface Entry {
+  of: DecodeOf;
+  path: string;
+  shape: DecodedShape;
+  bytes: number;
+  /** Renders reading the file now: it is removed only once they are done. */
+  readers: number;
+  /** Out of the index (evicted, expired, replaced, forgotten): the file goes once unread. */
+  out: boolean;
+  /** Stops counting the file's bytes as spool memory (RenderPool.holdSpool). */
+  unhold: () => void;
+}
+
+/**
+ * Spool files of finished decodes (src/codec/spool-decode.ts), kept for the next rendition of
+ * the same source: a page that goes live asks each picture at several widths within seconds,
+ * and the upload hook's ladder asks its widths one after the other; each would decode the whole
+ * source again, which for a large JPEG is most of a render's time. A kept file is lent for the
+ * very decode asked (key, version and wish) and read as a finished spool file, so a rendition
+ * from it has the bytes of one from a fresh decode. Bounded by bytes (least recently used go
+ * first), each file at most half the bound; a file goes after DECODE_KEEP_MS unused, so an idle
+ * replica gives the memory (a tmpfs, /dev/shm) back, and never while a render reads it.
+ */
+export class KeptDecodes {
+  private readonly kept: LRUCache<string, Entry>;
+  private readonly removals = new Set<Promise<void>>();
+
+  constructor(
+    private readonly maxBytes: number,
+    private readonly remove: (path: string) => Promise<void>,
+    ttlMs = DECODE_KEEP_MS,
+    now?: () => number,
+  ) {
+    this.kept = new LRUCache<string, Entry>({
+      maxSize: maxBytes,
+      sizeCalculation: (e) => Math.max(1, e.bytes),
+      ttl: ttlMs,
+      // Gone when due even if never asked again: the tmpfs pages are freed, not only hidden.
+      ttlAutopurge: true,
+      updateAgeOnGet: true,
+      ttlResolution: 0,
+      dispose: (e) => {
+        e.out = true;
+        if (e.readers === 0) this.drop(e);
+      },
+      ...(now ? { perf: { now } } : {}),
+    });
+  }
+
+  /** The kept file of exactly this decode, lent until `release`; undefined when none is kept. */
+  lend(of: DecodeOf): LentDecode | undefined {
+    const e = this.kept.get(of.key);
+    if (!e || e.of.version !== of.version || e.of.wish !== of.wish) return undefined;
+    e.readers++;
+    let lent = true;
+    const release = () => {
+      if (!lent) return;
+      lent = false;
+      e.readers--;
+      if (e.out && e.readers === 0) this.drop(e);
+    };
+    return { path: e.path, shape: e.shape, release };
+  }
+
+  /**
+   * Keeps the finished spool file at `path` (replacing what its source had kept); `unhold` is
+   * called once the file is removed. False, having taken nothing, when the file is over half
+   * the bound: the caller removes it as before.
+   */
+  keep(of: DecodeOf, path: string, shape: DecodedShape, bytes: number, unhold: () => void): boolean {
+    if (bytes * 2 > this.maxBytes) return false;
+    this.kept.set(of.key, { of, path, shape, bytes, readers: 0, out: false, unhold });
+    return true;
+  }
+
+  /** Lets a source's kept decode go (a deleted source, or a file that could not be read back). */
+  forget(key: string): void {
+    this.kept.delete(key);
+  }
+
+  /** Lets every kept decode go (the spool folder is full: its space goes to the decodes in progress). */
+  clear(): void {
+    this.kept.clear();
+  }
+
+  /** Bytes of the files kept now (for metrics and tests). */
+  get bytes(): number {
+    return this.kept.calculatedSize;
+  }
+
+  /** Settles once every file let go so far is removed (for tests and shutdown). */
+  async settled(): Promise<void> {
+    await Promise.all([...this.removals]);
+  }
+
+  private drop(e: Entry): void {
+    const removal = this.remove(e.path).catch(() => undefined).finally(e.unhold);
+    this.removals.add(removal);
+    void removal.finally(() => this.removals.delete(removal));
+  }
+}

@@ -1,0 +1,151 @@
+/**
+ * cache.decodedBytes: a finished decode's spool file is kept for the next rendition of the same
+ * source version, which then resamples it with no decode, with the bytes a fresh decode gives.
+ */
+import { readdir, utimes, writeFile } from 'node:fs/promises';
+import { join } from 'node:path';
+import sharp from 'sharp';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { signUrl } from '../../src/security/signing.js';
+import { build, type TestApp } from '../helpers/build.js';
+import { gratingJpeg } from '../helpers/grating-jpeg.js';
+import { at, pixels } from '../helpers/images.js';
+import { grating, greyRaster } from '../core/risk/patterns.js';
+
+const stages = (res: { headers: Record<string, unknown> }) => [...String(res.headers['server-timing']).matchAll(/(?:^|, )([a-z]+);/g)].map((m) => m[1]);
+const get = (app: TestApp, name: string, q: string) => app.app.inject({ url: `/v1/renditions/${name}?${q}` });
+const key = 'a signing key for the weaving shop';
+
+// Above STREAM_MIN_PIXELS (1 MP), so the decodes are spooled; 3,148,800 bytes decoded.
+const W = 1280;
+const H = 820;
+
+async function keptFiles(t: TestApp): Promise<string[]> {
+  await t.app.renderContext.keptDecodes?.settled();
+  return readdir(t.app.renderPool.spool!.dir);
+}
+
+async function keptGauge(t: TestApp): Promise<number> {
+  const m = /^foldwise_decoded_bytes_kept (\d+)$/m.exec((await t.app.inject({ url: '/metrics' })).body);
+  return Number(m?.[1]);
+}
+
+describe('kept decodes: further renditions of a large picture skip its decode', () => {
+  let t: TestApp;
+  let off: TestApp;
+  beforeAll(async () => {
+    [t, off] = await Promise.all([
+      build({ config: { cache: { decodedBytes: 16 * 2 ** 20 }, signing: { keys: [key], required: false } } }),
+      build({ config: { pool: { spoolDir: 'off' } } }),
+    ]);
+    const jpeg = await gratingJpeg(W, H);
+    // A grating just above a 2x downscale's new Nyquist: prefilter=auto lowers the cut-off (see renditions-streamed.test.ts).
+    const g = greyRaster(W, H, grating(0.275), 8);
+    const near = await sharp(g.data as Uint8Array, { raw: { width: W, height: H, channels: 1 } }).png().toBuffer();
+    for (const app of [t, off]) {
+      await writeFile(`${app.sourceDir}/twill.jpg`, jpeg);
+      await writeFile(`${app.sourceDir}/near.png`, near);
+    }
+  });
+  afterAll(() => Promise.all([t.close(), off.close()]));
+
+  it('further widths and formats read the kept decode, with the bytes of the unspooled service', async () => {
+    const first = await get(t, 'twill.jpg', 'width=120&format=png');
+    expect(first.statusCode).toBe(200);
+    expect(stages(first)).toEqual(expect.arrayContaining(['decode', 'stream']));
+    for (const q of ['width=100&format=png', 'width=96&height=96&prefilter=none&format=jpeg', 'width=400&format=webp']) {
+      const res = await get(t, 'twill.jpg', q);
+      expect(res.statusCode).toBe(200);
+      // Resampled from the finished file: nothing overlapped a decode.
+      expect(stages(res)).toContain('resample');
+      expect(stages(res)).not.toContain('stream');
+      const ref = await get(off, 'twill.jpg', q);
+      expect(res.headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
+      expect(res.rawPayload.equals(ref.rawPayload)).toBe(true);
+    }
+    expect(await keptGauge(t)).toBe(W * H * 3);
+    expect(await keptFiles(t)).toHaveLength(1);
+  });
+
+  it('prefilter=auto whose spectrum lowers the cut-off: the adapted plan is resampled from the kept decode too', async () => {
+    expect(stages(await get(t, 'near.png', 'width=640&format=png'))).toContain('stream');
+    const res = await get(t, 'near.png', 'width=620&format=png');
+    expect(stages(res)).not.toContain('stream');
+    expect(stages(res)).toContain('resample');
+    expect(String(res.headers['rendition-plan'])).toMatch(/prefilter=[a-z,]*content/);
+    const ref = await get(off, 'near.png', 'width=620&format=png');
+    expect(res.headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
+    expect(res.rawPayload.equals(ref.rawPayload)).toBe(true);
+    // Two sources kept (near.png's decode too is three bytes a pixel).
+    expect(await keptGauge(t)).toBe(2 * W * H * 3);
+  });
+
+  it('another decode wish (gamut=srgb) is decoded on its own', async () => {
+    const res = await get(t, 'twill.jpg', 'width=110&format=png&gamut=srgb');
+    expect(res.statusCode).toBe(200);
+    expect(stages(res)).toContain('stream');
+  });
+
+  it('a source replaced on disk is decoded again, its renditions show the new pixels, and the old file goes', async () => {
+    const flat = await sharp({ create: { width: W, height: H, channels: 3, background: { r: 30, g: 90, b: 200 } } }).jpeg({ quality: 95 }).toBuffer();
+    await writeFile(join(t.sourceDir, 'twill.jpg'), flat);
+    await utimes(join(t.sourceDir, 'twill.jpg'), new Date(), new Date(Date.now() + 5000));
+    const res = await get(t, 'twill.jpg', 'width=90&format=png');
+    expect(stages(res)).toContain('stream');
+    const img = await pixels(res.rawPayload);
+    for (const [c, want] of at(img, 45, 20).map((v, i) => [v, [30, 90, 200][i]])) expect(Math.abs(c - want)).toBeLessThanOrEqual(3);
+    expect(await keptFiles(t)).toHaveLength(2);
+  });
+
+  it("a deleted source's kept decode goes with it", async () => {
+    const before = await keptGauge(t);
+    const del = await t.app.inject({ method: 'DELETE', url: signUrl('/v1/sources/near.png', {}, key) });
+    expect(del.statusCode).toBe(200);
+    expect(await keptGauge(t)).toBe(before - W * H * 3);
+    expect(await keptFiles(t)).toHaveLength(1);
+  });
+});
+
+describe('decodes not kept', () => {
+  for (const [what, decodedBytes] of [['with cache.decodedBytes 0', 0], ['a decode over half of cache.decodedBytes', 4 * 2 ** 20]] as const) {
+    it(`${what}: every width decodes, and no spool file stays`, async () => {
+      const t = await build({ config: { cache: { decodedBytes } } });
+      try {
+        await writeFile(`${t.sourceDir}/twill.jpg`, await gratingJpeg(W, H));
+        for (const width of [120, 100]) {
+          const res = await get(t, 'twill.jpg', `width=${width}&format=png`);
+          expect(res.statusCode).toBe(200);
+          expect(stages(res)).toContain('stream');
+        }
+        expect(await keptFiles(t)).toEqual([]);
+        expect(await keptGauge(t)).toBe(0);
+      } finally {
+        await t.close();
+      }
+    });
+  }
+});
+
+describe('with two threads', () => {
+  it('a kept decode is resampled in two bands from the start, with the bytes of the unspooled service', async () => {
+    const [t, off] = await Promise.all([
+      build({ config: { cache: { decodedBytes: 16 * 2 ** 20 }, pool: { threads: 2 } } }),
+      build({ config: { pool: { spoolDir: 'off' } } }),
+    ]);
+    try {
+      const jpeg = await gratingJpeg(W, H);
+      for (const app of [t, off]) await writeFile(`${app.sourceDir}/twill.jpg`, jpeg);
+      expect(stages(await get(t, 'twill.jpg', 'width=300&format=png'))).toContain('stream');
+      // 1000x641 output pixels: over the split's minimum (512 x 512), so two bands.
+      for (const q of ['width=1000&format=png', 'width=1000&prefilter=none&format=png']) {
+        const res = await get(t, 'twill.jpg', q);
+        expect(stages(res)).not.toContain('stream');
+        const ref = await get(off, 'twill.jpg', q);
+        expect(res.headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
+        expect(res.rawPayload.equals(ref.rawPayload)).toBe(true);
+      }
+    } finally {
+      await Promise.all([t.close(), off.close()]);
+    }
+  });
+});
