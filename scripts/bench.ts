@@ -17,13 +17,15 @@ import { probeSpooledDecode } from '../src/codec/spool-decode.js';
 const RUNS = Number(process.env.BENCH_RUNS ?? 7);
 // The through-HTTP section (scripts/bench/service.ts): `npm run bench -- --service-runs 5
 // --service-seconds 10`; `--service-only` skips the in-process sections; `--thread-nice N` starts
-// the service with pool.threadNice N (to compare settings).
+// the service with pool.threadNice N, `--decoded-bytes N` with cache.decodedBytes N (0: every
+// further width decodes its source again), to compare settings.
 const { values: flags } = parseArgs({
   options: {
     'service-runs': { type: 'string', default: '5' },
     'service-seconds': { type: 'string', default: '10' },
     'service-only': { type: 'boolean', default: false },
     'thread-nice': { type: 'string' },
+    'decoded-bytes': { type: 'string' },
   },
 });
 const serviceRuns = Math.min(20, Math.max(1, Number(flags['service-runs'])));
@@ -143,4 +145,8 @@ if (!flags['service-only']) {
 }
 
 const { serviceBenchTable } = await import('./bench/service.js');
-console.log(`\n${await serviceBenchTable(serviceRuns, serviceSeconds, flags['thread-nice'] === undefined ? {} : { threadNice: Number(flags['thread-nice']) })}`);
+const settings = {
+  ...(flags['thread-nice'] === undefined ? {} : { pool: { threadNice: Number(flags['thread-nice']) } }),
+  ...(flags['decoded-bytes'] === undefined ? {} : { cache: { decodedBytes: Number(flags['decoded-bytes']) } }),
+};
+console.log(`\n${await serviceBenchTable(serviceRuns, serviceSeconds, settings)}`);

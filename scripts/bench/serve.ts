@@ -15,6 +15,8 @@ import { fileURLToPath } from 'node:url';
 const root = fileURLToPath(new URL('../../', import.meta.url));
 
 export interface Server { url: string; pid: number; stop(): Promise<void> }
+/** Settings over the service's defaults, by section. */
+export interface ServiceSettings { pool?: Record<string, number>; cache?: Record<string, number> }
 export interface Started { match: RegExpExecArray; pid: number; stop(): Promise<void> }
 
 /** Starts `node <args>` and resolves, with the match, once its stdout matches `ready`. */
@@ -41,15 +43,16 @@ export async function startServer(args: string[], env: Record<string, string>, r
 
 /**
  * The service as `npm start` runs it, on a port it picks, with a fresh cache folder; `nodeArgs`
- * go before the entry (e.g. `--cpu-prof`), `pool` over the pool's settings (e.g. threadNice).
+ * go before the entry (e.g. `--cpu-prof`), `settings` over the pool's and the cache's (e.g.
+ * `{ pool: { threadNice: 5 } }`, `{ cache: { decodedBytes: 0 } }`).
  */
-export async function startService(sourceDir: string, nodeArgs: string[] = [], pool: Record<string, number> = {}): Promise<Server> {
+export async function startService(sourceDir: string, nodeArgs: string[] = [], settings: ServiceSettings = {}): Promise<Server> {
   const dir = mkdtempSync(join(tmpdir(), 'foldwise-bench-'));
   const config = join(dir, 'config.json');
   // Load shedding on event-loop delay is off: on a busy shared machine a start-up stall of
   // over a second sheds the very first request, and this measures render cost, not shedding.
-  const settings = { origin: { sourceDir, generateDemo: false }, cache: { dir: join(dir, 'cache') }, server: { port: 0 }, pressure: { maxEventLoopDelayMs: 0 }, pool };
-  writeFileSync(config, JSON.stringify(settings));
+  const all = { origin: { sourceDir, generateDemo: false }, cache: { dir: join(dir, 'cache'), ...settings.cache }, server: { port: 0 }, pressure: { maxEventLoopDelayMs: 0 }, pool: settings.pool ?? {} };
+  writeFileSync(config, JSON.stringify(all));
   const s = await startServer([...nodeArgs, '--import', 'tsx', 'src/server.ts'], { FOLDWISE_CONFIG: config, HOST: '127.0.0.1' }, /"msg":"Server listening at http:\/\/127\.0\.0\.1:(\d+)"[\s\S]*foldwise ready/);
   return { url: `http://127.0.0.1:${s.match[1]}`, pid: s.pid, stop: async () => { await s.stop(); rmSync(dir, { recursive: true, force: true }); } };
 }

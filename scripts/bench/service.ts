@@ -15,7 +15,7 @@ import { quantile } from '../../load/lib/stats.js';
 import { benchJpeg } from './texture.js';
 import { decodeRaw } from './decode.js';
 import { timeRuns } from './timing.js';
-import { startServer, startService, timedGet, warmClient } from './serve.js';
+import { type ServiceSettings, startServer, startService, timedGet, warmClient } from './serve.js';
 import { lagLines, type LagRun, probeHits } from './lag.js';
 import { setTimeout as sleep } from 'node:timers/promises';
 
@@ -78,7 +78,7 @@ async function lagUnderNewPictures(url: string, lagged: string[], probed: string
 }
 
 /** Runs the through-HTTP measurements `runs` times and returns their tables as text. */
-export async function serviceBenchTable(runs: number, seconds: number, pool: Record<string, number> = {}): Promise<string> {
+export async function serviceBenchTable(runs: number, seconds: number, settings: ServiceSettings = {}): Promise<string> {
   const sourceDir = mkdtempSync(join(tmpdir(), 'foldwise-bench-sources-'));
   for (const [name, w, h, seed] of [...pictures, ...flood]) writeFileSync(join(sourceDir, name), await benchJpeg(w, h, seed));
   const lags: LagRun[] = [];
@@ -97,7 +97,7 @@ export async function serviceBenchTable(runs: number, seconds: number, pool: Rec
     // sharp's decode-only time of each picture, in this run (median of 3 after a warm-up).
     const decode: Record<string, number> = {};
     for (const [name] of pictures) decode[name] = (await timeRuns(3, () => decodeRaw(bytes[name]))).wall;
-    const service = await startService(sourceDir, [], pool);
+    const service = await startService(sourceDir, [], settings);
     try {
       add(`first request after start (${mp('first-4mp.jpg')} -> 800 px)`, await timedGet(service.url + rendition('first-4mp.jpg', 800)), decode['first-4mp.jpg']);
       for (const name of ['new-4mp.jpg', 'new-6mp.jpg', 'new-15mp.jpg']) {
@@ -115,24 +115,26 @@ export async function serviceBenchTable(runs: number, seconds: number, pool: Rec
     }
   }
   const lines = [
-    `through HTTP (npm start's server${Object.keys(pool).length ? `, pool ${JSON.stringify(pool)}` : ''}, fresh cache each run): median of ${runs} runs; ratio to sharp's decode-only time of the same bytes`,
+    `through HTTP (npm start's server${Object.keys(settings).length ? `, with ${JSON.stringify(settings)}` : ''}, fresh cache each run): median of ${runs} runs; ratio to sharp's decode-only time of the same bytes`,
     '| request | ratio (median) | ratios per run | ms (median) |',
     '|---|---|---|---|',
     ...[...rows].map(([label, r]) => `| ${label} | ${quantile(r.ratios, 0.5).toFixed(2)}x | ${r.ratios.map((x) => x.toFixed(2)).join(' ')} | ${quantile(r.ms, 0.5).toFixed(0)} |`),
   ];
   lines.push('', ...lagLines(lags, `${LOAD} new 4 MP pictures`));
-  lines.push('', await throughput(sourceDir, seconds, pool));
+  lines.push('', await throughput(sourceDir, seconds, settings));
   rmSync(sourceDir, { recursive: true, force: true });
   return lines.join('\n');
 }
 
 /** Renders per second, every request a new width of the 4 and 6.4 MP pictures, ours against sharp's. */
-async function throughput(sourceDir: string, seconds: number, pool: Record<string, number>): Promise<string> {
+async function throughput(sourceDir: string, seconds: number, settings: ServiceSettings): Promise<string> {
   const names = ['new-4mp.jpg', 'new-6mp.jpg', 'first-4mp.jpg'];
-  const service = await startService(sourceDir, [], pool);
+  const service = await startService(sourceDir, [], settings);
   const bare = await startServer(['--import', 'tsx', 'scripts/bench/sharp-route.ts', sourceDir], {}, /listening (\d+)/);
   const sharpUrl = `http://127.0.0.1:${bare.match[1]}`;
-  const lines = [`renders per second, ${seconds} s per run, every request a new width (600-1199 px) and quality (77-81) of the ${names.length} 4-6.4 MP pictures, JPEG`,
+  // The pictures' decodes are kept (cache.decodedBytes, unless 0), so every request after the first of a picture resamples its kept decode; sharp's route decodes every time.
+  const kept = settings.cache?.decodedBytes !== 0 ? ' (after its first, the service resamples each picture\'s kept decode: cache.decodedBytes)' : ' (every request decodes: cache.decodedBytes 0)';
+  const lines = [`renders per second, ${seconds} s per run, every request a new width (600-1199 px) and quality (77-81) of the ${names.length} 4-6.4 MP pictures, JPEG${kept}`,
     '| connections | foldwise renders/s | sharp linear-light renders/s | ratio | foldwise non-2xx |', '|---|---|---|---|---|'];
   try {
     for (const name of names) await timedGet(service.url + rendition(name, 800)); // analysed once, as a site's pictures are
