@@ -17,6 +17,7 @@ import type { Origin, SourceIdentity } from '../origins/types.js';
 import { renderRendition } from '../rendition/service.js';
 import { adaptivePrefilter } from '../risk/service.js';
 import { SpectrumStore } from '../risk/spectrum-store.js';
+import { KeptDecodes } from '../pool/spool/kept.js';
 import { imgAccept } from './warm-start.js';
 import { warmUpHeaders } from './warm-up-token.js';
 import { renditionsPrefix } from '../schemas/paths.js';
@@ -67,6 +68,9 @@ export async function warmRenderPath(app: FastifyInstance): Promise<boolean> {
     const identity: SourceIdentity = { key: 'warm-start.jpg', version: 'warm' };
     const origin: Origin = { name: 'warm', read: async () => ({ identity, bytes }), identify: async () => identity };
     const spectra = new SpectrumStore({ maxBytes: 2 ** 20 });
+    // Its own kept decodes, so the further width takes a further width's path (the kept decode).
+    const spool = app.renderPool.spool;
+    const keptDecodes = spool ? new KeptDecodes(4 * WIDTH * HEIGHT * 3, (path) => spool.remove(path)) : undefined;
     const ctx = {
       origin,
       cache: new TieredCache([new MemoryTier(2 ** 22)]),
@@ -74,9 +78,15 @@ export async function warmRenderPath(app: FastifyInstance): Promise<boolean> {
       pool: app.renderPool,
       limits: app.config.limits,
       adaptive: adaptivePrefilter(spectra, app.renderPool),
+      keptDecodes,
     };
     const query = compileRenditionQuery({ maxDimension: app.config.limits.maxDimension, kernelNames });
-    for (const width of ['400', '300']) await renderRendition(ctx, identity.key, query.parse({ width, format: 'jpeg' }));
+    try {
+      for (const width of ['400', '300']) await renderRendition(ctx, identity.key, query.parse({ width, format: 'jpeg' }));
+    } finally {
+      keptDecodes?.clear();
+      await keptDecodes?.settled();
+    }
     await warmRoute(app);
     return true;
   } catch (err) {

@@ -1,9 +1,10 @@
+import { statfsSync } from 'node:fs';
 import type { FastifyInstance } from 'fastify';
 import fp from 'fastify-plugin';
 import { Gauge } from 'prom-client';
 import { IdentityMemo } from '../../rendition/identity.js';
 import { SourceMemo } from '../../rendition/source-memo.js';
-import { KeptDecodes } from '../../pool/spool/kept.js';
+import { KeptDecodes, keptBound } from '../../pool/spool/kept.js';
 import type { RenderContext } from '../../rendition/service.js';
 import { adaptivePrefilter } from '../../risk/service.js';
 
@@ -11,6 +12,16 @@ declare module 'fastify' {
   interface FastifyInstance {
     /** What renderRendition needs, wired to this app's origin, cache, pool and metrics. */
     renderContext: RenderContext;
+  }
+}
+
+/** The size of the file system holding `dir` (Infinity when it cannot be told). */
+function folderBytes(dir: string): number {
+  try {
+    const fs = statfsSync(dir);
+    return fs.bsize * fs.blocks;
+  } catch {
+    return Infinity;
   }
 }
 
@@ -27,7 +38,7 @@ async function renderPlugin(app: FastifyInstance): Promise<void> {
     },
   });
   const { spool } = app.renderPool;
-  const { decodedBytes } = app.config.cache;
+  const decodedBytes = spool ? keptBound(app.config.cache.decodedBytes, folderBytes(spool.dir)) : 0;
   const keptDecodes = spool && decodedBytes > 0 ? new KeptDecodes(decodedBytes, (path) => spool.remove(path)) : undefined;
   // The kept files go at close (the pool's own close removes its spool folder too, whichever runs first).
   app.addHook('onClose', async () => {
@@ -36,7 +47,7 @@ async function renderPlugin(app: FastifyInstance): Promise<void> {
   });
   new Gauge({
     name: 'foldwise_decoded_bytes_kept',
-    help: `Bytes of finished decodes kept in the spool folder for their next rendition (bound cache.decodedBytes: ${decodedBytes}).`,
+    help: `Bytes of finished decodes kept in the spool folder for their next rendition (bound: ${decodedBytes}, cache.decodedBytes or a quarter of the folder's file system).`,
     registers: [metrics.registry],
     collect() {
       this.set(keptDecodes?.bytes ?? 0);

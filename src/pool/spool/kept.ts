@@ -3,6 +3,16 @@ import { LRUCache } from 'lru-cache';
 /** How long a kept decode waits for the next rendition of its source before its file goes. */
 export const DECODE_KEEP_MS = 60_000;
 
+/**
+ * The kept decodes' bound in a spool folder whose file system holds `folderBytes`: the setting,
+ * at most a quarter of the folder, so the decodes in progress keep their room (Docker gives a
+ * container 64 MB of /dev/shm unless told otherwise; a full folder sends a render to the slower
+ * in-memory decode).
+ */
+export function keptBound(setting: number, folderBytes: number): number {
+  return Math.max(0, Math.min(setting, Math.floor(folderBytes / 4)));
+}
+
 /** The pixels a spool file holds (src/codec/spool-decode.ts's SpoolableSource, without its writer). */
 export interface DecodedShape {
   width: number;

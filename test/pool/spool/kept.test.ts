@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { type DecodeOf, type DecodedShape, KeptDecodes } from '../../../src/pool/spool/kept.js';
+import { type DecodeOf, type DecodedShape, KeptDecodes, keptBound } from '../../../src/pool/spool/kept.js';
 
 const shape: DecodedShape = { width: 4, height: 2, channels: 3, depth: 8, format: 'jpeg' };
 const of = (key: string, version = 'v1', wish = 'srgb 0'): DecodeOf => ({ key, version, wish });
@@ -93,5 +93,14 @@ describe('KeptDecodes', () => {
     expect(kept.lend(of('a.jpg'))).toBeUndefined();
     await kept.settled();
     expect(removed).toEqual(['/spool/a.v']);
+  });
+});
+
+describe('keptBound', () => {
+  it('is the setting, at most a quarter of the spool folder', () => {
+    expect(keptBound(128 * 2 ** 20, 64 * 1e6)).toBe(16 * 1e6); // Docker's default /dev/shm
+    expect(keptBound(128 * 2 ** 20, 12 * 2 ** 30)).toBe(128 * 2 ** 20);
+    expect(keptBound(0, 12 * 2 ** 30)).toBe(0);
+    expect(keptBound(128 * 2 ** 20, Infinity)).toBe(128 * 2 ** 20);
   });
 });
