@@ -23,8 +23,8 @@ export interface StreamContext {
 
 /**
  * A spool file to render from: being written while `decoding` is pending, or `finished` before
- * (a kept decode, src/pool/spool/kept.ts: `decoding` has settled, and the render on the kernel's
- * plan is timed as `resample`, not `stream`, since nothing overlaps).
+ * (a kept decode, src/pool/spool/kept.ts: `decoding` has settled, and the render is timed as
+ * `resample`, not `stream`, since nothing overlaps).
  */
 export interface SpoolAt {
   file: string;
@@ -55,7 +55,7 @@ function adaptedPlan(ctx: StreamContext, first: PlannedRendition, at: SpoolAt, q
 }
 
 /**
- * Renders `q` from the spool file `at` on the pool, while it is written or after: the kernel's
+ * Renders `q` from the spool file `at` on the pool, while it is written (or after: renderFinished): the kernel's
  * plan (`first`) renders at once, and prefilter=auto's content-adaptive decision is asked
  * meanwhile. When it adapts the plan while the source still decodes, that render is called
  * off (its rows stay in the spool file) and the adapted one starts; after, the adapted one
@@ -72,6 +72,7 @@ export async function renderSpoolFile(
   identity: SourceIdentity,
   stop: AbortSignal,
 ): Promise<PlannedRendition & { raster: PixelRaster }> {
+  if (at.finished) return renderFinished(ctx, at, first, q, identity, stop);
   const speculative = new AbortController();
   const calledOff = new Promise<never>((_, reject) => speculative.signal.addEventListener('abort', () => reject(speculative.signal.reason), { once: true }));
   calledOff.catch(() => undefined);
@@ -80,7 +81,7 @@ export async function renderSpoolFile(
   stop.addEventListener('abort', stopAsked, { once: true });
   try {
     // The render's band tasks go to the pool first (the call queues them at once), then the decision's.
-    const streaming = ctx.clock.time(at.finished ? 'resample' : 'stream', () => ctx.pool.resampleSpooled(at.file, at.shape, Promise.race([at.decoding, calledOff]), first.plan, stop, at.finished));
+    const streaming = ctx.clock.time('stream', () => ctx.pool.resampleSpooled(at.file, at.shape, Promise.race([at.decoding, calledOff]), first.plan, stop));
     asked = adaptedPlan(ctx, first, at, q, identity, stop);
     const { deciding } = asked;
     deciding?.then((a) => a?.adaptive && speculative.abort(), () => undefined);
@@ -93,12 +94,29 @@ export async function renderSpoolFile(
     // What the decision adds after the render (timed as `plan`; absent when none was asked).
     const adapted = deciding && (await ctx.clock.time('plan', () => deciding));
     if (!adapted?.adaptive) return { ...first, raster: raster! };
-    return { ...adapted, raster: await ctx.clock.time('resample', () => ctx.pool.resampleSpooled(at.file, at.shape, at.decoding, adapted.plan, stop, at.finished)) };
+    return { ...adapted, raster: await ctx.clock.time('resample', () => ctx.pool.resampleSpooled(at.file, at.shape, at.decoding, adapted.plan, stop)) };
   } finally {
     // The analysis reads the file: it must be done before the file goes (a render that failed
     // calls it off first, rather than let it wait for the rest of the decode).
     stopAsked();
     stop.removeEventListener('abort', stopAsked);
     await asked.deciding?.catch(() => undefined);
+  }
+}
+
+/**
+ * A finished file (a kept decode) has no decode to overlap: prefilter=auto's decision comes
+ * first (from the kept spectrum: a few milliseconds in the pool; else an analysis of the file),
+ * and the one plan decided is rendered, rather than a render on the kernel's plan that a
+ * decision lowering a cut-off would throw away.
+ */
+async function renderFinished(ctx: StreamContext, at: SpoolAt, first: PlannedRendition, q: RenditionQuery, identity: SourceIdentity, stop: AbortSignal): Promise<PlannedRendition & { raster: PixelRaster }> {
+  const asked = adaptedPlan(ctx, first, at, q, identity, stop);
+  try {
+    const adapted = asked.deciding && (await ctx.clock.time('plan', () => asked.deciding!));
+    const planned = adapted?.adaptive ? adapted : first;
+    return { ...planned, raster: await ctx.clock.time('resample', () => ctx.pool.resampleSpooled(at.file, at.shape, at.decoding, planned.plan, stop, true)) };
+  } finally {
+    asked.live.spool?.stop();
   }
 }
