@@ -2,7 +2,7 @@
  * cache.decodedBytes: a finished decode's spool file is kept for the next rendition of the same
  * source version, which then resamples it with no decode, with the bytes a fresh decode gives.
  */
-import { readdir, utimes, writeFile } from 'node:fs/promises';
+import { readdir, rm, utimes, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -105,6 +105,21 @@ describe('kept decodes: further renditions of a large picture skip its decode', 
     expect(del.statusCode).toBe(200);
     expect(await keptGauge(t)).toBe(before - W * H * 3);
     expect(await keptFiles(t)).toHaveLength(1);
+  });
+
+  it('a kept file gone from the folder (removed by hand) is let go, and the rendition decodes the source again', async () => {
+    // twill.jpg's (the flat blue one) is the only file left.
+    const [file] = await keptFiles(t);
+    await rm(join(t.app.renderPool.spool!.dir, file));
+    const res = await get(t, 'twill.jpg', 'width=70&format=png');
+    expect(res.statusCode).toBe(200);
+    expect(stages(res)).toContain('stream');
+    const img = await pixels(res.rawPayload);
+    for (const [c, want] of at(img, 35, 20).map((v, i) => [v, [30, 90, 200][i]])) expect(Math.abs(c - want)).toBeLessThanOrEqual(3);
+    // The new decode is kept in its place.
+    expect(await keptFiles(t)).toHaveLength(1);
+    expect((await keptFiles(t))[0]).not.toBe(file);
+    expect(await keptGauge(t)).toBe(W * H * 3);
   });
 });
 
