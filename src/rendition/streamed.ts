@@ -33,7 +33,7 @@ export interface StreamedRendition extends PlannedRendition {
  * Which decode of `source` a query asks for: the kept decodes' key (src/pool/spool/kept.ts).
  * Only stills are spooled, whose first frame and every frame are the same raster (servesWish).
  */
-function decodeOf(source: ReadSource, wish: DecodeWish): DecodeOf {
+export function decodeOf(source: ReadSource, wish: DecodeWish): DecodeOf {
   return { key: source.identity.key, version: source.identity.version, wish: `${wish.gamut} ${wish.frames === 'all' ? 0 : wish.frames}` };
 }
 

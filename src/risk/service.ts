@@ -21,6 +21,7 @@ import { compileRenditionQuery, type RenditionQuery } from '../schemas/rendition
 import { decodeRgb, encodePng, riskMap, spectrumPicture } from './pictures/index.js';
 import { type AssessedRendition, assessRendition, riskBody } from './report.js';
 import type { SpectrumStore } from './spectrum-store.js';
+import { analyseIntoKept } from './kept-analysis.js';
 
 /** Width of the source preview under view=map (output px): enough to read a 8 x 6 grid. */
 const MAP_WIDTH = 640;
@@ -54,13 +55,20 @@ export async function assessSource(ctx: RiskContext, path: string, q: RenditionQ
   const clock = new StageClock(render.observe);
   const identity = await clock.time('origin', () => render.identities?.identify(path) ?? render.origin.identify(path));
   let analyseMs = 0;
-  const { spectrum, from } = await ctx.spectra.get(identity, async (analyse) => {
+  const { spectrum, from } = await ctx.spectra.get(identity, async (analyse, counted) => {
     // Read before admission; admitted for the decode and as much again for the analysis (an allowance).
     const kept = render.sources && { memo: render.sources, asked: identity };
     const read = await readSource(render.origin, path, render.limits, clock, undefined, kept);
     const header = await readHeader(read.bytes, decodeLimits(render.limits));
     const lease = await render.pool.admit(2 * decodeCost(header), `analysing a ${header.width}x${header.height} source`);
     try {
+      // Through a spool file kept for the renditions that follow, where the render path would spool it.
+      const spooled = await analyseIntoKept(render, read, clock);
+      if (spooled) {
+        counted();
+        analyseMs = spooled.analyseMs;
+        return spooled.spectrum;
+      }
       // The source's own gamut (luminance with its primaries' coefficients); an animation's first frame.
       const { decoded } = await decodeSource(read, render.limits, clock, { gamut: 'source', frames: 0 });
       const start = performance.now();

@@ -166,12 +166,12 @@ export class SpectrumStore {
 
   /**
    * The spectrum of a source version: L1, then L2, else `produce` decodes the source and hands
-   * its raster to `analyse` (it may hold a render slot meanwhile); once however many callers
-   * ask at the same time.
+   * its raster to `analyse` (it may hold a render slot meanwhile), or analyses it its own way
+   * and says so with `counted`; once however many callers ask at the same time.
    */
   async get(
     identity: SourceIdentity,
-    produce: (analyse: (raster: PixelRaster) => Promise<SourceSpectrum>) => Promise<SourceSpectrum>,
+    produce: (analyse: (raster: PixelRaster) => Promise<SourceSpectrum>, counted: () => void) => Promise<SourceSpectrum>,
   ): Promise<{ spectrum: SourceSpectrum; from: SpectrumOrigin }> {
     const key = this.keyOf(identity);
     const hit = this.lru.get(key);
@@ -189,7 +189,7 @@ export class SpectrumStore {
         const made = await this.analyse(raster);
         this.remember(undefined, raster, made);
         return made;
-      });
+      }, () => this.analyses++);
       this.remember(key, undefined, s);
       await this.store(identity, s);
       return s;

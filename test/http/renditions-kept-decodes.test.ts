@@ -123,6 +123,34 @@ describe('kept decodes: further renditions of a large picture skip its decode', 
   });
 });
 
+describe('the alias-risk report of a new source keeps its decode for the renditions that follow', () => {
+  it('one analysis, the report of the in-memory service, and renditions with no decode and its bytes', async () => {
+    const [t, off] = await Promise.all([build({ config: { cache: { decodedBytes: 16 * 2 ** 20 } } }), build()]);
+    try {
+      const jpeg = await gratingJpeg(W, H);
+      for (const app of [t, off]) await writeFile(`${app.sourceDir}/herringbone.jpg`, jpeg);
+      const report = await t.app.inject({ url: '/v1/alias-risk/herringbone.jpg?width=300' });
+      expect(report.statusCode).toBe(200);
+      // off (cache.decodedBytes 0) decodes in memory and analyses the raster: the same spectrum, so the same report.
+      const ref = await off.app.inject({ url: '/v1/alias-risk/herringbone.jpg?width=300' });
+      expect(report.json()).toEqual(ref.json());
+      expect(await keptFiles(t)).toHaveLength(1);
+      expect(await keptFiles(off)).toEqual([]);
+      for (const q of ['width=300&format=png', 'width=640&format=png']) {
+        const res = await get(t, 'herringbone.jpg', q);
+        expect(stages(res)).toContain('resample');
+        expect(stages(res)).not.toContain('stream');
+        const same = await get(off, 'herringbone.jpg', q);
+        expect(res.headers['rendition-plan']).toBe(same.headers['rendition-plan']);
+        expect(res.rawPayload.equals(same.rawPayload)).toBe(true);
+      }
+      expect(t.app.spectra.analyses).toBe(1);
+    } finally {
+      await Promise.all([t.close(), off.close()]);
+    }
+  });
+});
+
 describe('decodes not kept', () => {
   for (const [what, decodedBytes] of [['with cache.decodedBytes 0', 0], ['a decode over half of cache.decodedBytes', 4 * 2 ** 20]] as const) {
     it(`${what}: every width decodes, and no spool file stays`, async () => {
