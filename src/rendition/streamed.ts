@@ -7,6 +7,7 @@ import type { DecodeOf } from '../pool/spool/kept.js';
 import { renderSpoolFile, type StreamContext } from './spool-render.js';
 import { decodeLimits, type ReadSource, wishOf } from './source.js';
 import { epochNow } from '../pool/trace.js';
+import { withDeadline } from '../lib/deadline.js';
 
 export type { StreamContext } from './spool-render.js';
 
@@ -47,8 +48,7 @@ function deadlines(ctx: StreamContext): { deadline: AbortSignal; stop: AbortSign
  * Renders `q` from the decode of `source` kept since an earlier rendition, with no decode at
  * all (timed as `resample`); null when none is kept, or its file could not be read back (then it is let go).
  */
-async function resampleKept(ctx: StreamContext, source: ReadSource, q: RenditionQuery): Promise<StreamedRendition | null> {
-  const of = decodeOf(source, wishOf(q));
+async function resampleKept(ctx: StreamContext, source: ReadSource, q: RenditionQuery, of: DecodeOf): Promise<StreamedRendition | null> {
   const lent = ctx.keptDecodes?.lend(of);
   if (!lent) return null;
   try {
@@ -94,10 +94,21 @@ async function resampleKept(ctx: StreamContext, source: ReadSource, q: Rendition
 export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSource, q: RenditionQuery): Promise<StreamedRendition | null> {
   const spool = ctx.pool.spool;
   if (!spool) return null;
-  const fromKept = await resampleKept(ctx, source, q);
+  const of = decodeOf(source, wishOf(q));
+  const fromKept = await resampleKept(ctx, source, q, of);
   if (fromKept) return fromKept;
   const probe = await ctx.clock.time('decode', () => probeSpooledDecode(source.bytes, decodeLimits(ctx.limits), wishOf(q)));
   if (!probe || probe.width * probe.height < STREAM_MIN_PIXELS) return null;
+  // Another rendition of this source is decoding it now, into a file to be kept: this one waits
+  // for that file rather than decode the source a second time beside it on the same cores.
+  // (Asked after the header read and noted below with no wait in between, so of renditions
+  // arriving together exactly one decodes.)
+  const other = ctx.keptDecodes?.decoding(of);
+  if (other) {
+    await (ctx.signal ? withDeadline(other, ctx.signal, () => ctx.signal!.reason as Error) : other);
+    const afterIt = await resampleKept(ctx, source, q, of);
+    if (afterIt) return afterIt;
+  }
   const { deadline, stop } = deadlines(ctx);
   // Refuses a bad output size before anything is decoded.
   const first = planRendition(probe, q, ctx.limits);
@@ -105,6 +116,7 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
   // The file's bytes count in /dev/shm until it is removed (and libvips is done with it).
   const bytes = probe.width * probe.height * probe.channels * (probe.depth / 8);
   const unhold = ctx.pool.holdSpool(bytes);
+  const ended = ctx.keptDecodes?.takes(bytes) ? ctx.keptDecodes.starts(of) : undefined;
   const decodeStart = epochNow();
   const decoding = probe.write(file);
   decoding.then(() => ctx.clock.span('libvips decode to the spool file', 'decode', decodeStart), () => undefined);
@@ -124,9 +136,11 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
     // An answer's decode ended cleanly (the render awaited it): its whole file is kept for the next
     // rendition, or removed while the rendition is encoded (the caller awaits `cleaned`); a failure waits here.
     const { width, height, channels, depth, format } = probe;
-    if (answered && ctx.keptDecodes?.keep(decodeOf(source, wishOf(q)), file, { width, height, channels, depth, format }, bytes, unhold)) {
-      cleanedUp(Promise.resolve());
-    } else {
+    const keptIt = answered && ctx.keptDecodes?.keep(of, file, { width, height, channels, depth, format }, bytes, unhold);
+    // Renditions waiting for this decode find its file kept now, or decode the source themselves.
+    ended?.();
+    if (keptIt) cleanedUp(Promise.resolve());
+    else {
       const removal = spool.remove(file);
       if (answered) cleanedUp(removal.catch(() => undefined));
       else await removal;

@@ -194,3 +194,63 @@ describe('with two threads', () => {
     }
   });
 });
+
+describe('renditions of a new source asked at once', () => {
+  it('decode it once: the others wait for its kept decode, with the bytes of the unspooled service', async () => {
+    const [t, off] = await Promise.all([build({ config: { cache: { decodedBytes: 16 * 2 ** 20 }, pool: { threads: 2 } } }), build()]);
+    try {
+      const jpeg = await gratingJpeg(W, H);
+      for (const app of [t, off]) await writeFile(`${app.sourceDir}/gingham.jpg`, jpeg);
+      const qs = ['width=300&format=png', 'width=200&format=png', 'width=640&prefilter=none&format=png'];
+      const answers = await Promise.all(qs.map((q) => get(t, 'gingham.jpg', q)));
+      expect(answers.map((r) => r.statusCode)).toEqual([200, 200, 200]);
+      // One streamed (it decoded), the others resampled its kept file.
+      expect(answers.filter((r) => stages(r).includes('stream'))).toHaveLength(1);
+      expect(answers.filter((r) => !stages(r).includes('stream') && stages(r).includes('resample'))).toHaveLength(2);
+      for (const [i, q] of qs.entries()) {
+        const ref = await get(off, 'gingham.jpg', q);
+        expect(answers[i].headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
+        expect(answers[i].rawPayload.equals(ref.rawPayload)).toBe(true);
+      }
+      expect(t.app.spectra.analyses).toBe(1);
+      expect(await keptFiles(t)).toHaveLength(1);
+    } finally {
+      await Promise.all([t.close(), off.close()]);
+    }
+  });
+
+  it('a waiting rendition whose client goes away stops waiting, and the decode it waited for is kept', async () => {
+    const t = await build({ config: { cache: { decodedBytes: 16 * 2 ** 20 }, pool: { threads: 2 } } });
+    try {
+      await writeFile(`${t.sourceDir}/twill.jpg`, await gratingJpeg(W, H));
+      const kept = t.app.renderContext.keptDecodes!;
+      const ids = await t.app.origin.identify('twill.jpg');
+      const of = { key: ids.key, version: ids.version, wish: 'source 0' };
+      const first = get(t, 'twill.jpg', 'width=300&format=png');
+      // Wait (on events, not time) until the first has started its decode.
+      while (!kept.decoding(of)) await new Promise((r) => setImmediate(r));
+      const gone = new AbortController();
+      const { renderRendition } = await import('../../src/rendition/service.js');
+      const { compileRenditionQuery } = await import('../../src/schemas/rendition.js');
+      const { kernelNames } = await import('../../src/core/index.js');
+      const query = compileRenditionQuery({ maxDimension: 16384, kernelNames }).parse({ width: '200', format: 'png' });
+      // Told when the second rendition finds the first's decode in progress: it is about to wait for it.
+      const found = new Promise<void>((resolve) => {
+        const decoding = kept.decoding.bind(kept);
+        kept.decoding = (o) => {
+          const p = decoding(o);
+          if (p) resolve();
+          return p;
+        };
+      });
+      const waiting = renderRendition({ ...t.app.renderContext, signal: gone.signal }, 'twill.jpg', query);
+      await found;
+      gone.abort(new Error('the client went away'));
+      await expect(waiting).rejects.toThrow('the client went away');
+      expect((await first).statusCode).toBe(200);
+      expect(await keptFiles(t)).toHaveLength(1);
+    } finally {
+      await t.close();
+    }
+  });
+});

@@ -36,6 +36,8 @@ export interface LentDecode {
   release(): void;
 }
 
+const idOf = (of: DecodeOf) => `${of.key}\n${of.version}\n${of.wish}`;
+
 interface Entry {
   of: DecodeOf;
   path: string;
@@ -62,6 +64,8 @@ interface Entry {
 export class KeptDecodes {
   private readonly kept: LRUCache<string, Entry>;
   private readonly removals = new Set<Promise<void>>();
+  /** Decodes in progress whose file will be kept, by idOf: each settles once its file is kept or gone. */
+  private readonly inProgress = new Map<string, Promise<void>>();
 
   constructor(
     private readonly maxBytes: number,
@@ -106,9 +110,35 @@ export class KeptDecodes {
    * the bound: the caller removes it as before.
    */
   keep(of: DecodeOf, path: string, shape: DecodedShape, bytes: number, unhold: () => void): boolean {
-    if (bytes * 2 > this.maxBytes) return false;
+    if (!this.takes(bytes)) return false;
     this.kept.set(of.key, { of, path, shape, bytes, readers: 0, out: false, unhold });
     return true;
+  }
+
+  /** Whether a finished file of `bytes` would be kept (at most half the bound). */
+  takes(bytes: number): boolean {
+    return bytes * 2 <= this.maxBytes;
+  }
+
+  /**
+   * Notes that the decode `of` has started, into a file to be kept; call the returned function
+   * once that file is kept or gone. Meanwhile `decoding(of)` tells other renditions of the
+   * source to wait for it rather than decode the source a second time beside it.
+   */
+  starts(of: DecodeOf): () => void {
+    const id = idOf(of);
+    let end!: () => void;
+    const ended = new Promise<void>((resolve) => (end = resolve));
+    if (!this.inProgress.has(id)) this.inProgress.set(id, ended);
+    return () => {
+      if (this.inProgress.get(id) === ended) this.inProgress.delete(id);
+      end();
+    };
+  }
+
+  /** Settles once the decode `of` in progress has ended (its file kept, or not); undefined when none is. */
+  decoding(of: DecodeOf): Promise<void> | undefined {
+    return this.inProgress.get(idOf(of));
   }
 
   /** Lets a source's kept decode go (a deleted source, or a file that could not be read back). */

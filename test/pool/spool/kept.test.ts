@@ -96,6 +96,29 @@ describe('KeptDecodes', () => {
   });
 });
 
+describe('KeptDecodes: decodes in progress', () => {
+  it('a decode started is found by its very decode only, until it ends; a second start of it does not replace the first', async () => {
+    const { kept } = store(1000);
+    expect(kept.takes(500)).toBe(true);
+    expect(kept.takes(501)).toBe(false);
+    const end = kept.starts(of('twill.jpg'));
+    const found = kept.decoding(of('twill.jpg'));
+    expect(found).toBeInstanceOf(Promise);
+    expect(kept.decoding(of('twill.jpg', 'v2'))).toBeUndefined();
+    expect(kept.decoding(of('twill.jpg', 'v1', 'srgb all'))).toBeUndefined();
+    const endSecond = kept.starts(of('twill.jpg'));
+    expect(kept.decoding(of('twill.jpg'))).toBe(found);
+    let settled = false;
+    void found!.then(() => (settled = true));
+    end();
+    await found;
+    expect(settled).toBe(true);
+    expect(kept.decoding(of('twill.jpg'))).toBeUndefined();
+    endSecond(); // ends its own, changes nothing else
+    expect(kept.decoding(of('twill.jpg'))).toBeUndefined();
+  });
+});
+
 describe('keptBound', () => {
   it('is the setting, at most a quarter of the spool folder', () => {
     expect(keptBound(128 * 2 ** 20, 64 * 1e6)).toBe(16 * 1e6); // Docker's default /dev/shm
