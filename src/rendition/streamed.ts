@@ -58,7 +58,7 @@ async function resampleKept(ctx: StreamContext, source: ReadSource, q: Rendition
     return { ...done, deadline, cleaned: Promise.resolve() };
   } catch (e) {
     if (!(e instanceof SpoolWriteError)) throw e;
-    ctx.keptDecodes?.forget(of.key);
+    ctx.keptDecodes?.forget(of.key, lent.path);
     return null;
   } finally {
     lent.release();

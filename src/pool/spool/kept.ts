@@ -141,9 +141,12 @@ export class KeptDecodes {
     return this.inProgress.get(idOf(of));
   }
 
-  /** Lets a source's kept decode go (a deleted source, or a file that could not be read back). */
-  forget(key: string): void {
-    this.kept.delete(key);
+  /**
+   * Lets a source's kept decode go (a deleted source); with `path`, only while that is the file
+   * kept (one that could not be read back: a newer decode kept meanwhile stays).
+   */
+  forget(key: string, path?: string): void {
+    if (path === undefined || this.kept.peek(key)?.path === path) this.kept.delete(key);
   }
 
   /** Lets every kept decode go (the spool folder is full: its space goes to the decodes in progress). */

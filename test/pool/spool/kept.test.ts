@@ -69,6 +69,20 @@ describe('KeptDecodes', () => {
     expect(kept.bytes).toBe(0);
   });
 
+  it('forgetting an unreadable file lets only that file go, not a newer decode kept meanwhile', async () => {
+    const { kept, keep, removed } = store(1000);
+    keep(of('brick.jpg', 'v1'), '/spool/old.v', 100);
+    keep(of('brick.jpg', 'v2'), '/spool/new.v', 100);
+    kept.forget('brick.jpg', '/spool/old.v');
+    const lent = kept.lend(of('brick.jpg', 'v2'));
+    expect(lent?.path).toBe('/spool/new.v');
+    lent?.release();
+    kept.forget('brick.jpg', '/spool/new.v');
+    expect(kept.lend(of('brick.jpg', 'v2'))).toBeUndefined();
+    await kept.settled();
+    expect(removed).toEqual(['/spool/old.v', '/spool/new.v']);
+  });
+
   it('clear lets every file go', async () => {
     const { kept, keep, removed } = store(1000);
     keep(of('a.jpg'), '/spool/a.v', 100);
