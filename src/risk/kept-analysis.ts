@@ -16,7 +16,7 @@ const reportWish: DecodeWish = { gamut: 'source', frames: 0 };
  * (a CMS that asks the risk before it publishes, the inspector) resample that decode instead
  * of decoding the source again. The pool's thread reads the file's Welch tiles as the render
  * path's analysis does, so the spectrum is the same. Undefined, having decoded nothing, when
- * no decode can be kept (spooling off, `cache.decodedBytes` 0) or the render path would not
+ * no decode can be kept (spooling off, `cache.decodedBytes` 0, over half of it) or the render path would not
  * spool this source (alpha, a wide gamut kept, animated, under 1 MP), and when the spool file
  * cannot be written: the caller then decodes in memory as before. A source's own errors are
  * thrown as the in-memory decode throws them. `analyseMs`: the analysis alone (the decode is timed on `clock`).
@@ -29,6 +29,7 @@ export async function analyseIntoKept(render: RenderContext, read: ReadSource, c
   if (!probe || probe.width * probe.height < STREAM_MIN_PIXELS) return undefined;
   const { width, height, channels, depth, format } = probe;
   const bytes = width * height * channels * (depth / 8);
+  if (!kept.takes(bytes)) return undefined;
   const file = spool.path();
   const unhold = pool.holdSpool(bytes);
   let keptIt = false;
