@@ -1,3 +1,4 @@
+import { existsSync } from 'node:fs';
 import type { PixelRaster } from '../core/types.js';
 import type { DecodeWish } from '../codec/decode.js';
 import { probeSpooledDecode, SpoolWriteError } from '../codec/spool-decode.js';
@@ -57,7 +58,8 @@ async function resampleKept(ctx: StreamContext, source: ReadSource, q: Rendition
     const done = await renderSpoolFile(ctx, { file: lent.path, shape: lent.shape, decoding: Promise.resolve(), finished: true }, first, q, source.identity, stop);
     return { ...done, deadline, cleaned: Promise.resolve() };
   } catch (e) {
-    if (!(e instanceof SpoolWriteError)) throw e;
+    // A file that cannot be read back (or is gone, which an analysis of it reports its own way).
+    if (!(e instanceof SpoolWriteError) && existsSync(lent.path)) throw e;
     ctx.keptDecodes?.forget(of.key, lent.path);
     return null;
   } finally {

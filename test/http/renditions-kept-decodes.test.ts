@@ -123,6 +123,26 @@ describe('kept decodes: further renditions of a large picture skip its decode', 
   });
 });
 
+describe('a kept file gone while its spectrum is gone too', () => {
+  it('the decision, which would analyse the missing file, falls back as the render does: the source is decoded again', async () => {
+    // No disk tier: the spectrum lives in memory only, so forgetting it leaves an analysis to do.
+    const t = await build({ config: { cache: { decodedBytes: 16 * 2 ** 20, diskBytes: 0 } } });
+    try {
+      await writeFile(`${t.sourceDir}/brick.jpg`, await gratingJpeg(W, H));
+      expect(stages(await get(t, 'brick.jpg', 'width=300&format=png'))).toContain('stream');
+      const [file] = await keptFiles(t);
+      await rm(join(t.app.renderPool.spool!.dir, file));
+      t.app.spectra.forget('brick.jpg');
+      const res = await get(t, 'brick.jpg', 'width=280&format=png');
+      expect(res.statusCode).toBe(200);
+      expect(stages(res)).toContain('stream');
+      expect(t.app.spectra.analyses).toBe(2);
+    } finally {
+      await t.close();
+    }
+  });
+});
+
 describe('the alias-risk report of a new source keeps its decode for the renditions that follow', () => {
   it('one analysis, the report of the in-memory service, and renditions with no decode and its bytes', async () => {
     const [t, off] = await Promise.all([build({ config: { cache: { decodedBytes: 16 * 2 ** 20 } } }), build()]);
