@@ -54,7 +54,8 @@ interface Entry {
 /**
  * Spool files of finished decodes (src/codec/spool-decode.ts), kept for the next rendition of
  * the same source: a page that goes live asks each picture at several widths within seconds,
- * and the upload hook's ladder asks its widths one after the other; each would decode the whole
+ * and a site that pre-warms through the rendition route asks its widths one after the other
+ * (the alias-risk report keeps its decode too: src/risk/kept-analysis.ts); each would decode the whole
  * source again, which for a large JPEG is most of a render's time. A kept file is lent for the
  * very decode asked (key, version and wish) and read as a finished spool file, so a rendition
  * from it has the bytes of one from a fresh decode. Bounded by bytes (least recently used go
