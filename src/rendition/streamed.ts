@@ -1,6 +1,5 @@
 import { existsSync } from 'node:fs';
 import type { PixelRaster } from '../core/types.js';
-import type { DecodeWish } from '../codec/decode.js';
 import { probeSpooledDecode, SpoolWriteError } from '../codec/spool-decode.js';
 import type { RenditionQuery } from '../schemas/rendition.js';
 import { type PlannedRendition, planRendition } from './plan.js';
@@ -8,6 +7,7 @@ import type { DecodeOf } from '../pool/spool/kept.js';
 import { renderSpoolFile, type StreamContext } from './spool-render.js';
 import { decodeLimits, type ReadSource, wishOf } from './source.js';
 import { epochNow } from '../pool/trace.js';
+import { decodeOf, startSpoolDecode } from './spool-job.js';
 import { withDeadline } from '../lib/deadline.js';
 
 export type { StreamContext } from './spool-render.js';
@@ -29,14 +29,6 @@ export interface StreamedRendition extends PlannedRendition {
    * it answers (the file's pages, 44 MB for 14.7 MP, take milliseconds to free).
    */
   cleaned: Promise<void>;
-}
-
-/**
- * Which decode of `source` a query asks for: the kept decodes' key (src/pool/spool/kept.ts).
- * Only stills are spooled, whose first frame and every frame are the same raster (servesWish).
- */
-export function decodeOf(source: ReadSource, wish: DecodeWish): DecodeOf {
-  return { key: source.identity.key, version: source.identity.version, wish: `${wish.gamut} ${wish.frames === 'all' ? 0 : wish.frames}` };
 }
 
 /** The deadline of a streamed render (decode, resample and encode), and the render's stop signal. */
@@ -114,19 +106,14 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
   const { deadline, stop } = deadlines(ctx);
   // Refuses a bad output size before anything is decoded.
   const first = planRendition(probe, q, ctx.limits);
-  const file = spool.path();
-  // The file's bytes count in /dev/shm until it is removed (and libvips is done with it).
-  const bytes = probe.width * probe.height * probe.channels * (probe.depth / 8);
-  const unhold = ctx.pool.holdSpool(bytes);
-  const ended = ctx.keptDecodes?.takes(bytes) ? ctx.keptDecodes.starts(of) : undefined;
   const decodeStart = epochNow();
-  const decoding = probe.write(file);
-  decoding.then(() => ctx.clock.span('libvips decode to the spool file', 'decode', decodeStart), () => undefined);
+  const job = startSpoolDecode(ctx.pool, spool, ctx.keptDecodes, probe, of);
+  job.decoding.then(() => ctx.clock.span('libvips decode to the spool file', 'decode', decodeStart), () => undefined);
   let cleanedUp!: (removal: Promise<void>) => void;
   const cleaned = new Promise<void>((resolve) => (cleanedUp = resolve));
   let answered = false;
   try {
-    const done = await renderSpoolFile(ctx, { file, shape: probe, decoding, finished: false }, first, q, source.identity, stop);
+    const done = await renderSpoolFile(ctx, { file: job.file, shape: job.shape, decoding: job.decoding, finished: false }, first, q, source.identity, stop);
     answered = true;
     return { ...done, deadline, cleaned };
   } catch (e) {
@@ -137,19 +124,8 @@ export async function resampleWhileDecoding(ctx: StreamContext, source: ReadSour
   } finally {
     // An answer's decode ended cleanly (the render awaited it): its whole file is kept for the next
     // rendition, or removed while the rendition is encoded (the caller awaits `cleaned`); a failure waits here.
-    const { width, height, channels, depth, format } = probe;
-    const keptIt = answered && ctx.keptDecodes?.keep(of, file, { width, height, channels, depth, format }, bytes, unhold);
-    // Renditions waiting for this decode find its file kept now, or decode the source themselves.
-    ended?.();
-    if (keptIt) cleanedUp(Promise.resolve());
-    else {
-      const removal = spool.remove(file);
-      if (answered) cleanedUp(removal.catch(() => undefined));
-      else await removal;
-      // libvips may make or write the file after this (a deadline settled `decoding` first, or its
-      // job was still waiting for a pool thread): once it is done, remove the file again, or it
-      // would hold memory in /dev/shm until the pool closes.
-      probe.idle().then(() => spool.remove(file)).catch(() => undefined).finally(unhold);
-    }
+    const { removed } = job.end(answered);
+    if (answered) cleanedUp(removed.catch(() => undefined));
+    else await removed;
   }
 }

@@ -4,7 +4,8 @@ import { probeSpooledDecode, SpoolWriteError } from '../codec/spool-decode.js';
 import { liveSpool } from '../pool/spool/live.js';
 import type { RenderContext } from '../rendition/service.js';
 import { decodeLimits, type ReadSource } from '../rendition/source.js';
-import { decodeOf, STREAM_MIN_PIXELS } from '../rendition/streamed.js';
+import { STREAM_MIN_PIXELS } from '../rendition/streamed.js';
+import { decodeOf, startSpoolDecode } from '../rendition/spool-job.js';
 import type { StageClock } from '../rendition/timings.js';
 
 /** What the report analyses: the source's own gamut, the first frame (as a rendition's default decode of a still). */
@@ -27,18 +28,15 @@ export async function analyseIntoKept(render: RenderContext, read: ReadSource, c
   if (!spool || !kept) return undefined;
   const probe = await clock.time('decode', () => probeSpooledDecode(read.bytes, decodeLimits(render.limits), reportWish));
   if (!probe || probe.width * probe.height < STREAM_MIN_PIXELS) return undefined;
-  const { width, height, channels, depth, format } = probe;
-  const bytes = width * height * channels * (depth / 8);
-  if (!kept.takes(bytes)) return undefined;
-  const file = spool.path();
-  const unhold = pool.holdSpool(bytes);
-  let keptIt = false;
+  if (!kept.takes(probe.width * probe.height * probe.channels * (probe.depth / 8))) return undefined;
+  const job = startSpoolDecode(pool, spool, kept, probe, decodeOf(read, reportWish), false);
+  let done = false;
   try {
-    await clock.time('decode', () => probe.write(file));
+    await clock.time('decode', () => job.decoding);
     const start = performance.now();
-    const { spectrum } = await pool.analyse(liveSpool(file, probe, Promise.resolve()).raster, undefined);
+    const { spectrum } = await pool.analyse(liveSpool(job.file, job.shape, Promise.resolve()).raster, undefined);
     const analyseMs = performance.now() - start;
-    keptIt = kept.keep(decodeOf(read, reportWish), file, { width, height, channels, depth, format }, bytes, unhold);
+    done = true;
     return { spectrum, analyseMs };
   } catch (e) {
     if (!(e instanceof SpoolWriteError)) throw e;
@@ -46,10 +44,6 @@ export async function analyseIntoKept(render: RenderContext, read: ReadSource, c
     kept.clear();
     return undefined;
   } finally {
-    if (!keptIt) {
-      await spool.remove(file);
-      // libvips may still write the file after a deadline: removed again once it is done.
-      probe.idle().then(() => spool.remove(file)).catch(() => undefined).finally(unhold);
-    }
+    await job.end(done).removed;
   }
 }
