@@ -31,17 +31,17 @@ export interface SpoolJob {
 
 /**
  * Starts `probe`'s decode into a fresh spool file, its bytes counted as spool memory
- * (RenderPool.holdSpool) until the file is removed. With `announce`, while it runs and when its
- * file can be kept, other renditions of the same decode find it in progress
- * (KeptDecodes.decoding) and wait for its file instead of decoding the source beside it.
+ * (RenderPool.holdSpool) until the file is removed. While it runs, and when its file can be
+ * kept, other renditions of the same decode find it in progress (KeptDecodes.decoding) and wait
+ * for its file instead of decoding the source beside it.
  */
-export function startSpoolDecode(pool: RenderPool, spool: SpoolDir, kept: KeptDecodes | undefined, probe: SpoolableSource, of: DecodeOf, announce = true): SpoolJob {
+export function startSpoolDecode(pool: RenderPool, spool: SpoolDir, kept: KeptDecodes | undefined, probe: SpoolableSource, of: DecodeOf): SpoolJob {
   const { width, height, channels, depth, format } = probe;
   const shape: DecodedShape = { width, height, channels, depth, format };
   const bytes = width * height * channels * (depth / 8);
   const file = spool.path();
   const unhold = pool.holdSpool(bytes);
-  const wake = announce && kept?.takes(bytes) ? kept.starts(of) : undefined;
+  const wake = kept?.takes(bytes) ? kept.starts(of) : undefined;
   const decoding = probe.write(file);
   const end = (keep: boolean) => {
     const keptIt = keep && kept?.keep(of, file, shape, bytes, unhold) === true;

@@ -55,7 +55,7 @@ export async function assessSource(ctx: RiskContext, path: string, q: RenditionQ
   const clock = new StageClock(render.observe);
   const identity = await clock.time('origin', () => render.identities?.identify(path) ?? render.origin.identify(path));
   let analyseMs = 0;
-  const { spectrum, from } = await ctx.spectra.get(identity, async (analyse, counted) => {
+  const { spectrum, from } = await ctx.spectra.get(identity, async (analyse, made) => {
     // Read before admission; admitted for the decode and as much again for the analysis (an allowance).
     const kept = render.sources && { memo: render.sources, asked: identity };
     const read = await readSource(render.origin, path, render.limits, clock, undefined, kept);
@@ -63,9 +63,8 @@ export async function assessSource(ctx: RiskContext, path: string, q: RenditionQ
     const lease = await render.pool.admit(2 * decodeCost(header), `analysing a ${header.width}x${header.height} source`);
     try {
       // Through a spool file kept for the renditions that follow, where the render path would spool it.
-      const spooled = await analyseIntoKept(render, read, clock);
+      const spooled = await analyseIntoKept(render, read, clock, made);
       if (spooled) {
-        counted();
         analyseMs = spooled.analyseMs;
         return spooled.spectrum;
       }

@@ -167,11 +167,12 @@ export class SpectrumStore {
   /**
    * The spectrum of a source version: L1, then L2, else `produce` decodes the source and hands
    * its raster to `analyse` (it may hold a render slot meanwhile), or analyses it its own way
-   * and says so with `counted`; once however many callers ask at the same time.
+   * and hands the result to `made` as soon as it has it (counted, and in L1 at once: a decision
+   * asked before `produce` returns finds it); once however many callers ask at the same time.
    */
   async get(
     identity: SourceIdentity,
-    produce: (analyse: (raster: PixelRaster) => Promise<SourceSpectrum>, counted: () => void) => Promise<SourceSpectrum>,
+    produce: (analyse: (raster: PixelRaster) => Promise<SourceSpectrum>, made: (s: SourceSpectrum) => void) => Promise<SourceSpectrum>,
   ): Promise<{ spectrum: SourceSpectrum; from: SpectrumOrigin }> {
     const key = this.keyOf(identity);
     const hit = this.lru.get(key);
@@ -189,7 +190,10 @@ export class SpectrumStore {
         const made = await this.analyse(raster);
         this.remember(undefined, raster, made);
         return made;
-      }, () => this.analyses++);
+      }, (made) => {
+        this.analyses++;
+        this.remember(key, undefined, made);
+      });
       this.remember(key, undefined, s);
       await this.store(identity, s);
       return s;

@@ -30,6 +30,21 @@ async function keptGauge(t: TestApp): Promise<number> {
   return Number(m?.[1]);
 }
 
+/** A two-thread service keeping decodes and the in-memory service, both holding the grating JPEG as `name`. */
+async function keptAndOff(name: string): Promise<[TestApp, TestApp]> {
+  const [t, off] = await Promise.all([build({ config: { cache: { decodedBytes: 16 * 2 ** 20 }, pool: { threads: 2 } } }), build()]);
+  const jpeg = await gratingJpeg(W, H);
+  for (const app of [t, off]) await writeFile(`${app.sourceDir}/${name}`, jpeg);
+  return [t, off];
+}
+
+/** Resolves once `name`'s default decode is in progress on `t` (polled on setImmediate: events, not time). */
+async function untilDecoding(t: TestApp, name: string): Promise<void> {
+  const ids = await t.app.origin.identify(name);
+  const of = { key: ids.key, version: ids.version, wish: 'source 0' };
+  while (!t.app.renderContext.keptDecodes!.decoding(of)) await new Promise((r) => setImmediate(r));
+}
+
 describe('kept decodes: further renditions of a large picture skip its decode', () => {
   let t: TestApp;
   let off: TestApp;
@@ -171,6 +186,26 @@ describe('the alias-risk report of a new source keeps its decode for the renditi
   });
 });
 
+describe('a rendition asked while the alias-risk report decodes its new source', () => {
+  it('waits for the report\'s decode and resamples it: one decode, one analysis, the bytes of the unspooled service', async () => {
+    const [t, off] = await keptAndOff('pinstripe.jpg');
+    try {
+      const report = t.app.inject({ url: '/v1/alias-risk/pinstripe.jpg?width=300' });
+      await untilDecoding(t, 'pinstripe.jpg');
+      const res = await get(t, 'pinstripe.jpg', 'width=300&format=png');
+      expect((await report).statusCode).toBe(200);
+      expect(res.statusCode).toBe(200);
+      expect(stages(res)).toContain('resample');
+      expect(stages(res)).not.toContain('stream');
+      expect(t.app.spectra.analyses).toBe(1);
+      const ref = await get(off, 'pinstripe.jpg', 'width=300&format=png');
+      expect(res.rawPayload.equals(ref.rawPayload)).toBe(true);
+    } finally {
+      await Promise.all([t.close(), off.close()]);
+    }
+  });
+});
+
 describe('decodes not kept', () => {
   for (const [what, decodedBytes] of [['with cache.decodedBytes 0', 0], ['a decode over half of cache.decodedBytes', 4 * 2 ** 20]] as const) {
     it(`${what}: every width decodes, and no spool file stays`, async () => {
@@ -217,10 +252,8 @@ describe('with two threads', () => {
 
 describe('renditions of a new source asked at once', () => {
   it('decode it once: the others wait for its kept decode, with the bytes of the unspooled service', async () => {
-    const [t, off] = await Promise.all([build({ config: { cache: { decodedBytes: 16 * 2 ** 20 }, pool: { threads: 2 } } }), build()]);
+    const [t, off] = await keptAndOff('gingham.jpg');
     try {
-      const jpeg = await gratingJpeg(W, H);
-      for (const app of [t, off]) await writeFile(`${app.sourceDir}/gingham.jpg`, jpeg);
       const qs = ['width=300&format=png', 'width=200&format=png', 'width=640&prefilter=none&format=png'];
       const answers = await Promise.all(qs.map((q) => get(t, 'gingham.jpg', q)));
       expect(answers.map((r) => r.statusCode)).toEqual([200, 200, 200]);
@@ -244,11 +277,8 @@ describe('renditions of a new source asked at once', () => {
     try {
       await writeFile(`${t.sourceDir}/twill.jpg`, await gratingJpeg(W, H));
       const kept = t.app.renderContext.keptDecodes!;
-      const ids = await t.app.origin.identify('twill.jpg');
-      const of = { key: ids.key, version: ids.version, wish: 'source 0' };
       const first = get(t, 'twill.jpg', 'width=300&format=png');
-      // Wait (on events, not time) until the first has started its decode.
-      while (!kept.decoding(of)) await new Promise((r) => setImmediate(r));
+      await untilDecoding(t, 'twill.jpg');
       const gone = new AbortController();
       const { renderRendition } = await import('../../src/rendition/service.js');
       const { compileRenditionQuery } = await import('../../src/schemas/rendition.js');
