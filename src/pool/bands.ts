@@ -6,9 +6,20 @@ import { SpoolReadError } from './spool/rows.js';
 import { note } from './trace-scope.js';
 import { bandWithRest, type RestHandOver } from './rest-band.js';
 
-// Below this many output pixels one worker does the whole rendition: a split would cost more
-// in hand-off than it saves (common practice; revisit with load/ measurements).
+// Below this many output pixels, from a source below SPLIT_MIN_SOURCE_PIXELS, one worker does
+// the whole rendition: a split would cost more in hand-off than it saves (common practice;
+// revisit with load/ measurements).
 const SPLIT_MIN_PIXELS = 512 * 512;
+
+// A source at least this big is split whatever the output's size: a downscale's work grows with
+// the source's area (each band filters the source rows under its output rows, a pyramid's
+// levels included), not the output's, and a 640 x 400 rendition of a kept 6.4 MP decode took
+// one thread 30 ms while the other sat idle (scripts/bench/timeline.ts --further 640).
+const SPLIT_MIN_SOURCE_PIXELS = 1 << 20;
+
+// Fewer output rows than this stay in one band: each band reads its own source rows under the
+// kernel's support, so very short bands repeat much of each other's reading.
+const SPLIT_MIN_ROWS = 16;
 
 // A spooled render splits its output only when it shrinks the source's area by less than this:
 // 12 MP -> 800 px keeps pace with the decode in one worker, and measured no slower than with
@@ -33,7 +44,8 @@ export function bandRows(threads: number, shared: SharedRaster | SpooledRaster, 
   // the output is large (little shrinking, no pyramid), and the other stays free for the
   // next render instead of waiting on rows.
   const paced = arriving && pixels * STREAM_SPLIT_SHRINK <= shared.width * shared.height;
-  const split = threads > 1 && pixels >= SPLIT_MIN_PIXELS && !paced;
+  const big = pixels >= SPLIT_MIN_PIXELS || shared.width * shared.height >= SPLIT_MIN_SOURCE_PIXELS;
+  const split = threads > 1 && big && h >= SPLIT_MIN_ROWS && !paced;
   return split ? [[0, h >> 1], [h >> 1, h]] : [[0, h]];
 }
 
