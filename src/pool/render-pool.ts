@@ -13,9 +13,15 @@ import { PoolThreads } from './threads.js';
 import { bandRows, outputBuffer, outputRaster, runBandTasks } from './bands.js';
 import { PoolAdmission } from './admission.js';
 import { note } from './trace-scope.js';
-import type { RestHandOver } from './rest-band.js';
+import { type RestHandOver, whileDeciding } from './rest-band.js';
 
 export { type PoolMemory, queuePerThread, type RenderPoolOptions, runningPerThread } from './options.js';
+
+/** A finished spool file rendered while prefilter=auto decides (RenderPool.resampleSpooled). */
+export interface WhileDeciding {
+  /** Resolves true when the decision adapts the plan (the band is called off), false when it keeps it. */
+  callOff: Promise<boolean>;
+}
 
 // Idle source buffers kept for reuse are at most this big each (a 16 MP RGBA source); larger
 // sources get a fresh buffer (staging.ts), handed back to the system when their job ends.
@@ -110,12 +116,18 @@ export class RenderPool extends PoolThreads {
   /**
    * Resamples a source a decoder is still writing to a spool file (spool/spooled.ts), or, with
    * `finished`, one written before (a kept decode: its bands start at once, as in memory).
+   * `finished` as WhileDeciding: a file written before, rendered while prefilter=auto decides
+   * (one band at once; its rest handed to a free thread once the decision keeps the plan, the
+   * band stopped, its output incomplete, once the decision calls it off: rest-band.ts).
    */
-  async resampleSpooled(path: string, shape: SpoolShape & { channels: 1 | 3 }, written: Promise<void>, plan: Plan, signal?: AbortSignal, finished = false): Promise<PixelRaster> {
+  async resampleSpooled(path: string, shape: SpoolShape & { channels: 1 | 3 }, written: Promise<void>, plan: Plan, signal?: AbortSignal, finished: boolean | WhileDeciding = false): Promise<PixelRaster> {
     if (this.closing) throw this.stopping();
+    const idle = () => this.whenIdle();
     // With a second thread, a band that lags behind the decode hands over its rest once the decode ends (rest-band.ts).
-    const rest = this.threads > 1 && !finished ? { decoded: written, idle: () => this.whenIdle() } : undefined;
-    return resampleSpool(path, shape, written, (src) => this.runBands(src, plan, signal, rest), signal);
+    const rest: RestHandOver | undefined = typeof finished === 'object'
+      ? whileDeciding(finished.callOff, idle)
+      : this.threads > 1 && !finished ? { decoded: written, idle } : undefined;
+    return resampleSpool(path, shape, written, (src) => this.runBands(src, plan, signal, rest, typeof finished === 'object'), signal);
   }
 
   /**
@@ -143,9 +155,9 @@ export class RenderPool extends PoolThreads {
   }
 
   /** Runs the plan's bands of output rows over a shared source (bands.ts); the output raster. */
-  private async runBands(shared: SharedRaster | SpooledRaster, plan: Plan, signal?: AbortSignal, rest?: RestHandOver): Promise<PixelRaster> {
+  private async runBands(shared: SharedRaster | SpooledRaster, plan: Plan, signal?: AbortSignal, rest?: RestHandOver, oneBand = false): Promise<PixelRaster> {
     const out = outputBuffer(shared, plan);
-    const bands = bandRows(this.threads, shared, plan, rest !== undefined);
+    const bands = oneBand ? [[0, plan.targetHeight] as [number, number]] : bandRows(this.threads, shared, plan, rest !== undefined);
     try {
       await runBandTasks(this.runBand, shared, plan, out, bands, signal, rest);
     } catch (e) {

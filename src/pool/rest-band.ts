@@ -15,6 +15,22 @@ export interface RestHandOver {
   decoded: Promise<unknown>;
   /** Resolves once a pool thread is free (PoolThreads.whenIdle). */
   idle: () => Promise<void>;
+  /**
+   * Resolves true to call the band off: its end is lowered to where it is (it stops after the
+   * row it is making, its output incomplete) and no rest is handed over. A band rendered on the
+   * kernel's plan while prefilter=auto decides is called off when the decision adapts the plan.
+   */
+  callOff?: Promise<boolean>;
+}
+
+/**
+ * The hand-over of a band rendered on the kernel's plan while prefilter=auto decides beside
+ * it (a finished spool file: nothing paces the band but the decision): its rest is handed to a
+ * free thread once `callOff` resolves false (the decision keeps the plan); resolving true calls
+ * it off.
+ */
+export function whileDeciding(callOff: Promise<boolean>, idle: () => Promise<void>): RestHandOver {
+  return { decoded: callOff.then((off) => (off ? Promise.reject(new Error('called off')) : undefined)), idle, callOff };
 }
 
 /**
@@ -44,13 +60,19 @@ export function bandWithRest(
   at[0] = r0;
   at[1] = r1;
   let settled = false;
+  let calledOff = false;
   const first = runBand({ src, plan, rows: [r0, r1], out, live }, { signal });
   const ended = first.then(() => 'band' as const, () => 'band' as const);
   void ended.then(() => (settled = true));
+  void rest.callOff?.then((off) => {
+    if (!off || settled) return;
+    calledOff = true;
+    Atomics.store(at, 1, 0);
+  }, () => undefined);
   const none: BandOutcome = { kind: 'done', rows: 0 };
   const free = rest.decoded.then(rest.idle).then(() => 'free' as const, () => 'band' as const);
   const second = Promise.race([ended, free]).then((why): Promise<BandOutcome> | BandOutcome => {
-    if (why === 'band' || settled || signal.aborted) return none;
+    if (why === 'band' || settled || calledOff || signal.aborted) return none;
     const next = Atomics.load(at, 0);
     if (r1 - next < REST_MIN_ROWS) return none;
     const split = next + ((r1 - next + 1) >> 1);

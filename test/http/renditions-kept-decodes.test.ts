@@ -227,7 +227,7 @@ describe('decodes not kept', () => {
 });
 
 describe('with two threads', () => {
-  it('a kept decode is resampled in two bands from the start, with the bytes of the unspooled service', async () => {
+  it('a kept decode is resampled in two bands from the start, or in one beside the decision, with the bytes of the unspooled service', async () => {
     const [t, off] = await Promise.all([
       build({ config: { cache: { decodedBytes: 16 * 2 ** 20 }, pool: { threads: 2 } } }),
       build({ config: { pool: { spoolDir: 'off' } } }),
@@ -236,10 +236,16 @@ describe('with two threads', () => {
       const jpeg = await gratingJpeg(W, H);
       for (const app of [t, off]) await writeFile(`${app.sourceDir}/twill.jpg`, jpeg);
       expect(stages(await get(t, 'twill.jpg', 'width=300&format=png'))).toContain('stream');
-      // 1000x641 output pixels: over the split's minimum (512 x 512), so two bands.
-      for (const q of ['width=1000&format=png', 'width=1000&prefilter=none&format=png']) {
+      // prefilter=none: two bands from the start. prefilter=auto: one band beside the decision
+      // (from the kept spectrum), which at 1000 px lowers the cut-off (the band is called off
+      // and the adapted plan rendered) and at 120 px keeps the kernel's plan (the band's rest
+      // is handed over).
+      const cases = [['width=1000&format=png', 'adapted'], ['width=1000&prefilter=none&format=png', 'none asked'], ['width=120&format=png', 'kept']] as const;
+      for (const [q, decision] of cases) {
         const res = await get(t, 'twill.jpg', q);
         expect(stages(res)).not.toContain('stream');
+        expect(stages(res).includes('plan')).toBe(decision !== 'none asked');
+        expect(/prefilter=[a-z,]*content/.test(String(res.headers['rendition-plan']))).toBe(decision === 'adapted');
         const ref = await get(off, 'twill.jpg', q);
         expect(res.headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
         expect(res.rawPayload.equals(ref.rawPayload)).toBe(true);
