@@ -130,6 +130,8 @@ async function renderFinished(ctx: StreamContext, at: SpoolAt, first: PlannedRen
     // A failed decision calls the band off too (its error is thrown below).
     const adapts = decided.then((a) => Boolean(a?.adaptive), () => true);
     const beside = render(first, { callOff: adapts });
+    // Awaited below once decided; a band that fails while the decision runs must not be an unhandled rejection meanwhile.
+    beside.catch(() => undefined);
     if (!(await adapts)) return { ...first, raster: await beside };
     await beside.catch(() => undefined);
     const adapted = (await decided)!;

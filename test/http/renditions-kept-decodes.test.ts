@@ -138,20 +138,25 @@ describe('kept decodes: further renditions of a large picture skip its decode', 
   });
 });
 
-describe('a kept file gone while its spectrum is gone too', () => {
-  it('the decision, which would analyse the missing file, falls back as the render does: the source is decoded again', async () => {
+describe('a kept file gone from the folder', () => {
+  // With two threads a band renders beside the decision: it fails at once on the missing file
+  // while the decision still runs (from the kept spectrum, or by analysing the file, which fails too).
+  it.each([[1, 'gone too'], [2, 'gone too'], [2, 'kept']] as const)('%i thread(s), its spectrum %s: the rendition falls back and decodes the source again', async (threads, spectrum) => {
     // No disk tier: the spectrum lives in memory only, so forgetting it leaves an analysis to do.
-    const t = await build({ config: { cache: { decodedBytes: 16 * 2 ** 20, diskBytes: 0 } } });
+    const t = await build({ config: { cache: { decodedBytes: 16 * 2 ** 20, diskBytes: 0 }, pool: { threads } } });
     try {
       await writeFile(`${t.sourceDir}/brick.jpg`, await gratingJpeg(W, H));
       expect(stages(await get(t, 'brick.jpg', 'width=300&format=png'))).toContain('stream');
       const [file] = await keptFiles(t);
       await rm(join(t.app.renderPool.spool!.dir, file));
-      t.app.spectra.forget('brick.jpg');
+      if (spectrum === 'gone too') t.app.spectra.forget('brick.jpg');
       const res = await get(t, 'brick.jpg', 'width=280&format=png');
       expect(res.statusCode).toBe(200);
       expect(stages(res)).toContain('stream');
-      expect(t.app.spectra.analyses).toBe(2);
+      expect(t.app.spectra.analyses).toBe(spectrum === 'gone too' ? 2 : 1);
+      // The new decode is kept in the old one's place.
+      expect(await keptFiles(t)).toHaveLength(1);
+      expect((await keptFiles(t))[0]).not.toBe(file);
     } finally {
       await t.close();
     }
