@@ -30,7 +30,10 @@ export interface RestHandOver {
  * it off.
  */
 export function whileDeciding(callOff: Promise<boolean>, idle: () => Promise<void>): RestHandOver {
-  return { decoded: callOff.then((off) => (off ? Promise.reject(new Error('called off')) : undefined)), idle, callOff };
+  const decoded = callOff.then((off) => (off ? Promise.reject(new Error('called off')) : undefined));
+  // Handled here too: a render refused before its band starts never reads it.
+  decoded.catch(() => undefined);
+  return { decoded, idle, callOff };
 }
 
 /**
