@@ -30,7 +30,8 @@ function startThreads(threads: number, maxRunning: number, nice: number): BandPi
     minThreads: threads,
     maxThreads: threads,
     // At most `maxRunning` jobs reach the pool, with at most three tasks each at once: two
-    // bands, or a band and the new source's analysis, or the decision and then the bands.
+    // bands, or a band and the new source's analysis, or a band beside the decision (its rest
+    // handed over once the decision has settled), or the decision and then the bands.
     maxQueue: 3 * maxRunning,
     // piscina's default has an idle thread block in Atomics.wait, still holding its last
     // task: the collection a large source's task schedules (worker.ts) never ran, and one
