@@ -18,7 +18,7 @@ const SPLIT_MIN_PIXELS = 512 * 512;
 const SPLIT_MIN_SOURCE_PIXELS = 1 << 20;
 
 // Fewer output rows than this stay in one band: each band reads its own source rows under the
-// kernel's support, so very short bands repeat much of each other's reading.
+// kernel's support, so very short bands repeat much of each other's reading (common practice).
 const SPLIT_MIN_ROWS = 16;
 
 // A spooled render splits its output only when it shrinks the source's area by less than this:

@@ -127,7 +127,7 @@ export class RenderPool extends PoolThreads {
     const rest: RestHandOver | undefined = typeof finished === 'object'
       ? whileDeciding(finished.callOff, idle)
       : this.threads > 1 && !finished ? { decoded: written, idle } : undefined;
-    return resampleSpool(path, shape, written, (src) => this.runBands(src, plan, signal, rest, typeof finished === 'object'), signal);
+    return resampleSpool(path, shape, written, (src) => this.runBands(src, plan, signal, rest), signal);
   }
 
   /**
@@ -155,9 +155,10 @@ export class RenderPool extends PoolThreads {
   }
 
   /** Runs the plan's bands of output rows over a shared source (bands.ts); the output raster. */
-  private async runBands(shared: SharedRaster | SpooledRaster, plan: Plan, signal?: AbortSignal, rest?: RestHandOver, oneBand = false): Promise<PixelRaster> {
+  private async runBands(shared: SharedRaster | SpooledRaster, plan: Plan, signal?: AbortSignal, rest?: RestHandOver): Promise<PixelRaster> {
     const out = outputBuffer(shared, plan);
-    const bands = oneBand ? [[0, plan.targetHeight] as [number, number]] : bandRows(this.threads, shared, plan, rest !== undefined);
+    // A band beside the decision (rest.callOff) is one band, whatever its size: its rest waits for the decision.
+    const bands = rest?.callOff ? [[0, plan.targetHeight] as [number, number]] : bandRows(this.threads, shared, plan, rest !== undefined);
     try {
       await runBandTasks(this.runBand, shared, plan, out, bands, signal, rest);
     } catch (e) {

@@ -30,12 +30,26 @@ async function keptGauge(t: TestApp): Promise<number> {
   return Number(m?.[1]);
 }
 
-/** A two-thread service keeping decodes and the in-memory service, both holding the grating JPEG as `name`. */
-async function keptAndOff(name: string): Promise<[TestApp, TestApp]> {
+/**
+ * Runs `fn` with a two-thread service keeping decodes and the in-memory service, both holding
+ * the grating JPEG as `name`; both are closed after.
+ */
+async function withKeptAndOff(name: string, fn: (t: TestApp, off: TestApp) => Promise<void>): Promise<void> {
   const [t, off] = await Promise.all([build({ config: { cache: { decodedBytes: 16 * 2 ** 20 }, pool: { threads: 2 } } }), build()]);
-  const jpeg = await gratingJpeg(W, H);
-  for (const app of [t, off]) await writeFile(`${app.sourceDir}/${name}`, jpeg);
-  return [t, off];
+  try {
+    const jpeg = await gratingJpeg(W, H);
+    for (const app of [t, off]) await writeFile(`${app.sourceDir}/${name}`, jpeg);
+    await fn(t, off);
+  } finally {
+    await Promise.all([t.close(), off.close()]);
+  }
+}
+
+/** Asserts that `res` has the plan and the bytes `off` (a service keeping no decode) answers for `name` and `q`. */
+async function expectAsOff(off: TestApp, name: string, q: string, res: { headers: Record<string, unknown>; rawPayload: Buffer }): Promise<void> {
+  const ref = await get(off, name, q);
+  expect(res.headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
+  expect(res.rawPayload.equals(ref.rawPayload)).toBe(true);
 }
 
 /** Resolves once `name`'s default decode is in progress on `t` (polled on setImmediate: events, not time). */
@@ -74,9 +88,7 @@ describe('kept decodes: further renditions of a large picture skip its decode', 
       // Resampled from the finished file: nothing overlapped a decode.
       expect(stages(res)).toContain('resample');
       expect(stages(res)).not.toContain('stream');
-      const ref = await get(off, 'twill.jpg', q);
-      expect(res.headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
-      expect(res.rawPayload.equals(ref.rawPayload)).toBe(true);
+      await expectAsOff(off, 'twill.jpg', q, res);
     }
     expect(await keptGauge(t)).toBe(W * H * 3);
     expect(await keptFiles(t)).toHaveLength(1);
@@ -90,9 +102,7 @@ describe('kept decodes: further renditions of a large picture skip its decode', 
     expect(stages(res).indexOf('plan')).toBeGreaterThan(0);
     expect(stages(res).indexOf('plan')).toBeLessThan(stages(res).indexOf('resample'));
     expect(String(res.headers['rendition-plan'])).toMatch(/prefilter=[a-z,]*content/);
-    const ref = await get(off, 'near.png', 'width=620&format=png');
-    expect(res.headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
-    expect(res.rawPayload.equals(ref.rawPayload)).toBe(true);
+    await expectAsOff(off, 'near.png', 'width=620&format=png', res);
     // Two sources kept (near.png's decode too is three bytes a pixel).
     expect(await keptGauge(t)).toBe(2 * W * H * 3);
   });
@@ -180,9 +190,7 @@ describe('the alias-risk report of a new source keeps its decode for the renditi
         const res = await get(t, 'herringbone.jpg', q);
         expect(stages(res)).toContain('resample');
         expect(stages(res)).not.toContain('stream');
-        const same = await get(off, 'herringbone.jpg', q);
-        expect(res.headers['rendition-plan']).toBe(same.headers['rendition-plan']);
-        expect(res.rawPayload.equals(same.rawPayload)).toBe(true);
+        await expectAsOff(off, 'herringbone.jpg', q, res);
       }
       expect(t.app.spectra.analyses).toBe(1);
     } finally {
@@ -193,8 +201,7 @@ describe('the alias-risk report of a new source keeps its decode for the renditi
 
 describe('a rendition asked while the alias-risk report decodes its new source', () => {
   it('waits for the report\'s decode and resamples it: one decode, one analysis, the bytes of the unspooled service', async () => {
-    const [t, off] = await keptAndOff('pinstripe.jpg');
-    try {
+    await withKeptAndOff('pinstripe.jpg', async (t, off) => {
       const report = t.app.inject({ url: '/v1/alias-risk/pinstripe.jpg?width=300' });
       await untilDecoding(t, 'pinstripe.jpg');
       const res = await get(t, 'pinstripe.jpg', 'width=300&format=png');
@@ -203,11 +210,8 @@ describe('a rendition asked while the alias-risk report decodes its new source',
       expect(stages(res)).toContain('resample');
       expect(stages(res)).not.toContain('stream');
       expect(t.app.spectra.analyses).toBe(1);
-      const ref = await get(off, 'pinstripe.jpg', 'width=300&format=png');
-      expect(res.rawPayload.equals(ref.rawPayload)).toBe(true);
-    } finally {
-      await Promise.all([t.close(), off.close()]);
-    }
+      await expectAsOff(off, 'pinstripe.jpg', 'width=300&format=png', res);
+    });
   });
 });
 
@@ -233,13 +237,7 @@ describe('decodes not kept', () => {
 
 describe('with two threads', () => {
   it('a kept decode is resampled in two bands from the start, or in one beside the decision, with the bytes of the unspooled service', async () => {
-    const [t, off] = await Promise.all([
-      build({ config: { cache: { decodedBytes: 16 * 2 ** 20 }, pool: { threads: 2 } } }),
-      build({ config: { pool: { spoolDir: 'off' } } }),
-    ]);
-    try {
-      const jpeg = await gratingJpeg(W, H);
-      for (const app of [t, off]) await writeFile(`${app.sourceDir}/twill.jpg`, jpeg);
+    await withKeptAndOff('twill.jpg', async (t, off) => {
       expect(stages(await get(t, 'twill.jpg', 'width=300&format=png'))).toContain('stream');
       // prefilter=none: two bands from the start. prefilter=auto: one band beside the decision
       // (from the kept spectrum), which at 1000 px lowers the cut-off (the band is called off
@@ -251,36 +249,25 @@ describe('with two threads', () => {
         expect(stages(res)).not.toContain('stream');
         expect(stages(res).includes('plan')).toBe(decision !== 'none asked');
         expect(/prefilter=[a-z,]*content/.test(String(res.headers['rendition-plan']))).toBe(decision === 'adapted');
-        const ref = await get(off, 'twill.jpg', q);
-        expect(res.headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
-        expect(res.rawPayload.equals(ref.rawPayload)).toBe(true);
+        await expectAsOff(off, 'twill.jpg', q, res);
       }
-    } finally {
-      await Promise.all([t.close(), off.close()]);
-    }
+    });
   });
 });
 
 describe('renditions of a new source asked at once', () => {
   it('decode it once: the others wait for its kept decode, with the bytes of the unspooled service', async () => {
-    const [t, off] = await keptAndOff('gingham.jpg');
-    try {
+    await withKeptAndOff('gingham.jpg', async (t, off) => {
       const qs = ['width=300&format=png', 'width=200&format=png', 'width=640&prefilter=none&format=png'];
       const answers = await Promise.all(qs.map((q) => get(t, 'gingham.jpg', q)));
       expect(answers.map((r) => r.statusCode)).toEqual([200, 200, 200]);
       // One streamed (it decoded), the others resampled its kept file.
       expect(answers.filter((r) => stages(r).includes('stream'))).toHaveLength(1);
       expect(answers.filter((r) => !stages(r).includes('stream') && stages(r).includes('resample'))).toHaveLength(2);
-      for (const [i, q] of qs.entries()) {
-        const ref = await get(off, 'gingham.jpg', q);
-        expect(answers[i].headers['rendition-plan']).toBe(ref.headers['rendition-plan']);
-        expect(answers[i].rawPayload.equals(ref.rawPayload)).toBe(true);
-      }
+      for (const [i, q] of qs.entries()) await expectAsOff(off, 'gingham.jpg', q, answers[i]);
       expect(t.app.spectra.analyses).toBe(1);
       expect(await keptFiles(t)).toHaveLength(1);
-    } finally {
-      await Promise.all([t.close(), off.close()]);
-    }
+    });
   });
 
   it('a waiting rendition whose client goes away stops waiting, and the decode it waited for is kept', async () => {

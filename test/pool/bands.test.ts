@@ -1,27 +1,16 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { makePlan } from '../../src/core/index.js';
-import type { PixelRaster, Plan } from '../../src/core/types.js';
+import type { Plan } from '../../src/core/types.js';
 import { bandRows } from '../../src/pool/bands.js';
 import { RenderPool } from '../../src/pool/render-pool.js';
 import { piscinaRunner } from '../../src/pool/runner.js';
 import type { ResampleTask } from '../../src/pool/worker.js';
+import { gratingRaw } from '../helpers/damage.js';
 
 const plan = (sw: number, sh: number, tw: number, th: number): Plan =>
   makePlan({ sourceWidth: sw, sourceHeight: sh, targetWidth: tw, targetHeight: th, kernel: 'auto', prefilter: 'auto', light: 'linear' });
 
 const source = (width: number, height: number) => ({ path: '/nowhere.v', width, height, channels: 3 as const, depth: 8 as const, state: new SharedArrayBuffer(4) });
-
-/** An analytic test card: a radial chirp in each channel, shifted (no photograph). */
-function chirp(width: number, height: number): PixelRaster {
-  const data = new Uint8Array(width * height * 3);
-  for (let y = 0; y < height; y++) {
-    for (let x = 0; x < width; x++) {
-      const r2 = (x - width / 2) ** 2 + (y - height / 2) ** 2;
-      for (let c = 0; c < 3; c++) data[(y * width + x) * 3 + c] = Math.round(127.5 + 127.5 * Math.cos(r2 / (900 + 300 * c)));
-    }
-  }
-  return { data, width, height, channels: 3 };
-}
 
 describe('bandRows: which renders split their output rows over two threads', () => {
   it('splits a small output of a big source (the work grows with the source), and a big output of a small one', () => {
@@ -58,7 +47,7 @@ describe('a split small output of a big source', () => {
   afterAll(() => Promise.all(pools.map((p) => p.close())));
 
   it('has the bytes of one band on one thread (bands make exactly the rows of the whole)', async () => {
-    const src = chirp(1400, 1000); // 1.4 MP
+    const src = { data: new Uint8Array(gratingRaw(1400, 1000)), width: 1400, height: 1000, channels: 3 as const }; // 1.4 MP
     const p = plan(1400, 1000, 280, 200); // 56,000 output pixels
     const [one, two] = await Promise.all(pools.map((pool) => pool.resample(src, p)));
     expect(tasks[0].map((t) => t.rows)).toEqual([[0, 200]]);

@@ -121,6 +121,13 @@ describe('bandWithRest (a lagging band hands its rest to a free thread once the 
   });
 });
 
+/** 1200 x 900 RGB of seeded noise (a linear congruential generator's high bytes). */
+function noiseRaw(seed: number): Buffer {
+  const raw = Buffer.alloc(1200 * 900 * 3);
+  for (let i = 0, s = seed; i < raw.length; i++) raw[i] = (s = (Math.imul(s, 1664525) + 1013904223) >>> 0) >>> 24;
+  return raw;
+}
+
 /** A two-thread spooling pool whose band tasks are recorded in `tasks`, each let in once `door(task)` settles. */
 function doorPool(tasks: ResampleTask[], door: (task: ResampleTask) => Promise<unknown> | undefined): RenderPool {
   return new RenderPool({
@@ -148,8 +155,7 @@ describe('RenderPool.resampleSpooled hands a lagging band\'s rest over: the same
   afterAll(() => pool.close());
 
   it('4x+ shrink (one band, paced by the decode): split at the middle once written, rows equal to the in-memory render', async () => {
-    const raw = Buffer.alloc(1200 * 900 * 3);
-    for (let i = 0, s = 3; i < raw.length; i++) raw[i] = (s = (Math.imul(s, 1664525) + 1013904223) >>> 0) >>> 24;
+    const raw = noiseRaw(3);
     const shape = { width: 1200, height: 900, channels: 3 as const, depth: 8 as const };
     const theirs = plan(1200, 900, 417, 313);
     const path = pool.spool!.path();
@@ -183,8 +189,7 @@ describe('RenderPool.resampleSpooled of a finished file while the decision is ma
 
   const shape = { width: 1200, height: 900, channels: 3 as const, depth: 8 as const };
   const theirs = plan(1200, 900, 417, 313);
-  const raw = Buffer.alloc(1200 * 900 * 3);
-  for (let i = 0, s = 5; i < raw.length; i++) raw[i] = (s = (Math.imul(s, 1664525) + 1013904223) >>> 0) >>> 24;
+  const raw = noiseRaw(5);
 
   async function beside(off: boolean): Promise<PixelRaster> {
     tasks.length = 0;
